@@ -1,0 +1,211 @@
+package curves
+
+import (
+	"fmt"
+	"math"
+)
+
+// RefTempC is the temperature, in °C, at which curves, resistances and
+// capacities are stated (IEC 61951-2 and IEC 61960-3 rate cells at 20 ± 5 °C).
+const RefTempC = 20.0
+
+// ResistancePoint is the internal resistance of one cell at a depth of
+// discharge. Depth is the fraction of the curve's end charge, 0 to 1; Ohm is
+// the resistance in ohms at RefTempC, at least 0.
+type ResistancePoint struct {
+	Depth float64
+	Ohm   float64
+}
+
+// TempPoint scales a cell at an ambient temperature. Celsius is the
+// ambient in °C; Capacity multiplies the charge the curve delivers (1 at
+// RefTempC, above 0); Resistance multiplies the internal resistance (1 at
+// RefTempC, above 0).
+type TempPoint struct {
+	Celsius    float64
+	Capacity   float64
+	Resistance float64
+}
+
+// Cell is one electrochemical cell: its discharge curve and the terms that
+// move it with current, temperature and time. Currents are in amperes
+// flowing out of the cell, charges in mAh, voltages in volts.
+type Cell struct {
+	ID          string // short id, e.g. "lr6", "hr6-lsd"
+	Name        string // one line for people
+	Chemistry   string // e.g. "alkaline", "nimh", "li-ion"
+	Designation string // IEC designation where one exists, e.g. "LR6"
+
+	// Curve is the voltage against delivered charge at RefCurrent and
+	// RefTempC. With RefCurrent > 0 it is the terminal voltage under that
+	// current; with RefCurrent == 0 it is the rest (open-circuit) voltage.
+	Curve *Curve
+	// RefCurrent is the current in amperes at which Curve was taken; 0
+	// means a rest-voltage curve. Must be at least 0.
+	RefCurrent float64
+
+	NominalV     float64 // nominal voltage, volts
+	RatedMAh     float64 // rated capacity, mAh
+	RatedCurrent float64 // current at which RatedMAh is rated, amperes
+	EndPoint     float64 // end-point (end-of-discharge) voltage, volts
+
+	// Resistance is the internal resistance against depth of discharge,
+	// interpolated linearly and held at the ends; empty means 0 Ω.
+	Resistance []ResistancePoint
+	// Peukert is the rate exponent k, 1 (no rate effect) to 2.
+	Peukert float64
+	// Temperature is the table of capacity and resistance factors against
+	// ambient, sorted by Celsius; empty means no temperature effect.
+	Temperature []TempPoint
+	// SelfDischarge is the fraction of rated capacity lost per month at
+	// RefTempC, 0 to 1.
+	SelfDischarge float64
+
+	Rechargeable     bool
+	CycleLife        int     // full cycles to end of life, rechargeables only
+	ChargeEfficiency float64 // charge out ÷ charge in, 0 to 1, rechargeables only
+
+	Price  float64 // typical price of one cell in dollars, at least 0
+	Source string  // where the numbers come from
+}
+
+// Validate checks the cell's fields and says which is wrong.
+func (c *Cell) Validate() error {
+	bad := func(field string, format string, a ...any) error {
+		return fmt.Errorf("%s: %s", field, fmt.Sprintf(format, a...))
+	}
+	fin := func(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+	switch {
+	case c.Curve == nil:
+		return bad("curve", "missing")
+	case !fin(c.RefCurrent) || c.RefCurrent < 0:
+		return bad("ref_current", "%v A must be 0 or more", c.RefCurrent)
+	case !fin(c.RatedMAh) || c.RatedMAh <= 0:
+		return bad("rated_mAh", "%v must be above 0", c.RatedMAh)
+	case !fin(c.RatedCurrent) || c.RatedCurrent < 0:
+		return bad("rated_current", "%v A must be 0 or more", c.RatedCurrent)
+	case !fin(c.EndPoint) || c.EndPoint <= 0:
+		return bad("end_point", "%v V must be above 0", c.EndPoint)
+	case !fin(c.Peukert) || c.Peukert < 1 || c.Peukert > 2:
+		return bad("peukert", "%v must be between 1 and 2", c.Peukert)
+	case !fin(c.SelfDischarge) || c.SelfDischarge < 0 || c.SelfDischarge > 1:
+		return bad("self_discharge", "%v per month must be between 0 and 1", c.SelfDischarge)
+	case !fin(c.Price) || c.Price < 0:
+		return bad("price", "%v must be 0 or more", c.Price)
+	case !fin(c.NominalV) || c.NominalV < 0:
+		return bad("nominal", "%v V must be 0 or more", c.NominalV)
+	}
+	if c.Rechargeable {
+		if c.CycleLife < 1 {
+			return bad("cycle_life", "%d must be at least 1 for a rechargeable cell", c.CycleLife)
+		}
+		if !fin(c.ChargeEfficiency) || c.ChargeEfficiency <= 0 || c.ChargeEfficiency > 1 {
+			return bad("charge_efficiency", "%v must be above 0 and at most 1", c.ChargeEfficiency)
+		}
+	}
+	for i, r := range c.Resistance {
+		if !fin(r.Depth) || r.Depth < 0 || r.Depth > 1 {
+			return bad("resistance", "point %d: depth %v must be between 0 and 1", i+1, r.Depth)
+		}
+		if !fin(r.Ohm) || r.Ohm < 0 || r.Ohm > 1e4 {
+			return bad("resistance", "point %d: %v Ω must be between 0 and 10 kΩ", i+1, r.Ohm)
+		}
+		if i > 0 && r.Depth <= c.Resistance[i-1].Depth {
+			return bad("resistance", "point %d: depth %v must be above the previous %v", i+1, r.Depth, c.Resistance[i-1].Depth)
+		}
+	}
+	for i, t := range c.Temperature {
+		if !fin(t.Celsius) || t.Celsius < -60 || t.Celsius > 100 {
+			return bad("temperature", "point %d: %v °C must be between -60 and 100", i+1, t.Celsius)
+		}
+		if !fin(t.Capacity) || t.Capacity <= 0 || t.Capacity > 2 {
+			return bad("temperature", "point %d: capacity factor %v must be above 0 and at most 2", i+1, t.Capacity)
+		}
+		if !fin(t.Resistance) || t.Resistance <= 0 || t.Resistance > 100 {
+			return bad("temperature", "point %d: resistance factor %v must be above 0 and at most 100", i+1, t.Resistance)
+		}
+		if i > 0 && t.Celsius <= c.Temperature[i-1].Celsius {
+			return bad("temperature", "point %d: %v °C must be above the previous %v °C", i+1, t.Celsius, c.Temperature[i-1].Celsius)
+		}
+	}
+	return nil
+}
+
+// TempFactors returns the capacity and resistance factors at ambient tempC,
+// interpolated linearly in the table and held at its ends.
+func (c *Cell) TempFactors(tempC float64) (capacity, resistance float64) {
+	t := c.Temperature
+	if len(t) == 0 {
+		return 1, 1
+	}
+	if tempC <= t[0].Celsius {
+		return t[0].Capacity, t[0].Resistance
+	}
+	for i := 1; i < len(t); i++ {
+		if tempC <= t[i].Celsius {
+			f := (tempC - t[i-1].Celsius) / (t[i].Celsius - t[i-1].Celsius)
+			return t[i-1].Capacity + f*(t[i].Capacity-t[i-1].Capacity),
+				t[i-1].Resistance + f*(t[i].Resistance-t[i-1].Resistance)
+		}
+	}
+	last := t[len(t)-1]
+	return last.Capacity, last.Resistance
+}
+
+// CapacityFactor is Ceff/Cref: how much of the curve's charge the cell
+// delivers at an effective current ieff (A) and ambient tempC, relative to
+// the curve. It combines the temperature table with Peukert's law
+// (Peukert 1897): Ceff = Cref·(Iref/I)^(k−1). Below the reference current
+// the factor is held at 1: Peukert's law over-predicts the gain at light
+// loads, so headroom claims none (conservative).
+func (c *Cell) CapacityFactor(ieff, tempC float64) float64 {
+	f, _ := c.TempFactors(tempC)
+	iref := c.RefCurrent
+	if iref <= 0 {
+		iref = c.RatedCurrent
+	}
+	if c.Peukert > 1 && iref > 0 && ieff > iref {
+		f *= math.Pow(iref/ieff, c.Peukert-1)
+	}
+	return f
+}
+
+// ResistanceAt is the internal resistance in ohms at scaled charge qs (mAh
+// along the curve) and ambient tempC.
+func (c *Cell) ResistanceAt(qs, tempC float64) float64 {
+	r := c.Resistance
+	if len(r) == 0 {
+		return 0
+	}
+	_, fr := c.TempFactors(tempC)
+	d := qs / c.Curve.End()
+	if d <= r[0].Depth {
+		return r[0].Ohm * fr
+	}
+	for i := 1; i < len(r); i++ {
+		if d <= r[i].Depth {
+			f := (d - r[i-1].Depth) / (r[i].Depth - r[i-1].Depth)
+			return (r[i-1].Ohm + f*(r[i].Ohm-r[i-1].Ohm)) * fr
+		}
+	}
+	return r[len(r)-1].Ohm * fr
+}
+
+// Terminal is the cell's terminal voltage at scaled charge qs (mAh along
+// the curve, that is delivered charge divided by CapacityFactor), current i
+// (A, out of the cell) and ambient tempC:
+//
+//	V = Vcurve(qs) − (i − Iref)·R(qs)
+//
+// (DESIGN §2). It may be negative at absurd currents; callers cut off first.
+func (c *Cell) Terminal(qs, i, tempC float64) float64 {
+	return c.Curve.At(qs) - (i-c.RefCurrent)*c.ResistanceAt(qs, tempC)
+}
+
+// OpenCircuit is the cell's voltage with no current at scaled charge qs.
+func (c *Cell) OpenCircuit(qs, tempC float64) float64 {
+	return c.Terminal(qs, 0, tempC)
+}
+
+// IsPrimary reports whether the cell is single-use.
+func (c *Cell) IsPrimary() bool { return !c.Rechargeable }

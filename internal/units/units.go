@@ -1,0 +1,239 @@
+// Package units parses and formats engineering quantities with SI prefixes:
+// "120mA", "0.8W", "33ohm", "33Ω", "4.7k", "2.5n", "3s", "85%", "-10C".
+//
+// A value is returned in its base unit (volts, amperes, watts, ohms, seconds,
+// a fraction for percent, degrees Celsius, ampere-hours for charge). A bare
+// number with no unit is accepted only when the caller says it is
+// unambiguous (see Parse's bare argument); a unit of the wrong kind is an
+// error that names what was expected.
+package units
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+)
+
+// Kind is the physical kind of a quantity.
+type Kind int
+
+const (
+	Voltage Kind = iota
+	Current
+	Power
+	Resistance
+	Time
+	Fraction
+	Temperature
+	Charge
+	Money
+)
+
+var kindNames = [...]string{"a voltage (V)", "a current (A)", "a power (W)", "a resistance (ohm)", "a time (s, min, h)", "a percentage (%)", "a temperature (C)", "a charge (mAh, Ah)", "a price ($)"}
+
+func (k Kind) String() string {
+	if int(k) < 0 || int(k) >= len(kindNames) {
+		return "a quantity"
+	}
+	return kindNames[k]
+}
+
+// symbols maps each unit spelling to its kind and the factor to the base unit.
+var symbols = []struct {
+	sym    string
+	kind   Kind
+	factor float64
+}{
+	// Longest spellings first so "mAh" is not read as "m" + "Ah" wrongly and
+	// "min" is not read as milli-"in".
+	{"ohms", Resistance, 1}, {"ohm", Resistance, 1}, {"Ω", Resistance, 1}, {"Ohm", Resistance, 1}, {"R", Resistance, 1},
+	{"mAh", Charge, 1e-3}, {"Ah", Charge, 1},
+	{"min", Time, 60}, {"h", Time, 3600}, {"s", Time, 1},
+	{"°C", Temperature, 1}, {"degC", Temperature, 1}, {"C", Temperature, 1},
+	{"V", Voltage, 1}, {"A", Current, 1}, {"W", Power, 1},
+	{"%", Fraction, 0.01},
+	{"$", Money, 1},
+}
+
+var prefixes = map[string]float64{
+	"p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "μ": 1e-6, "m": 1e-3,
+	"k": 1e3, "M": 1e6, "G": 1e9,
+}
+
+// ErrEmpty is returned for an empty or blank value.
+var ErrEmpty = errors.New("empty value")
+
+// Parse reads s as a quantity of kind want and returns it in the base unit.
+// When bare is true a number without a unit symbol (but perhaps with an SI
+// prefix, as in "4.7k" or "10n") is taken in the base unit; otherwise the
+// unit symbol is required. Temperatures and money take no SI prefix.
+func Parse(s string, want Kind, bare bool) (float64, error) {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return 0, ErrEmpty
+	}
+	if want == Money {
+		t = strings.TrimPrefix(t, "$")
+	}
+	// Split the numeric head from the unit tail.
+	end := numberEnd(t)
+	if end == 0 {
+		return 0, fmt.Errorf("%q is not a number", s)
+	}
+	num, tail := t[:end], strings.TrimSpace(t[end:])
+	v, err := strconv.ParseFloat(num, 64)
+	if err != nil {
+		return 0, fmt.Errorf("%q is not a number", s)
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("%q is not a finite number", s)
+	}
+	if tail == "" {
+		if !bare {
+			return 0, fmt.Errorf("%q has no unit: expected %s", s, want)
+		}
+		return v, nil
+	}
+	scale, kind, ok := splitUnit(tail)
+	if !ok {
+		return 0, fmt.Errorf("%q: unknown unit %q, expected %s", s, tail, want)
+	}
+	if kind == -1 { // a prefix alone, e.g. "4.7k"
+		if !bare || want == Temperature || want == Money || want == Fraction {
+			return 0, fmt.Errorf("%q has no unit: expected %s", s, want)
+		}
+		kind = want
+	}
+	if kind != want {
+		return 0, fmt.Errorf("%q is %s, expected %s", s, kind, want)
+	}
+	r := v * scale
+	if math.IsInf(r, 0) {
+		return 0, fmt.Errorf("%q is out of range", s)
+	}
+	return r, nil
+}
+
+// numberEnd returns the length of the leading decimal number in s.
+func numberEnd(s string) int {
+	i := 0
+	if i < len(s) && (s[i] == '+' || s[i] == '-') {
+		i++
+	}
+	digits := 0
+	for i < len(s) && (s[i] >= '0' && s[i] <= '9' || s[i] == '.') {
+		if s[i] != '.' {
+			digits++
+		}
+		i++
+	}
+	if digits == 0 {
+		return 0
+	}
+	// Exponent: e or E followed by an optional sign and at least one digit.
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		j := i + 1
+		if j < len(s) && (s[j] == '+' || s[j] == '-') {
+			j++
+		}
+		k := j
+		for k < len(s) && s[k] >= '0' && s[k] <= '9' {
+			k++
+		}
+		if k > j {
+			i = k
+		}
+	}
+	return i
+}
+
+// splitUnit reads an optional SI prefix and a unit symbol. kind is -1 for a
+// prefix with no symbol.
+func splitUnit(tail string) (scale float64, kind Kind, ok bool) {
+	for _, u := range symbols {
+		if tail == u.sym {
+			return u.factor, u.kind, true
+		}
+	}
+	r, size := utf8.DecodeRuneInString(tail)
+	p, isPrefix := prefixes[string(r)]
+	if !isPrefix {
+		return 0, 0, false
+	}
+	rest := tail[size:]
+	if rest == "" {
+		return p, -1, true
+	}
+	for _, u := range symbols {
+		if rest == u.sym && u.kind != Temperature && u.kind != Money && u.kind != Fraction && u.kind != Time {
+			return p * u.factor, u.kind, true
+		}
+		if rest == u.sym && u.kind == Time && u.sym == "s" {
+			return p * u.factor, u.kind, true // ms, µs
+		}
+	}
+	return 0, 0, false
+}
+
+var baseSymbol = [...]string{"V", "A", "W", "ohm", "s", "%", "C", "Ah", "$"}
+
+// Format writes v (in the base unit of k) so that Parse(Format(v,k), k, false)
+// returns v exactly: the shortest decimal that round-trips, no prefix.
+func Format(v float64, k Kind) string {
+	switch k {
+	case Fraction:
+		return strconv.FormatFloat(v*100, 'g', -1, 64) + "%"
+	case Money:
+		return "$" + strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64) + baseSymbol[k]
+}
+
+// Human writes v with an engineering prefix and about sig significant
+// digits, for people: 0.12 A → "120 mA", 47000 ohm → "47 kΩ".
+func Human(v float64, k Kind, sig int) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "—"
+	}
+	sym := [...]string{"V", "A", "W", "Ω", "s", "%", "°C", "Ah", "$"}[k]
+	switch k {
+	case Fraction:
+		return trimFloat(v*100, sig) + " %"
+	case Temperature:
+		return trimFloat(v, sig) + " °C"
+	case Money:
+		return "$" + strconv.FormatFloat(v, 'f', 2, 64)
+	case Time:
+		return trimFloat(v, sig) + " s"
+	}
+	a := math.Abs(v)
+	pre, f := "", 1.0
+	switch {
+	case a == 0:
+	case a < 1e-6:
+		pre, f = "n", 1e9
+	case a < 1e-3:
+		pre, f = "µ", 1e6
+	case a < 1:
+		pre, f = "m", 1e3
+	case a >= 1e6:
+		pre, f = "M", 1e-6
+	case a >= 1e3:
+		pre, f = "k", 1e-3
+	}
+	return trimFloat(v*f, sig) + " " + pre + sym
+}
+
+func trimFloat(v float64, sig int) string {
+	if v == 0 {
+		return "0"
+	}
+	digits := sig - 1 - int(math.Floor(math.Log10(math.Abs(v))))
+	if digits < 0 {
+		digits = 0
+	}
+	return strconv.FormatFloat(v, 'f', digits, 64)
+}

@@ -1,0 +1,172 @@
+package protect
+
+import "math"
+
+// Element is an input-protection element in series between the pack and
+// the load. Currents are in amperes, positive from the pack into the load;
+// voltages in volts; temperatures in °C (ambient unless named junction).
+//
+// Every method is a pure function of its arguments and the element's
+// parameters, safe to call from many goroutines at once.
+type Element interface {
+	// Kind is the element's short kind name, as in a spec: "diode", "pmos".
+	Kind() string
+	// Spec is the full parameter string; Parse(Spec()) gives the element back.
+	Spec() string
+	// Drop is the forward voltage across the element when it carries
+	// current i (≥ 0) with vin at its input (the pack's terminal voltage)
+	// at ambient tempC. It is at least 0 and, for i below any clamp, below vin
+	// when vin is above 0 (the element cannot make voltage).
+	Drop(i, vin, tempC float64) float64
+	// Quiescent is the current the element draws from the pack at all
+	// times, to ground, with vin at its input: a gate divider, a clamp
+	// resistor, an IC's supply current, reverse leakage. At least 0.
+	Quiescent(vin, tempC float64) float64
+	// Limit gives the currents at which the element stops passing the
+	// load's demand.
+	Limit(tempC float64) Limit
+	// Cost is the element's unit cost in dollars, parts only.
+	Cost() float64
+	// Thermal gives the junction-to-ambient thermal resistance and the
+	// maximum junction temperature.
+	Thermal() Thermal
+	// Warnings lists what goes wrong in normal use at the operating
+	// conditions given, in plain words; nil when nothing does.
+	Warnings(op Operating) []string
+	// Reverse tells what happens when the user puts the cells in wrong.
+	Reverse(p Pack) Reversal
+}
+
+// Limit holds an element's current limits in amperes; +Inf where there is
+// none. Clamp is the current a limiter holds the load to (the load voltage
+// collapses above it); Trip is the current above which a fuse or polyfuse
+// opens and the product stops.
+type Limit struct {
+	Clamp float64
+	Trip  float64
+}
+
+// NoLimit is a Limit with neither a clamp nor a trip.
+var NoLimit = Limit{Clamp: math.Inf(1), Trip: math.Inf(1)}
+
+// Thermal holds ThetaJA, junction-to-ambient thermal resistance in °C/W
+// (above 0), and TjMax, the highest allowed junction temperature in °C.
+type Thermal struct {
+	ThetaJA float64
+	TjMax   float64
+}
+
+// Junction returns the junction temperature in °C at dissipation p (W) and
+// ambient tambC: Tj = Tamb + θja·P.
+func (t Thermal) Junction(p, tambC float64) float64 { return tambC + t.ThetaJA*p }
+
+// Operating describes normal use for Warnings.
+type Operating struct {
+	VFresh   float64   // open-circuit pack voltage when fresh, volts
+	Currents []float64 // the highest current of each load phase, amperes
+	PeakW    float64   // highest dissipation in the element, watts
+	TempC    float64   // ambient, °C
+}
+
+// Pack describes the pack for Reverse.
+type Pack struct {
+	Series   int     // cells in series, at least 1
+	CellV    float64 // open-circuit voltage of one fresh cell, volts
+	CellR    float64 // internal resistance of one cell, ohms
+	Parallel int     // strings in parallel, at least 1
+	LoadR    float64 // the load's resistance seen at its input, ohms (+Inf if unknown)
+	TempC    float64 // ambient, °C
+}
+
+// Outcome is the class of what happens on a wrong insertion.
+type Outcome int
+
+const (
+	// Blocked: almost no current flows; nothing is harmed.
+	Blocked Outcome = iota
+	// LoadReversed: the reversed voltage reaches the load.
+	LoadReversed
+	// FuseOpens: a fuse or polyfuse opens and must be replaced or cool down.
+	FuseOpens
+	// ShortsCells: the cells discharge at a high rate through the element.
+	ShortsCells
+	// Unseen: the element cannot tell; the product runs on a low voltage
+	// and the flipped cell is driven backwards.
+	Unseen
+)
+
+func (o Outcome) String() string {
+	switch o {
+	case Blocked:
+		return "blocked"
+	case LoadReversed:
+		return "reaches the load"
+	case FuseOpens:
+		return "fuse opens"
+	case ShortsCells:
+		return "shorts the cells"
+	case Unseen:
+		return "not seen"
+	}
+	return "unknown"
+}
+
+// Case is what one wrong insertion does.
+type Case struct {
+	Outcome Outcome
+	Current float64 // current that flows, amperes (≥ 0)
+	Volts   float64 // voltage at the load, volts (negative when reversed)
+	Seconds float64 // time until a fuse opens, seconds; 0 when not applicable
+	Note    string  // one sentence for people
+}
+
+// Reversal holds the two wrong insertions: the whole pack reversed, and one
+// cell of a series pack flipped.
+type Reversal struct {
+	WholePack Case
+	OneCell   Case
+}
+
+// None is no protection element: a wire.
+type None struct{}
+
+func (None) Kind() string                         { return "none" }
+func (None) Spec() string                         { return "none" }
+func (None) Drop(i, vin, tempC float64) float64   { return 0 }
+func (None) Quiescent(vin, tempC float64) float64 { return 0 }
+func (None) Limit(tempC float64) Limit            { return NoLimit }
+func (None) Cost() float64                        { return 0 }
+func (None) Thermal() Thermal                     { return Thermal{ThetaJA: 1, TjMax: math.Inf(1)} }
+func (None) Warnings(op Operating) []string       { return nil }
+func (None) Reverse(p Pack) Reversal {
+	v := float64(p.Series) * p.CellV
+	i := 0.0
+	if p.LoadR > 0 && !math.IsInf(p.LoadR, 1) {
+		i = v / p.LoadR
+	}
+	return Reversal{
+		WholePack: Case{Outcome: LoadReversed, Current: i, Volts: -v,
+			Note: "the load sees the full pack voltage reversed; most ICs and electrolytic capacitors are damaged"},
+		OneCell: FlippedCell(p, 0),
+	}
+}
+
+// FlippedCell is the one-cell-flipped case, which no series element can
+// see: the pack gives (S−2) cell voltages, and the load current is forced
+// backwards through the flipped cell. drop is the element's forward drop at
+// that current (0 for none).
+func FlippedCell(p Pack, drop float64) Case {
+	if p.Series < 2 {
+		return Case{Outcome: Blocked, Note: "a single-cell pack has no cell to flip against another"}
+	}
+	v := float64(p.Series-2)*p.CellV - drop
+	if v < 0 {
+		v = 0
+	}
+	i := 0.0
+	if p.LoadR > 0 && !math.IsInf(p.LoadR, 1) {
+		i = v / p.LoadR
+	}
+	return Case{Outcome: Unseen, Current: i, Volts: v,
+		Note: "no input element sees it: the pack gives two cell voltages less and the flipped cell is charged backwards (alkaline cells may leak)"}
+}
