@@ -237,3 +237,54 @@ func trimFloat(v float64, sig int) string {
 	}
 	return strconv.FormatFloat(v, 'f', digits, 64)
 }
+
+// Raw is a quantity read from a file before its kind is known: either a
+// number or a string with units. It decodes from TOML numbers and strings.
+type Raw struct {
+	num   float64
+	text  string
+	isNum bool
+	set   bool
+}
+
+// UnmarshalTOML lets BurntSushi/toml decode a number or a string into Raw.
+func (r *Raw) UnmarshalTOML(v any) error {
+	switch x := v.(type) {
+	case int64:
+		*r = Raw{num: float64(x), isNum: true, set: true}
+	case float64:
+		*r = Raw{num: x, isNum: true, set: true}
+	case string:
+		*r = Raw{text: x, set: true}
+	default:
+		return fmt.Errorf("expected a number or a quoted value with units, got %T", v)
+	}
+	return nil
+}
+
+// RawNumber and RawText build a Raw in code.
+func RawNumber(v float64) Raw { return Raw{num: v, isNum: true, set: true} }
+func RawText(s string) Raw    { return Raw{text: s, set: true} }
+
+// Set reports whether the value was given.
+func (r Raw) Set() bool { return r.set }
+
+// Get returns the value in the base unit of kind. A plain number is taken in
+// the base unit (the key names it); a string is parsed with Parse.
+func (r Raw) Get(kind Kind, bare bool) (float64, error) {
+	if r.isNum {
+		if math.IsNaN(r.num) || math.IsInf(r.num, 0) {
+			return 0, fmt.Errorf("%v is not a finite number", r.num)
+		}
+		return r.num, nil
+	}
+	return Parse(r.text, kind, bare)
+}
+
+// String gives the value as written.
+func (r Raw) String() string {
+	if r.isNum {
+		return strconv.FormatFloat(r.num, 'g', -1, 64)
+	}
+	return r.text
+}
