@@ -1,0 +1,144 @@
+package discharge
+
+import (
+	"fmt"
+	"math"
+
+	"headroom/curves"
+	"headroom/protect"
+)
+
+// Design is one product to evaluate: its pack, protection, load and floor.
+type Design struct {
+	Cell     *curves.Cell     // the cell type; read-only
+	Series   int              // cells in series, 1 to 48
+	Parallel int              // strings in parallel, 1 to 16
+	Protect  protect.Element  // input protection; nil means none
+	Profile  []Phase          // the repeating load; at least one phase
+	Floor    float64          // minimum voltage at the load, volts, at least 0
+	TempC    float64          // ambient, °C
+	// HoursPerDay is the hours of use a day, above 0 and at most 24; 0
+	// means continuous use (24).
+	HoursPerDay float64
+	// Standby is the current the product draws from the pack when not in
+	// use, amperes, at least 0.
+	Standby float64
+	// PackPrice is the price of one pack in dollars; 0 means the cell's
+	// price times Series·Parallel.
+	PackPrice float64
+	// ElectricityPrice is the price of charging energy in dollars per kWh;
+	// 0 means DefaultElectricityPrice.
+	ElectricityPrice float64
+	// TracePoints is how many points of the voltage trace to return for
+	// charts; 0 for none (sweeps).
+	TracePoints int
+}
+
+// DefaultElectricityPrice is a typical household tariff in dollars per kWh
+// (from memory; set Design.ElectricityPrice for your own).
+const DefaultElectricityPrice = 0.30
+
+// Validate checks the design and says which value is wrong.
+func (d *Design) Validate() error {
+	fin := func(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+	switch {
+	case d.Cell == nil:
+		return fmt.Errorf("cell: none given")
+	case d.Series < 1 || d.Series > 48:
+		return fmt.Errorf("series: %d cells must be between 1 and 48", d.Series)
+	case d.Parallel < 1 || d.Parallel > 16:
+		return fmt.Errorf("parallel: %d strings must be between 1 and 16", d.Parallel)
+	case len(d.Profile) == 0:
+		return fmt.Errorf("load: no phases")
+	case len(d.Profile) > 64:
+		return fmt.Errorf("load: %d phases, at most 64", len(d.Profile))
+	case !fin(d.Floor) || d.Floor < 0 || d.Floor > 1000:
+		return fmt.Errorf("floor: %v V must be between 0 and 1000 V", d.Floor)
+	case !fin(d.TempC) || d.TempC < -40 || d.TempC > 85:
+		return fmt.Errorf("temperature: %v °C must be between -40 and 85 °C", d.TempC)
+	case !fin(d.HoursPerDay) || d.HoursPerDay < 0 || d.HoursPerDay > 24:
+		return fmt.Errorf("hours per day: %v must be above 0 and at most 24", d.HoursPerDay)
+	case !fin(d.Standby) || d.Standby < 0 || d.Standby > 10:
+		return fmt.Errorf("standby: %v A must be between 0 and 10 A", d.Standby)
+	case !fin(d.PackPrice) || d.PackPrice < 0:
+		return fmt.Errorf("price: %v must be 0 or more", d.PackPrice)
+	case !fin(d.ElectricityPrice) || d.ElectricityPrice < 0:
+		return fmt.Errorf("electricity price: %v must be 0 or more", d.ElectricityPrice)
+	case d.TracePoints < 0 || d.TracePoints > 100000:
+		return fmt.Errorf("trace points: %d must be between 0 and 100000", d.TracePoints)
+	}
+	if err := d.Cell.Validate(); err != nil {
+		return fmt.Errorf("cell %s: %w", d.Cell.ID, err)
+	}
+	for i, p := range d.Profile {
+		if err := p.Load.Validate(); err != nil {
+			return fmt.Errorf("load phase %d: %w", i+1, err)
+		}
+		if !fin(p.Seconds) || p.Seconds <= 0 {
+			return fmt.Errorf("load phase %d: duration %v s must be above 0", i+1, p.Seconds)
+		}
+	}
+	return nil
+}
+
+// Cause is why the product stopped.
+type Cause string
+
+const (
+	CauseFloor    Cause = "floor"         // the load voltage fell below the floor
+	CauseCollapse Cause = "collapse"      // a constant-power load found no operating point
+	CauseEndPoint Cause = "end-point"     // a cell reached its end-point voltage or the end of its curve
+	CauseLimit    Cause = "current limit" // the protection element clamped the load's current
+	CauseFuse     Cause = "fuse"          // a fuse or polyfuse opened
+)
+
+// TracePoint is one point of the voltage trace.
+type TracePoint struct {
+	Hours float64 // hours of use since fresh
+	MAh   float64 // charge drawn from the pack
+	PackV float64 // pack terminal voltage during the heaviest phase
+	LoadV float64 // load voltage during the heaviest phase (the lowest of all phases)
+	IdleV float64 // load voltage during the lightest phase (the highest of all phases)
+}
+
+// Result is what Evaluate computes (DESIGN §6). Charges are in mAh of the
+// pack, energies in Wh, times in hours of use unless named otherwise.
+type Result struct {
+	RuntimeH    float64 // hours of use until cut-off
+	RuntimeDays float64 // calendar days at the daily pattern
+
+	DeliveredMAh float64 // charge drawn from the pack until cut-off (load, standby, element drain, self-discharge)
+	DeliveredWh  float64 // energy delivered into the load
+
+	ReferenceMAh            float64 // the cells at this load to their end-point, no element, no floor
+	StrandedMAh             float64 // ReferenceMAh − DeliveredMAh
+	StrandedByProtectionMAh float64 // cut-off charge without the element minus with it
+	StrandedByFloorMAh      float64 // the rest of StrandedMAh
+
+	ProtectionLossWh float64 // energy burnt in the element (drop and standing drain)
+	CellLossWh       float64 // energy burnt in the cells' internal resistance
+	ProtectionPeakW  float64 // highest dissipation in the element
+	JunctionC        float64 // element junction temperature at ProtectionPeakW
+
+	StandbyMAh       float64 // charge drawn outside the hours of use
+	SelfDischargeMAh float64 // charge lost inside the cells
+	QuiescentA       float64 // element's standing drain with the fresh pack
+	StandbyShare     float64 // (standby + self-discharge) ÷ delivered, 0 to 1
+
+	PackPrice   float64 // dollars for one pack
+	CostPerHour float64 // dollars per hour of use; 0 when the runtime is 0
+
+	CutoffPhase string  // label of the phase that failed first
+	CutoffCause Cause   // why
+	CutoffLoadV float64 // load voltage of that phase just before cut-off
+	CutoffPackV float64 // pack terminal voltage of that phase just before cut-off
+	CutoffAmps  float64 // that phase's current just before cut-off
+
+	FreshV      float64 // open-circuit pack voltage when fresh
+	EffectiveA  float64 // the per-cell current used for the rate effect
+	CapacityFac float64 // Ceff/Cref from rate and temperature
+
+	Warnings []string
+	Cautions []string
+	Trace    []TracePoint
+}

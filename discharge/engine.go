@@ -1,0 +1,585 @@
+package discharge
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/integrate/quad"
+
+	"headroom/curves"
+	"headroom/protect"
+)
+
+// gaussN is the Gauss–Legendre order used on each smooth span. The
+// integrand between breakpoints is a smooth function of charge (a ratio of
+// low-order polynomials and logarithms); 8 nodes integrate it to about 1e-9
+// relative on the library cells (see TestQuadratureConverges).
+const gaussN = 8
+
+// gauss holds the nodes and weights on [-1, 1]; computed once, read-only.
+var gaussX, gaussW = func() ([]float64, []float64) {
+	x := make([]float64, gaussN)
+	w := make([]float64, gaussN)
+	quad.Legendre{}.FixedLocations(x, w, -1, 1)
+	return x, w
+}()
+
+// hoursPerMonth is the mean month, 365.25·24/12 hours.
+const hoursPerMonth = 730.5
+
+// op is one phase's operating point.
+type op struct {
+	I     float64 // load current, A
+	Ipack float64 // pack current (load + element drain), A
+	Vin   float64 // pack terminal voltage, V
+	Vload float64 // load voltage, V
+	Vdrop float64 // element drop, V
+	CellV float64 // one cell's terminal voltage, V
+	Fail  Cause   // "" while the phase works
+}
+
+// variant is the design seen with a given element and floor: the real one,
+// the same without the element, and the reference (no element, no floor).
+type variant struct {
+	el    protect.Element
+	lim   protect.Limit
+	floor float64
+}
+
+type evaluator struct {
+	d     *Design
+	cell  *curves.Cell
+	S, P  float64
+	T     float64
+	w     []float64 // duty weights of the phases, summing to 1
+	loads []Load
+	end   float64 // curve end, mAh (scaled, per cell)
+	breaks []float64
+}
+
+// pack gives the pack's Thevenin source at scaled charge qs: E is the
+// voltage at zero current and Rp the pack resistance, so that
+// Vpack(I) = E − I·Rp (DESIGN §2: Vpack = S·Vcell, Rpack = S·R/P).
+func (e *evaluator) pack(qs float64) (E, Rp, Rcell float64) {
+	c := e.cell
+	Rcell = c.ResistanceAt(qs, e.T)
+	E = e.S * (c.Curve.At(qs) + c.RefCurrent*Rcell)
+	Rp = e.S * Rcell / e.P
+	return E, Rp, Rcell
+}
+
+// solve finds the operating point of load l with the pack source (E, Rp)
+// behind element v.
+func (e *evaluator) solve(l Load, v *variant, E, Rp float64) op {
+	T := e.T
+	iq := v.el.Quiescent(E, T)
+	vin := func(i float64) float64 { return E - (i+iq)*Rp }
+	vload := func(i float64) float64 {
+		x := vin(i)
+		return x - v.el.Drop(i, x, T)
+	}
+	var i float64
+	switch l.Kind {
+	case ConstantCurrent:
+		i = l.Amps
+	case ConstantResistance:
+		g := func(i float64) float64 { return i*l.Ohms - vload(i) }
+		if vload(0) <= 0 {
+			i = 0
+		} else {
+			i = bracketRoot(g, 0, E/l.Ohms)
+		}
+	case LED:
+		g := func(i float64) float64 { return i*l.Ohms + l.Vf - vload(i) }
+		if vload(0) <= l.Vf {
+			i = 0
+		} else {
+			i = bracketRoot(g, 0, (E-l.Vf)/l.Ohms)
+		}
+	case ConstantPower:
+		pin := l.InputPower()
+		if pin > 0 {
+			var ok bool
+			i, ok = powerPoint(vload, pin, E)
+			if !ok {
+				return op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: CauseCollapse}
+			}
+		}
+	}
+	o := op{I: i, Ipack: i + iq}
+	o.Vin = vin(i)
+	o.Vdrop = v.el.Drop(i, o.Vin, T)
+	o.Vload = o.Vin - o.Vdrop
+	switch {
+	case i > v.lim.Trip:
+		o.Fail = CauseFuse
+	case i > v.lim.Clamp:
+		o.Fail = CauseLimit
+	case o.Vload < v.floor || o.Vload <= 0 && i > 0:
+		o.Fail = CauseFloor
+	}
+	return o
+}
+
+// bracketRoot finds the root of an increasing g on [lo, hi] with g(lo) ≤ 0
+// ≤ g(hi) by the Illinois variant of regula falsi, to about 1e-13 relative.
+func bracketRoot(g func(float64) float64, lo, hi float64) float64 {
+	flo, fhi := g(lo), g(hi)
+	if flo >= 0 {
+		return lo
+	}
+	if fhi <= 0 {
+		return hi
+	}
+	side := 0
+	for k := 0; k < 100; k++ {
+		x := (lo*fhi - hi*flo) / (fhi - flo)
+		if !(x > lo && x < hi) {
+			x = 0.5 * (lo + hi)
+		}
+		fx := g(x)
+		if fx == 0 || hi-lo <= 1e-13*math.Max(hi, 1e-12) {
+			return x
+		}
+		if fx < 0 {
+			lo, flo = x, fx
+			if side == -1 {
+				fhi /= 2
+			}
+			side = -1
+		} else {
+			hi, fhi = x, fx
+			if side == 1 {
+				flo /= 2
+			}
+			side = 1
+		}
+	}
+	return 0.5 * (lo + hi)
+}
+
+// powerPoint finds the lower (stable) current at which i·vload(i) = pin by
+// Newton's method from zero current. i·vload(i) is concave for every element
+// headroom models, so the iterates rise monotonically to the root without
+// overshooting; if the slope turns non-positive first there is no operating
+// point: the load collapses (DESIGN §4: Voc²/(4·R) < Pin for a resistive
+// source).
+func powerPoint(vload func(float64) float64, pin, E float64) (float64, bool) {
+	i := 0.0
+	for k := 0; k < 200; k++ {
+		v := vload(i)
+		f := i*v - pin
+		if v <= 0 {
+			return i, false
+		}
+		h := 1e-7 * math.Max(i, pin/E)
+		v2 := vload(i + h)
+		df := ((i+h)*v2 - i*v) / h
+		if df <= 0 {
+			return i, false
+		}
+		step := -f / df
+		i += step
+		if math.Abs(step) <= 1e-13*i {
+			return i, i*vload(i) >= pin*(1-1e-9)
+		}
+	}
+	v := vload(i)
+	return i, math.Abs(i*v-pin) <= 1e-9*pin
+}
+
+// phases solves every phase at qs; it returns the first failure.
+func (e *evaluator) phases(qs float64, v *variant, out []op) (fail Cause, phase int) {
+	fail, phase = "", -1
+	if qs >= e.end {
+		return CauseEndPoint, 0
+	}
+	E, Rp, _ := e.pack(qs)
+	for k, l := range e.loads {
+		o := e.solve(l, v, E, Rp)
+		if o.Fail == "" {
+			o.CellV = (E - o.Ipack*Rp) / e.S
+			if o.CellV < e.cell.EndPoint {
+				o.Fail = CauseEndPoint
+			}
+		}
+		if out != nil {
+			out[k] = o
+		}
+		if o.Fail != "" && (fail == "" || rank(o.Fail) < rank(fail)) {
+			fail, phase = o.Fail, k
+		}
+	}
+	return fail, phase
+}
+
+// rank orders causes when several phases fail at once: the most telling first.
+func rank(c Cause) int {
+	switch c {
+	case CauseFuse:
+		return 0
+	case CauseLimit:
+		return 1
+	case CauseCollapse:
+		return 2
+	case CauseFloor:
+		return 3
+	}
+	return 4
+}
+
+// cutoff returns the scaled charge at which variant v first fails. It
+// scans the breakpoints, then bisects the first span that fails.
+func (e *evaluator) cutoff(v *variant, buf []op) float64 {
+	if f, _ := e.phases(0, v, buf); f != "" {
+		return 0
+	}
+	lo := 0.0
+	for _, b := range e.breaks[1:] {
+		if f, _ := e.phases(b, v, buf); f == "" {
+			lo = b
+			continue
+		}
+		hi := b
+		for hi-lo > 1e-12*e.end {
+			mid := 0.5 * (lo + hi)
+			if f, _ := e.phases(mid, v, buf); f == "" {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		return lo
+	}
+	return lo
+}
+
+// Evaluate computes runtime, capacity and losses for design d.
+func Evaluate(d *Design) (*Result, error) {
+	if err := d.Validate(); err != nil {
+		return nil, err
+	}
+	el := d.Protect
+	if el == nil {
+		el = protect.None{}
+	}
+	e := &evaluator{d: d, cell: d.Cell, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC}
+	e.end = d.Cell.Curve.End()
+	total := 0.0
+	for _, p := range d.Profile {
+		total += p.Seconds
+	}
+	for _, p := range d.Profile {
+		e.w = append(e.w, p.Seconds/total)
+		e.loads = append(e.loads, p.Load)
+	}
+	e.breaks = breakpoints(d.Cell)
+
+	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor}
+	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor}
+	ref := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
+	buf := make([]op, len(e.loads))
+
+	// Rate effect: one effective per-cell current at half depth, the
+	// Peukert-weighted average of the phases (see doc.go).
+	k := d.Cell.Peukert
+	e.phases(0.5*e.end, real, buf)
+	sum := 0.0
+	for j, o := range buf {
+		sum += e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
+	}
+	ieff := math.Pow(sum, 1/k)
+	F := d.Cell.CapacityFactor(ieff, d.TempC)
+	scale := e.P * F // pack mAh per scaled cell mAh
+
+	r := &Result{EffectiveA: ieff, CapacityFac: F}
+	E0, _, _ := e.pack(0)
+	r.FreshV = E0
+	r.QuiescentA = el.Quiescent(E0, d.TempC)
+
+	qsCut := e.cutoff(real, buf)
+	qsBare := e.cutoff(bare, buf)
+	qsRef := e.cutoff(ref, buf)
+
+	// Cut-off cause: the first failure just past the cut.
+	past := math.Min(qsCut+1e-9*e.end, e.end)
+	if qsCut == 0 {
+		past = 0
+	}
+	fail, ph := e.phases(past, real, buf)
+	if fail == "" { // numerical edge: call it the end of the curve
+		fail, ph = CauseEndPoint, 0
+	}
+	r.CutoffCause = fail
+	r.CutoffPhase = d.Profile[ph].Label()
+	e.phases(qsCut, real, buf)
+	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = buf[ph].Vload, buf[ph].Vin, buf[ph].I
+	if fail == CauseCollapse || qsCut == 0 {
+		r.CutoffLoadV = math.Max(buf[ph].Vload, 0)
+	}
+
+	// Charges, in pack mAh; see Result for the reference's definition.
+	qA := qsCut * scale
+	qB := math.Max(qsBare*scale, qA)
+	qC := math.Max(qsRef*scale, qB)
+	r.DeliveredMAh = qA
+	r.StrandedByProtectionMAh = qB - qA
+	r.StrandedByFloorMAh = qC - qB
+	r.StrandedMAh = qC - qA
+	r.ReferenceMAh = qC
+
+	e.integrate(real, qsCut, scale, r, buf)
+	e.priceAndNotes(el, r, buf)
+	return r, nil
+}
+
+// breakpoints are the scaled charges where the curve or the resistance
+// table has a corner, sorted, from 0 to the curve's end.
+func breakpoints(c *curves.Cell) []float64 {
+	end := c.Curve.End()
+	b := []float64{0, end}
+	b = append(b, c.Curve.Charges()...)
+	for _, r := range c.Resistance {
+		b = append(b, r.Depth*end)
+	}
+	sort.Float64s(b)
+	out := b[:0]
+	for _, x := range b {
+		if x < 0 || x > end || len(out) > 0 && x-out[len(out)-1] <= 1e-12*end {
+			continue
+		}
+		out = append(out, x)
+	}
+	return out
+}
+
+// rates gathers the per-node quantities the quadrature sums.
+type rates struct {
+	calendar float64 // pack drain over a calendar hour, mA
+	loadW    float64 // power into the load, W (averaged over the day)
+	protW    float64 // power in the element, W
+	cellW    float64 // power in the cells' resistance, W
+	standby  float64 // standby drain, mA
+	self     float64 // self-discharge, mA
+	peakW    float64 // highest element dissipation among the phases, W
+}
+
+func (e *evaluator) rates(qs float64, v *variant, buf []op) rates {
+	d := e.d
+	e.phases(qs, v, buf)
+	E, Rp, _ := e.pack(qs)
+	f := 1.0
+	if d.HoursPerDay > 0 {
+		f = d.HoursPerDay / 24
+	}
+	var r rates
+	var use, loadW, protW, cellW float64
+	for j, o := range buf {
+		w := e.w[j]
+		use += w * o.Ipack
+		loadW += w * o.Vload * o.I
+		pw := o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
+		protW += w * pw
+		cellW += w * o.Ipack * o.Ipack * Rp
+		if pw > r.peakW {
+			r.peakW = pw
+		}
+	}
+	iq := v.el.Quiescent(E, e.T)
+	idle := d.Standby + iq
+	r.standby = (1 - f) * idle * 1000
+	r.self = e.selfDischarge()
+	r.calendar = f*use*1000 + r.standby + r.self
+	r.loadW = f * loadW
+	r.protW = f*protW + (1-f)*E*iq
+	r.cellW = f*cellW + (1-f)*idle*idle*Rp
+	return r
+}
+
+// selfDischarge is the pack's self-discharge as a steady drain in mA: the
+// cell's fraction per month of the rated capacity, doubling for every 10 °C
+// above the reference (common practice rule of thumb for the Arrhenius
+// rise of side reactions).
+func (e *evaluator) selfDischarge() float64 {
+	c := e.cell
+	return c.SelfDischarge * c.RatedMAh * e.P / hoursPerMonth * math.Pow(2, (e.T-curves.RefTempC)/10)
+}
+
+// integrate fills the time, energy and drain totals from 0 to qsCut and
+// the trace.
+func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf []op) {
+	d := e.d
+	f := 1.0
+	if d.HoursPerDay > 0 {
+		f = d.HoursPerDay / 24
+	}
+	var cal, loadWh, protWh, cellWh, stby, self float64
+	peak := 0.0
+	span := func(a, b float64) float64 { // returns calendar hours on [a, b]
+		if b <= a {
+			return 0
+		}
+		h := 0.0
+		half, mid := 0.5*(b-a), 0.5*(a+b)
+		for j, x := range gaussX {
+			q := mid + half*x
+			rt := e.rates(q, v, buf)
+			dt := gaussW[j] * half * scale / rt.calendar // hours per node
+			h += dt
+			loadWh += rt.loadW * dt
+			protWh += rt.protW * dt
+			cellWh += rt.cellW * dt
+			stby += rt.standby * dt
+			self += rt.self * dt
+			peak = math.Max(peak, rt.peakW)
+		}
+		return h
+	}
+	prev := 0.0
+	for _, b := range e.breaks[1:] {
+		if b >= qsCut {
+			cal += span(prev, qsCut)
+			break
+		}
+		cal += span(prev, b)
+		prev = b
+	}
+	// The element's peak dissipation can sit at either end of the run.
+	for _, q := range []float64{0, qsCut} {
+		if q < e.end {
+			peak = math.Max(peak, e.rates(q, v, buf).peakW)
+		}
+	}
+	r.RuntimeDays = cal / 24
+	r.RuntimeH = cal * f
+	r.DeliveredWh = loadWh
+	r.ProtectionLossWh = protWh
+	r.CellLossWh = cellWh
+	r.StandbyMAh = stby
+	r.SelfDischargeMAh = self
+	if r.DeliveredMAh > 0 {
+		r.StandbyShare = math.Min(1, (stby+self)/r.DeliveredMAh)
+	}
+	r.ProtectionPeakW = peak
+
+	if d.TracePoints > 1 && qsCut > 0 {
+		e.trace(v, qsCut, scale, f, r, buf)
+	}
+}
+
+// trace samples the voltages at evenly spaced charges, integrating the
+// time between samples with the same rule.
+func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, buf []op) {
+	n := e.d.TracePoints
+	r.Trace = make([]TracePoint, n)
+	hours := 0.0
+	var prev float64
+	for k := 0; k < n; k++ {
+		q := qsCut * float64(k) / float64(n-1)
+		if k == n-1 {
+			q = qsCut * (1 - 1e-12)
+		}
+		if k > 0 {
+			half, mid := 0.5*(q-prev), 0.5*(q+prev)
+			for j, x := range gaussX[:] {
+				rt := e.rates(mid+half*x, v, buf)
+				hours += gaussW[j] * half * scale / rt.calendar
+			}
+		}
+		prev = q
+		e.phases(q, v, buf)
+		tp := TracePoint{Hours: hours * f, MAh: q * scale, LoadV: math.Inf(1), IdleV: math.Inf(-1)}
+		for _, o := range buf {
+			if o.Vload < tp.LoadV {
+				tp.LoadV, tp.PackV = o.Vload, o.Vin
+			}
+			tp.IdleV = math.Max(tp.IdleV, o.Vload)
+		}
+		r.Trace[k] = tp
+	}
+	if n > 1 {
+		r.Trace[n-1].Hours = r.RuntimeH
+	}
+}
+
+// priceAndNotes fills cost, heat, warnings and cautions.
+func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
+	d := e.d
+	c := d.Cell
+	r.PackPrice = d.PackPrice
+	if r.PackPrice == 0 {
+		r.PackPrice = c.Price * e.S * e.P
+	}
+	if r.RuntimeH > 0 {
+		if c.Rechargeable {
+			elec := d.ElectricityPrice
+			if elec == 0 {
+				elec = DefaultElectricityPrice
+			}
+			// Charging energy per cycle: the charge put back at the pack's
+			// nominal voltage, divided by the charge efficiency.
+			nominal := c.NominalV
+			if nominal == 0 {
+				nominal = c.Curve.At(0.5 * e.end)
+			}
+			chargeKWh := r.DeliveredMAh / 1000 * nominal * e.S / c.ChargeEfficiency / 1000
+			r.CostPerHour = (r.PackPrice/float64(c.CycleLife) + chargeKWh*elec) / r.RuntimeH
+		} else {
+			r.CostPerHour = r.PackPrice / r.RuntimeH
+		}
+	}
+	th := el.Thermal()
+	r.JunctionC = th.Junction(r.ProtectionPeakW, d.TempC)
+
+	// The highest current of each phase over the run, for the element's
+	// warnings (at the fresh pack and at cut-off; currents are monotone in
+	// charge for every load law).
+	cur := make([]float64, len(e.loads))
+	for _, q := range []float64{0, math.Max(0, r.DeliveredMAh/(e.P*r.CapacityFac)*(1-1e-9))} {
+		if q >= e.end {
+			continue
+		}
+		v := &variant{el: el, lim: protect.NoLimit, floor: 0}
+		e.phases(q, v, buf)
+		for j, o := range buf {
+			cur[j] = math.Max(cur[j], o.I)
+		}
+	}
+	r.Warnings = append(r.Warnings, el.Warnings(protect.Operating{VFresh: r.FreshV, Currents: cur, PeakW: r.ProtectionPeakW, TempC: d.TempC})...)
+	if r.StandbyShare > 0.2 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("standby drain and self-discharge take %.0f %% of the charge: the pack goes flat on the shelf", r.StandbyShare*100))
+	}
+	if r.RuntimeH == 0 {
+		r.Warnings = append(r.Warnings, "the product does not start: "+describeCause(r))
+	}
+	r.Cautions = append(r.Cautions, Cautions(c, d.Series*d.Parallel)...)
+}
+
+// describeCause says in words why the product stopped.
+func describeCause(r *Result) string {
+	switch r.CutoffCause {
+	case CauseFloor:
+		return fmt.Sprintf("the load voltage on %s falls to %.2f V, below the floor", r.CutoffPhase, r.CutoffLoadV)
+	case CauseCollapse:
+		return fmt.Sprintf("the pack cannot deliver the power of %s (the converter's input collapses)", r.CutoffPhase)
+	case CauseLimit:
+		return fmt.Sprintf("%s draws %.3g A, above the element's current limit", r.CutoffPhase, r.CutoffAmps)
+	case CauseFuse:
+		return fmt.Sprintf("%s draws %.3g A and the fuse opens", r.CutoffPhase, r.CutoffAmps)
+	}
+	return "the cells reach their end-point voltage"
+}
+
+// Describe says in words why the product stopped (for reports).
+func (r *Result) Describe() string { return describeCause(r) }
+
+// Cautions are the usual cautions for a pack of n cells of cell c.
+func Cautions(c *curves.Cell, n int) []string {
+	out := []string{"Estimates, not certification: check the cell maker's data, local codes and toy-safety rules (IEC 62115 and local equivalents); defer to licensed practice."}
+	out = append(out, curves.Cautions(c)...)
+	if n > 1 {
+		out = append(out, "Never mix old and new cells, or different chemistries, in one pack.")
+	}
+	return out
+}
