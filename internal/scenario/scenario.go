@@ -1,0 +1,625 @@
+// Package scenario reads and writes headroom's scenario files (TOML): one
+// design, the options and sweeps a runtime table runs over, and the user's
+// own cells. The command line and the interactive screen share it, so a
+// flag and a screen field go through the same parse and validate functions.
+package scenario
+
+import (
+	_ "embed"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+
+	"headroom/curves"
+	"headroom/discharge"
+	"headroom/internal/units"
+	"headroom/protect"
+)
+
+//go:embed demo.toml
+var demoTOML []byte
+
+// DemoTOML is the built-in demo scenario's file text.
+func DemoTOML() []byte { return append([]byte(nil), demoTOML...) }
+
+// MaxFileSize is the largest scenario file read, in bytes.
+const MaxFileSize = 1 << 20
+
+// Scenario is one product and the choices to compare for it.
+type Scenario struct {
+	Name string
+	Note string
+	Path string // file it came from; "" for the demo
+
+	// The design as chosen: the first option of every list.
+	Design      discharge.Design
+	CellRef     string // as written: library id or path
+	ProtectSpec string
+	LoadSpec    string // profile syntax of discharge.ParseProfile
+
+	FileCells []*curves.Cell // cells defined in or referenced by the file
+
+	// Options and sweeps; each has at least one entry.
+	Cells      []*curves.Cell
+	Series     []int
+	Parallel   []int
+	Protects   []protect.Element
+	Loads      [][]discharge.Phase
+	LoadSpecs  []string
+	Floors     []float64
+	Temps      []float64
+	LoadScales []float64
+
+	Budget float64 // dollars for cells + protection; 0 for none
+	dir    string
+}
+
+type phaseDef struct {
+	Name     string    `toml:"name"`
+	Load     string    `toml:"load"`
+	Duration units.Raw `toml:"duration"`
+}
+
+type optionsDef struct {
+	Cells    []string `toml:"cells"`
+	Series   []int    `toml:"series"`
+	Parallel []int    `toml:"parallel"`
+	Protect  []string `toml:"protect"`
+	Loads    []string `toml:"loads"`
+}
+
+type sweepDef struct {
+	Floor     sweepValues `toml:"floor"`
+	Temp      sweepValues `toml:"temp"`
+	LoadScale sweepValues `toml:"load_scale"`
+}
+
+type fileDef struct {
+	Name        string           `toml:"name"`
+	Note        string           `toml:"note"`
+	Cell        string           `toml:"cell"`
+	Series      int              `toml:"series"`
+	Parallel    int              `toml:"parallel"`
+	Protect     string           `toml:"protect"`
+	Load        string           `toml:"load"`
+	Phase       []phaseDef       `toml:"phase"`
+	Floor       units.Raw        `toml:"floor"`
+	Temp        units.Raw        `toml:"temp"`
+	HoursPerDay units.Raw        `toml:"hours_per_day"`
+	Standby     units.Raw        `toml:"standby"`
+	Price       units.Raw        `toml:"price"`
+	Electricity units.Raw        `toml:"electricity_price"`
+	Budget      units.Raw        `toml:"budget"`
+	Options     optionsDef       `toml:"options"`
+	Sweep       sweepDef         `toml:"sweep"`
+	Cells       []curves.CellDef `toml:"cell"`
+}
+
+// sweepValues is a list of values or a {from, to, step} range, decoded
+// later with the kind its key needs.
+type sweepValues struct {
+	list          []units.Raw
+	from, to, stp units.Raw
+	isRange, set  bool
+}
+
+func (s *sweepValues) UnmarshalTOML(v any) error {
+	s.set = true
+	switch x := v.(type) {
+	case []any:
+		for _, e := range x {
+			var r units.Raw
+			if err := r.UnmarshalTOML(e); err != nil {
+				return err
+			}
+			s.list = append(s.list, r)
+		}
+	case map[string]any:
+		s.isRange = true
+		for k, e := range x {
+			var r units.Raw
+			if err := r.UnmarshalTOML(e); err != nil {
+				return fmt.Errorf("%s: %w", k, err)
+			}
+			switch k {
+			case "from":
+				s.from = r
+			case "to":
+				s.to = r
+			case "step":
+				s.stp = r
+			default:
+				return fmt.Errorf("unknown key %q in a range (keys from, to, step)", k)
+			}
+		}
+		if !s.from.Set() || !s.to.Set() || !s.stp.Set() {
+			return fmt.Errorf("a range needs from, to and step")
+		}
+	default:
+		var r units.Raw
+		if err := r.UnmarshalTOML(v); err != nil {
+			return err
+		}
+		s.list = []units.Raw{r}
+	}
+	return nil
+}
+
+// values expands the sweep; at most 10000 values.
+func (s sweepValues) values(kind units.Kind, bare bool) ([]float64, error) {
+	if !s.isRange {
+		out := make([]float64, 0, len(s.list))
+		for _, r := range s.list {
+			v, err := r.Get(kind, bare)
+			if err != nil {
+				return nil, err
+			}
+			out = append(out, v)
+		}
+		return out, nil
+	}
+	from, err := s.from.Get(kind, bare)
+	if err != nil {
+		return nil, fmt.Errorf("from: %w", err)
+	}
+	to, err := s.to.Get(kind, bare)
+	if err != nil {
+		return nil, fmt.Errorf("to: %w", err)
+	}
+	step, err := s.stp.Get(kind, bare)
+	if err != nil {
+		return nil, fmt.Errorf("step: %w", err)
+	}
+	if !(step > 0) {
+		return nil, fmt.Errorf("step %v must be above 0", step)
+	}
+	if to < from {
+		return nil, fmt.Errorf("to %v is below from %v", to, from)
+	}
+	n := int(math.Floor((to-from)/step+1e-9)) + 1
+	if n > 10000 {
+		return nil, fmt.Errorf("%d values: at most 10000", n)
+	}
+	out := make([]float64, n)
+	for i := range out {
+		// Round to 12 significant digits so 1.6 + 3·0.1 prints as 1.9.
+		out[i] = roundSig(from+float64(i)*step, 12)
+	}
+	return out, nil
+}
+
+func roundSig(x float64, sig int) float64 {
+	if x == 0 {
+		return 0
+	}
+	p := math.Pow(10, float64(sig)-math.Ceil(math.Log10(math.Abs(x))))
+	return math.Round(x*p) / p
+}
+
+// Demo returns the built-in demo scenario.
+func Demo() *Scenario {
+	s, err := Parse(demoTOML, "demo.toml", "")
+	if err != nil {
+		panic("scenario: built-in demo: " + err.Error())
+	}
+	s.Path = ""
+	return s
+}
+
+// Load reads a scenario file.
+func Load(path string) (*Scenario, error) {
+	st, err := os.Stat(path)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, unwrapPath(err))
+	}
+	if st.IsDir() {
+		return nil, fmt.Errorf("%s: is a directory, expected a scenario file (.toml)", path)
+	}
+	if st.Size() > MaxFileSize {
+		return nil, fmt.Errorf("%s: %d bytes, larger than the %d-byte limit for a scenario file", path, st.Size(), MaxFileSize)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, unwrapPath(err))
+	}
+	defer f.Close()
+	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, unwrapPath(err))
+	}
+	s, err := Parse(data, path, filepath.Dir(path))
+	if err != nil {
+		return nil, err
+	}
+	s.Path = path
+	return s, nil
+}
+
+func unwrapPath(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}
+
+// Parse reads a scenario from data; name is used in messages and dir is
+// the folder relative cell paths start from.
+func Parse(data []byte, name, dir string) (*Scenario, error) {
+	if len(data) > MaxFileSize {
+		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file", name, MaxFileSize)
+	}
+	if i := strings.IndexByte(string(data), 0); i >= 0 {
+		return nil, fmt.Errorf("%s: binary data (a NUL byte at offset %d), expected a TOML text file", name, i)
+	}
+	var f fileDef
+	md, err := toml.Decode(string(data), &f)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, fmt.Errorf("%s:%d: %s", name, pe.Position.Line, oneLine(pe.Message))
+		}
+		return nil, fmt.Errorf("%s: %s", name, oneLine(err.Error()))
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		k := und[0].String()
+		return nil, fmt.Errorf("%s:%d: unknown key %q", name, lineOf(data, und[0][len(und[0])-1]), k)
+	}
+	at := func(key string, err error) error {
+		return fmt.Errorf("%s:%d: %s: %w", name, lineOf(data, key), key, err)
+	}
+	s := &Scenario{Name: f.Name, Note: f.Note, dir: dir}
+
+	// Cells defined in the file come first, so a design can name them.
+	for i := range f.Cells {
+		f.Cells[i].BaseDir = dir
+		c, err := f.Cells[i].Cell(fmt.Sprintf("%s [[cell]] %d", name, i+1))
+		if err != nil {
+			return nil, err
+		}
+		s.FileCells = append(s.FileCells, c)
+	}
+
+	d := &s.Design
+	s.CellRef = orDefault(f.Cell, "lr6")
+	cellRefs := f.Options.Cells
+	if len(cellRefs) == 0 {
+		cellRefs = []string{s.CellRef}
+	} else if f.Cell == "" {
+		s.CellRef = cellRefs[0]
+	}
+	for _, ref := range cellRefs {
+		c, err := s.ResolveCell(ref)
+		if err != nil {
+			return nil, at("cell", err)
+		}
+		s.Cells = append(s.Cells, c)
+	}
+	if d.Cell, err = s.ResolveCell(s.CellRef); err != nil {
+		return nil, at("cell", err)
+	}
+
+	d.Series, d.Parallel = f.Series, f.Parallel
+	if d.Series == 0 {
+		d.Series = 1
+	}
+	if d.Parallel == 0 {
+		d.Parallel = 1
+	}
+	if err := CheckSeries(d.Series); err != nil {
+		return nil, at("series", err)
+	}
+	if err := CheckParallel(d.Parallel); err != nil {
+		return nil, at("parallel", err)
+	}
+	s.Series = orInts(f.Options.Series, d.Series)
+	s.Parallel = orInts(f.Options.Parallel, d.Parallel)
+	for _, n := range s.Series {
+		if err := CheckSeries(n); err != nil {
+			return nil, at("series", err)
+		}
+	}
+	for _, n := range s.Parallel {
+		if err := CheckParallel(n); err != nil {
+			return nil, at("parallel", err)
+		}
+	}
+
+	s.ProtectSpec = orDefault(f.Protect, "none")
+	specs := f.Options.Protect
+	if len(specs) == 0 {
+		specs = []string{s.ProtectSpec}
+	} else if f.Protect == "" {
+		s.ProtectSpec = specs[0]
+	}
+	for _, spec := range specs {
+		el, err := protect.Parse(spec)
+		if err != nil {
+			return nil, at("protect", err)
+		}
+		s.Protects = append(s.Protects, el)
+	}
+	if d.Protect, err = protect.Parse(s.ProtectSpec); err != nil {
+		return nil, at("protect", err)
+	}
+
+	switch {
+	case f.Load != "" && len(f.Phase) > 0:
+		return nil, at("load", fmt.Errorf("give either load = \"...\" or [[phase]] tables, not both"))
+	case len(f.Phase) > 0:
+		for i, p := range f.Phase {
+			l, err := discharge.ParseLoad(p.Load)
+			if err != nil {
+				return nil, fmt.Errorf("%s: [[phase]] %d: %w", name, i+1, err)
+			}
+			sec, err := p.Duration.Get(units.Time, false)
+			if !p.Duration.Set() {
+				err = fmt.Errorf("duration missing, e.g. duration = \"3s\"")
+			}
+			if err == nil && !(sec > 0) {
+				err = fmt.Errorf("duration %s must be above 0 s", p.Duration)
+			}
+			if err != nil {
+				return nil, fmt.Errorf("%s: [[phase]] %d: duration: %w", name, i+1, err)
+			}
+			d.Profile = append(d.Profile, discharge.Phase{Name: p.Name, Load: l, Seconds: sec})
+		}
+		s.LoadSpec = discharge.FormatProfile(d.Profile)
+	default:
+		s.LoadSpec = orDefault(f.Load, "100mA")
+		if d.Profile, err = discharge.ParseProfile(s.LoadSpec); err != nil {
+			return nil, at("load", err)
+		}
+	}
+	s.Loads = [][]discharge.Phase{d.Profile}
+	s.LoadSpecs = []string{s.LoadSpec}
+	for i, spec := range f.Options.Loads {
+		ph, err := discharge.ParseProfile(spec)
+		if err != nil {
+			return nil, fmt.Errorf("%s:%d: options.loads entry %d: %w", name, lineOf(data, "loads"), i+1, err)
+		}
+		if i == 0 {
+			s.Loads, s.LoadSpecs = nil, nil
+		}
+		s.Loads = append(s.Loads, ph)
+		s.LoadSpecs = append(s.LoadSpecs, spec)
+	}
+
+	type field struct {
+		key  string
+		raw  units.Raw
+		kind units.Kind
+		bare bool
+		dst  *float64
+		def  float64
+		chk  func(float64) error
+	}
+	fields := []field{
+		{"floor", f.Floor, units.Voltage, true, &d.Floor, 0, CheckFloor},
+		{"temp", f.Temp, units.Temperature, true, &d.TempC, 20, CheckTemp},
+		{"hours_per_day", f.HoursPerDay, units.Time, false, &d.HoursPerDay, 0, nil},
+		{"standby", f.Standby, units.Current, true, &d.Standby, 0, CheckStandby},
+		{"price", f.Price, units.Money, true, &d.PackPrice, 0, CheckPrice},
+		{"electricity_price", f.Electricity, units.Money, true, &d.ElectricityPrice, 0, CheckPrice},
+		{"budget", f.Budget, units.Money, true, &s.Budget, 0, CheckPrice},
+	}
+	for _, fl := range fields {
+		*fl.dst = fl.def
+		if !fl.raw.Set() {
+			continue
+		}
+		if fl.key == "hours_per_day" {
+			v, err := ParseHoursPerDay(fl.raw.String())
+			if err != nil {
+				return nil, at(fl.key, err)
+			}
+			*fl.dst = v
+			continue
+		}
+		v, err := fl.raw.Get(fl.kind, fl.bare)
+		if err == nil && fl.chk != nil {
+			err = fl.chk(v)
+		}
+		if err != nil {
+			return nil, at(fl.key, err)
+		}
+		*fl.dst = v
+	}
+
+	sweep := func(key string, sv sweepValues, kind units.Kind, def float64, chk func(float64) error) ([]float64, error) {
+		if !sv.set {
+			return []float64{def}, nil
+		}
+		vs, err := sv.values(kind, true)
+		if err == nil && len(vs) == 0 {
+			err = fmt.Errorf("empty list")
+		}
+		for _, v := range vs {
+			if err == nil && chk != nil {
+				err = chk(v)
+			}
+		}
+		if err != nil {
+			return nil, fmt.Errorf("%s:%d: sweep %s: %w", name, lineOf(data, key), key, err)
+		}
+		return vs, nil
+	}
+	if s.Floors, err = sweep("floor", f.Sweep.Floor, units.Voltage, d.Floor, CheckFloor); err != nil {
+		return nil, err
+	}
+	if s.Temps, err = sweep("temp", f.Sweep.Temp, units.Temperature, d.TempC, CheckTemp); err != nil {
+		return nil, err
+	}
+	if s.LoadScales, err = sweep("load_scale", f.Sweep.LoadScale, units.Fraction, 1, CheckScale); err != nil {
+		return nil, err
+	}
+	if err := d.Validate(); err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	return s, nil
+}
+
+// ResolveCell finds a cell by library id, by the id of a cell defined in
+// the file, or as a path to a .csv or .toml cell file (relative to the
+// scenario's folder).
+func (s *Scenario) ResolveCell(ref string) (*curves.Cell, error) {
+	ref = strings.TrimSpace(ref)
+	for _, c := range s.FileCells {
+		if c.ID == ref {
+			return c, nil
+		}
+	}
+	if c, ok := curves.Lookup(ref); ok {
+		return c, nil
+	}
+	ext := strings.ToLower(filepath.Ext(ref))
+	if ext != ".csv" && ext != ".toml" {
+		return nil, fmt.Errorf("unknown cell %q: not a library id (%s) nor a .csv or .toml file", ref, strings.Join(curves.IDs(), ", "))
+	}
+	p := ref
+	if !filepath.IsAbs(p) && s.dir != "" {
+		p = filepath.Join(s.dir, p)
+	}
+	c, err := curves.Load(p)
+	if err != nil {
+		return nil, err
+	}
+	for _, fc := range s.FileCells {
+		if fc == c || fc.ID == c.ID {
+			return fc, nil
+		}
+	}
+	s.FileCells = append(s.FileCells, c)
+	return c, nil
+}
+
+// Field checks shared by flags, files and screen fields.
+
+func CheckSeries(n int) error {
+	if n < 1 || n > 48 {
+		return fmt.Errorf("%d cells in series: must be 1 to 48", n)
+	}
+	return nil
+}
+
+func CheckParallel(n int) error {
+	if n < 1 || n > 16 {
+		return fmt.Errorf("%d strings in parallel: must be 1 to 16", n)
+	}
+	return nil
+}
+
+func CheckFloor(v float64) error {
+	if v < 0 || v > 1000 {
+		return fmt.Errorf("floor %v V: must be 0 to 1000 V", v)
+	}
+	return nil
+}
+
+func CheckTemp(v float64) error {
+	if v < -40 || v > 85 {
+		return fmt.Errorf("ambient %v °C: must be -40 to 85 °C", v)
+	}
+	return nil
+}
+
+func CheckStandby(v float64) error {
+	if v < 0 || v > 10 {
+		return fmt.Errorf("standby %v A: must be 0 to 10 A", v)
+	}
+	return nil
+}
+
+func CheckPrice(v float64) error {
+	if v < 0 || v > 1e6 {
+		return fmt.Errorf("price %v: must be 0 or more", v)
+	}
+	return nil
+}
+
+func CheckScale(v float64) error {
+	if !(v > 0) || v > 1000 {
+		return fmt.Errorf("load scale %v: must be above 0 and at most 1000 (×)", v)
+	}
+	return nil
+}
+
+// ParseFloor reads a floor voltage ("1.8V" or "1.8").
+func ParseFloor(s string) (float64, error) { return parseChecked(s, units.Voltage, CheckFloor) }
+
+// ParseTemp reads an ambient temperature ("20C", "-10°C" or "20").
+func ParseTemp(s string) (float64, error) { return parseChecked(s, units.Temperature, CheckTemp) }
+
+// ParseStandby reads a standby current ("30uA"; a bare number is amperes).
+func ParseStandby(s string) (float64, error) { return parseChecked(s, units.Current, CheckStandby) }
+
+// ParsePrice reads dollars ("1.10" or "$1.10").
+func ParsePrice(s string) (float64, error) { return parseChecked(s, units.Money, CheckPrice) }
+
+// ParseHoursPerDay reads hours of use a day: a bare number of hours, or a
+// time such as "90min" or "1.5h"; above 0 and at most 24.
+func ParseHoursPerDay(s string) (float64, error) {
+	v, err := units.Parse(s, units.Time, true)
+	if err != nil {
+		return 0, err
+	}
+	t := strings.TrimSpace(s)
+	if last := t[len(t)-1]; last >= '0' && last <= '9' || last == '.' {
+		v *= 3600 // a bare number means hours here
+	}
+	h := v / 3600
+	if !(h > 0) || h > 24 {
+		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most 24", s)
+	}
+	return h, nil
+}
+
+// ParseCount reads a cell count for series or parallel.
+func ParseCount(s string, check func(int) error) (int, error) {
+	var n int
+	if _, err := fmt.Sscanf(strings.TrimSpace(s), "%d", &n); err != nil || fmt.Sprint(n) != strings.TrimSpace(s) {
+		return 0, fmt.Errorf("%q is not a whole number", s)
+	}
+	return n, check(n)
+}
+
+func parseChecked(s string, k units.Kind, chk func(float64) error) (float64, error) {
+	v, err := units.Parse(s, k, true)
+	if err != nil {
+		return 0, err
+	}
+	return v, chk(v)
+}
+
+func orDefault(s, def string) string {
+	if strings.TrimSpace(s) == "" {
+		return def
+	}
+	return s
+}
+
+func orInts(xs []int, def int) []int {
+	if len(xs) == 0 {
+		return []int{def}
+	}
+	return append([]int(nil), xs...)
+}
+
+func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+
+// lineOf finds the first line that sets key, for messages; 1 if none.
+func lineOf(data []byte, key string) int {
+	re := regexp.MustCompile(`(?m)^\s*"?` + regexp.QuoteMeta(key) + `"?\s*=`)
+	loc := re.FindIndex(data)
+	if loc == nil {
+		return 1
+	}
+	return 1 + strings.Count(string(data[:loc[0]]), "\n")
+}

@@ -1,0 +1,181 @@
+package scenario
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"headroom/curves"
+	"headroom/discharge"
+)
+
+// Saved is what a saved scenario holds: one design and its labels.
+type Saved struct {
+	Name        string
+	Note        string
+	Design      discharge.Design
+	ProtectSpec string
+	Budget      float64
+}
+
+func g(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// Format writes a design as scenario TOML that Parse reads back to the same
+// design. A cell that is not in the library is written out in full as a
+// [[cell]] table.
+func Format(s Saved) []byte {
+	var b bytes.Buffer
+	d := s.Design
+	fmt.Fprintf(&b, "# headroom scenario, saved from the interactive screen.\n")
+	fmt.Fprintf(&b, "name = %q\n", s.Name)
+	if s.Note != "" {
+		fmt.Fprintf(&b, "note = %q\n", s.Note)
+	}
+	fmt.Fprintf(&b, "cell = %q\n", d.Cell.ID)
+	fmt.Fprintf(&b, "series = %d\nparallel = %d\n", d.Series, d.Parallel)
+	spec := s.ProtectSpec
+	if spec == "" && d.Protect != nil {
+		spec = d.Protect.Spec()
+	}
+	if spec == "" {
+		spec = "none"
+	}
+	fmt.Fprintf(&b, "protect = %q\n", spec)
+	fmt.Fprintf(&b, "floor = \"%sV\"\n", g(d.Floor))
+	fmt.Fprintf(&b, "temp = \"%sC\"\n", g(d.TempC))
+	if d.HoursPerDay > 0 {
+		fmt.Fprintf(&b, "hours_per_day = %s\n", g(d.HoursPerDay))
+	}
+	fmt.Fprintf(&b, "standby = \"%sA\"\n", g(d.Standby))
+	if d.PackPrice > 0 {
+		fmt.Fprintf(&b, "price = %s\n", g(d.PackPrice))
+	}
+	if d.ElectricityPrice > 0 {
+		fmt.Fprintf(&b, "electricity_price = %s\n", g(d.ElectricityPrice))
+	}
+	if s.Budget > 0 {
+		fmt.Fprintf(&b, "budget = %s\n", g(s.Budget))
+	}
+	for _, p := range d.Profile {
+		fmt.Fprintf(&b, "\n[[phase]]\n")
+		if p.Name != "" {
+			fmt.Fprintf(&b, "name = %q\n", p.Name)
+		}
+		fmt.Fprintf(&b, "load = %q\nduration = \"%ss\"\n", p.Load.String(), g(p.Seconds))
+	}
+	if lib, ok := curves.Lookup(d.Cell.ID); !ok || lib != d.Cell {
+		writeCell(&b, d.Cell)
+	}
+	return b.Bytes()
+}
+
+func writeCell(b *bytes.Buffer, c *curves.Cell) {
+	fmt.Fprintf(b, "\n[[cell]]\nid = %q\nname = %q\nchemistry = %q\n", c.ID, c.Name, orDefault(c.Chemistry, "custom"))
+	if c.Designation != "" {
+		fmt.Fprintf(b, "designation = %q\n", c.Designation)
+	}
+	fmt.Fprintf(b, "nominal = %s\nend_point = %s\nrated_mAh = %s\nrated_current = %s\nref_current = %s\n",
+		g(c.NominalV), g(c.EndPoint), g(c.RatedMAh), g(c.RatedCurrent), g(c.RefCurrent))
+	fmt.Fprintf(b, "peukert = %s\nself_discharge = %s\nprice = %s\n", g(c.Peukert), g(c.SelfDischarge), g(c.Price))
+	if c.Rechargeable {
+		fmt.Fprintf(b, "rechargeable = true\ncycle_life = %d\ncharge_efficiency = %s\n", c.CycleLife, g(c.ChargeEfficiency))
+	}
+	if c.Source != "" {
+		fmt.Fprintf(b, "source = %q\n", c.Source)
+	}
+	var pts []string
+	for i := 0; i < c.Curve.Len(); i++ {
+		q, v := c.Curve.Point(i)
+		pts = append(pts, fmt.Sprintf("[%s, %s]", g(q), g(v)))
+	}
+	fmt.Fprintf(b, "curve = [%s]\n", strings.Join(pts, ", "))
+	if len(c.Resistance) > 0 {
+		pts = pts[:0]
+		for _, r := range c.Resistance {
+			pts = append(pts, fmt.Sprintf("[%s, %s]", g(r.Depth), g(r.Ohm)))
+		}
+		fmt.Fprintf(b, "resistance = [%s]\n", strings.Join(pts, ", "))
+	}
+	if len(c.Temperature) > 0 {
+		pts = pts[:0]
+		for _, t := range c.Temperature {
+			pts = append(pts, fmt.Sprintf("[%s, %s, %s]", g(t.Celsius), g(t.Capacity), g(t.Resistance)))
+		}
+		fmt.Fprintf(b, "temperature = [%s]\n", strings.Join(pts, ", "))
+	}
+}
+
+// ErrExists is returned by WriteFile when the file exists and overwrite
+// was not allowed.
+var ErrExists = errors.New("file exists")
+
+// WriteFile writes data to path atomically: a temporary file in the same
+// folder, synced, then renamed over path. An existing file is replaced
+// only when overwrite is true, and keeps its permissions; if anything fails
+// the old file is left as it was.
+func WriteFile(path string, data []byte, overwrite bool) error {
+	return writeAtomic(path, data, overwrite, func(f *os.File, p []byte) (int, error) { return f.Write(p) })
+}
+
+// writeAtomic is WriteFile with the write step injectable for tests.
+func writeAtomic(path string, data []byte, overwrite bool, write func(*os.File, []byte) (int, error)) error {
+	mode := fs.FileMode(0o644)
+	if st, err := os.Stat(path); err == nil {
+		if st.IsDir() {
+			return fmt.Errorf("%s: is a directory", path)
+		}
+		if !overwrite {
+			return fmt.Errorf("%s: %w", path, ErrExists)
+		}
+		mode = st.Mode().Perm()
+	} else if !errors.Is(err, fs.ErrNotExist) {
+		return fmt.Errorf("%s: %w", path, unwrapPath(err))
+	}
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return fmt.Errorf("%s: cannot create a temporary file beside it: %w", path, unwrapPath(err))
+	}
+	name := tmp.Name()
+	fail := func(err error) error {
+		tmp.Close()
+		os.Remove(name)
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	if _, err := write(tmp, data); err != nil {
+		return fail(err)
+	}
+	if err := tmp.Chmod(mode); err != nil {
+		return fail(err)
+	}
+	if err := tmp.Sync(); err != nil {
+		return fail(err)
+	}
+	if err := tmp.Close(); err != nil {
+		os.Remove(name)
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	if !overwrite {
+		// Link fails if path appeared meanwhile: never replace a file the
+		// user did not agree to replace.
+		if err := os.Link(name, path); err != nil {
+			os.Remove(name)
+			if errors.Is(err, fs.ErrExist) {
+				return fmt.Errorf("%s: %w", path, ErrExists)
+			}
+			return fmt.Errorf("%s: %w", path, unwrapPath(err))
+		}
+		os.Remove(name)
+		return nil
+	}
+	if err := os.Rename(name, path); err != nil {
+		os.Remove(name)
+		return fmt.Errorf("%s: %w", path, unwrapPath(err))
+	}
+	return nil
+}
