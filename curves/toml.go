@@ -262,7 +262,15 @@ func ReadCellTOML(r io.Reader, name string) (*Cell, error) {
 	if err != nil {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
+			if pe.LastKey != "" {
+				return nil, fmt.Errorf("%s line %d: %s: %s", name, pe.Position.Line, pe.LastKey, pe.Message)
+			}
 			return nil, fmt.Errorf("%s line %d: %s", name, pe.Position.Line, pe.Message)
+		}
+		// Type mismatches come as plain errors: "toml: line N (last key
+		// "k"): incompatible types: ...".
+		if m := decodeMsg.FindStringSubmatch(err.Error()); m != nil {
+			return nil, fmt.Errorf("%s line %s: %s: %s", name, m[1], m[2], m[3])
 		}
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
@@ -293,6 +301,8 @@ func ReadCellTOML(r io.Reader, name string) (*Cell, error) {
 	}
 	return c, nil
 }
+
+var decodeMsg = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]+)"\): (.*)$`)
 
 // keyLine matches "key =" at the start of a line, the key bare or quoted,
 // and header matches a [table] or [[array]] header line.
