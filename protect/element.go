@@ -15,8 +15,11 @@ type Element interface {
 	Spec() string
 	// Drop is the forward voltage across the element when it carries
 	// current i (≥ 0) with vin at its input (the pack's terminal voltage)
-	// at ambient tempC. It is at least 0 and, for i below any clamp, below vin
-	// when vin is above 0 (the element cannot make voltage).
+	// at ambient tempC (junctions are taken at ambient). It is at least 0,
+	// finite, 0 for i ≤ 0, and does not fall as i rises. It may exceed vin:
+	// a diode needs its drop whatever the pack can give, and the caller
+	// then has no operating point at that current. Above Limit().Clamp it
+	// is the unclamped law; the caller must apply the clamp.
 	Drop(i, vin, tempC float64) float64
 	// Quiescent is the current the element draws from the pack at all
 	// times, to ground, with vin at its input: a gate divider, a clamp

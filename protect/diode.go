@@ -1,0 +1,139 @@
+package protect
+
+import "math"
+
+// The SI defining constants (SI Brochure, 9th edition, 2019), exact.
+const (
+	Boltzmann        = 1.380649e-23    // k, J/K
+	ElementaryCharge = 1.602176634e-19 // q, C
+	ZeroCelsius      = 273.15          // 0 °C in kelvin
+	// NominalK is the temperature at which junction parameters are given:
+	// 27 °C, as in SPICE, so that a Shockley junction here and a diode
+	// model in ngspice agree exactly at their nominal temperature.
+	NominalK = 300.15
+)
+
+// ThermalVoltage returns Vt = k·T/q in volts at kelvin T.
+func ThermalVoltage(kelvin float64) float64 { return Boltzmann * kelvin / ElementaryCharge }
+
+// Shockley is a junction obeying the Shockley diode law with ideality and
+// series resistance (Shockley, 1949):
+//
+//	I = Is(T)·(exp((V − I·Rs)/(n·Vt)) − 1), so V = n·Vt·ln(1 + I/Is(T)) + I·Rs
+//
+// with the saturation current's temperature dependence in the standard
+// SPICE form
+//
+//	Is(T) = Is·(T/Tnom)^(XTI/n)·exp(Eg/(n·Vt(T))·(T/Tnom − 1)), Tnom = 300.15 K.
+type Shockley struct {
+	// Is is the saturation current at 27 °C in amperes. Must be above 0
+	// and at most 1.
+	Is float64
+	// N is the ideality (emission) factor, from 0.5 to 4; near 1 for
+	// Schottky junctions, 1.5–2 for rectifiers.
+	N float64
+	// Rs is the series (bulk and lead) resistance in ohms, at least 0.
+	Rs float64
+	// Eg is the activation energy in eV, 0.1 to 3: 1.11 for silicon PN,
+	// about 0.69 for Schottky barriers.
+	Eg float64
+	// XTI is the saturation-current temperature exponent, 0 to 10: 3 for
+	// PN junctions, 2 for Schottky barriers.
+	XTI float64
+}
+
+// Saturation returns Is at tempC (°C), in amperes. Its reverse current: an
+// ideal junction reverse-biased by more than a few Vt passes −Is(T).
+func (s Shockley) Saturation(tempC float64) float64 {
+	t := tempC + ZeroCelsius
+	r := t / NominalK
+	return s.Is * math.Exp(s.XTI/s.N*math.Log(r)+s.Eg/(s.N*ThermalVoltage(t))*(r-1))
+}
+
+// Drop returns the forward voltage at current i (A) and tempC (°C); 0 for
+// i ≤ 0. Closed form, no allocation.
+func (s Shockley) Drop(i, tempC float64) float64 {
+	if !(i > 0) {
+		return 0
+	}
+	t := tempC + ZeroCelsius
+	r := t / NominalK
+	nvt := s.N * ThermalVoltage(t)
+	// ln Is(T) written out so that one Exp and two Logs do it all.
+	lnIs := math.Log(s.Is) + s.XTI/s.N*math.Log(r) + s.Eg/nvt*(r-1)
+	return nvt*math.Log1p(i*math.Exp(-lnIs)) + i*s.Rs
+}
+
+// Diode is a series PN diode in the supply rail: it blocks reversed cells
+// and costs a drop that falls about 2 mV/°C.
+//
+// A forward-biased series diode passes all its current on to the load, so
+// it draws no standby current of its own: Quiescent is 0. Its reverse
+// leakage, Is(T), is what flows when the cells are reversed.
+type Diode struct {
+	Junction Shockley
+	// Price is the unit cost in dollars, at least 0.
+	Price float64
+	// ThetaJA is junction-to-ambient thermal resistance in °C/W, above 0.
+	ThetaJA float64
+	// TjMax is the highest allowed junction temperature in °C.
+	TjMax float64
+}
+
+// DefaultDiode is a generic 1 A silicon rectifier (typical, from memory):
+// about 0.75 V at 100 mA and 0.93 V at 1 A at 25 °C, in a leaded or
+// SMA-size package on a small board.
+func DefaultDiode() Diode {
+	return Diode{
+		Junction: Shockley{Is: 10e-9, N: 1.8, Rs: 0.08, Eg: 1.11, XTI: 3},
+		Price:    0.03, ThetaJA: 100, TjMax: 150,
+	}
+}
+
+func (d Diode) Kind() string                         { return "diode" }
+func (d Diode) Spec() string                         { return specOf(d.Kind(), d.fields()) }
+func (d Diode) Drop(i, vin, tempC float64) float64   { return d.Junction.Drop(i, tempC) }
+func (d Diode) Quiescent(vin, tempC float64) float64 { return 0 }
+func (d Diode) Limit(tempC float64) Limit            { return NoLimit }
+func (d Diode) Cost() float64                        { return d.Price }
+func (d Diode) Thermal() Thermal                     { return Thermal{ThetaJA: d.ThetaJA, TjMax: d.TjMax} }
+func (d Diode) Warnings(op Operating) []string       { return appendHeat(nil, d.Thermal(), op) }
+func (d Diode) Reverse(p Pack) Reversal {
+	return blockedReverse(d, p, d.Junction.Saturation(p.TempC), "the diode is reverse-biased")
+}
+func (d *Diode) fields() []field { return diodeFields(d) }
+func (d *Diode) check() error    { return nil }
+func (d *Diode) value() Element  { return *d }
+
+func diodeFields(d *Diode) []field {
+	fs := shockleyFields("", &d.Junction)
+	fs = append(fs, costField(&d.Price))
+	return append(fs, thermalFields(&d.ThetaJA, &d.TjMax)...)
+}
+
+// Schottky is a series Schottky-barrier diode: the same law as Diode with
+// a much larger Is and n near 1, so about half the drop, but a reverse
+// leakage of microamperes at 25 °C that grows roughly a hundredfold by
+// 85 °C. Like Diode it draws no standby current when forward-biased;
+// its leakage shows in Reverse.
+type Schottky struct {
+	Diode
+}
+
+// DefaultSchottky is a generic 1 A Schottky rectifier (typical, from
+// memory): about 0.3 V at 100 mA and 0.47 V at 1 A at 25 °C.
+func DefaultSchottky() Schottky {
+	return Schottky{Diode{
+		Junction: Shockley{Is: 1e-6, N: 1, Rs: 0.12, Eg: 0.69, XTI: 2},
+		Price:    0.05, ThetaJA: 150, TjMax: 125,
+	}}
+}
+
+func (s Schottky) Kind() string     { return "schottky" }
+func (s Schottky) Spec() string     { return specOf(s.Kind(), s.fields()) }
+func (s *Schottky) fields() []field { return diodeFields(&s.Diode) }
+func (s *Schottky) value() Element  { return *s }
+func (s Schottky) Reverse(p Pack) Reversal {
+	return blockedReverse(s, p, s.Junction.Saturation(p.TempC),
+		"the Schottky diode is reverse-biased (its leakage grows about a hundredfold from 25 to 85 °C)")
+}

@@ -1,0 +1,96 @@
+package protect
+
+import (
+	"math"
+
+	"headroom/internal/units"
+)
+
+// IC is an integrated input protector: a switch with on-resistance Ron,
+// reverse blocking, a current limit and an over-voltage cut-off, at the
+// cost of a supply current and a price several times a discrete FET's.
+type IC struct {
+	// Ron is the switch's on-resistance in ohms. Above 0.
+	Ron float64
+	// Iq is the supply (quiescent) current in amperes, at least 0.
+	Iq float64
+	// Ilim is the current limit in amperes. Above 0.
+	Ilim float64
+	// Vovp is the over-voltage threshold in volts: above it the switch
+	// opens. Above 0.
+	Vovp float64
+	// Irev is the reverse leakage with the pack reversed, amperes, ≥ 0.
+	Irev float64
+	// Price is the unit cost in dollars, at least 0.
+	Price float64
+	// ThetaJA is junction-to-ambient thermal resistance in °C/W, above 0.
+	ThetaJA float64
+	// TjMax is the highest junction temperature in °C.
+	TjMax float64
+}
+
+// DefaultIC is a generic small protector (typical, from memory): 100 mΩ,
+// 20 µA, 0.5 A limit, 5.8 V over-voltage threshold, 1 µA reverse leakage,
+// SOT-23-5, $0.45.
+func DefaultIC() IC {
+	return IC{Ron: 0.1, Iq: 20e-6, Ilim: 0.5, Vovp: 5.8, Irev: 1e-6, Price: 0.45, ThetaJA: 200, TjMax: 125}
+}
+
+func (c IC) Kind() string { return "ic" }
+func (c IC) Spec() string { return specOf(c.Kind(), c.fields()) }
+
+func (c IC) Drop(i, vin, tempC float64) float64 {
+	if !(i > 0) {
+		return 0
+	}
+	return i * c.Ron
+}
+
+// Quiescent is Iq whenever the pack is connected the right way round.
+func (c IC) Quiescent(vin, tempC float64) float64 {
+	if vin > 0 {
+		return c.Iq
+	}
+	return 0
+}
+
+func (c IC) Limit(tempC float64) Limit {
+	return Limit{Clamp: c.Ilim, Trip: math.Inf(1)}
+}
+
+func (c IC) Cost() float64    { return c.Price }
+func (c IC) Thermal() Thermal { return Thermal{ThetaJA: c.ThetaJA, TjMax: c.TjMax} }
+
+func (c IC) Warnings(op Operating) []string {
+	var w []string
+	if op.VFresh > c.Vovp {
+		w = append(w, "the fresh pack's "+units.Human(op.VFresh, units.Voltage, 3)+" is above the over-voltage threshold of "+
+			units.Human(c.Vovp, units.Voltage, 3)+": the protector switches off until the pack sags")
+	}
+	for _, i := range op.Currents {
+		if i > c.Ilim {
+			w = append(w, "a phase draws "+units.Human(i, units.Current, 3)+", above the "+units.Human(c.Ilim, units.Current, 3)+
+				" current limit: the load voltage collapses during it")
+			break
+		}
+	}
+	return appendHeat(w, c.Thermal(), op)
+}
+
+func (c IC) Reverse(p Pack) Reversal {
+	return blockedReverse(c, p, c.Irev, "the protector blocks reverse polarity")
+}
+
+func (c *IC) fields() []field {
+	fs := []field{
+		{key: "ron", kind: units.Resistance, p: &c.Ron, lo: 0, hi: 1000, loOpen: true, what: "the on-resistance"},
+		{key: "iq", kind: units.Current, p: &c.Iq, lo: 0, hi: 1, what: "the quiescent current"},
+		{key: "ilim", kind: units.Current, p: &c.Ilim, lo: 0, hi: 100, loOpen: true, what: "the current limit"},
+		{key: "vovp", kind: units.Voltage, p: &c.Vovp, lo: 0, hi: 100, loOpen: true, what: "the over-voltage threshold"},
+		{key: "irev", kind: units.Current, p: &c.Irev, lo: 0, hi: 1, what: "the reverse leakage"},
+		costField(&c.Price),
+	}
+	return append(fs, thermalFields(&c.ThetaJA, &c.TjMax)...)
+}
+func (c *IC) check() error   { return nil }
+func (c *IC) value() Element { return *c }

@@ -1,0 +1,91 @@
+package protect
+
+import (
+	"math"
+
+	"headroom/internal/units"
+)
+
+// counts returns the series and parallel counts with 0 (unset) read as 1.
+func counts(p Pack) (s, par float64) {
+	s, par = float64(p.Series), float64(p.Parallel)
+	if s < 1 {
+		s = 1
+	}
+	if par < 1 {
+		par = 1
+	}
+	return s, par
+}
+
+// packVolts is the open-circuit voltage of the whole pack.
+func packVolts(p Pack) float64 {
+	s, _ := counts(p)
+	return s * p.CellV
+}
+
+// packOhms is the internal resistance of the whole pack, S·R/P.
+func packOhms(p Pack) float64 {
+	s, par := counts(p)
+	return s * p.CellR / par
+}
+
+// loadKnown reports whether the pack's LoadR is a usable resistance.
+func loadKnown(p Pack) bool { return p.LoadR > 0 && !math.IsInf(p.LoadR, 1) }
+
+// blockedReverse is the reversal of an element that blocks a reversed
+// pack, passing only leak amperes, and that cannot see a flipped cell.
+func blockedReverse(e Element, p Pack, leak float64, why string) Reversal {
+	v := packVolts(p)
+	load := 0.0
+	if loadKnown(p) {
+		load = math.Min(v, leak*p.LoadR)
+	}
+	return Reversal{
+		WholePack: Case{Outcome: Blocked, Current: leak, Volts: -load,
+			Note: why + ": only " + units.Human(leak, units.Current, 2) + " of leakage flows"},
+		OneCell: flipped(e, p),
+	}
+}
+
+// flipped is the one-cell-flipped case for a series element, with the
+// element's drop at the current that actually flows: the load current i
+// solves i·LoadR + Drop(i) = (S−2)·CellV. Drop is increasing in i, so
+// bisection on [0, V/LoadR] finds it; this runs once per report, not in
+// the engine's loop.
+func flipped(e Element, p Pack) Case {
+	if p.Series < 2 || !loadKnown(p) {
+		return FlippedCell(p, 0)
+	}
+	v := float64(p.Series-2) * p.CellV
+	if !(v > 0) {
+		return FlippedCell(p, 0)
+	}
+	lo, hi := 0.0, v/p.LoadR
+	for range 100 {
+		mid := 0.5 * (lo + hi)
+		if mid*p.LoadR+e.Drop(mid, v, p.TempC) > v {
+			hi = mid
+		} else {
+			lo = mid
+		}
+		if hi-lo <= 1e-12*hi {
+			break
+		}
+	}
+	return FlippedCell(p, e.Drop(lo, v, p.TempC))
+}
+
+// appendHeat adds a warning when the junction at op.PeakW runs above
+// TjMax.
+func appendHeat(w []string, t Thermal, op Operating) []string {
+	if !(op.PeakW > 0) {
+		return w
+	}
+	tj := t.Junction(op.PeakW, op.TempC)
+	if tj > t.TjMax {
+		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" at the peak "+
+			units.Human(op.PeakW, units.Power, 3)+", above its "+units.Human(t.TjMax, units.Temperature, 3)+" limit: use a bigger package or more copper")
+	}
+	return w
+}
