@@ -31,12 +31,11 @@ func linearCell(v0, v1, mAh, ohm float64) *curves.Cell {
 		RatedMAh: mAh, EndPoint: v1, Peukert: 1, NominalV: (v0 + v1) / 2,
 	}
 	if ohm > 0 {
-		c.Resistance = []ResistancePointAlias{{0, ohm}, {1, ohm}}
+		c.Resistance = []curves.ResistancePoint{{Depth: 0, Ohm: ohm}, {Depth: 1, Ohm: ohm}}
 	}
 	return c
 }
 
-type ResistancePointAlias = curves.ResistancePoint
 
 func mustEval(t testing.TB, d *Design) *Result {
 	t.Helper()

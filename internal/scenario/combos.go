@@ -38,7 +38,8 @@ func (s *Scenario) Combo(i int) Combo {
 	tc := s.Temps[take(len(s.Temps))]
 	fl := s.Floors[take(len(s.Floors))]
 	li := take(len(s.Loads))
-	el := s.Protects[take(len(s.Protects))]
+	pi := take(len(s.Protects))
+	el := s.Protects[pi]
 	par := s.Parallel[take(len(s.Parallel))]
 	ser := s.Series[take(len(s.Series))]
 	cell := s.Cells[take(len(s.Cells))]
@@ -49,7 +50,7 @@ func (s *Scenario) Combo(i int) Combo {
 	d.Profile = ScaleProfile(s.Loads[li], sc)
 	d.TracePoints = 0
 	return Combo{Index: i, Design: d, CellID: cell.ID, Series: ser, Parallel: par,
-		Protect: el.Spec(), Load: s.LoadSpecs[li], Floor: fl, TempC: tc, LoadScale: sc}
+		Protect: s.ProtectSpecs[pi], Load: s.LoadSpecs[li], Floor: fl, TempC: tc, LoadScale: sc}
 }
 
 // ScaleProfile returns the profile with every phase's demand times f; the

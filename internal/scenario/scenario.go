@@ -47,15 +47,16 @@ type Scenario struct {
 	FileCells []*curves.Cell // cells defined in or referenced by the file
 
 	// Options and sweeps; each has at least one entry.
-	Cells      []*curves.Cell
-	Series     []int
-	Parallel   []int
-	Protects   []protect.Element
-	Loads      [][]discharge.Phase
-	LoadSpecs  []string
-	Floors     []float64
-	Temps      []float64
-	LoadScales []float64
+	Cells        []*curves.Cell
+	Series       []int
+	Parallel     []int
+	Protects     []protect.Element
+	ProtectSpecs []string // as written, one per Protects entry
+	Loads        [][]discharge.Phase
+	LoadSpecs    []string
+	Floors       []float64
+	Temps        []float64
+	LoadScales   []float64
 
 	Budget float64 // dollars for cells + protection; 0 for none
 	dir    string
@@ -99,7 +100,7 @@ type fileDef struct {
 	Budget      units.Raw        `toml:"budget"`
 	Options     optionsDef       `toml:"options"`
 	Sweep       sweepDef         `toml:"sweep"`
-	Cells       []curves.CellDef `toml:"cell"`
+	Cells       []curves.CellDef `toml:"define_cell"`
 }
 
 // sweepValues is a list of values or a {from, to, step} range, decoded
@@ -280,7 +281,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	// Cells defined in the file come first, so a design can name them.
 	for i := range f.Cells {
 		f.Cells[i].BaseDir = dir
-		c, err := f.Cells[i].Cell(fmt.Sprintf("%s [[cell]] %d", name, i+1))
+		c, err := f.Cells[i].Cell(fmt.Sprintf("%s [[define_cell]] %d", name, i+1))
 		if err != nil {
 			return nil, err
 		}
@@ -345,6 +346,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 			return nil, at("protect", err)
 		}
 		s.Protects = append(s.Protects, el)
+		s.ProtectSpecs = append(s.ProtectSpecs, spec)
 	}
 	if d.Protect, err = protect.Parse(s.ProtectSpec); err != nil {
 		return nil, at("protect", err)

@@ -27,7 +27,7 @@ func g(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
 // Format writes a design as scenario TOML that Parse reads back to the same
 // design. A cell that is not in the library is written out in full as a
-// [[cell]] table.
+// [[define_cell]] table.
 func Format(s Saved) []byte {
 	var b bytes.Buffer
 	d := s.Design
@@ -75,7 +75,7 @@ func Format(s Saved) []byte {
 }
 
 func writeCell(b *bytes.Buffer, c *curves.Cell) {
-	fmt.Fprintf(b, "\n[[cell]]\nid = %q\nname = %q\nchemistry = %q\n", c.ID, c.Name, orDefault(c.Chemistry, "custom"))
+	fmt.Fprintf(b, "\n[[define_cell]]\nid = %q\nname = %q\nchemistry = %q\n", c.ID, c.Name, orDefault(c.Chemistry, "custom"))
 	if c.Designation != "" {
 		fmt.Fprintf(b, "designation = %q\n", c.Designation)
 	}
