@@ -62,17 +62,21 @@ func (l Limiter) VbeAt(tempC float64) float64 {
 // drive is the gate divider's fraction R1/(R1+R2).
 func (l Limiter) drive() float64 { return l.R1 / (l.R1 + l.R2) }
 
-// Drop is i·Rsh plus the pass FET's drop with gate drive k·(v' − d),
-// v' = vin − i·Rsh and k = R1/(R1+R2), solved in closed form (see
-// channelDrop). It does not clamp: above Limit().Clamp the caller must
-// take the load voltage as collapsed.
+// Drop is i·Rsh plus the pass FET's drop, solved in closed form. With
+// v' = vin − i·Rsh at the FET's pack-side terminal and the gate at
+// (1 − k)·(v' − d), k = R1/(R1+R2), the square law (see channelDrop)
+// gives i·A = (k·v' − Vth)·d + (1/2 − k)·d²: c = k − 1/2, b = k·v' − Vth,
+// and the channel pinches off at d = b/k, i·A = b²/(2k²). The PNP is off
+// below the limit. Drop does not clamp: above Limit().Clamp the caller
+// must take the load voltage as collapsed.
 func (l Limiter) Drop(i, vin, tempC float64) float64 {
 	if !(i > 0) {
 		return 0
 	}
 	k := l.drive()
 	vs := i * l.Rsh
-	return vs + channelDrop(i, l.slope(), k*(vin-vs)-l.Vth, k, l.Body.Drop(i, tempC))
+	b := k*(vin-vs) - l.Vth
+	return vs + channelDrop(i*l.slope(), b, k-0.5, b*b/(2*k*k), l.Body.Drop(i, tempC))
 }
 
 // Quiescent is the gate divider's current vin/(R1+R2).
