@@ -618,7 +618,7 @@ func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
 
 // lineOf finds the first line that sets key, for messages; 1 if none.
 func lineOf(data []byte, key string) int {
-	re := regexp.MustCompile(`(?m)^\s*"?` + regexp.QuoteMeta(key) + `"?\s*=`)
+	re := regexp.MustCompile(`(?m)^[ \t]*"?` + regexp.QuoteMeta(key) + `"?[ \t]*=`)
 	loc := re.FindIndex(data)
 	if loc == nil {
 		return 1
