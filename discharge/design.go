@@ -10,13 +10,13 @@ import (
 
 // Design is one product to evaluate: its pack, protection, load and floor.
 type Design struct {
-	Cell     *curves.Cell     // the cell type; read-only
-	Series   int              // cells in series, 1 to 48
-	Parallel int              // strings in parallel, 1 to 16
-	Protect  protect.Element  // input protection; nil means none
-	Profile  []Phase          // the repeating load; at least one phase
-	Floor    float64          // minimum voltage at the load, volts, at least 0
-	TempC    float64          // ambient, °C
+	Cell     *curves.Cell    // the cell type; read-only
+	Series   int             // cells in series, 1 to 48
+	Parallel int             // strings in parallel, 1 to 16
+	Protect  protect.Element // input protection; nil means none
+	Profile  []Phase         // the repeating load; at least one phase
+	Floor    float64         // minimum voltage at the load, volts, at least 0
+	TempC    float64         // ambient, °C
 	// HoursPerDay is the hours of use a day, above 0 and at most 24; 0
 	// means continuous use (24).
 	HoursPerDay float64

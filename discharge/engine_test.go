@@ -36,7 +36,6 @@ func linearCell(v0, v1, mAh, ohm float64) *curves.Cell {
 	return c
 }
 
-
 func mustEval(t testing.TB, d *Design) *Result {
 	t.Helper()
 	r, err := Evaluate(d)
