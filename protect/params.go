@@ -71,10 +71,14 @@ func (f field) inRange(v float64) bool {
 // rangeText says the allowed range in words: "above 0", "from 0.5 to 4".
 func (f field) rangeText() string {
 	show := func(v float64) string {
-		if f.kind == plain || f.kind == units.Money {
+		switch f.kind {
+		case plain, units.Money:
 			return strconv.FormatFloat(v, 'g', -1, 64)
+		case units.Fraction:
+			return strconv.FormatFloat(v*100, 'g', -1, 64) + " %"
 		}
-		return units.Human(v, f.kind, 4)
+		sym := [...]string{"V", "A", "W", "Ω", "s", "%", "°C", "Ah", "$"}[f.kind]
+		return strconv.FormatFloat(v, 'g', -1, 64) + " " + sym
 	}
 	switch {
 	case f.loOpen && math.IsInf(f.hi, 1):
