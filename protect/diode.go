@@ -59,9 +59,9 @@ func (s Shockley) Drop(i, tempC float64) float64 {
 	t := tempC + ZeroCelsius
 	r := t / NominalK
 	nvt := s.N * ThermalVoltage(t)
-	// ln Is(T) written out so that one Exp and two Logs do it all.
-	lnIs := math.Log(s.Is) + s.XTI/s.N*math.Log(r) + s.Eg/nvt*(r-1)
-	return nvt*math.Log1p(i*math.Exp(-lnIs)) + i*s.Rs
+	// Is(T) as in Saturation, sharing nvt: one Log, one Exp, one Log1p.
+	is := s.Is * math.Exp(s.XTI/s.N*math.Log(r)+s.Eg/nvt*(r-1))
+	return nvt*math.Log1p(i/is) + i*s.Rs
 }
 
 // Diode is a series PN diode in the supply rail: it blocks reversed cells

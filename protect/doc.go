@@ -7,5 +7,16 @@
 //
 // Units: amperes, volts, ohms, watts, °C, dollars. Currents are positive
 // from the pack into the load. The package knows nothing of cells or loads
-// beyond the numbers passed to it.
+// beyond the numbers passed to it. Junctions are taken at the ambient
+// temperature passed in; self-heating is reported (Thermal, Warnings), not
+// fed back into the drop.
+//
+// Elements are written as specs, "kind:key=value,...", for example
+// "diode:is=10n,n=1.8,rs=0.08" or "pmos-clamp:vz=5.1,rg=100k"; Parse reads
+// them, Spec writes them back in full, Kinds lists the kinds. Drop is a
+// closed form that does not allocate, for engines that call it many
+// thousands of times per scenario.
+//
+// Typical parameter values are generic parts recalled from memory, not
+// any maker's data; they are labelled so where they are set.
 package protect

@@ -55,3 +55,22 @@ func TestRunBadNetlist(t *testing.T) {
 		t.Errorf("a broken netlist gave no error")
 	}
 }
+
+// An RC charge from 0 V: v = 1 − exp(−t/RC) crosses 0.5 V at RC·ln 2 =
+// 0.6931 ms for 1 kΩ and 1 µF (exact). The .meas result is read back with
+// Value; 0.5 % allows for ngspice's time-step truncation error at a
+// 10 µs maximum step.
+func TestRunMeas(t *testing.T) {
+	Require(t)
+	out, err := Run("rc\nV1 1 0 DC 1\nR1 1 2 1k\nC1 2 0 1u IC=0\n.tran 1u 2m 0 10u uic\n.meas tran tcross WHEN v(2)=0.5\n.end\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := Value(out, "tcross")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := 1e-3 * math.Ln2; math.Abs(got/want-1) > 0.005 {
+		t.Errorf("tcross = %g s, want %g s", got, want)
+	}
+}
