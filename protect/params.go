@@ -414,3 +414,30 @@ func shockleyFields(prefix string, s *Shockley) []field {
 func (*None) fields() []field  { return nil }
 func (*None) check() error     { return nil }
 func (n *None) value() Element { return *n }
+
+// Short writes e's spec with only the keys that differ from its kind's
+// defaults: "diode", "pmos:vth=1.2V". Parse(Short(e)) gives e back, like
+// Spec, but Short is what people read in tables and on screen.
+func Short(e Element) string {
+	s, ok := settableOf(e)
+	if !ok {
+		return e.Spec()
+	}
+	k, ok := lookup(e.Kind())
+	if !ok {
+		return e.Spec()
+	}
+	def := k.def()
+	df := def.fields()
+	var diff []field
+	for i, f := range s.fields() {
+		if i < len(df) && *df[i].p == *f.p {
+			continue
+		}
+		diff = append(diff, f)
+	}
+	if len(diff) == 0 {
+		return e.Kind()
+	}
+	return specOf(e.Kind(), diff)
+}
