@@ -116,7 +116,11 @@ func (e *evaluator) solve(l Load, v *variant, E, Rp float64) op {
 		o.Fail = CauseFuse
 	case i > v.lim.Clamp:
 		o.Fail = CauseLimit
-	case o.Vload < v.floor || o.Vload <= 0 && i > 0:
+	case o.Vload <= 0 && i > 0:
+		// The pack cannot push this current at all: no voltage is left
+		// for the load.
+		o.Fail = CauseCollapse
+	case o.Vload < v.floor:
 		o.Fail = CauseFloor
 	}
 	return o
@@ -315,9 +319,10 @@ func Evaluate(d *Design) (*Result, error) {
 	r.CutoffPhase = d.Profile[ph].Label()
 	e.phases(qsCut, real, buf)
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = buf[ph].Vload, buf[ph].Vin, buf[ph].I
-	if fail == CauseCollapse || qsCut == 0 {
-		r.CutoffLoadV = math.Max(buf[ph].Vload, 0)
-	}
+	// A hopeless design can solve to negative volts: report what a meter
+	// would show, nothing below zero.
+	r.CutoffLoadV = math.Max(r.CutoffLoadV, 0)
+	r.CutoffPackV = math.Max(r.CutoffPackV, 0)
 
 	// Charges, in pack mAh; see Result for the reference's definition.
 	qA := qsCut * scale
@@ -562,7 +567,7 @@ func describeCause(r *Result) string {
 	case CauseFloor:
 		return fmt.Sprintf("the load voltage on %s falls to %.2f V, below the floor", r.CutoffPhase, r.CutoffLoadV)
 	case CauseCollapse:
-		return fmt.Sprintf("the pack cannot deliver the power of %s (the converter's input collapses)", r.CutoffPhase)
+		return fmt.Sprintf("the pack cannot deliver what %s draws: its voltage collapses", r.CutoffPhase)
 	case CauseLimit:
 		return fmt.Sprintf("%s draws %.3g A, above the element's current limit", r.CutoffPhase, r.CutoffAmps)
 	case CauseFuse:
