@@ -427,17 +427,36 @@ func Short(e Element) string {
 	if !ok {
 		return e.Spec()
 	}
-	def := k.def()
-	df := def.fields()
-	var diff []field
-	for i, f := range s.fields() {
-		if i < len(df) && *df[i].p == *f.p {
-			continue
+	fs := s.fields()
+	keep := make([]bool, len(fs))
+	df := k.def().fields()
+	for i, f := range fs {
+		keep[i] = i >= len(df) || *df[i].p != *f.p
+	}
+	// A key left out is derived from the others when it is parsed (a
+	// polyfuse's trip from its hold), so a default value may not come
+	// back: write every key whose parsed-back value differs too. Keys
+	// written are not derived, so one pass settles it.
+	short := func() string {
+		var diff []field
+		for i, f := range fs {
+			if keep[i] {
+				diff = append(diff, f)
+			}
 		}
-		diff = append(diff, f)
+		if len(diff) == 0 {
+			return e.Kind()
+		}
+		return specOf(e.Kind(), diff)
 	}
-	if len(diff) == 0 {
-		return e.Kind()
+	back, err := parse(short())
+	if err != nil {
+		return e.Spec() // a derived value would be out of range
 	}
-	return specOf(e.Kind(), diff)
+	for i, f := range back.fields() {
+		if *f.p != *fs[i].p {
+			keep[i] = true
+		}
+	}
+	return short()
 }

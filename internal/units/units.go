@@ -75,8 +75,9 @@ func Parse(s string, want Kind, bare bool) (float64, error) {
 	if t == "" {
 		return 0, ErrEmpty
 	}
+	dollar := false
 	if want == Money {
-		t = strings.TrimPrefix(t, "$")
+		t, dollar = strings.CutPrefix(t, "$")
 	}
 	// Split the numeric head from the unit tail.
 	end := numberEnd(t)
@@ -92,13 +93,13 @@ func Parse(s string, want Kind, bare bool) (float64, error) {
 		return 0, fmt.Errorf("%q is not a finite number", s)
 	}
 	if tail == "" {
-		if !bare {
+		if !bare && !dollar {
 			return 0, fmt.Errorf("%q has no unit: expected %s", s, want)
 		}
 		return v, nil
 	}
 	scale, kind, ok := splitUnit(tail)
-	if !ok {
+	if !ok || dollar {
 		return 0, fmt.Errorf("%q: unknown unit %q, expected %s", s, tail, want)
 	}
 	if kind == -1 { // a prefix alone, e.g. "4.7k"
@@ -110,11 +111,37 @@ func Parse(s string, want Kind, bare bool) (float64, error) {
 	if kind != want {
 		return 0, fmt.Errorf("%q is %s, expected %s", s, kind, want)
 	}
-	r := v * scale
+	r := scaled(num, v, scale)
 	if math.IsInf(r, 0) {
 		return 0, fmt.Errorf("%q is out of range", s)
 	}
 	return r, nil
+}
+
+// scaled returns v·scale. When scale is a power of ten the product is
+// computed in decimal, by moving the exponent of the text num, so that
+// "85%" is exactly 0.85 and "120mA" exactly 0.12, the float64 nearest the
+// decimal value; v·0.01 would round twice.
+func scaled(num string, v, scale float64) float64 {
+	for k := -15; k <= 15; k++ {
+		if scale != math.Pow10(k) {
+			continue
+		}
+		mant, exp := num, 0
+		if i := strings.IndexAny(num, "eE"); i >= 0 {
+			e, err := strconv.Atoi(num[i+1:])
+			if err != nil {
+				break
+			}
+			mant, exp = num[:i], e
+		}
+		r, err := strconv.ParseFloat(mant+"e"+strconv.Itoa(exp+k), 64)
+		if err != nil && !math.IsInf(r, 0) {
+			break
+		}
+		return r
+	}
+	return v * scale
 }
 
 // numberEnd returns the length of the leading decimal number in s.
@@ -185,7 +212,16 @@ var baseSymbol = [...]string{"V", "A", "W", "ohm", "s", "%", "C", "Ah", "$"}
 func Format(v float64, k Kind) string {
 	switch k {
 	case Fraction:
-		return strconv.FormatFloat(v*100, 'g', -1, 64) + "%"
+		// v·100 rounds; when its shortest text does not read back as v
+		// (or overflows), write v's own digits with the exponent moved
+		// by two, which Parse reads exactly.
+		s := strconv.FormatFloat(v*100, 'g', -1, 64) + "%"
+		if back, err := Parse(s, Fraction, false); err == nil && back == v {
+			return s
+		}
+		mant, exp, _ := strings.Cut(strconv.FormatFloat(v, 'e', -1, 64), "e")
+		e, _ := strconv.Atoi(exp)
+		return mant + "e" + strconv.Itoa(e+2) + "%"
 	case Money:
 		return "$" + strconv.FormatFloat(v, 'g', -1, 64)
 	}
