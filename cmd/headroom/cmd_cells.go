@@ -1,0 +1,282 @@
+package main
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"headroom/curves"
+	"headroom/discharge"
+	"headroom/internal/scenario"
+	"headroom/internal/units"
+)
+
+var cellsCmd = &command{
+	name:  "cells",
+	args:  "[show ID|FILE | check FILE | import LOG.csv --current I -o CELL.csv] [flags]",
+	short: "list the cell library, show a cell, check a cell file, import a discharge log",
+	help: `
+  headroom cells [--format text|json|csv|md]
+      lists the built-in cells: typical values from memory, no maker's data.
+  headroom cells show ID|FILE
+      prints a cell's parameters, its curve points and its cautions.
+  headroom cells check FILE
+      checks a cell file of your own (.csv points "mAh,V[,ohm]" or a .toml
+      definition) and says "ok" with a summary, or exactly what is wrong where.
+  headroom cells import LOG.csv --current I -o CELL.csv [--force]
+      turns a time-voltage log (seconds, volts) recorded at the constant
+      current I into a cell curve. The output is written whole or not at
+      all, and an existing file is kept unless --force is given.
+
+examples:
+  headroom cells
+  headroom cells show hr6-lsd
+  headroom cells check testdata/cells/example-cell.csv
+`,
+}
+
+func init() { cellsCmd.run = runCells }
+
+func runCells(c *cli, args []string) error {
+	if len(args) > 0 {
+		switch args[0] {
+		case "show":
+			return cellsShow(c, args[1:])
+		case "check":
+			return cellsCheck(c, args[1:])
+		case "import":
+			return cellsImport(c, args[1:])
+		case "list":
+			args = args[1:]
+		}
+	}
+	fs := newFlags("cells")
+	formatFlag := fs.String("format", "text", "")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) > 0 {
+		return fmt.Errorf("cells: unknown action %q: expected show, check or import (or nothing for the list)", pos[0])
+	}
+	f, err := parseFormat(*formatFlag)
+	if err != nil {
+		return err
+	}
+	cols := []column[*curves.Cell]{
+		{key: "id", head: "id", human: true, machine: true, text: func(c *curves.Cell) string { return c.ID }, val: func(c *curves.Cell) any { return c.ID }},
+		{key: "designation", head: "IEC", human: true, machine: true, text: func(c *curves.Cell) string { return c.Designation }, val: func(c *curves.Cell) any { return c.Designation }},
+		{key: "chemistry", head: "chemistry", human: true, machine: true, text: func(c *curves.Cell) string { return c.Chemistry }, val: func(c *curves.Cell) any { return c.Chemistry }},
+		{key: "nominal_V", head: "nominal V", right: true, human: true, machine: true, text: func(c *curves.Cell) string { return fixed(c.NominalV, 2) }, val: func(c *curves.Cell) any { return c.NominalV }},
+		{key: "rated_mAh", head: "rated mAh", right: true, human: true, machine: true, text: func(c *curves.Cell) string { return fixed(c.RatedMAh, 0) }, val: func(c *curves.Cell) any { return c.RatedMAh }},
+		{key: "rated_current_A", head: "at", right: true, human: true, machine: true, text: func(c *curves.Cell) string { return human(c.RatedCurrent, units.Current) }, val: func(c *curves.Cell) any { return c.RatedCurrent }},
+		{key: "end_point_V", head: "end V", right: true, human: true, machine: true, text: func(c *curves.Cell) string { return fixed(c.EndPoint, 2) }, val: func(c *curves.Cell) any { return c.EndPoint }},
+		{key: "rechargeable", head: "recharge", human: true, machine: true, text: func(c *curves.Cell) string { return rechargeWords(c) }, val: func(c *curves.Cell) any { return c.Rechargeable }},
+		{key: "cycle_life", machine: true, val: func(c *curves.Cell) any { return c.CycleLife }},
+		{key: "price", head: "price", right: true, human: true, machine: true, text: func(c *curves.Cell) string { return money(c.Price) }, val: func(c *curves.Cell) any { return c.Price }},
+		{key: "name", head: "name", human: true, machine: true, text: func(c *curves.Cell) string { return c.Name }, val: func(c *curves.Cell) any { return c.Name }},
+	}
+	lib := curves.Library()
+	t := newTable(c.stdout, f, cols)
+	t.fit(lib)
+	t.header()
+	for _, cell := range lib {
+		t.row(cell)
+	}
+	if err := t.end(); err != nil {
+		return err
+	}
+	if f == formatText {
+		_, err = fmt.Fprintln(c.stdout, "\nTypical values from memory for generic cells, not any maker's data. Prices in dollars per cell.")
+	}
+	return err
+}
+
+func rechargeWords(c *curves.Cell) string {
+	if !c.Rechargeable {
+		return "no"
+	}
+	return fmt.Sprintf("%d cycles", c.CycleLife)
+}
+
+// findCell resolves a library id or a cell file path.
+func findCell(ref string) (*curves.Cell, error) {
+	if c, ok := curves.Lookup(ref); ok {
+		return c, nil
+	}
+	ext := strings.ToLower(filepath.Ext(ref))
+	if ext != ".csv" && ext != ".toml" {
+		return nil, fmt.Errorf("unknown cell %q: not a library id (%s) nor a .csv or .toml file", ref, strings.Join(curves.IDs(), ", "))
+	}
+	return curves.Load(ref)
+}
+
+func cellsShow(c *cli, args []string) error {
+	fs := newFlags("cells show")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if err := wantArgs("cells show", pos, 1, 1, "a cell id or file"); err != nil {
+		return err
+	}
+	cell, err := findCell(pos[0])
+	if err != nil {
+		return err
+	}
+	var b bytes.Buffer
+	line := func(k, format string, a ...any) { fmt.Fprintf(&b, "%-15s %s\n", k, fmt.Sprintf(format, a...)) }
+	fmt.Fprintf(&b, "%s: %s\n", cell.ID, cell.Name)
+	if cell.Designation != "" {
+		line("designation", "%s", cell.Designation)
+	}
+	line("chemistry", "%s", cell.Chemistry)
+	line("nominal", "%s V", short(cell.NominalV))
+	line("rated", "%s mAh at %s to %s V", fixed(cell.RatedMAh, 0), human(cell.RatedCurrent, units.Current), short(cell.EndPoint))
+	line("end-point", "%s V", short(cell.EndPoint))
+	if cell.RefCurrent > 0 {
+		line("curve", "terminal voltage at %s, %g °C", human(cell.RefCurrent, units.Current), curves.RefTempC)
+	} else {
+		line("curve", "rest (open-circuit) voltage, %g °C", curves.RefTempC)
+	}
+	line("Peukert k", "%s", short(cell.Peukert))
+	line("self-discharge", "%s %% a month at %g °C", sig(100*cell.SelfDischarge, 2), curves.RefTempC)
+	if cell.Rechargeable {
+		line("rechargeable", "%d cycles, charge efficiency %s %%", cell.CycleLife, short(100*cell.ChargeEfficiency))
+	} else {
+		line("rechargeable", "no (primary cell)")
+	}
+	line("price", "%s a cell", money(cell.Price))
+	if cell.Source != "" {
+		line("source", "%s", cell.Source)
+	}
+	if len(cell.Resistance) > 0 {
+		var rs []string
+		for _, r := range cell.Resistance {
+			rs = append(rs, fmt.Sprintf("%s %% → %s", fixed(100*r.Depth, 0), human(r.Ohm, units.Resistance)))
+		}
+		line("resistance", "%s (depth of discharge → ohms)", strings.Join(rs, ", "))
+	}
+	if len(cell.Temperature) > 0 {
+		var ts []string
+		for _, t := range cell.Temperature {
+			ts = append(ts, fmt.Sprintf("%g °C ×%s cap ×%s R", t.Celsius, short(t.Capacity), short(t.Resistance)))
+		}
+		line("temperature", "%s", strings.Join(ts, "; "))
+	}
+	fmt.Fprintf(&b, "\ncurve points:\n%10s  %7s\n", "mAh", "V")
+	for i := 0; i < cell.Curve.Len(); i++ {
+		q, v := cell.Curve.Point(i)
+		fmt.Fprintf(&b, "%10s  %7s\n", trimZeros(sig(q, 5)), fixed(v, 3))
+	}
+	fmt.Fprintf(&b, "\ncautions:\n")
+	for _, s := range dedupe(discharge.Cautions(cell, 1)) {
+		fmt.Fprintf(&b, "  - %s\n", s)
+	}
+	_, err = c.stdout.Write(b.Bytes())
+	return err
+}
+
+func cellsCheck(c *cli, args []string) error {
+	fs := newFlags("cells check")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if err := wantArgs("cells check", pos, 1, 1, "a cell file (.csv or .toml)"); err != nil {
+		return err
+	}
+	cell, err := curves.Load(pos[0])
+	if err != nil {
+		return err
+	}
+	n := cell.Curve.Len()
+	q0, v0 := cell.Curve.Point(0)
+	q1, v1 := cell.Curve.Point(n - 1)
+	_, err = fmt.Fprintf(c.stdout, "ok: %s: cell %q, %d points from %s to %s mAh, %s V down to %s V; end-point %s V, rated %s mAh, nominal %s V\n",
+		pos[0], cell.ID, n, sig(q0, 4), sig(q1, 4), fixed(v0, 3), fixed(v1, 3), short(cell.EndPoint), sig(cell.RatedMAh, 4), short(cell.NominalV))
+	return err
+}
+
+func cellsImport(c *cli, args []string) error {
+	fs := newFlags("cells import")
+	current := fs.String("current", "", "")
+	out := fs.String("o", "", "")
+	force := fs.Bool("force", false, "")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if err := wantArgs("cells import", pos, 1, 1, "a log file (seconds, volts)"); err != nil {
+		return err
+	}
+	if *current == "" {
+		return errors.New("cells import: --current is required: the constant current of the log, e.g. --current 2A")
+	}
+	amps, err := units.Parse(*current, units.Current, true)
+	if err == nil && !(amps > 0) {
+		err = fmt.Errorf("%q: must be above 0 A", *current)
+	}
+	if err != nil {
+		return fmt.Errorf("--current: %w", err)
+	}
+	if *out == "" {
+		return errors.New("cells import: -o is required: the cell file to write, e.g. -o cell.csv")
+	}
+	if ext := strings.ToLower(filepath.Ext(*out)); ext != ".csv" {
+		return fmt.Errorf("-o: %q: the imported cell is written as CSV points; name it .csv", *out)
+	}
+	log, err := openLimited(pos[0], curves.MaxFileSize)
+	if err != nil {
+		return err
+	}
+	cell, err := curves.ImportLog(bytes.NewReader(log), pos[0], amps)
+	if err != nil {
+		return err
+	}
+	var b bytes.Buffer
+	if err := curves.WriteCSV(&b, cell); err != nil {
+		return fmt.Errorf("%s: %w", *out, err)
+	}
+	if err := scenario.WriteFile(*out, b.Bytes(), *force); err != nil {
+		if errors.Is(err, scenario.ErrExists) {
+			return fmt.Errorf("-o: %s exists: add --force to replace it", *out)
+		}
+		return err
+	}
+	q, v := cell.Curve.Point(cell.Curve.Len() - 1)
+	_, err = fmt.Fprintf(c.stdout, "wrote %s: %d points, %s mAh at %s down to %s V\n",
+		*out, cell.Curve.Len(), sig(q, 4), human(amps, units.Current), fixed(v, 3))
+	return err
+}
+
+// openLimited reads a whole file of at most limit bytes, with messages
+// naming it.
+func openLimited(path string, limit int64) ([]byte, error) {
+	st, err := os.Stat(path)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, unwrapPathErr(err))
+	}
+	if st.IsDir() {
+		return nil, fmt.Errorf("%s: is a directory, expected a file", path)
+	}
+	if st.Size() > limit {
+		return nil, fmt.Errorf("%s: %d bytes, larger than the %d-byte limit", path, st.Size(), limit)
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, unwrapPathErr(err))
+	}
+	return data, nil
+}
+
+func unwrapPathErr(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}

@@ -1,0 +1,310 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"headroom/curves"
+	"headroom/discharge"
+	"headroom/internal/scenario"
+)
+
+var compareCmd = &command{
+	name:  "compare",
+	args:  "[scenario.toml] [--budget DOLLARS] [--within-budget] [--sort cost|runtime] [--format text|json|csv|md]",
+	short: "every chemistry that fits the product, ranked by cost per hour of use",
+	help: `
+Tries every library cell (and the scenario file's own cells) in the product:
+the same load, protection element, floor, ambient, daily pattern and parallel
+count as the file's design. With no file the built-in demo is used.
+
+Series count, per chemistry: the count whose nominal pack voltage is closest
+to the design's (ties go to fewer cells), among the counts whose fresh
+open-circuit pack voltage is at most 1.5 × the design's and above the floor.
+A chemistry with no such count does not fit and is listed as such.
+
+Columns: runtime in hours of use, packs bought (primary) or charges
+(rechargeable) per year at the daily pattern, cost per hour of use (primary:
+pack price ÷ runtime; rechargeable: pack price ÷ cycle life plus the charging
+energy, per hour), cost per year, stranded % of the reference, the pack +
+protection part cost, and the chemistry's main caution. Rows are ranked by
+cost per hour, cheapest first; designs that never start go last.
+
+flags:
+  --budget DOLLARS  most a pack + protection part may cost (default: the
+                    file's budget key); dearer rows are marked OVER
+  --within-budget   leave out the rows over budget instead of marking them
+  --sort KEY        cost (cheapest per hour first, the default) or runtime
+                    (longest first)
+  --format FORMAT   text, json, csv or md (default text)
+
+examples:
+  headroom compare
+  headroom compare testdata/scenarios/example.toml --budget 2.50 --within-budget
+  headroom compare --sort runtime --format md
+`,
+}
+
+func init() { compareCmd.run = runCompare }
+
+// freshLimit is how far above the design's fresh pack voltage a candidate
+// pack may start (see the help text).
+const freshLimit = 1.5
+
+type compareRow struct {
+	cell         *curves.Cell
+	series, par  int
+	r            *discharge.Result
+	perYear      float64 // packs or charges a year
+	costPerYear  float64
+	partCost     float64 // pack + protection element
+	overBudget   bool
+	budgetActive bool
+}
+
+func (c compareRow) runtime() float64 { return c.r.RuntimeH }
+
+// seriesFor picks the series count of cell for design d, or 0 when none
+// fits; see the help text for the rule.
+func seriesFor(cell *curves.Cell, d *discharge.Design) int {
+	nomD := float64(d.Series) * d.Cell.NominalV
+	freshD := float64(d.Series) * d.Cell.OpenCircuit(0, d.TempC)
+	ocv := cell.OpenCircuit(0, d.TempC)
+	best, bestDiff := 0, math.Inf(1)
+	for s := 1; s <= 48; s++ {
+		fresh := float64(s) * ocv
+		if fresh > freshLimit*freshD {
+			break
+		}
+		if fresh <= d.Floor {
+			continue
+		}
+		if diff := math.Abs(float64(s)*cell.NominalV - nomD); diff < bestDiff-1e-9 {
+			best, bestDiff = s, diff
+		}
+	}
+	return best
+}
+
+// shortCaution is one chemistry's main caution in a few words.
+func shortCaution(c *curves.Cell) string {
+	var s string
+	switch c.Chemistry {
+	case "li-ion":
+		s = "needs a protection circuit and a Li-ion charger"
+	case "lifepo4":
+		s = "needs a protection circuit and a LiFePO4 charger"
+	case "nimh":
+		s = "NiMH charger only; stop at the end-point"
+	case "alkaline", "zinc-carbon":
+		s = "may leak when flat or flipped; do not recharge"
+	case "lithium-fes2", "lithium-mno2":
+		s = "do not recharge; may vent if shorted"
+	default:
+		s = "check the maker's data"
+	}
+	d := strings.ToUpper(c.Designation)
+	for _, p := range []string{"CR", "BR", "SR", "LR4", "LR5"} {
+		if strings.HasPrefix(d, p) {
+			s = "swallowing hazard: screw the compartment shut; " + s
+			break
+		}
+	}
+	return s
+}
+
+func runCompare(c *cli, args []string) error {
+	fs := newFlags("compare")
+	budgetFlag := fs.String("budget", "", "")
+	within := fs.Bool("within-budget", false, "")
+	sortFlag := fs.String("sort", "cost", "")
+	formatFlag := fs.String("format", "text", "")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if err := wantArgs("compare", pos, 0, 1, "a scenario file"); err != nil {
+		return err
+	}
+	f, err := parseFormat(*formatFlag)
+	if err != nil {
+		return err
+	}
+	key := strings.ToLower(strings.TrimSpace(*sortFlag))
+	if key != "cost" && key != "runtime" {
+		return fmt.Errorf("--sort: %q is not a compare column: expected cost or runtime", *sortFlag)
+	}
+	s, err := loadScenario(pos)
+	if err != nil {
+		return err
+	}
+	budget := s.Budget
+	if *budgetFlag != "" {
+		if budget, err = scenario.ParsePrice(*budgetFlag); err != nil {
+			return fmt.Errorf("--budget: %w", err)
+		}
+	}
+	if *within && budget <= 0 {
+		return fmt.Errorf("--within-budget: no budget: give --budget DOLLARS or a budget key in the file")
+	}
+
+	d := s.Design
+	el := d.Protect
+	elCost := 0.0
+	if el != nil {
+		elCost = el.Cost()
+	}
+	var cells []*curves.Cell
+	seen := map[string]bool{}
+	for _, list := range [][]*curves.Cell{curves.Library(), s.FileCells} {
+		for _, cell := range list {
+			if !seen[cell.ID] {
+				seen[cell.ID] = true
+				cells = append(cells, cell)
+			}
+		}
+	}
+	var rows []compareRow
+	var misfits []string
+	for _, cell := range cells {
+		n := seriesFor(cell, &d)
+		if n == 0 {
+			misfits = append(misfits, cell.ID)
+			continue
+		}
+		cd := d
+		cd.Cell, cd.Series, cd.TracePoints = cell, n, 0
+		if !(cell == d.Cell && n == d.Series) {
+			cd.PackPrice = 0 // the file's price is for its own pack
+		}
+		r, err := discharge.Evaluate(&cd)
+		if err != nil {
+			return fmt.Errorf("compare %s: %w", cell.ID, err)
+		}
+		row := compareRow{cell: cell, series: n, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
+		if r.RuntimeDays > 0 {
+			row.perYear = 365 / r.RuntimeDays
+		}
+		row.costPerYear = r.CostPerHour * hoursPerDay(&d) * 365
+		row.overBudget = budget > 0 && row.partCost > budget+1e-9
+		if *within && row.overBudget {
+			continue
+		}
+		rows = append(rows, row)
+	}
+	sort.SliceStable(rows, func(i, j int) bool {
+		a, b := rows[i], rows[j]
+		if (a.runtime() > 0) != (b.runtime() > 0) {
+			return a.runtime() > 0
+		}
+		if key == "runtime" {
+			return a.runtime() > b.runtime()
+		}
+		return a.r.CostPerHour < b.r.CostPerHour
+	})
+
+	if f == formatText {
+		if err := compareContext(c, s, &d, budget); err != nil {
+			return err
+		}
+	}
+	t := newTable(c.stdout, f, compareColumns(budget > 0))
+	t.fit(rows)
+	t.header()
+	for _, r := range rows {
+		t.row(r)
+	}
+	if err := t.end(); err != nil {
+		return err
+	}
+	if f == formatText && len(misfits) > 0 {
+		_, err = fmt.Fprintf(c.stdout, "\nno series count fits: %s\n", strings.Join(misfits, ", "))
+	}
+	if f == formatText {
+		_, err = fmt.Fprintf(c.stdout, "\nFull cautions: headroom cells show ID. Charger and charging losses beyond the\ncharge efficiency are not counted for rechargeables.\n")
+	}
+	return err
+}
+
+func compareContext(c *cli, s *scenario.Scenario, d *discharge.Design, budget float64) error {
+	name := s.Name
+	if name == "" {
+		name = s.Path
+	}
+	freshD := float64(d.Series) * d.Cell.OpenCircuit(0, d.TempC)
+	b := fmt.Sprintf("%s: chemistries for load %s; protect %s; floor %s V; %s h of use a day\n",
+		name, loadWords(d), s.ProtectSpec, fixed(d.Floor, 2), short(hoursPerDay(d)))
+	b += fmt.Sprintf("series count: nominal pack voltage closest to %s V (%d × %s), fresh at most %s V (1.5 × %s V)\n",
+		short(float64(d.Series)*d.Cell.NominalV), d.Series, d.Cell.ID, fixed(freshLimit*freshD, 2), fixed(freshD, 2))
+	if budget > 0 {
+		b += fmt.Sprintf("budget for pack + protection part: %s\n", money(budget))
+	}
+	_, err := fmt.Fprintln(c.stdout, b)
+	return err
+}
+
+func compareColumns(withBudget bool) []column[compareRow] {
+	num := func(key, head string, d int, get func(compareRow) float64) column[compareRow] {
+		return column[compareRow]{key: key, head: head, right: true, human: true, machine: true,
+			text: func(r compareRow) string { return fixed(get(r), d) }, val: func(r compareRow) any { return get(r) }}
+	}
+	cols := []column[compareRow]{
+		{key: "cell", head: "cell", human: true, machine: true,
+			text: func(r compareRow) string { return r.cell.ID }, val: func(r compareRow) any { return r.cell.ID }},
+		{key: "chemistry", machine: true, val: func(r compareRow) any { return r.cell.Chemistry }},
+		{head: "S×P", human: true, text: func(r compareRow) string { return fmt.Sprintf("%d×%d", r.series, r.par) }},
+		{key: "series", machine: true, val: func(r compareRow) any { return r.series }},
+		{key: "parallel", machine: true, val: func(r compareRow) any { return r.par }},
+		num("runtime_h", "runtime h", 2, func(r compareRow) float64 { return r.r.RuntimeH }),
+		{key: "rechargeable", machine: true, val: func(r compareRow) any { return r.cell.Rechargeable }},
+		{key: "packs_per_year", head: "per year", right: true, human: true, machine: true,
+			text: func(r compareRow) string {
+				if r.perYear == 0 {
+					return "—"
+				}
+				if r.cell.Rechargeable {
+					return sig(r.perYear, 3) + " charges"
+				}
+				return sig(r.perYear, 3) + " packs"
+			},
+			val: func(r compareRow) any { return r.perYear }},
+		{key: "cost_per_hour", head: "$/h", right: true, human: true, machine: true,
+			text: func(r compareRow) string {
+				if r.r.RuntimeH == 0 {
+					return "—"
+				}
+				return money(r.r.CostPerHour)
+			},
+			val: func(r compareRow) any { return r.r.CostPerHour }},
+		{key: "cost_per_year", head: "$/year", right: true, human: true, machine: true,
+			text: func(r compareRow) string {
+				if r.r.RuntimeH == 0 {
+					return "—"
+				}
+				return money(r.costPerYear)
+			},
+			val: func(r compareRow) any { return r.costPerYear }},
+		num("stranded_pct", "stranded %", 1, func(r compareRow) float64 { return strandedPct(r.r) }),
+		{key: "pack_price", machine: true, val: func(r compareRow) any { return r.r.PackPrice }},
+		{key: "pack_and_protection", head: "pack+part", right: true, human: true, machine: true,
+			text: func(r compareRow) string { return money(r.partCost) }, val: func(r compareRow) any { return r.partCost }},
+	}
+	if withBudget {
+		cols = append(cols, column[compareRow]{key: "over_budget", head: "budget", human: true, machine: true,
+			text: func(r compareRow) string {
+				if r.overBudget {
+					return "OVER"
+				}
+				return "ok"
+			},
+			val: func(r compareRow) any { return r.overBudget }})
+	}
+	cols = append(cols,
+		column[compareRow]{key: "cutoff_cause", machine: true, val: func(r compareRow) any { return string(r.r.CutoffCause) }},
+		column[compareRow]{key: "caution", head: "caution", human: true, machine: true,
+			text: func(r compareRow) string { return shortCaution(r.cell) }, val: func(r compareRow) any { return shortCaution(r.cell) }},
+	)
+	return cols
+}

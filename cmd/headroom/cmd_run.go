@@ -1,0 +1,289 @@
+package main
+
+import (
+	"bytes"
+	"flag"
+	"fmt"
+	"strings"
+
+	"headroom/discharge"
+	"headroom/internal/scenario"
+	"headroom/internal/units"
+)
+
+var runCmd = &command{
+	name:  "run",
+	args:  "[scenario.toml] [flags]",
+	short: "evaluate one design: runtime, stranded capacity, heat, cost",
+	help: `
+Evaluates one design: the scenario file's design (the first entry of every
+option list), with any flag below set over it. With no file the flags start
+from the built-in demo's design (see headroom demo): a 2×AA toy with a motor
+pulse, 1 h of use a day and a 30 µA standby drain.
+
+flags:
+` + designFlagHelp() + `  --format text|json|csv|md       output format (default text)
+
+Values take SI prefixes (n, u or µ, m, k) and units (V A W ohm Ω h min s % C);
+a bare number is the flag's own unit where that is unambiguous.
+
+examples:
+  headroom run --cell hr6 --series 2 --protect schottky --load 150mA --floor 2.0
+  headroom run testdata/scenarios/example.toml --protect pmos --format json
+  headroom run --load 450mA/3s,120mA/2s,15mA/25s --floor 1.8 --temp -10C
+`,
+}
+
+func init() { runCmd.run = runRun }
+
+func runRun(c *cli, args []string) error {
+	fs := newFlags("run")
+	addDesignFlags(fs)
+	formatFlag := fs.String("format", "text", "")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if err := wantArgs("run", pos, 0, 1, "a scenario file"); err != nil {
+		return err
+	}
+	f, err := parseFormat(*formatFlag)
+	if err != nil {
+		return err
+	}
+	s, err := loadScenario(pos)
+	if err != nil {
+		return err
+	}
+	if err := applyDesignFlags(fs, s); err != nil {
+		return err
+	}
+	var changed []string
+	fs.Visit(func(fl *flag.Flag) {
+		if fl.Name != "format" {
+			changed = append(changed, "--"+fl.Name)
+		}
+	})
+	if len(changed) > 0 && s.Name != "" {
+		s.Name += " with " + strings.Join(changed, ", ")
+	}
+	d := s.Design
+	r, err := discharge.Evaluate(&d)
+	if err != nil {
+		return fmt.Errorf("design: %w", err)
+	}
+	if f == formatText {
+		_, err = c.stdout.Write(runText(s, &d, r))
+		return err
+	}
+	return writeRecord(c.stdout, f, runRecord(s, &d, r))
+}
+
+// hoursPerDay is the design's daily hours of use; 0 means continuous.
+func hoursPerDay(d *discharge.Design) float64 {
+	if d.HoursPerDay == 0 {
+		return 24
+	}
+	return d.HoursPerDay
+}
+
+func strandedPct(r *discharge.Result) float64 {
+	if r.ReferenceMAh <= 0 {
+		return 0
+	}
+	return 100 * r.StrandedMAh / r.ReferenceMAh
+}
+
+// dedupe drops repeated lines, keeping the first.
+func dedupe(xs []string) []string {
+	seen := map[string]bool{}
+	out := []string{}
+	for _, x := range xs {
+		if !seen[x] {
+			seen[x] = true
+			out = append(out, x)
+		}
+	}
+	return out
+}
+
+// runRecord is the result as named fields, in the units the keys name.
+func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []field {
+	return []field{
+		{"name", "name", s.Name},
+		{"cell", "cell", d.Cell.ID},
+		{"cell_name", "cell name", d.Cell.Name},
+		{"chemistry", "chemistry", d.Cell.Chemistry},
+		{"series", "cells in series", d.Series},
+		{"parallel", "strings in parallel", d.Parallel},
+		{"protect", "protection", s.ProtectSpec},
+		{"load", "load", s.LoadSpec},
+		{"floor_V", "floor (V)", d.Floor},
+		{"temp_C", "ambient (°C)", d.TempC},
+		{"hours_per_day", "hours of use a day", hoursPerDay(d)},
+		{"standby_A", "standby current (A)", d.Standby},
+		{"pack_price", "pack price ($)", r.PackPrice},
+		{"fresh_V", "fresh pack voltage (V)", r.FreshV},
+		{"runtime_h", "runtime (h of use)", r.RuntimeH},
+		{"runtime_days", "runtime (days)", r.RuntimeDays},
+		{"delivered_mAh", "delivered (mAh)", r.DeliveredMAh},
+		{"delivered_Wh", "delivered to the load (Wh)", r.DeliveredWh},
+		{"reference_mAh", "reference (mAh)", r.ReferenceMAh},
+		{"stranded_mAh", "stranded (mAh)", r.StrandedMAh},
+		{"stranded_pct", "stranded (% of reference)", strandedPct(r)},
+		{"stranded_by_protection_mAh", "stranded by the protection drop (mAh)", r.StrandedByProtectionMAh},
+		{"stranded_by_floor_mAh", "stranded by the floor (mAh)", r.StrandedByFloorMAh},
+		{"protection_loss_Wh", "burnt in the protection element (Wh)", r.ProtectionLossWh},
+		{"cell_loss_Wh", "burnt in the cells' resistance (Wh)", r.CellLossWh},
+		{"protection_peak_W", "element peak dissipation (W)", r.ProtectionPeakW},
+		{"junction_C", "element junction at peak (°C)", r.JunctionC},
+		{"quiescent_A", "element standing drain (A)", r.QuiescentA},
+		{"standby_mAh", "standby drain (mAh)", r.StandbyMAh},
+		{"self_discharge_mAh", "self-discharge (mAh)", r.SelfDischargeMAh},
+		{"standby_share_pct", "standby and self-discharge (% of delivered)", 100 * r.StandbyShare},
+		{"cost_per_hour", "cost per hour of use ($/h)", r.CostPerHour},
+		{"cutoff_phase", "cut-off phase", r.CutoffPhase},
+		{"cutoff_cause", "cut-off cause", string(r.CutoffCause)},
+		{"cutoff_load_V", "load voltage at cut-off (V)", r.CutoffLoadV},
+		{"cutoff_pack_V", "pack voltage at cut-off (V)", r.CutoffPackV},
+		{"cutoff_A", "current at cut-off (A)", r.CutoffAmps},
+		{"cutoff_text", "cut-off", cutoffWords(d, r)},
+		{"warnings", "warnings", append([]string{}, r.Warnings...)},
+		{"cautions", "cautions", dedupe(r.Cautions)},
+	}
+}
+
+// phaseWords names the phase that failed for a sentence: "the 450 mA
+// motor wag pulse", "the 100 mA load".
+func phaseWords(d *discharge.Design, r *discharge.Result) string {
+	idx := -1
+	longest := 0.0
+	for i, p := range d.Profile {
+		if idx < 0 && p.Label() == r.CutoffPhase {
+			idx = i
+		}
+		longest = max(longest, p.Seconds)
+	}
+	if idx < 0 {
+		return r.CutoffPhase
+	}
+	p := d.Profile[idx]
+	what := trimZeros(p.Load.Label())
+	if p.Load.Kind == discharge.ConstantCurrent || r.CutoffAmps <= 0 {
+		// the label is the current already
+	} else {
+		what += " (" + human(r.CutoffAmps, units.Current) + ")"
+	}
+	if p.Name != "" {
+		what += " " + p.Name
+	}
+	switch {
+	case len(d.Profile) == 1:
+		return "the " + what + " load"
+	case p.Seconds < longest:
+		return "the " + what + " pulse"
+	}
+	return "the " + what + " phase"
+}
+
+// cutoffWords says why the product stopped, in one phrase.
+func cutoffWords(d *discharge.Design, r *discharge.Result) string {
+	ph := phaseWords(d, r)
+	var s string
+	switch r.CutoffCause {
+	case discharge.CauseFloor:
+		verb := "stops"
+		if len(d.Profile) > 1 {
+			verb = "resets"
+		}
+		s = fmt.Sprintf("%s on %s at %s (floor)", verb, ph, fixed(d.Floor, 2)+" V")
+	case discharge.CauseCollapse:
+		s = fmt.Sprintf("the converter's input collapses on %s: the pack cannot deliver its power", ph)
+	case discharge.CauseLimit:
+		s = fmt.Sprintf("the element's current limit clamps %s at %s", ph, human(r.CutoffAmps, units.Current))
+	case discharge.CauseFuse:
+		s = fmt.Sprintf("the fuse opens on %s at %s", ph, human(r.CutoffAmps, units.Current))
+	default:
+		s = fmt.Sprintf("the cells reach their %s end-point on %s", fixed(d.Cell.EndPoint, 2)+" V", ph)
+	}
+	if r.RuntimeH == 0 {
+		s = "does not start: " + s
+	}
+	return s
+}
+
+// loadWords lists the profile for people.
+func loadWords(d *discharge.Design) string {
+	if len(d.Profile) == 1 {
+		return trimZeros(d.Profile[0].Load.Label())
+	}
+	var parts []string
+	for _, p := range d.Profile {
+		t := trimZeros(p.Load.Label()) + " for " + short(p.Seconds) + " s"
+		if p.Name != "" {
+			t = p.Name + " " + t
+		}
+		parts = append(parts, t)
+	}
+	return strings.Join(parts, ", ")
+}
+
+func packWords(d *discharge.Design) string {
+	s := fmt.Sprintf("%d × %s", d.Series, d.Cell.ID)
+	if d.Cell.Name != "" && d.Cell.Name != d.Cell.ID {
+		s += " (" + d.Cell.Name + ")"
+	}
+	if d.Parallel > 1 {
+		s += fmt.Sprintf(", %d strings in parallel", d.Parallel)
+	}
+	return s
+}
+
+func mAh(x float64) string { return sig(x, 3) + " mAh" }
+
+// runText is the result for people: a short block to read or paste.
+func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []byte {
+	var b bytes.Buffer
+	if s.Name != "" {
+		fmt.Fprintf(&b, "%s\n", s.Name)
+	}
+	line := func(k, format string, a ...any) { fmt.Fprintf(&b, "%-10s %s\n", k, fmt.Sprintf(format, a...)) }
+	line("pack", "%s, %s V fresh, %s", packWords(d), fixed(r.FreshV, 2), money(r.PackPrice))
+	line("protect", "%s", s.ProtectSpec)
+	line("load", "%s", loadWords(d))
+	use := "continuous use"
+	if d.HoursPerDay > 0 {
+		use = short(d.HoursPerDay) + " h of use a day"
+	}
+	line("conditions", "floor %s V, %s, %s, standby %s", fixed(d.Floor, 2), human(d.TempC, units.Temperature), use, human(d.Standby, units.Current))
+	b.WriteByte('\n')
+
+	days := sig(r.RuntimeDays, 3) + " days"
+	if d.HoursPerDay > 0 {
+		days += " at " + short(d.HoursPerDay) + " h a day"
+	} else {
+		days += " of continuous use"
+	}
+	line("runtime", "%s h of use = %s", sig(r.RuntimeH, 3), days)
+	line("delivered", "%s from the pack, %s Wh into the load", mAh(r.DeliveredMAh), sig(r.DeliveredWh, 3))
+	line("reference", "%s: the cells at this load to their %s V end-point, no element, no floor", mAh(r.ReferenceMAh), short(d.Cell.EndPoint))
+	line("stranded", "%s = %s %% of the reference: %s by the protection drop, %s by the floor",
+		mAh(r.StrandedMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
+	line("element", "%s Wh burnt in it; peak %s W, junction %s °C", sig(r.ProtectionLossWh, 3), sig(r.ProtectionPeakW, 3), fixed(r.JunctionC, 0))
+	line("cells", "%s Wh burnt in their internal resistance", sig(r.CellLossWh, 3))
+	line("standby", "%s %% of the charge goes to standby drain and self-discharge", fixed(100*r.StandbyShare, 1))
+	line("cost", "%s per hour of use", money(r.CostPerHour))
+	line("cut-off", "%s", cutoffWords(d, r))
+	list := func(title string, xs []string) {
+		if len(xs) == 0 {
+			return
+		}
+		fmt.Fprintf(&b, "\n%s:\n", title)
+		for _, x := range xs {
+			fmt.Fprintf(&b, "  - %s\n", x)
+		}
+	}
+	list("warnings", r.Warnings)
+	list("cautions", dedupe(r.Cautions))
+	return b.Bytes()
+}

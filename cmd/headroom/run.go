@@ -1,0 +1,279 @@
+package main
+
+import (
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"github.com/mattn/go-isatty"
+
+	"headroom/internal/scenario"
+)
+
+// command is one subcommand: its name, synopsis, help text and body.
+type command struct {
+	name  string
+	args  string // synopsis after the name
+	short string // one line for the command list
+	help  string // what it does, its flags and two or three real examples
+	run   func(c *cli, args []string) error
+}
+
+// cli is one invocation: its streams and how to tell a terminal.
+type cli struct {
+	stdin          io.Reader
+	stdout, stderr io.Writer
+	terminal       bool // standard output is a terminal
+}
+
+// errHelp asks for the command's help on standard output and exit status 0.
+var errHelp = errors.New("help requested")
+
+// commands lists the subcommands in the order "headroom help" shows them.
+var commands []*command
+
+func init() {
+	commands = []*command{runCmd, tableCmd, compareCmd, cellsCmd, plotCmd, demoCmd, helpCmd}
+}
+
+func lookupCommand(name string) *command {
+	for _, c := range commands {
+		if c.name == name {
+			return c
+		}
+	}
+	return nil
+}
+
+func commandNames() string {
+	var n []string
+	for _, c := range commands {
+		n = append(n, c.name)
+	}
+	return strings.Join(n, ", ")
+}
+
+// run is the whole program: it returns the exit status. Errors print one
+// line on stderr and give status 2; help and results give 0.
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
+	defer func() {
+		// Last guard only: a panic here is a bug to fix at its source.
+		if r := recover(); r != nil {
+			fmt.Fprintf(stderr, "headroom: internal error: %s\n", oneLine(fmt.Sprint(r)))
+			code = 2
+		}
+	}()
+	c := &cli{stdin: stdin, stdout: stdout, stderr: stderr, terminal: isTerminal(stdout)}
+	if err := c.dispatch(args); err != nil {
+		fmt.Fprintf(stderr, "headroom: %s\n", oneLine(err.Error()))
+		return 2
+	}
+	return 0
+}
+
+func isTerminal(w io.Writer) bool {
+	f, ok := w.(*os.File)
+	if !ok {
+		return false
+	}
+	return isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd())
+}
+
+func (c *cli) dispatch(args []string) error {
+	if len(args) == 0 {
+		if c.terminal {
+			return c.screen(scenario.Demo())
+		}
+		c.usage(c.stdout)
+		return nil
+	}
+	first := args[0]
+	switch first {
+	case "-h", "-help", "--help":
+		c.usage(c.stdout)
+		return nil
+	}
+	if cmd := lookupCommand(first); cmd != nil {
+		err := cmd.run(c, args[1:])
+		if errors.Is(err, errHelp) {
+			cmd.printHelp(c.stdout)
+			return nil
+		}
+		return err
+	}
+	if strings.HasPrefix(first, "-") {
+		return fmt.Errorf("unknown flag %s before a command: expected a command (%s) or a scenario file", first, commandNames())
+	}
+	if strings.EqualFold(filepath.Ext(first), ".toml") || fileExists(first) {
+		if len(args) > 1 {
+			return fmt.Errorf("the interactive screen takes one scenario file, got %d arguments (did you mean headroom run %s?)", len(args), strings.Join(args, " "))
+		}
+		s, err := scenario.Load(first)
+		if err != nil {
+			return err
+		}
+		if !c.terminal {
+			return fmt.Errorf("%s: the interactive screen needs a terminal; for a report use headroom run %s", first, first)
+		}
+		return c.screen(s)
+	}
+	return fmt.Errorf("unknown command %q: expected one of %s, or a scenario file (.toml)", first, commandNames())
+}
+
+func (c *cli) screen(s *scenario.Scenario) error {
+	if err := openScreen(s, c.stdout); err != nil {
+		return fmt.Errorf("%w; the headless commands work: headroom help", err)
+	}
+	return nil
+}
+
+func fileExists(p string) bool {
+	st, err := os.Stat(p)
+	return err == nil && !st.IsDir()
+}
+
+func (c *cli) usage(w io.Writer) {
+	fmt.Fprint(w, `headroom estimates battery runtime and the capacity a product wastes: cells,
+an input-protection element and the load's floor voltage.
+
+usage:
+  headroom                      the interactive screen on the built-in demo (on a terminal)
+  headroom FILE.toml            the interactive screen on a scenario file
+  headroom COMMAND [arguments]  a headless command
+
+commands:
+`)
+	for _, cmd := range commands {
+		fmt.Fprintf(w, "  %-8s %s\n", cmd.name, cmd.short)
+	}
+	fmt.Fprint(w, `
+"headroom COMMAND -h" shows a command's flags and examples. Flags may be written
+-flag or --flag, before or after the file. Errors exit with status 2.
+`)
+}
+
+func (cmd *command) printHelp(w io.Writer) {
+	fmt.Fprintf(w, "usage: headroom %s %s\n\n%s", cmd.name, cmd.args, strings.TrimLeft(cmd.help, "\n"))
+}
+
+var helpCmd = &command{
+	name:  "help",
+	args:  "[COMMAND]",
+	short: "this list, or a command's flags and examples",
+	help: `
+Shows the command list, or one command's help.
+
+examples:
+  headroom help
+  headroom help run
+`,
+}
+
+func init() {
+	helpCmd.run = func(c *cli, args []string) error {
+		switch {
+		case len(args) == 0:
+			c.usage(c.stdout)
+			return nil
+		case len(args) == 1 && (args[0] == "-h" || args[0] == "--help" || args[0] == "-help"):
+			return errHelp
+		case len(args) > 1:
+			return fmt.Errorf("help: one command at a time, got %d", len(args))
+		}
+		cmd := lookupCommand(args[0])
+		if cmd == nil {
+			return fmt.Errorf("help: unknown command %q: expected one of %s", args[0], commandNames())
+		}
+		cmd.printHelp(c.stdout)
+		return nil
+	}
+}
+
+// newFlags makes a subcommand's flag set; it prints nothing itself.
+func newFlags(name string) *flag.FlagSet {
+	fs := flag.NewFlagSet("headroom "+name, flag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	fs.Usage = func() {}
+	return fs
+}
+
+// parseArgs parses flags placed anywhere among the positional arguments
+// (the flag package stops at the first one) and returns the positionals.
+// After "--" everything is positional.
+func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			if errors.Is(err, flag.ErrHelp) {
+				return nil, errHelp
+			}
+			return nil, flagError(err)
+		}
+		rest := fs.Args()
+		used := len(args) - len(rest)
+		if used > 0 && args[used-1] == "--" {
+			return append(pos, rest...), nil
+		}
+		if len(rest) == 0 {
+			return pos, nil
+		}
+		pos = append(pos, rest[0])
+		args = rest[1:]
+	}
+}
+
+// flagError rewrites the flag package's messages in our one-line style.
+func flagError(err error) error {
+	msg := err.Error()
+	if name, ok := strings.CutPrefix(msg, "flag provided but not defined: "); ok {
+		return fmt.Errorf("unknown flag -%s (see -h for the flags)", strings.TrimLeft(name, "-"))
+	}
+	if name, ok := strings.CutPrefix(msg, "flag needs an argument: "); ok {
+		return fmt.Errorf("-%s: needs a value", strings.TrimLeft(name, "-"))
+	}
+	if strings.HasPrefix(msg, "invalid boolean value") {
+		// invalid boolean value "x" for -force: parse error
+		if i := strings.Index(msg, " for -"); i >= 0 {
+			name, _, _ := strings.Cut(msg[i+len(" for -"):], ":")
+			return fmt.Errorf("--%s: %s: expected true or false", name, strings.TrimPrefix(msg[:i], "invalid boolean value "))
+		}
+	}
+	return errors.New(msg)
+}
+
+// wantArgs checks the number of positional arguments.
+func wantArgs(name string, pos []string, lo, hi int, what string) error {
+	switch {
+	case len(pos) < lo:
+		return fmt.Errorf("%s: missing %s (see headroom %s -h)", name, what, name)
+	case len(pos) > hi:
+		return fmt.Errorf("%s: unexpected argument %q (at most %d: %s)", name, pos[hi], hi, what)
+	}
+	return nil
+}
+
+// loadScenario reads the scenario file named, or gives the built-in demo
+// when none is.
+func loadScenario(pos []string) (*scenario.Scenario, error) {
+	if len(pos) == 0 {
+		return scenario.Demo(), nil
+	}
+	return scenario.Load(pos[0])
+}
+
+func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+
+// sortedKeys is for stable listings of maps.
+func sortedKeys[V any](m map[string]V) []string {
+	k := make([]string, 0, len(m))
+	for s := range m {
+		k = append(k, s)
+	}
+	sort.Strings(k)
+	return k
+}
