@@ -1,0 +1,134 @@
+package discharge_test
+
+import (
+	"math"
+	"testing"
+
+	"headroom/discharge"
+	"headroom/internal/spice"
+	"headroom/internal/spicenet"
+)
+
+// TestRuntimeAgainstNgspice compares the engine's runtime with ngspice
+// (Debian package; DESIGN §7) on the designs of spicenet.Cases: the same
+// cells, element and load built as a circuit — a charge-counting
+// capacitor driving a behavioural pack source, ngspice's own diode,
+// level-1 MOSFET and PNP models for the element, a behavioural load — and
+// integrated in time until the load voltage reaches the floor. The engine
+// instead integrates dq/I in the charge domain; agreement says the
+// quadrature, the cut-off search and every element's operating-point
+// solve are right.
+//
+// What ngspice is given from headroom rather than computing itself: the
+// capacity factor (Peukert's law and the temperature table scale the
+// curve's charge axis; a circuit simulator has no rate effect) and the
+// span to simulate (1.2× the engine's runtime, only a window: ngspice
+// stops at its own cut-off, and a run that finds none fails the test).
+//
+// Tolerances. The issue asks 1 %; DESIGN §7 expects about 0.01 % from a
+// careful run, and we hold steady loads to that, 1e-4: with reltol 1e-6
+// and at least 4000 time steps, ngspice's own error is its linear
+// interpolation of the crossing between two steps and the 5e-7 load ramp
+// at the start. Measured: at most 1e-6 on every steady case. A pulsed
+// profile fails at the first pulse whose load voltage dips below the
+// floor, which can be up to one cycle after the charge at which the
+// engine's quasi-static phases fail, so those cases get one period on
+// top (30 s of 6.3 h, 1.3e-3; measured 3.5e-4).
+func TestRuntimeAgainstNgspice(t *testing.T) {
+	spice.Require(t)
+	cases, err := spicenet.Cases()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(cases) < 8 {
+		t.Fatalf("%d cases, the issue asks at least eight", len(cases))
+	}
+	for _, c := range cases {
+		t.Run(c.Name, func(t *testing.T) {
+			t.Parallel()
+			d := c.Design
+			r, err := discharge.Evaluate(&d)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r.RuntimeH == 0 {
+				limiterPulse(t, &d, r)
+				return
+			}
+			net, err := spicenet.Build(&d, spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: 1.2 * r.RuntimeH})
+			if err != nil {
+				t.Fatal(err)
+			}
+			s, err := spicenet.Run(net)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if s.Cause == spicenet.None {
+				t.Fatalf("ngspice found no cut-off within 1.2× the engine's %.4f h", r.RuntimeH)
+			}
+			rel := r.RuntimeH/s.CutoffH - 1
+			tol := 1e-4 + spicenet.Period(&d)/r.RuntimeH
+			t.Logf("headroom %.5f h (%s on %s, load %.3f V from pack %.3f V), ngspice %.5f h (%s), diff %+.1e, tolerance %.1e",
+				r.RuntimeH, r.CutoffCause, r.CutoffPhase, r.CutoffLoadV, r.CutoffPackV, s.CutoffH, s.Cause, rel, tol)
+			if math.Abs(rel) > tol {
+				t.Errorf("runtime %.5f h, ngspice %.5f h: %+.2e relative, beyond %.1e", r.RuntimeH, s.CutoffH, rel, tol)
+			}
+			if string(s.Cause) != string(r.CutoffCause) {
+				t.Errorf("cause %q, ngspice %q", r.CutoffCause, s.Cause)
+			}
+		})
+	}
+}
+
+// limiterPulse checks a design the engine says never starts: a current
+// limiter with a pulse above its limit. Agreement here is on behaviour,
+// not on a runtime, and the mechanism differs; the test says exactly how.
+//
+// The engine treats the limiter as ideal: above Vbe/Rsh (0.646 A at 27 °C)
+// it passes no more current, the load voltage collapses, and the product
+// stops at charge 0 with cause "current limit". In the discrete circuit
+// the PNP does throttle the pass FET's channel, but the FET's body diode
+// points from pack to load (the orientation that blocks reversed cells)
+// and carries the pulse instead: the full pulse current flows at a drop of
+// I·Rsh plus a body-diode drop, about 1.6 V at 0.9 A. So ngspice shows no
+// clamp — the load draws its whole pulse — yet the load voltage still
+// falls far below the floor during the first pulse. Both tools therefore
+// agree that the product fails on its first pulse; they disagree on the
+// current, which we check too, so a change in either model shows here.
+func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
+	if r.CutoffCause != discharge.CauseLimit {
+		t.Fatalf("engine runtime 0 with cause %q, want %q", r.CutoffCause, discharge.CauseLimit)
+	}
+	period := spicenet.Period(d)
+	if period == 0 {
+		t.Fatal("the limiter case needs a pulsed profile")
+	}
+	net, err := spicenet.Build(d, spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: 3 * period, NoStop: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := spicenet.Run(net)
+	if err != nil {
+		t.Fatal(err)
+	}
+	clamp := d.Protect.Limit(d.TempC).Clamp
+	var pulse float64
+	for _, p := range d.Profile {
+		pulse = math.Max(pulse, p.Load.Amps)
+	}
+	t.Logf("headroom: runtime 0, %s at %.3f A (clamp %.3f A); ngspice: load below the floor after %.1f s, lowest %.3f V, peak current %.3f A",
+		r.CutoffCause, r.CutoffAmps, clamp, s.CutoffH*3600, s.MinLoadV, s.PeakA)
+	// The first pulse must fail: the crossing lies inside the first cycle.
+	if s.Cause != spicenet.Floor || s.CutoffH <= 0 || s.CutoffH > period {
+		t.Errorf("ngspice cut-off at %.4f h (%q), want inside the first %.4f h cycle", s.CutoffH, s.Cause, period)
+	}
+	// ngspice's pulse current: the whole demand passes through the body
+	// diode, within 1 % (the CC guard takes e^-(V/10 mV) of it, nothing
+	// at 1.26 V; 1 % leaves room for the channel and diode sharing).
+	if math.Abs(s.PeakA/pulse-1) > 0.01 {
+		t.Errorf("ngspice passes %.3f A during the %.3f A pulse; the body diode should carry it all", s.PeakA, pulse)
+	}
+	if !(s.MinLoadV < d.Floor) {
+		t.Errorf("ngspice's lowest load voltage %.3f V is not below the %.2f V floor", s.MinLoadV, d.Floor)
+	}
+}
