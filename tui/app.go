@@ -1,0 +1,324 @@
+// Package tui is headroom's interactive screen: knobs for the pack, the
+// protection element, the load and the floor, with the engine's verdict, a
+// voltage chart, a line-up of every cell and what each protection does
+// with cells put in backwards, all redrawn on every key.
+package tui
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/help"
+	"github.com/charmbracelet/bubbles/key"
+	tea "github.com/charmbracelet/bubbletea"
+
+	"headroom/discharge"
+	"headroom/internal/scenario"
+)
+
+// Smallest terminal the screen draws in; below it, it says so.
+const (
+	MinWidth  = 80
+	MinHeight = 24
+)
+
+// screen is one of the views.
+type screen int
+
+const (
+	screenDesign  screen = iota // knobs, verdict and chart
+	screenLineup                // every cell ranked
+	screenReverse               // cells put in wrong
+	screenCount
+)
+
+func (s screen) String() string {
+	switch s {
+	case screenDesign:
+		return "Design"
+	case screenLineup:
+		return "Line-up"
+	case screenReverse:
+		return "Reversed cells"
+	}
+	return "?"
+}
+
+// mode is what the keys go to besides the view.
+type mode int
+
+const (
+	modeNone        mode = iota
+	modeEdit             // typing a knob's value
+	modeSaveName         // typing a file name
+	modeSaveConfirm      // answering overwrite y/n
+	modeHelp             // the full help is open
+)
+
+// Model is the root of the screen.
+type Model struct {
+	*shared
+	view     screen
+	showHelp bool
+
+	knobs   knobsModel
+	chart   chartModel
+	verdict verdictModel
+	notes   notesModel
+	lineup  lineupModel
+	reverse reverseModel
+	save    saveModel
+	help    help.Model
+}
+
+// New builds the screen for scenario s; nil means the built-in demo.
+func New(s *scenario.Scenario) Model {
+	if s == nil {
+		s = scenario.Demo()
+	}
+	sh := newShared(s)
+	m := Model{shared: sh,
+		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
+		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, save: newSave(sh), help: newHelp(sh.styles)}
+	return m
+}
+
+// Run opens the screen on scenario s (nil for the demo) in the terminal's
+// alternate screen and returns when the user quits.
+func Run(s *scenario.Scenario) error {
+	_, err := tea.NewProgram(New(s), tea.WithAltScreen()).Run()
+	if err != nil {
+		return fmt.Errorf("interactive screen: %w", err)
+	}
+	return nil
+}
+
+// Result is the engine's verdict for the current design; nil with the
+// reason when the design cannot run.
+func (m Model) Result() (*discharge.Result, error) { return m.res, m.err }
+
+// Init starts nothing: the first evaluation ran in New.
+func (m Model) Init() tea.Cmd { return nil }
+
+func (m Model) mode() mode {
+	switch {
+	case m.save.state == saveName:
+		return modeSaveName
+	case m.save.state == saveConfirm:
+		return modeSaveConfirm
+	case m.knobs.editing:
+		return modeEdit
+	case m.showHelp:
+		return modeHelp
+	}
+	return modeNone
+}
+
+// Update handles a message.
+func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	var cmd tea.Cmd
+	switch msg := msg.(type) {
+	case tea.WindowSizeMsg:
+		m.width, m.height = max(0, msg.Width), max(0, msg.Height)
+		return m, nil
+	case savedMsg:
+		m.save, cmd = m.save.Update(msg)
+		return m, cmd
+	case pickedMsg:
+		m.view = screenDesign
+		m.knobs.sel = knobCell
+		return m, nil
+	case tea.KeyMsg:
+		return m.key(msg)
+	}
+	// Anything else (a cursor blink) goes to the text field in use.
+	switch {
+	case m.save.active():
+		m.save, cmd = m.save.Update(msg)
+	case m.knobs.editing:
+		m.knobs, cmd = m.knobs.Update(msg)
+	}
+	return m, cmd
+}
+
+func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
+	k := m.keys
+	var cmd tea.Cmd
+	if km.Type == tea.KeyCtrlC {
+		return m, tea.Quit
+	}
+	switch m.mode() {
+	case modeSaveName, modeSaveConfirm:
+		m.save, cmd = m.save.Update(km)
+		return m, cmd
+	case modeEdit:
+		m.knobs, cmd = m.knobs.Update(km)
+		return m, cmd
+	case modeHelp:
+		switch {
+		case key.Matches(km, k.Quit):
+			return m, tea.Quit
+		case key.Matches(km, k.Help), key.Matches(km, k.Back):
+			m.showHelp = false
+		}
+		return m, nil
+	}
+	if m.save.state == saveWriting {
+		return m, nil // a write is running: wait for it
+	}
+	switch {
+	case key.Matches(km, k.Quit):
+		return m, tea.Quit
+	case key.Matches(km, k.Help):
+		m.showHelp = true
+		return m, nil
+	case key.Matches(km, k.Save):
+		m.save, cmd = m.save.Start()
+		return m, cmd
+	case key.Matches(km, k.NextView):
+		m.show((m.view + 1) % screenCount)
+		return m, nil
+	case key.Matches(km, k.PrevView):
+		m.show((m.view + screenCount - 1) % screenCount)
+		return m, nil
+	case key.Matches(km, k.Design):
+		m.show(screenDesign)
+		return m, nil
+	case key.Matches(km, k.Lineup):
+		m.show(screenLineup)
+		return m, nil
+	case key.Matches(km, k.Reverse):
+		m.show(screenReverse)
+		return m, nil
+	case key.Matches(km, k.Back):
+		m.show(screenDesign)
+		return m, nil
+	}
+	switch m.view {
+	case screenLineup:
+		m.lineup, cmd = m.lineup.Update(km)
+	case screenReverse:
+		m.reverse, cmd = m.reverse.Update(km)
+	default:
+		m.knobs, cmd = m.knobs.Update(km)
+	}
+	return m, cmd
+}
+
+// show switches to view s with its selection on what is in use.
+func (m *Model) show(s screen) {
+	if s == m.view {
+		return
+	}
+	m.view = s
+	switch s {
+	case screenLineup:
+		m.lineup.selectCurrent()
+	case screenReverse:
+		m.reverse.selectCurrent()
+	}
+}
+
+// View draws the screen.
+func (m Model) View() string {
+	w, h := m.width, m.height
+	if w == 0 && h == 0 {
+		return "" // no size yet
+	}
+	if w < MinWidth || h < MinHeight {
+		return m.tooSmall()
+	}
+	bodyH := h - 3
+	var body []string
+	switch {
+	case m.showHelp:
+		body = fitLines(m.helpOverlay(w, bodyH), w, bodyH)
+	case m.view == screenLineup:
+		m.lineup.SetSize(w, bodyH)
+		body = fitLines(m.lineup.View(), w, bodyH)
+	case m.view == screenReverse:
+		m.reverse.SetSize(w, bodyH)
+		body = fitLines(m.reverse.View(), w, bodyH)
+	default:
+		body = m.designView(w, bodyH)
+	}
+	out := make([]string, 0, h)
+	out = append(out, m.header(w))
+	out = append(out, body...)
+	status := m.save.View()
+	if status == "" && m.err != nil && m.view == screenDesign {
+		status = m.styles.Bad.Render("This design cannot run; see the verdict.")
+	}
+	out = append(out, fitLines(status, w, 1)...)
+	out = append(out, fitLines(m.hintLine(), w, 1)...)
+	return strings.Join(out, "\n")
+}
+
+// tooSmall says how large the terminal needs to be, in whatever room
+// there is.
+func (m Model) tooSmall() string {
+	w, h := max(1, m.width), max(1, m.height)
+	msg := fmt.Sprintf("headroom needs a terminal of at least %d×%d characters; this one is %d×%d. Make the window larger, or press q to quit.",
+		MinWidth, MinHeight, m.width, m.height)
+	return strings.Join(fitLines(wrap(msg, w), w, h), "\n")
+}
+
+// header is the top line: the program, the scenario and the views.
+func (m Model) header(w int) string {
+	st := &m.styles
+	var tabs []string
+	for s := range screenCount {
+		t := fmt.Sprintf(" %d %s ", int(s)+1, s)
+		if s == m.view {
+			tabs = append(tabs, st.TabOn.Render(t))
+		} else {
+			tabs = append(tabs, st.Tab.Render(t))
+		}
+	}
+	right := strings.Join(tabs, "")
+	rw := 0
+	for s := range screenCount {
+		rw += len(fmt.Sprintf(" %d %s ", int(s)+1, s))
+	}
+	name := m.scen.Name
+	if m.scen.Path != "" {
+		name += " (" + m.scen.Path + ")"
+	}
+	left := st.Title.Render("headroom") + " " + st.Scenario.Render(pad(name, max(0, w-rw-10)))
+	return padRight(left, w-rw) + right
+}
+
+// designView lays out knobs and verdict on the left, chart and notes on
+// the right.
+func (m Model) designView(w, h int) []string {
+	leftW := 44
+	if w >= 110 {
+		leftW = 48
+	}
+	rightW := w - leftW - 3
+	m.knobs.SetWidth(leftW)
+	m.verdict.SetWidth(leftW)
+	left := fitLines(m.knobs.View()+"\n\n"+m.verdict.View(), leftW, h)
+
+	m.notes.SetWidth(rightW)
+	notes := strings.Split(m.notes.View(), "\n")
+	if len(notes) == 1 && notes[0] == "" {
+		notes = nil
+	}
+	chartH := min(h, max(min(12, h), h-len(notes)-1))
+	m.chart.SetSize(rightW, chartH)
+	right := fitLines(m.chart.View(), rightW, chartH)
+	room := h - chartH - 1
+	if room > 0 {
+		right = append(right, "")
+		if len(notes) > room {
+			more := len(notes) - room + 1
+			notes = append(notes[:room-1:room-1], m.styles.Dim.Render(fmt.Sprintf("… %d more lines in a taller window", more)))
+		}
+		right = append(right, fitLines(strings.Join(notes, "\n"), rightW, room)...)
+	}
+	return besides(left, leftW, right, 3)
+}
+
+// keyOf says which of the KeyMap's bindings a test key is, for tests.
+var _ help.KeyMap = viewKeys{}

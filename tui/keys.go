@@ -1,0 +1,113 @@
+package tui
+
+import "github.com/charmbracelet/bubbles/key"
+
+// KeyMap holds every key binding of the screen.
+type KeyMap struct {
+	Up         key.Binding
+	Down       key.Binding
+	Less       key.Binding
+	More       key.Binding
+	LessCoarse key.Binding
+	MoreCoarse key.Binding
+	Type       key.Binding // type a knob's value
+	Pick       key.Binding // make the line-up row the current cell
+	Rank       key.Binding // line-up: cost per hour or runtime
+	NextView   key.Binding
+	PrevView   key.Binding
+	Design     key.Binding
+	Lineup     key.Binding
+	Reverse    key.Binding
+	Save       key.Binding
+	Help       key.Binding
+	Back       key.Binding
+	Quit       key.Binding
+
+	// In a question or a text field.
+	Accept key.Binding
+	Cancel key.Binding
+	Yes    key.Binding
+	No     key.Binding
+}
+
+// DefaultKeyMap returns the screen's keys.
+func DefaultKeyMap() KeyMap {
+	return KeyMap{
+		Up:         key.NewBinding(key.WithKeys("up", "k"), key.WithHelp("↑/k", "previous")),
+		Down:       key.NewBinding(key.WithKeys("down", "j"), key.WithHelp("↓/j", "next")),
+		Less:       key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/h", "less")),
+		More:       key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "more")),
+		LessCoarse: key.NewBinding(key.WithKeys("shift+left", "["), key.WithHelp("shift+←/[", "much less")),
+		MoreCoarse: key.NewBinding(key.WithKeys("shift+right", "]"), key.WithHelp("shift+→/]", "much more")),
+		Type:       key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "type a value")),
+		Pick:       key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "use this cell")),
+		Rank:       key.NewBinding(key.WithKeys("o"), key.WithHelp("o", "order by cost/runtime")),
+		NextView:   key.NewBinding(key.WithKeys("tab"), key.WithHelp("tab", "next view")),
+		PrevView:   key.NewBinding(key.WithKeys("shift+tab"), key.WithHelp("shift+tab", "previous view")),
+		Design:     key.NewBinding(key.WithKeys("1"), key.WithHelp("1", "design")),
+		Lineup:     key.NewBinding(key.WithKeys("2"), key.WithHelp("2", "cell line-up")),
+		Reverse:    key.NewBinding(key.WithKeys("3"), key.WithHelp("3", "reversed cells")),
+		Save:       key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save")),
+		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "all keys")),
+		Back:       key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "back")),
+		Quit:       key.NewBinding(key.WithKeys("q", "ctrl+c"), key.WithHelp("q", "quit")),
+		Accept:     key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "accept")),
+		Cancel:     key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel")),
+		Yes:        key.NewBinding(key.WithKeys("y", "Y"), key.WithHelp("y", "yes, overwrite")),
+		No:         key.NewBinding(key.WithKeys("n", "N", "esc"), key.WithHelp("n", "no, keep it")),
+	}
+}
+
+// ShortHelp is the design view's one-line hint.
+func (k KeyMap) ShortHelp() []key.Binding {
+	return []key.Binding{k.Up, k.Down, k.Less, k.More, k.Type, k.NextView, k.Save, k.Help, k.Quit}
+}
+
+// FullHelp lists every binding, grouped.
+func (k KeyMap) FullHelp() [][]key.Binding {
+	return [][]key.Binding{
+		{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type},
+		{k.Pick, k.Rank, k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse},
+		{k.Save, k.Help, k.Back, k.Quit},
+	}
+}
+
+// viewKeys is the KeyMap seen from one view and mode, for the help line:
+// it offers only the keys that do something there.
+type viewKeys struct {
+	k    KeyMap
+	view screen
+	mode mode
+}
+
+func (v viewKeys) ShortHelp() []key.Binding {
+	k := v.k
+	switch v.mode {
+	case modeEdit, modeSaveName:
+		return []key.Binding{k.Accept, k.Cancel}
+	case modeSaveConfirm:
+		return []key.Binding{k.Yes, k.No}
+	case modeHelp:
+		return []key.Binding{k.Help, k.Back, k.Quit}
+	}
+	switch v.view {
+	case screenLineup:
+		return []key.Binding{k.Up, k.Down, k.Pick, k.Rank, k.NextView, k.Save, k.Help, k.Quit}
+	case screenReverse:
+		return []key.Binding{k.Up, k.Down, k.NextView, k.Save, k.Help, k.Quit}
+	}
+	return k.ShortHelp()
+}
+
+func (v viewKeys) FullHelp() [][]key.Binding {
+	k := v.k
+	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse}
+	general := []key.Binding{k.Save, k.Help, k.Back, k.Quit}
+	switch v.view {
+	case screenLineup:
+		return [][]key.Binding{{k.Up, k.Down, k.Pick, k.Rank}, views, general}
+	case screenReverse:
+		return [][]key.Binding{{k.Up, k.Down}, views, general}
+	}
+	return [][]key.Binding{{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type}, views, general}
+}

@@ -1,0 +1,179 @@
+package tui
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/key"
+	tea "github.com/charmbracelet/bubbletea"
+
+	"headroom/discharge"
+)
+
+// lineupModel is the line-up view: every cell for the same pack counts,
+// load, protection and floor, ranked by cost per hour or by runtime.
+type lineupModel struct {
+	sh            *shared
+	sel           int // row in the ranked order
+	byRuntime     bool
+	offset        int // first row shown
+	width, height int
+}
+
+// SetSize sets the view's size.
+func (m *lineupModel) SetSize(w, h int) { m.width, m.height = w, h }
+
+// pickedMsg asks the root to show the design view after a cell was picked.
+type pickedMsg struct{}
+
+// Update moves the selection, changes the order, or makes the selected
+// row's cell the current one.
+func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
+	km, ok := msg.(tea.KeyMsg)
+	if !ok {
+		return m, nil
+	}
+	k := m.sh.keys
+	n := len(m.sh.lineup)
+	switch {
+	case key.Matches(km, k.Up):
+		m.sel = (m.sel + n - 1) % max(n, 1)
+	case key.Matches(km, k.Down):
+		m.sel = (m.sel + 1) % max(n, 1)
+	case key.Matches(km, k.Rank):
+		cur := m.rows()[min(m.sel, n-1)].idx
+		m.byRuntime = !m.byRuntime
+		for i, r := range m.rows() { // keep the same cell selected
+			if r.idx == cur {
+				m.sel = i
+			}
+		}
+	case key.Matches(km, k.Pick):
+		rows := m.rows()
+		if m.sel < len(rows) && m.sh.vals.cell != rows[m.sel].idx {
+			m.sh.vals.cell = rows[m.sel].idx
+			m.sh.evaluate()
+		}
+		return m, func() tea.Msg { return pickedMsg{} }
+	}
+	return m, nil
+}
+
+func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineup, m.byRuntime) }
+
+// selectCurrent puts the selection on the current cell.
+func (m *lineupModel) selectCurrent() {
+	for i, r := range m.rows() {
+		if r.idx == m.sh.vals.cell {
+			m.sel = i
+		}
+	}
+}
+
+// View draws the ranked table and a line about the selected cell.
+func (m lineupModel) View() string {
+	sh, st := m.sh, &m.sh.styles
+	w, h := max(m.width, 40), max(m.height, 6)
+	v := sh.vals
+	var b strings.Builder
+	order, other := "cost per hour (cheapest first)", "runtime"
+	if m.byRuntime {
+		order, other = "runtime (longest first)", "cost per hour"
+	}
+	b.WriteString(st.Heading.Render("Cell line-up") + "\n")
+	intro := fmt.Sprintf("Every cell as %d in series × %d in parallel, on the same load (%s), protection (%s), floor (%.2f V) and ambient (%s). Ranked by %s; press o to rank by %s.",
+		v.series, v.parallel, profileLabel(sh.profile()), v.elem.Kind(), v.floor, trimFloat(v.tempC)+" °C", order, other)
+	for _, l := range wrapLines(intro, w) {
+		b.WriteString(st.Dim.Render(l) + "\n")
+	}
+	rows := m.rows()
+	maxRun, maxCost := 0.0, 0.0
+	for _, r := range rows {
+		if r.err == nil {
+			maxRun = math.Max(maxRun, r.res.RuntimeH)
+			maxCost = math.Max(maxCost, r.res.CostPerHour)
+		}
+	}
+	const cellW, runW, barW, costW, strW = 30, 9, 12, 10, 9
+	causeW := max(0, w-(5+cellW+1+runW+1+barW+1+costW+1+strW+1))
+	barHead := "runtime bar"
+	if !m.byRuntime {
+		barHead = "cost bar"
+	}
+	head := "   # " + pad("Cell", cellW) + " " + pad("Runtime", runW) + " " + pad(barHead, barW) + " " +
+		pad("Cost/hour", costW) + " " + pad("Stranded", strW) + " " + pad("Stops because", causeW)
+	b.WriteString(st.Label.Render(pad(head, w)) + "\n")
+
+	used := strings.Count(b.String(), "\n")
+	room := max(1, h-used-2)
+	off := m.offset
+	if m.sel < off {
+		off = m.sel
+	}
+	if m.sel >= off+room {
+		off = m.sel - room + 1
+	}
+	for i := off; i < len(rows) && i < off+room; i++ {
+		r := rows[i]
+		mark := "  "
+		if i == m.sel {
+			mark = st.Selected.Render("▸ ")
+		}
+		label := cellLabel(r.cell)
+		if r.idx == v.cell {
+			label = "● " + label
+		}
+		rank := fmt.Sprintf("%2d ", i+1)
+		if r.err != nil {
+			b.WriteString(mark + rank + pad(label, cellW) + " " + st.Bad.Render(pad("cannot run: "+r.err.Error(), w-5-cellW-1)) + "\n")
+			continue
+		}
+		res := r.res
+		var frac float64
+		if m.byRuntime && maxRun > 0 {
+			frac = res.RuntimeH / maxRun
+		} else if maxCost > 0 {
+			frac = res.CostPerHour / maxCost
+		}
+		cost := "—"
+		if res.CostPerHour > 0 {
+			cost = money(res.CostPerHour)
+		}
+		name := pad(label, cellW)
+		if i == m.sel {
+			name = st.Selected.Render(name)
+		}
+		b.WriteString(mark + rank + name + " " + st.Value.Render(pad(hours(res.RuntimeH), runW)) + " " +
+			st.Bar.Render(pad(bar(frac, barW), barW)) + " " + pad(cost, costW) + " " +
+			pad(pct(res.StrandedMAh, res.ReferenceMAh), strW) + " " +
+			st.Dim.Render(pad(shortCause(res.CutoffCause, res.CutoffPhase), causeW)) + "\n")
+	}
+	if len(rows) > room {
+		b.WriteString(st.Dim.Render(fmt.Sprintf("  rows %d–%d of %d; ↑/↓ scroll", off+1, min(len(rows), off+room), len(rows))) + "\n")
+	}
+	if m.sel < len(rows) {
+		r := rows[m.sel]
+		s := "enter: use " + cellLabel(r.cell) + " in the design (● marks the cell in use)."
+		b.WriteString(st.Dim.Render(pad(s, w)))
+	}
+	return strings.TrimRight(b.String(), "\n")
+}
+
+// bar draws a fraction 0–1 as eighth blocks.
+func bar(frac float64, w int) string {
+	if !(frac > 0) {
+		return ""
+	}
+	eighths := int(math.Round(math.Min(frac, 1) * float64(w*8)))
+	s := strings.Repeat("█", eighths/8)
+	if r := eighths % 8; r > 0 {
+		s += string([]rune("▏▎▍▌▋▊▉")[r-1])
+	}
+	return s
+}
+
+// shortCause is the cut-off in a few words: "floor on motor wag".
+func shortCause(c discharge.Cause, phase string) string {
+	return string(c) + " on " + phase
+}
