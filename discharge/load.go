@@ -62,7 +62,7 @@ func (l Load) String() string {
 		if l.Efficiency == 1 {
 			return g(l.Watts) + "W"
 		}
-		return g(l.Watts) + "W@" + g(l.Efficiency*100) + "%"
+		return g(l.Watts) + "W@" + units.Format(l.Efficiency, units.Fraction) // exact, unlike g(e·100)
 	case ConstantResistance:
 		return g(l.Ohms) + "ohm"
 	case LED:
@@ -261,9 +261,11 @@ func ParseProfile(s string) ([]Phase, error) {
 	return phases, nil
 }
 
-// FormatProfile writes phases in the syntax ParseProfile reads.
+// FormatProfile writes phases in the syntax ParseProfile reads. A lone
+// phase of 1 s, what ParseProfile makes of a bare load, is written as the
+// bare load.
 func FormatProfile(phases []Phase) string {
-	if len(phases) == 1 {
+	if len(phases) == 1 && phases[0].Seconds == 1 {
 		return phases[0].Load.String()
 	}
 	var b strings.Builder

@@ -86,15 +86,17 @@ func Parse(s string, want Kind, bare bool) (float64, error) {
 	}
 	num, tail := t[:end], strings.TrimSpace(t[end:])
 	v, err := strconv.ParseFloat(num, 64)
-	if err != nil {
+	if err != nil && !(errors.Is(err, strconv.ErrRange) && math.IsInf(v, 0)) {
 		return 0, fmt.Errorf("%q is not a number", s)
 	}
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("%q is not a finite number", s)
-	}
+	// An overflowing number may still fit once scaled ("2e308%" is
+	// 2e306, which Format writes that way); scaled decides below.
 	if tail == "" {
 		if !bare && !dollar {
 			return 0, fmt.Errorf("%q has no unit: expected %s", s, want)
+		}
+		if math.IsInf(v, 0) {
+			return 0, fmt.Errorf("%q is not a finite number", s)
 		}
 		return v, nil
 	}
@@ -113,7 +115,7 @@ func Parse(s string, want Kind, bare bool) (float64, error) {
 	}
 	r := scaled(num, v, scale)
 	if math.IsInf(r, 0) {
-		return 0, fmt.Errorf("%q is out of range", s)
+		return 0, fmt.Errorf("%q is not a finite number", s)
 	}
 	return r, nil
 }
@@ -264,6 +266,9 @@ func Human(v float64, k Kind, sig int) string {
 }
 
 func trimFloat(v float64, sig int) string {
+	if math.IsInf(v, 0) { // a huge fraction times 100
+		return "—"
+	}
 	if v == 0 {
 		return "0"
 	}

@@ -1,0 +1,258 @@
+package discharge
+
+import (
+	"math"
+	"reflect"
+	"strings"
+	"testing"
+
+	"headroom/curves"
+	"headroom/protect"
+)
+
+// FuzzParseProfile checks the load and profile parser: text either fails
+// with an error or gives 1 to many phases, each a valid load with a
+// finite positive duration, which FormatProfile writes and ParseProfile
+// reads back to exactly the same phases. A lone load goes the same way
+// through ParseLoad and Load.String.
+func FuzzParseProfile(f *testing.F) {
+	for _, s := range []string{
+		"120mA", "0.8W", "0.8W@85%", "33ohm", "33Ω", "led:vf=2.0,r=47", "450mA/3s,120mA/2s,15mA/25s",
+		"led:vf=2,r=47/2s,20mA/1s", "0.5W@7%/1min,1mA/2h", "1A/5s", "0A", "0W@100%", "1.5mA/0.1s,2W/1s",
+		"120mA/1s", "0.8W@33.3%", "led:r=1k,vf=3.3",
+		// nasty
+		"", ",", "/", "/3s", "120mA/", "120mA/0s", "120mA/-1s", "120mA/NaNs", "NaNA", "InfW", "1e400A",
+		"-1A", "101A", "0.8W@0%", "0.8W@101%", "0.8W@", "120mA@85%", "led:", "led:vf=2", "led:vf=2,r=0",
+		"led:vf=2,r=47,r=48", "led:x=1", "33", "3mV", "120mA/3mA", "120mA/3s/4s", "120mA,,15mA",
+		"\x00", "1mA/1s," + strings.Repeat("1mA/1s,", 70), "led:vf=2,r=47,15mA/1s", "0.8W@85%@85%",
+	} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		if l, err := ParseLoad(s); err == nil {
+			if verr := l.Validate(); verr != nil {
+				t.Fatalf("ParseLoad(%q) = %+v, invalid: %v", s, l, verr)
+			}
+			back, err := ParseLoad(l.String())
+			if err != nil {
+				t.Fatalf("ParseLoad(%q) = %+v; String %q does not parse: %v", s, l, l.String(), err)
+			}
+			if back != l {
+				t.Fatalf("ParseLoad(%q) = %+v; String %q parses back as %+v", s, l, l.String(), back)
+			}
+		}
+		p, err := ParseProfile(s)
+		if err != nil {
+			if p != nil {
+				t.Fatalf("ParseProfile(%q) returned phases with error %v", s, err)
+			}
+			return
+		}
+		if len(p) == 0 {
+			t.Fatalf("ParseProfile(%q): no phases and no error", s)
+		}
+		for i, ph := range p {
+			if err := ph.Load.Validate(); err != nil {
+				t.Fatalf("ParseProfile(%q) phase %d invalid: %v", s, i+1, err)
+			}
+			if !(ph.Seconds > 0) || math.IsInf(ph.Seconds, 0) {
+				t.Fatalf("ParseProfile(%q) phase %d: duration %v s", s, i+1, ph.Seconds)
+			}
+		}
+		text := FormatProfile(p)
+		back, err := ParseProfile(text)
+		if err != nil {
+			t.Fatalf("ParseProfile(%q) → FormatProfile %q does not parse: %v", s, text, err)
+		}
+		if !reflect.DeepEqual(back, p) {
+			t.Fatalf("ParseProfile(%q) = %+v; FormatProfile %q parses back as %+v", s, p, text, back)
+		}
+	})
+}
+
+// frac maps any float64 to [0, 1): the fuzzer's numbers become positions
+// inside each knob's valid range, so every decoded design is well formed.
+func frac(x float64) float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return 0.5
+	}
+	x = math.Abs(x)
+	r := x - math.Floor(x)
+	if !(r >= 0 && r < 1) { // huge x: Floor(x) == x
+		return 0
+	}
+	return r
+}
+
+// logSpan maps a in [0, 1) onto lo..hi in ratio steps.
+func logSpan(a, lo, hi float64) float64 { return lo * math.Pow(hi/lo, a) }
+
+// fuzzLoad builds one load law from a kind byte and a position.
+func fuzzLoad(kind uint8, a float64) Load {
+	switch kind % 4 {
+	case 0:
+		return Load{Kind: ConstantCurrent, Amps: logSpan(a, 1e-5, 5)}
+	case 1:
+		return Load{Kind: ConstantPower, Watts: logSpan(a, 1e-4, 20), Efficiency: 0.5 + 0.5*frac(a*7)}
+	case 2:
+		return Load{Kind: ConstantResistance, Ohms: logSpan(a, 0.5, 1e5)}
+	}
+	return Load{Kind: LED, Vf: 1.5 + 2*frac(a*5), Ohms: logSpan(a, 1, 1e4)}
+}
+
+// fuzzDesign decodes fuzz values into a valid design.
+func fuzzDesign(cell, s, p, kind uint8, knob float64, n uint8, ks [3]uint8, as, ts [3]float64,
+	floor, temp, hours, standby float64) *Design {
+	lib := curves.Library()
+	c := lib[int(cell)%len(lib)]
+	d := &Design{Cell: c, Series: 1 + int(s)%8, Parallel: 1 + int(p)%4}
+	kinds := protect.Kinds()
+	k := kinds[int(kind)%len(kinds)]
+	d.Protect = protect.Default(k)
+	if lo, hi, log, ok := protect.MainRange(k); ok {
+		x := frac(knob)
+		v := lo + x*(hi-lo)
+		if log {
+			v = logSpan(x, lo, hi)
+		}
+		if el, err := protect.WithMain(d.Protect, v); err == nil {
+			d.Protect = el
+		}
+	}
+	for i := 0; i < 1+int(n)%3; i++ {
+		d.Profile = append(d.Profile, Phase{Load: fuzzLoad(ks[i], frac(as[i])), Seconds: logSpan(frac(ts[i]), 0.1, 3600)})
+	}
+	_, v0 := c.Curve.Point(0)
+	d.Floor = frac(floor) * 1.1 * v0 * float64(d.Series)
+	d.TempC = -40 + 125*frac(temp)
+	if h := frac(hours); h >= 0.2 {
+		d.HoursPerDay = 24 * (h - 0.2) / 0.8
+		if d.HoursPerDay == 0 {
+			d.HoursPerDay = 24
+		}
+	}
+	if sb := frac(standby); sb >= 0.5 {
+		d.Standby = logSpan(2*(sb-0.5), 1e-7, 0.01)
+	}
+	return d
+}
+
+// FuzzEvaluate runs Evaluate over random but well-formed designs and
+// checks what must hold for any design (no outside source; these follow
+// from the definitions in Result): every number finite and non-negative,
+// delivered ≤ reference and delivered + stranded = reference to 1e-9
+// relative (the bisection's resolution, 1e-12 of the curve, with room for
+// rounding in the pack scaling), a cut-off cause always named, a trace
+// that is finite and moves forward in time, and runtime that does not
+// rise when the floor rises (again to 1e-9 relative).
+func FuzzEvaluate(f *testing.F) {
+	type seed struct {
+		cell, s, p, kind uint8
+		knob             float64
+		n                uint8
+		ks               [3]uint8
+		as, ts           [3]float64
+		floor, temp      float64
+		hours, standby   float64
+		dFloor           float64
+	}
+	for _, sd := range []seed{
+		{0, 1, 0, 0, 0, 0, [3]uint8{0, 0, 0}, [3]float64{0.6, 0, 0}, [3]float64{0.5, 0, 0}, 0.5, 0.48, 0, 0, 0.1},
+		{3, 3, 1, 1, 0.3, 2, [3]uint8{0, 1, 2}, [3]float64{0.8, 0.4, 0.2}, [3]float64{0.1, 0.3, 0.9}, 0.7, 0.2, 0.5, 0.7, 0.05},
+		{7, 0, 0, 5, 0.99, 1, [3]uint8{3, 0, 0}, [3]float64{0.5, 0.1, 0}, [3]float64{0.2, 0.8, 0}, 0.3, 0.9, 0.9, 0.99, 0.3},
+		{1, 2, 2, 6, 0.01, 2, [3]uint8{1, 1, 1}, [3]float64{0.99, 0.99, 0.99}, [3]float64{0, 0, 0}, 0.95, 0, 0.21, 0.5, 0.9},
+		{2, 7, 3, 7, 0.5, 1, [3]uint8{0, 0, 0}, [3]float64{0.95, 0.01, 0}, [3]float64{0.01, 0.99, 0}, 0, 0.99, 0, 0, 0},
+		{5, 1, 0, 8, 0.2, 0, [3]uint8{2, 0, 0}, [3]float64{0, 0, 0}, [3]float64{0, 0, 0}, 0.99, 0.5, 0.5, 0.5, 0.5},
+		{9, 4, 1, 2, math.NaN(), 2, [3]uint8{1, 3, 2}, [3]float64{math.Inf(1), -3.7, 1e300}, [3]float64{-0.5, math.NaN(), 2.5}, math.Inf(-1), -1e-300, 7.25, 3.5, 1e9},
+		{4, 0, 0, 3, 0.9, 0, [3]uint8{1, 0, 0}, [3]float64{0.98, 0, 0}, [3]float64{0, 0, 0}, 0.9, 0.01, 0, 0, 0.01},
+	} {
+		f.Add(sd.cell, sd.s, sd.p, sd.kind, sd.knob, sd.n, sd.ks[0], sd.ks[1], sd.ks[2], sd.as[0], sd.as[1], sd.as[2],
+			sd.ts[0], sd.ts[1], sd.ts[2], sd.floor, sd.temp, sd.hours, sd.standby, sd.dFloor)
+	}
+	f.Fuzz(func(t *testing.T, cell, s, p, kind uint8, knob float64, n, k1, k2, k3 uint8, a1, a2, a3, t1, t2, t3,
+		floor, temp, hours, standby, dFloor float64) {
+		d := fuzzDesign(cell, s, p, kind, knob, n, [3]uint8{k1, k2, k3}, [3]float64{a1, a2, a3}, [3]float64{t1, t2, t3},
+			floor, temp, hours, standby)
+		d.TracePoints = 12
+		r, err := Evaluate(d)
+		if err != nil {
+			t.Fatalf("Evaluate(%s) on a well-formed design: %v", describeDesign(d), err)
+		}
+		checkResult(t, d, r)
+
+		higher := *d
+		higher.TracePoints = 0
+		higher.Floor += frac(dFloor) * float64(d.Series)
+		r2, err := Evaluate(&higher)
+		if err != nil {
+			t.Fatalf("Evaluate(%s) with the floor at %v V: %v", describeDesign(d), higher.Floor, err)
+		}
+		checkResult(t, &higher, r2)
+		if r2.RuntimeH > r.RuntimeH*(1+1e-9) {
+			t.Fatalf("%s: floor %v → %v V raises the runtime %v → %v h", describeDesign(d), d.Floor, higher.Floor, r.RuntimeH, r2.RuntimeH)
+		}
+	})
+}
+
+func describeDesign(d *Design) string {
+	el := "none"
+	if d.Protect != nil {
+		el = protect.Short(d.Protect)
+	}
+	return d.Cell.ID + " " + itoa(d.Series) + "S" + itoa(d.Parallel) + "P " + el + " load " + FormatProfile(d.Profile) +
+		" floor " + ftoa(d.Floor) + " V temp " + ftoa(d.TempC) + " °C hours " + ftoa(d.HoursPerDay) + " standby " + ftoa(d.Standby) + " A"
+}
+
+func itoa(i int) string     { return ftoa(float64(i)) }
+func ftoa(x float64) string { return strings.TrimSpace(strings.TrimSuffix(Load{Kind: ConstantCurrent, Amps: x}.String(), "A")) }
+
+func checkResult(t *testing.T, d *Design, r *Result) {
+	t.Helper()
+	for name, v := range map[string]float64{
+		"RuntimeH": r.RuntimeH, "RuntimeDays": r.RuntimeDays, "DeliveredMAh": r.DeliveredMAh, "DeliveredWh": r.DeliveredWh,
+		"ReferenceMAh": r.ReferenceMAh, "StrandedMAh": r.StrandedMAh, "StrandedByProtectionMAh": r.StrandedByProtectionMAh,
+		"StrandedByFloorMAh": r.StrandedByFloorMAh, "ProtectionLossWh": r.ProtectionLossWh, "CellLossWh": r.CellLossWh,
+		"ProtectionPeakW": r.ProtectionPeakW, "StandbyMAh": r.StandbyMAh, "SelfDischargeMAh": r.SelfDischargeMAh,
+		"QuiescentA": r.QuiescentA, "StandbyShare": r.StandbyShare, "PackPrice": r.PackPrice, "CostPerHour": r.CostPerHour,
+		"CutoffLoadV": r.CutoffLoadV, "CutoffPackV": r.CutoffPackV, "CutoffAmps": r.CutoffAmps, "FreshV": r.FreshV,
+		"EffectiveA": r.EffectiveA, "CapacityFac": r.CapacityFac,
+	} {
+		if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
+			t.Fatalf("%s: %s = %v: want a finite, non-negative number", describeDesign(d), name, v)
+		}
+	}
+	if math.IsNaN(r.JunctionC) || math.IsInf(r.JunctionC, 0) {
+		t.Fatalf("%s: JunctionC = %v", describeDesign(d), r.JunctionC)
+	}
+	if r.StandbyShare > 1 {
+		t.Fatalf("%s: StandbyShare %v above 1", describeDesign(d), r.StandbyShare)
+	}
+	tol := 1e-9 * math.Max(1, r.ReferenceMAh)
+	if r.DeliveredMAh > r.ReferenceMAh+tol {
+		t.Fatalf("%s: delivered %v mAh above the reference %v", describeDesign(d), r.DeliveredMAh, r.ReferenceMAh)
+	}
+	if e := math.Abs(r.DeliveredMAh + r.StrandedMAh - r.ReferenceMAh); e > tol {
+		t.Fatalf("%s: delivered %v + stranded %v ≠ reference %v", describeDesign(d), r.DeliveredMAh, r.StrandedMAh, r.ReferenceMAh)
+	}
+	if e := math.Abs(r.StrandedByFloorMAh + r.StrandedByProtectionMAh - r.StrandedMAh); e > tol {
+		t.Fatalf("%s: stranded by floor %v + by protection %v ≠ stranded %v", describeDesign(d), r.StrandedByFloorMAh, r.StrandedByProtectionMAh, r.StrandedMAh)
+	}
+	if r.CutoffCause == "" || r.CutoffPhase == "" {
+		t.Fatalf("%s: cut-off cause %q, phase %q: want both named", describeDesign(d), r.CutoffCause, r.CutoffPhase)
+	}
+	if r.RuntimeH == 0 && r.CostPerHour != 0 {
+		t.Fatalf("%s: no runtime but a cost per hour %v", describeDesign(d), r.CostPerHour)
+	}
+	prev := 0.0
+	for i, tp := range r.Trace {
+		for _, v := range []float64{tp.Hours, tp.MAh, tp.PackV, tp.LoadV, tp.IdleV} {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				t.Fatalf("%s: trace point %d %+v not finite", describeDesign(d), i, tp)
+			}
+		}
+		if tp.Hours < prev {
+			t.Fatalf("%s: trace goes back in time at point %d: %v → %v h", describeDesign(d), i, prev, tp.Hours)
+		}
+		prev = tp.Hours
+	}
+}
