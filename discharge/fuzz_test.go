@@ -3,6 +3,7 @@ package discharge
 import (
 	"math"
 	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -203,8 +204,8 @@ func describeDesign(d *Design) string {
 		" floor " + ftoa(d.Floor) + " V temp " + ftoa(d.TempC) + " °C hours " + ftoa(d.HoursPerDay) + " standby " + ftoa(d.Standby) + " A"
 }
 
-func itoa(i int) string     { return ftoa(float64(i)) }
-func ftoa(x float64) string { return strings.TrimSpace(strings.TrimSuffix(Load{Kind: ConstantCurrent, Amps: x}.String(), "A")) }
+func itoa(i int) string     { return strconv.Itoa(i) }
+func ftoa(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
 func checkResult(t *testing.T, d *Design, r *Result) {
 	t.Helper()
