@@ -308,10 +308,11 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	}
 
 	d.Series, d.Parallel = f.Series, f.Parallel
-	if d.Series == 0 {
+	// A missing key means 1; a written 0 is an error CheckSeries reports.
+	if d.Series == 0 && !md.IsDefined("series") {
 		d.Series = 1
 	}
-	if d.Parallel == 0 {
+	if d.Parallel == 0 && !md.IsDefined("parallel") {
 		d.Parallel = 1
 	}
 	if err := CheckSeries(d.Series); err != nil {
@@ -343,7 +344,8 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	for _, spec := range specs {
 		el, err := protect.Parse(spec)
 		if err != nil {
-			return nil, at("protect", err)
+			// protect's messages start "protect: ", which at adds already.
+			return nil, at("protect", errors.New(strings.TrimPrefix(err.Error(), "protect: ")))
 		}
 		s.Protects = append(s.Protects, el)
 		s.ProtectSpecs = append(s.ProtectSpecs, spec)
