@@ -398,6 +398,10 @@ func loadFile(path string, read func(io.Reader, string) (*Cell, error)) (*Cell, 
 	if st.IsDir() {
 		return nil, fmt.Errorf("%s: is a directory, not a cell file", path)
 	}
+	if !st.Mode().IsRegular() {
+		// A FIFO or a device would block the open or the read forever.
+		return nil, fmt.Errorf("%s: not a regular file (%s), not a cell file", path, st.Mode().Type())
+	}
 	if st.Size() > MaxFileSize {
 		return nil, fmt.Errorf("%s: file is larger than the %d kB limit", path, MaxFileSize>>10)
 	}

@@ -223,6 +223,10 @@ func Load(path string) (*Scenario, error) {
 	if st.IsDir() {
 		return nil, fmt.Errorf("%s: is a directory, expected a scenario file (.toml)", path)
 	}
+	if !st.Mode().IsRegular() {
+		// A FIFO or a device would block the open or the read forever.
+		return nil, fmt.Errorf("%s: not a regular file (%s), expected a scenario file (.toml)", path, st.Mode().Type())
+	}
 	if st.Size() > MaxFileSize {
 		return nil, fmt.Errorf("%s: %d bytes, larger than the %d-byte limit for a scenario file", path, st.Size(), MaxFileSize)
 	}
@@ -463,6 +467,18 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	}
 	if s.LoadScales, err = sweep("load_scale", f.Sweep.LoadScale, units.Fraction, 1, CheckScale); err != nil {
 		return nil, err
+	}
+	// A scale can push a load out of its range (2 A × 1000): say so now,
+	// not row by row in a table.
+	for i, p := range s.Loads {
+		for _, f := range s.LoadScales {
+			for j, ph := range ScaleProfile(p, f) {
+				if err := ph.Load.Validate(); err != nil {
+					return nil, fmt.Errorf("%s:%d: sweep load_scale %v of load %q phase %d: %w",
+						name, lineOf(data, "load_scale"), f, s.LoadSpecs[i], j+1, err)
+				}
+			}
+		}
 	}
 	if err := d.Validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
