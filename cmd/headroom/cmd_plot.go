@@ -113,7 +113,7 @@ func chart(s *scenario.Scenario, byCharge bool, ext string) ([]byte, error) {
 	if title == "" {
 		title = filepath.Base(s.Path)
 	}
-	p.Title.Text = fmt.Sprintf("%s\n%s; load %s", title, packWords(&d0), s.LoadSpec)
+	p.Title.Text = fmt.Sprintf("%s\n%s; %s", title, packWords(&d0), loadWords(&d0))
 	p.Title.TextStyle.Font.Size = vg.Points(11)
 	p.X.Label.Text = "hours of use (h)"
 	if byCharge {
@@ -121,10 +121,9 @@ func chart(s *scenario.Scenario, byCharge bool, ext string) ([]byte, error) {
 	}
 	p.Y.Label.Text = "voltage (V)"
 	p.Add(plotter.NewGrid())
-	p.Legend.Left = true
-	p.Legend.Top = false
-	p.Legend.YOffs = vg.Points(12)
-	p.Legend.XOffs = vg.Points(6)
+	// Voltages fall from the top left to the floor: the top right is free.
+	p.Legend.Top = true
+	p.Legend.XOffs = -vg.Points(6)
 	p.Legend.TextStyle.Font.Size = vg.Points(9)
 
 	xmax, vmax := 0.0, d0.Floor

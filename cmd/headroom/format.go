@@ -72,8 +72,14 @@ func sig(x float64, n int) string {
 	if x == 0 {
 		return "0"
 	}
-	d := n - 1 - int(math.Floor(math.Log10(math.Abs(x))))
-	d = max(0, min(d, 9))
+	digits := func(x float64) int {
+		return max(0, min(n-1-int(math.Floor(math.Log10(math.Abs(x)))), 9))
+	}
+	d := digits(x)
+	// 0.99996 rounds to 1.000 at four decimals: count digits again.
+	if r := math.Round(x*math.Pow10(d)) / math.Pow10(d); r != 0 {
+		d = min(d, digits(r))
+	}
 	return fixed(x, d)
 }
 
@@ -246,6 +252,9 @@ func newTable[T any](w io.Writer, f format, cols []column[T]) *tableWriter[T] {
 
 // fit widens the text columns to hold rows (when they are all known).
 func (t *tableWriter[T]) fit(rows []T) {
+	if t.f != formatText {
+		return
+	}
 	for _, r := range rows {
 		for i, c := range t.cols {
 			t.widths[i] = max(t.widths[i], utf8.RuneCountInString(c.text(r)))

@@ -7,7 +7,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"sort"
 	"strings"
 
 	"github.com/mattn/go-isatty"
@@ -76,7 +75,8 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
 	return 0
 }
 
-func isTerminal(w io.Writer) bool {
+// isTerminal reports whether w is a terminal; tests replace it.
+var isTerminal = func(w io.Writer) bool {
 	f, ok := w.(*os.File)
 	if !ok {
 		return false
@@ -231,10 +231,10 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 func flagError(err error) error {
 	msg := err.Error()
 	if name, ok := strings.CutPrefix(msg, "flag provided but not defined: "); ok {
-		return fmt.Errorf("unknown flag -%s (see -h for the flags)", strings.TrimLeft(name, "-"))
+		return fmt.Errorf("unknown flag --%s (see -h for the flags)", strings.TrimLeft(name, "-"))
 	}
 	if name, ok := strings.CutPrefix(msg, "flag needs an argument: "); ok {
-		return fmt.Errorf("-%s: needs a value", strings.TrimLeft(name, "-"))
+		return fmt.Errorf("--%s: needs a value", strings.TrimLeft(name, "-"))
 	}
 	if strings.HasPrefix(msg, "invalid boolean value") {
 		// invalid boolean value "x" for -force: parse error
@@ -267,13 +267,3 @@ func loadScenario(pos []string) (*scenario.Scenario, error) {
 }
 
 func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
-
-// sortedKeys is for stable listings of maps.
-func sortedKeys[V any](m map[string]V) []string {
-	k := make([]string, 0, len(m))
-	for s := range m {
-		k = append(k, s)
-	}
-	sort.Strings(k)
-	return k
-}
