@@ -291,7 +291,7 @@ func (m Model) header(w int) string {
 // designView lays out knobs and verdict on the left, chart and notes on
 // the right.
 func (m Model) designView(w, h int) []string {
-	leftW := 44
+	leftW := 45
 	if w >= 110 {
 		leftW = 48
 	}
@@ -305,7 +305,9 @@ func (m Model) designView(w, h int) []string {
 	if len(notes) == 1 && notes[0] == "" {
 		notes = nil
 	}
-	chartH := min(h, max(min(12, h), h-len(notes)-1))
+	// The chart keeps at least 3/5 of the height; notes that do not fit
+	// below it end in a line saying how many more there are.
+	chartH := min(h, max(h*3/5, h-len(notes)-1))
 	m.chart.SetSize(rightW, chartH)
 	right := fitLines(m.chart.View(), rightW, chartH)
 	room := h - chartH - 1

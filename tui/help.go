@@ -4,6 +4,7 @@ import (
 	"strings"
 
 	"github.com/charmbracelet/bubbles/help"
+	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/lipgloss"
 )
 
@@ -21,11 +22,34 @@ func newHelp(st Styles) help.Model {
 	return h
 }
 
-// hintLine is the one-line key hint for the active view and mode.
+// hintLine is the one-line key hint for the active view and mode. Outside
+// a text field or a question it always ends with help and quit, however
+// narrow the terminal: the view's own keys are dropped from the end first.
 func (m Model) hintLine() string {
 	h := m.help
-	h.Width = m.width
-	return h.ShortHelpView(m.viewKeys().ShortHelp())
+	one := func(b key.Binding) string { return h.ShortHelpView([]key.Binding{b}) }
+	var tail []string
+	switch m.mode() {
+	case modeNone:
+		tail = []string{one(m.keys.Help), one(m.keys.Quit)}
+	case modeHelp:
+		tail = []string{one(m.keys.Quit)}
+	}
+	const sep = "  "
+	room := m.width
+	for _, t := range tail {
+		room -= lipgloss.Width(t) + len(sep)
+	}
+	var items []string
+	for _, b := range m.viewKeys().ShortHelp() {
+		s := one(b)
+		if lipgloss.Width(s)+len(sep) > room {
+			break
+		}
+		items = append(items, s)
+		room -= lipgloss.Width(s) + len(sep)
+	}
+	return strings.Join(append(items, tail...), sep)
 }
 
 // helpOverlay is the full help, framed, in the middle of a w × h area.

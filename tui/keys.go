@@ -39,7 +39,7 @@ func DefaultKeyMap() KeyMap {
 		More:       key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "more")),
 		LessCoarse: key.NewBinding(key.WithKeys("shift+left", "["), key.WithHelp("shift+←/[", "much less")),
 		MoreCoarse: key.NewBinding(key.WithKeys("shift+right", "]"), key.WithHelp("shift+→/]", "much more")),
-		Type:       key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "type a value")),
+		Type:       key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "type value")),
 		Pick:       key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "use this cell")),
 		Rank:       key.NewBinding(key.WithKeys("o"), key.WithHelp("o", "order by cost/runtime")),
 		NextView:   key.NewBinding(key.WithKeys("tab"), key.WithHelp("tab", "next view")),
@@ -48,7 +48,7 @@ func DefaultKeyMap() KeyMap {
 		Lineup:     key.NewBinding(key.WithKeys("2"), key.WithHelp("2", "cell line-up")),
 		Reverse:    key.NewBinding(key.WithKeys("3"), key.WithHelp("3", "reversed cells")),
 		Save:       key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save")),
-		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "all keys")),
+		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "help")),
 		Back:       key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "back")),
 		Quit:       key.NewBinding(key.WithKeys("q", "ctrl+c"), key.WithHelp("q", "quit")),
 		Accept:     key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "accept")),
@@ -58,9 +58,17 @@ func DefaultKeyMap() KeyMap {
 	}
 }
 
-// ShortHelp is the design view's one-line hint.
+// hint is a binding shown in the one-line hint only, naming a pair of
+// keys at once.
+func hint(keys, desc string) key.Binding {
+	return key.NewBinding(key.WithKeys(keys), key.WithHelp(keys, desc))
+}
+
+// ShortHelp is the design view's one-line hint, without help and quit,
+// which the hint line always ends with.
 func (k KeyMap) ShortHelp() []key.Binding {
-	return []key.Binding{k.Up, k.Down, k.Less, k.More, k.Type, k.NextView, k.Save, k.Help, k.Quit}
+	return []key.Binding{hint("↑/↓", "choose knob"), hint("←/→", "adjust"), hint("[/]", "big steps"),
+		k.Type, hint("tab", "views"), k.Save}
 }
 
 // FullHelp lists every binding, grouped.
@@ -88,13 +96,13 @@ func (v viewKeys) ShortHelp() []key.Binding {
 	case modeSaveConfirm:
 		return []key.Binding{k.Yes, k.No}
 	case modeHelp:
-		return []key.Binding{k.Help, k.Back, k.Quit}
+		return []key.Binding{hint("?/esc", "close")}
 	}
 	switch v.view {
 	case screenLineup:
-		return []key.Binding{k.Up, k.Down, k.Pick, k.Rank, k.NextView, k.Save, k.Help, k.Quit}
+		return []key.Binding{hint("↑/↓", "choose cell"), k.Pick, k.Rank, hint("tab", "views"), k.Save}
 	case screenReverse:
-		return []key.Binding{k.Up, k.Down, k.NextView, k.Save, k.Help, k.Quit}
+		return []key.Binding{hint("↑/↓", "choose protection"), hint("tab", "views"), k.Save}
 	}
 	return k.ShortHelp()
 }

@@ -581,7 +581,6 @@ func (m knobsModel) View() string {
 		}
 		b.WriteString(mark + name + st.Value.Render(pad(r.value, valW)) + " " + m.slider(r, barW) + "\n")
 	}
-	b.WriteString("\n")
 	if m.editing {
 		b.WriteString(st.Prompt.Render("Type "+strings.TrimSpace(strings.TrimPrefix(sh.row(m.sel).name, " └"))) + st.Dim.Render(": "+sh.typingHint(m.sel)) + "\n")
 		m.input.Width = max(5, w-len(m.input.Prompt)-2)

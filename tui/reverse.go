@@ -50,9 +50,9 @@ func (m *reverseModel) selectCurrent() {
 
 // caseText is one wrong insertion in a few words.
 func caseText(c protect.Case) string {
-	s := c.Outcome.String() + ", " + units.Human(c.Current, units.Current, 2)
+	s := c.Outcome.String() + ", " + amps(c.Current)
 	if c.Seconds > 0 {
-		s += " for " + units.Human(c.Seconds, units.Time, 2)
+		s += " for " + seconds(c.Seconds)
 	}
 	v := c.Volts
 	if math.Abs(v) < 0.005 {
@@ -116,4 +116,20 @@ func (m reverseModel) outcome(c protect.Case, w int) string {
 		return st.Warn.Render(s)
 	}
 	return st.Bad.Render(s)
+}
+
+// amps writes a current with a prefix down to picoamperes.
+func amps(a float64) string {
+	if a > 0 && a < 1e-9 {
+		return fmt.Sprintf("%.2g pA", a*1e12)
+	}
+	return units.Human(a, units.Current, 2)
+}
+
+// seconds writes a time in ms below a second.
+func seconds(s float64) string {
+	if s < 1 {
+		return fmt.Sprintf("%.2g ms", s*1e3)
+	}
+	return units.Human(s, units.Time, 2)
 }

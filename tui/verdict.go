@@ -44,14 +44,14 @@ func (m verdictModel) View() string {
 		b.WriteString(s + "\n")
 	}
 	line("Runtime", hours(r.RuntimeH), "of use")
-	line("", days(r.RuntimeDays), fmt.Sprintf("at %s h of use a day", trimFloat(sh.vals.hours)))
+	line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
 	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
 	line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
 	line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")
 	line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
-	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3), "at the peak; "+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all")
-	line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the peak")
-	line("Standby share", fmt.Sprintf("%.1f %%", 100*r.StandbyShare), "(standby + self-discharge)")
+	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
+	line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
+	line("Standby share", fmt.Sprintf("%.1f %%", 100*r.StandbyShare), "of all charge drawn")
 	if r.CostPerHour > 0 {
 		line("Cost per hour", money(r.CostPerHour), "(pack "+money(r.PackPrice)+")")
 	} else {

@@ -1,0 +1,86 @@
+package tui
+
+import (
+	"flag"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
+)
+
+// updating reports whether -update was given. The flag itself is
+// registered by teatest's golden package, which this package links.
+func updating() bool {
+	f := flag.Lookup("update")
+	return f != nil && f.Value.String() == "true"
+}
+
+// sized returns the demo's screen at w × h after the given keys.
+func sized(w, h int, keys ...tea.Msg) tea.Model {
+	var m tea.Model = New(nil)
+	m, _ = m.Update(tea.WindowSizeMsg{Width: w, Height: h})
+	for _, k := range keys {
+		m, _ = m.Update(k)
+	}
+	return m
+}
+
+// TestGolden compares views at 100×30, colour stripped, with
+// testdata/TestGolden/<case>.golden. Run with -update after a deliberate
+// change to the screen or the engine and read the diff.
+func TestGolden(t *testing.T) {
+	cases := []struct {
+		name string
+		keys []tea.Msg
+	}{
+		{"design", nil},
+		{"design-floor-selected", []tea.Msg{keyUp, keyUp, keyUp}},
+		{"design-pmos", []tea.Msg{keyDown, keyDown, keyDown, keyRight, keyRight}},
+		{"typing-bad-floor", []tea.Msg{keyUp, keyUp, keyUp, keyEnter, tea.KeyMsg{Type: tea.KeyCtrlU}, runes("2 volts"), keyEnter}},
+		{"lineup", []tea.Msg{runes("2")}},
+		{"lineup-by-runtime", []tea.Msg{runes("2"), runes("o")}},
+		{"reverse", []tea.Msg{runes("3")}},
+		{"help", []tea.Msg{runes("?")}},
+		{"save-prompt", []tea.Msg{runes("s")}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			got := ansi.Strip(sized(100, 30, c.keys...).View())
+			checkSize(t, got, 100, 30)
+			path := filepath.Join("testdata", t.Name()+".golden")
+			if updating() {
+				if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+					t.Fatal(err)
+				}
+				if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				return
+			}
+			want, err := os.ReadFile(path)
+			if err != nil {
+				t.Fatalf("%v (run go test ./tui -run TestGolden -update to create it)", err)
+			}
+			if got != string(want) {
+				t.Errorf("view differs from %s (rerun with -update if the change is meant):\n--- got\n%s\n--- want\n%s", path, got, want)
+			}
+		})
+	}
+}
+
+// checkSize fails when a view has more lines or wider lines than w × h.
+func checkSize(t *testing.T, view string, w, h int) {
+	t.Helper()
+	lines := strings.Split(view, "\n")
+	if len(lines) > h {
+		t.Errorf("%d lines at height %d", len(lines), h)
+	}
+	for i, l := range lines {
+		if n := ansi.StringWidth(l); n > w {
+			t.Errorf("line %d is %d wide at width %d: %q", i+1, n, w, ansi.Strip(l))
+		}
+	}
+}
