@@ -41,10 +41,10 @@ type shared struct {
 	vals    values
 	saveDir string // folder a relative save name is written in; "" is the working folder
 
-	res     *discharge.Result // nil when err is set
-	err     error
-	lineup  []lineupRow
-	reverse []reverseRow
+	res         *discharge.Result // nil when err is set
+	err         error
+	lineupRows  []lineupRow
+	reverseRows []reverseRow
 }
 
 // newShared builds the state for scenario s.
@@ -126,8 +126,8 @@ func (sh *shared) evaluate() {
 	d := sh.design()
 	d.TracePoints = tracePoints
 	sh.res, sh.err = evaluateFinite(&d)
-	sh.lineup = sh.evaluateLineup()
-	sh.reverse = sh.evaluateReverse()
+	sh.lineupRows = sh.evaluateLineup()
+	sh.reverseRows = sh.evaluateReverse()
 }
 
 // evaluateFinite is discharge.Evaluate, with a result holding a number that

@@ -607,3 +607,8 @@ func (m knobsModel) slider(r row, w int) string {
 	}
 	return st.SliderFill.Render(strings.Repeat("━", pos)) + st.SliderKnob.Render("◆") + st.SliderRest.Render(strings.Repeat("─", w-1-pos))
 }
+
+// name is the knob's row name, for messages.
+func (k knob) name() string {
+	return [...]string{"cell", "series", "parallel", "protection", "part", "load level", "floor", "ambient", "hours a day"}[k]
+}

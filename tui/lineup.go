@@ -35,7 +35,7 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 		return m, nil
 	}
 	k := m.sh.keys
-	n := len(m.sh.lineup)
+	n := len(m.sh.lineupRows)
 	switch {
 	case key.Matches(km, k.Up):
 		m.sel = (m.sel + n - 1) % max(n, 1)
@@ -60,7 +60,7 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 	return m, nil
 }
 
-func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineup, m.byRuntime) }
+func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineupRows, m.byRuntime) }
 
 // selectCurrent puts the selection on the current cell.
 func (m *lineupModel) selectCurrent() {

@@ -29,7 +29,7 @@ func (m reverseModel) Update(msg tea.Msg) (reverseModel, tea.Cmd) {
 	if !ok {
 		return m, nil
 	}
-	n := max(1, len(m.sh.reverse))
+	n := max(1, len(m.sh.reverseRows))
 	switch {
 	case key.Matches(km, m.sh.keys.Up):
 		m.sel = (m.sel + n - 1) % n
@@ -41,7 +41,7 @@ func (m reverseModel) Update(msg tea.Msg) (reverseModel, tea.Cmd) {
 
 // selectCurrent puts the selection on the protection in use.
 func (m *reverseModel) selectCurrent() {
-	for i, r := range m.sh.reverse {
+	for i, r := range m.sh.reverseRows {
 		if r.current {
 			m.sel = i
 		}
@@ -77,7 +77,7 @@ func (m reverseModel) View() string {
 	const kindW = 13
 	colW := max(10, (w-kindW-4)/2)
 	b.WriteString(st.Label.Render("  "+pad("Protection", kindW)+" "+pad("Whole pack reversed", colW)+" "+pad("One cell flipped", colW)) + "\n")
-	for i, r := range sh.reverse {
+	for i, r := range sh.reverseRows {
 		mark := "  "
 		name := r.kind
 		if r.current {
@@ -90,8 +90,8 @@ func (m reverseModel) View() string {
 		b.WriteString(mark + name + " " + m.outcome(r.rev.WholePack, colW) + " " + m.outcome(r.rev.OneCell, colW) + "\n")
 	}
 	b.WriteString(st.Dim.Render("● is the protection in use.") + "\n\n")
-	if m.sel < len(sh.reverse) {
-		r := sh.reverse[m.sel]
+	if m.sel < len(sh.reverseRows) {
+		r := sh.reverseRows[m.sel]
 		notes := []string{
 			r.kind + ": " + protect.Describe(r.kind) + ".",
 			"Whole pack reversed: " + r.rev.WholePack.Note,
