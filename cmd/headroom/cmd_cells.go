@@ -111,7 +111,15 @@ func findCell(ref string) (*curves.Cell, error) {
 	if ext != ".csv" && ext != ".toml" {
 		return nil, fmt.Errorf("unknown cell %q: not a library id (%s) nor a .csv or .toml file", ref, strings.Join(curves.IDs(), ", "))
 	}
-	return curves.Load(ref)
+	return loadCellFile(ref)
+}
+
+// loadCellFile is curves.Load with a plain message for a folder.
+func loadCellFile(path string) (*curves.Cell, error) {
+	if st, err := os.Stat(path); err == nil && st.IsDir() {
+		return nil, fmt.Errorf("%s: is a directory, expected a cell file (.csv or .toml)", path)
+	}
+	return curves.Load(path)
 }
 
 func cellsShow(c *cli, args []string) error {
@@ -189,7 +197,7 @@ func cellsCheck(c *cli, args []string) error {
 	if err := wantArgs("cells check", pos, 1, 1, "a cell file (.csv or .toml)"); err != nil {
 		return err
 	}
-	cell, err := curves.Load(pos[0])
+	cell, err := loadCellFile(pos[0])
 	if err != nil {
 		return err
 	}
