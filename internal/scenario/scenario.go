@@ -271,7 +271,14 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		if errors.As(err, &pe) {
 			return nil, fmt.Errorf("%s:%d: %s", name, pe.Position.Line, oneLine(pe.Message))
 		}
+		// Type mismatches come as "toml: line N (last key "k"): ...".
+		if m := tomlLineErr.FindStringSubmatch(oneLine(err.Error())); m != nil {
+			return nil, fmt.Errorf("%s:%s: %s: %s", name, m[1], m[2], m[3])
+		}
 		return nil, fmt.Errorf("%s: %s", name, oneLine(err.Error()))
+	}
+	if len(md.Keys()) == 0 {
+		return nil, fmt.Errorf("%s: no settings in the file: expected keys such as cell, load and floor", name)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		k := und[0].String()
@@ -633,6 +640,8 @@ func orInts(xs []int, def int) []int {
 }
 
 func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+
+var tomlLineErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
 
 // lineOf finds the first line that sets key, for messages; 1 if none.
 func lineOf(data []byte, key string) int {
