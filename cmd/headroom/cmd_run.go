@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"flag"
 	"fmt"
+	"math"
 	"strings"
 
 	"headroom/discharge"
@@ -131,8 +132,8 @@ func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) [
 		{"reference_mAh", "reference (mAh)", r.ReferenceMAh},
 		{"stranded_mAh", "stranded (mAh)", r.StrandedMAh},
 		{"stranded_pct", "stranded (% of reference)", strandedPct(r)},
-		{"stranded_by_protection_mAh", "stranded by the protection drop (mAh)", r.StrandedByProtectionMAh},
-		{"stranded_by_floor_mAh", "stranded by the floor (mAh)", r.StrandedByFloorMAh},
+		{"stranded_by_protection_mAh", "stranded by the protection drop (mAh)", noise(r.StrandedByProtectionMAh, r.ReferenceMAh)},
+		{"stranded_by_floor_mAh", "stranded by the floor (mAh)", noise(r.StrandedByFloorMAh, r.ReferenceMAh)},
 		{"protection_loss_Wh", "burnt in the protection element (Wh)", r.ProtectionLossWh},
 		{"cell_loss_Wh", "burnt in the cells' resistance (Wh)", r.CellLossWh},
 		{"protection_peak_W", "element peak dissipation (W)", r.ProtectionPeakW},
@@ -197,6 +198,9 @@ func cutoffWords(d *discharge.Design, r *discharge.Result) string {
 			verb = "resets"
 		}
 		s = fmt.Sprintf("%s on %s at %s (floor)", verb, ph, fixed(d.Floor, 2)+" V")
+		if r.RuntimeH == 0 {
+			return fmt.Sprintf("does not start: the load voltage on %s is below the %s V floor", ph, short(d.Floor))
+		}
 	case discharge.CauseCollapse:
 		s = fmt.Sprintf("the converter's input collapses on %s: the pack cannot deliver its power", ph)
 	case discharge.CauseLimit:
@@ -237,6 +241,15 @@ func packWords(d *discharge.Design) string {
 		s += fmt.Sprintf(", %d strings in parallel", d.Parallel)
 	}
 	return s
+}
+
+// noise returns 0 for x below a billionth of scale: the difference of two
+// root-found charges that agree to rounding, not a charge anyone stranded.
+func noise(x, scale float64) float64 {
+	if math.Abs(x) < 1e-9*math.Abs(scale) {
+		return 0
+	}
+	return x
 }
 
 func mAh(x float64) string { return sig(x, 3) + " mAh" }

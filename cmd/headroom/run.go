@@ -231,10 +231,10 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 func flagError(err error) error {
 	msg := err.Error()
 	if name, ok := strings.CutPrefix(msg, "flag provided but not defined: "); ok {
-		return fmt.Errorf("unknown flag --%s (see -h for the flags)", strings.TrimLeft(name, "-"))
+		return fmt.Errorf("unknown flag %s (see -h for the flags)", dashes(strings.TrimLeft(name, "-")))
 	}
 	if name, ok := strings.CutPrefix(msg, "flag needs an argument: "); ok {
-		return fmt.Errorf("--%s: needs a value", strings.TrimLeft(name, "-"))
+		return fmt.Errorf("%s: needs a value", dashes(strings.TrimLeft(name, "-")))
 	}
 	if strings.HasPrefix(msg, "invalid boolean value") {
 		// invalid boolean value "x" for -force: parse error
@@ -244,6 +244,14 @@ func flagError(err error) error {
 		}
 	}
 	return errors.New(msg)
+}
+
+// dashes writes a flag name as its help does: -o, --series.
+func dashes(name string) string {
+	if len(name) == 1 {
+		return "-" + name
+	}
+	return "--" + name
 }
 
 // wantArgs checks the number of positional arguments.
