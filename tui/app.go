@@ -166,6 +166,7 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	if m.save.state == saveWriting {
 		return m, nil // a write is running: wait for it
 	}
+	m.save.status = "" // the last save's news is old once the user moves on
 	switch {
 	case key.Matches(km, k.Quit):
 		return m, tea.Quit
@@ -309,7 +310,9 @@ func (m Model) designView(w, h int) []string {
 	// below it end in a line saying how many more there are.
 	chartH := min(h, max(h*3/5, h-len(notes)-1))
 	m.chart.SetSize(rightW, chartH)
-	right := fitLines(m.chart.View(), rightW, chartH)
+	chart := m.chart.View()
+	chartH = min(chartH, strings.Count(chart, "\n")+1)
+	right := fitLines(chart, rightW, chartH)
 	room := h - chartH - 1
 	if room > 0 {
 		right = append(right, "")

@@ -140,7 +140,7 @@ func (m chartModel) View() string {
 	if sh.err != nil || len(sh.res.Trace) < 2 {
 		msg := "No curve to draw: the design does not run."
 		if sh.err == nil {
-			msg = "No curve to draw: the product stops at once (" + cutoffWords(sh.res, sh.profile()) + ")."
+			msg = "No curve to draw: the product stops at once (" + cutoffWords(sh.res, sh.profile(), sh.vals.floor) + ")."
 		}
 		b.WriteString(st.Dim.Render(wrap(msg, w)))
 		return b.String()

@@ -56,13 +56,30 @@ func (m Model) hintLine() string {
 func (m Model) helpOverlay(w, h int) string {
 	hm := m.help
 	hm.Width = max(10, w-4)
-	body := m.styles.Heading.Render("Keys") + "\n\n" + hm.FullHelpView(m.viewKeys().FullHelp()) + "\n\n" +
-		m.styles.Dim.Render(strings.Join([]string{
+	var about []string
+	switch m.view {
+	case screenLineup:
+		about = []string{
+			"Every cell with the same series and parallel counts, load,",
+			"protection and floor; ● marks the cell in use. enter puts the",
+			"chosen row's cell into the design; o switches the order.",
+		}
+	case screenReverse:
+		about = []string{
+			"What each protection does when the whole pack goes in backwards,",
+			"and when one cell of a series pack is flipped. Green: blocked;",
+			"amber: a fuse opens; red: the load or the cells take the harm.",
+		}
+	default:
+		about = []string{
 			"Each knob row: name, value with its unit, and a slider.",
 			"← → move a knob in small steps, shift+← → or [ ] in big ones;",
 			"enter lets you type a value with its unit (1.8V, 10nA, 150%).",
-			"Press ? or esc to close this.",
-		}, "\n"))
+		}
+	}
+	about = append(about, "Press ? or esc to close this.")
+	body := m.styles.Heading.Render("Keys") + "\n\n" + hm.FullHelpView(m.viewKeys().FullHelp()) + "\n\n" +
+		m.styles.Dim.Render(strings.Join(about, "\n"))
 	box := m.styles.Overlay.Render(body)
 	return lipgloss.Place(w, h, lipgloss.Center, lipgloss.Center, box)
 }

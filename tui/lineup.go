@@ -88,25 +88,20 @@ func (m lineupModel) View() string {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	rows := m.rows()
-	maxRun, maxCost := 0.0, 0.0
+	maxRun := 0.0
 	for _, r := range rows {
 		if r.err == nil {
 			maxRun = math.Max(maxRun, r.res.RuntimeH)
-			maxCost = math.Max(maxCost, r.res.CostPerHour)
 		}
 	}
 	const cellW, runW, barW, costW, strW = 30, 9, 12, 10, 9
 	causeW := max(0, w-(5+cellW+1+runW+1+barW+1+costW+1+strW+1))
-	barHead := "runtime bar"
-	if !m.byRuntime {
-		barHead = "cost bar"
-	}
-	head := "   # " + pad("Cell", cellW) + " " + pad("Runtime", runW) + " " + pad(barHead, barW) + " " +
+	head := "   # " + pad("Cell", cellW) + " " + pad("Runtime", runW+1+barW) + " " +
 		pad("Cost/hour", costW) + " " + pad("Stranded", strW) + " " + pad("Stops because", causeW)
 	b.WriteString(st.Label.Render(pad(head, w)) + "\n")
 
 	used := strings.Count(b.String(), "\n")
-	room := max(1, h-used-2)
+	room := max(1, h-used-4)
 	off := m.offset
 	if m.sel < off {
 		off = m.sel
@@ -131,10 +126,8 @@ func (m lineupModel) View() string {
 		}
 		res := r.res
 		var frac float64
-		if m.byRuntime && maxRun > 0 {
+		if maxRun > 0 {
 			frac = res.RuntimeH / maxRun
-		} else if maxCost > 0 {
-			frac = res.CostPerHour / maxCost
 		}
 		cost := "—"
 		if res.CostPerHour > 0 {
@@ -151,6 +144,9 @@ func (m lineupModel) View() string {
 	}
 	if len(rows) > room {
 		b.WriteString(st.Dim.Render(fmt.Sprintf("  rows %d–%d of %d; ↑/↓ scroll", off+1, min(len(rows), off+room), len(rows))) + "\n")
+	}
+	for _, l := range wrapLines("Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price ÷ its cycle life, plus charging energy.", w) {
+		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	if m.sel < len(rows) {
 		r := rows[m.sel]

@@ -72,7 +72,11 @@ func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
 		switch {
 		case sm.err == nil:
 			m.state, m.failed = saveIdle, false
-			m.status = "Saved the design to " + sm.path
+			p := sm.path
+			if abs, err := filepath.Abs(p); err == nil {
+				p = abs
+			}
+			m.status = "Saved the design to " + p
 		case errors.Is(sm.err, scenario.ErrExists) && !sm.overwrite:
 			m.state = saveConfirm
 		default:

@@ -78,7 +78,7 @@ func (m notesModel) View() string {
 	}
 	r := sh.res
 	var b strings.Builder
-	b.WriteString(st.Label.Render("Stops because ") + st.Value.Render(wrapAfter(cutoffWords(r, sh.profile()), w, 14)) + "\n")
+	b.WriteString(st.Label.Render("Stops because ") + st.Value.Render(wrapAfter(cutoffWords(r, sh.profile(), sh.vals.floor), w, 14)) + "\n")
 	for _, x := range r.Warnings {
 		b.WriteString(st.Warn.Render(wrap("⚠ "+x, w)) + "\n")
 	}
@@ -101,7 +101,7 @@ func wrapAfter(s string, w, used int) string {
 
 // cutoffWords says in plain words why and where the product stopped:
 // "resets on the 450 mA motor wag pulse at 1.80 V".
-func cutoffWords(r *discharge.Result, prof []discharge.Phase) string {
+func cutoffWords(r *discharge.Result, prof []discharge.Phase, floor float64) string {
 	phase := r.CutoffPhase
 	var ph *discharge.Phase
 	heaviest := true
@@ -133,12 +133,19 @@ func cutoffWords(r *discharge.Result, prof []discharge.Phase) string {
 		}
 	}
 	v := fmt.Sprintf("%.2f V", r.CutoffLoadV)
+	at := " at " + v + " (the floor)"
+	if math.Abs(r.CutoffLoadV-floor) >= 0.005 {
+		at = fmt.Sprintf(" at %s, below the %.2f V floor", v, floor)
+	}
+	if r.RuntimeH == 0 {
+		at += ", from the start"
+	}
 	switch r.CutoffCause {
 	case discharge.CauseFloor:
 		if len(prof) == 1 {
-			return "the load voltage falls to its " + v + " floor on " + what
+			return "the load voltage falls below its floor on " + what + at
 		}
-		return "resets on " + what + " at " + v + " (the floor)"
+		return "resets on " + what + at
 	case discharge.CauseCollapse:
 		return "the pack can no longer supply the power of " + what + ": the converter's input collapses"
 	case discharge.CauseLimit:
