@@ -48,13 +48,13 @@ type variant struct {
 }
 
 type evaluator struct {
-	d     *Design
-	cell  *curves.Cell
-	S, P  float64
-	T     float64
-	w     []float64 // duty weights of the phases, summing to 1
-	loads []Load
-	end   float64 // curve end, mAh (scaled, per cell)
+	d      *Design
+	cell   *curves.Cell
+	S, P   float64
+	T      float64
+	w      []float64 // duty weights of the phases, summing to 1
+	loads  []Load
+	end    float64 // curve end, mAh (scaled, per cell)
 	breaks []float64
 }
 
@@ -202,11 +202,9 @@ func (e *evaluator) phases(qs float64, v *variant, out []op) (fail Cause, phase 
 	E, Rp, _ := e.pack(qs)
 	for k, l := range e.loads {
 		o := e.solve(l, v, E, Rp)
-		if o.Fail == "" {
-			o.CellV = (E - o.Ipack*Rp) / e.S
-			if o.CellV < e.cell.EndPoint {
-				o.Fail = CauseEndPoint
-			}
+		o.CellV = (E - o.Ipack*Rp) / e.S
+		if o.Fail == "" && o.CellV < e.cell.EndPoint {
+			o.Fail = CauseEndPoint
 		}
 		if out != nil {
 			out[k] = o
@@ -233,28 +231,100 @@ func rank(c Cause) int {
 	return 4
 }
 
-// cutoff returns the scaled charge at which variant v first fails. It
-// scans the breakpoints, then bisects the first span that fails.
-func (e *evaluator) cutoff(v *variant, buf []op) float64 {
-	if f, _ := e.phases(0, v, buf); f != "" {
-		return 0
+// margin solves every phase at qs and returns whether any fails and the
+// smallest of their margins: load voltage above the floor, cell voltage
+// above the end-point, current below the clamp and the trip, charge left
+// on the curve. The margin is continuous in qs and crosses zero where the
+// first phase fails, except where a constant-power load collapses (no
+// operating point, no margin): there it is NaN.
+func (e *evaluator) margin(qs float64, v *variant, buf []op) (bool, float64) {
+	fail, _ := e.phases(qs, v, buf)
+	if qs >= e.end {
+		return true, e.end - qs
 	}
-	lo := 0.0
-	for _, b := range e.breaks[1:] {
-		if f, _ := e.phases(b, v, buf); f == "" {
-			lo = b
-			continue
+	m := math.Inf(1)
+	for _, o := range buf {
+		if o.Fail == CauseCollapse {
+			return true, math.NaN()
 		}
-		hi := b
-		for hi-lo > 1e-12*e.end {
-			mid := 0.5 * (lo + hi)
-			if f, _ := e.phases(mid, v, buf); f == "" {
-				lo = mid
-			} else {
-				hi = mid
+		m = min(m, o.Vload-v.floor, o.CellV-e.cell.EndPoint, v.lim.Clamp-o.I, v.lim.Trip-o.I)
+	}
+	if fail != "" && m > 0 || fail == "" && m < 0 { // a rule the margin does not see
+		m = math.NaN()
+	}
+	return fail != "", m
+}
+
+// cutoff returns the scaled charge at which variant v first fails. It
+// scans the breakpoints, from the last one at or below from where v
+// still works (0: from the start), then narrows the first span that
+// fails. Failure is taken to be permanent once it starts, as the scan
+// always has.
+func (e *evaluator) cutoff(v *variant, buf []op, from float64) float64 {
+	first := 1
+	lo, mlo := 0.0, 0.0
+	if from > 0 {
+		j := sort.SearchFloat64s(e.breaks, from)
+		if j == len(e.breaks) || e.breaks[j] > from {
+			j--
+		}
+		if j > 0 {
+			if f, m := e.margin(e.breaks[j], v, buf); !f {
+				first, lo, mlo = j+1, e.breaks[j], m
 			}
 		}
-		return lo
+	}
+	if first == 1 {
+		f, m := e.margin(0, v, buf)
+		if f {
+			return 0
+		}
+		mlo = m
+	}
+	for _, b := range e.breaks[first:] {
+		f, m := e.margin(b, v, buf)
+		if !f {
+			lo, mlo = b, m
+			continue
+		}
+		return e.narrow(v, buf, lo, mlo, b, m)
+	}
+	return lo
+}
+
+// narrow finds the first failure in [lo, hi], where v works at lo with
+// margin mlo and fails at hi with margin mhi, to 1e-12 of the curve. It
+// takes Illinois (modified regula falsi) steps on the margin while both
+// ends have one, and bisects otherwise; the result is the last charge
+// found to work. About ten evaluations instead of bisection's forty.
+func (e *evaluator) narrow(v *variant, buf []op, lo, mlo, hi, mhi float64) float64 {
+	tol := 1e-12 * e.end
+	side := 0
+	for k := 0; k < 200 && hi-lo > tol; k++ {
+		x := 0.5 * (lo + hi)
+		if mlo > 0 && mhi < 0 {
+			x = lo + (hi-lo)*mlo/(mlo-mhi)
+			// Keep a little inside the bracket, so that it shrinks from
+			// both ends once the estimate is good.
+			x = min(max(x, lo+0.25*tol), hi-0.25*tol)
+		}
+		if !(x > lo && x < hi) {
+			x = 0.5 * (lo + hi)
+		}
+		f, m := e.margin(x, v, buf)
+		if f {
+			hi, mhi = x, m
+			if side == 1 {
+				mlo /= 2
+			}
+			side = 1
+		} else {
+			lo, mlo = x, m
+			if side == -1 {
+				mhi /= 2
+			}
+			side = -1
+		}
 	}
 	return lo
 }
@@ -302,9 +372,15 @@ func Evaluate(d *Design) (*Result, error) {
 	r.FreshV = E0
 	r.QuiescentA = el.Quiescent(E0, d.TempC)
 
-	qsCut := e.cutoff(real, buf)
-	qsBare := e.cutoff(bare, buf)
-	qsRef := e.cutoff(ref, buf)
+	// Each variant asks less of the pack than the one before, so its scan
+	// resumes near the previous cut-off; without an element the bare
+	// variant is the real one.
+	qsCut := e.cutoff(real, buf, 0)
+	qsBare := qsCut
+	if _, none := el.(protect.None); !none {
+		qsBare = e.cutoff(bare, buf, qsCut)
+	}
+	qsRef := e.cutoff(ref, buf, qsBare)
 
 	// Cut-off cause: the first failure just past the cut.
 	past := math.Min(qsCut+1e-9*e.end, e.end)
