@@ -94,3 +94,64 @@ func TestLoadRejectsFIFO(t *testing.T) {
 		t.Fatal("Load(FIFO) blocked")
 	}
 }
+
+// FuzzReadCellTOML checks the TOML cell reader: a file either fails with
+// one line naming the file, or gives a valid cell that WriteCSV can write
+// (or refuses in words when its rest voltage would rise) and ReadCSV reads
+// back to the same terminal voltage at the reference current and at rest
+// at every curve point, to 1e-9 V: WriteCSV adds RefCurrent·R to the
+// curve and the reader subtracts it again, a few roundings apart.
+func FuzzReadCellTOML(f *testing.F) {
+	for _, s := range []string{
+		"curve = [[0, 1.5], [1000, 1.2], [2000, 0.9]]\n",
+		"id = \"aa\"\nname = \"my cell\"\ncurve = [[0, 1.6], [2500, 0.8]]\nend_point = \"0.9V\"\nref_current = \"100mA\"\n" +
+			"resistance = [[0, 0.15], [1, 0.6]]\ntemperature = [[-20, 0.4, 3], [20, 1, 1]]\npeukert = 1.2\nself_discharge = \"2%\"\n",
+		"curve = [[0, 4.2], [3000, 3.0]]\nrechargeable = true\ncycle_life = 500\ncharge_efficiency = \"90%\"\nprice = \"$3\"\nrated_mAh = \"3Ah\"\n",
+		"curve = [[0, 1.5], [100, 1.2]]\nref_current = 0.5\nresistance = [[0, 1], [1, 0.01]]\n",
+		// nasty
+		"", "curve = []\n", "curve = [[0, 1.5]]\n", "curve = [[0, 1.5], [0, 1.4]]\n", "curve = [[0, 1.5], [100, 1.6]]\n",
+		"curve = [[0, nan], [100, 1]]\n", "curve = [[0, inf], [100, 1]]\n", "curve = [[0, 1.5, 3], [100, 1]]\n",
+		"curve = [[0, 1.5], [100, 1]]\nend_point = 2\n", "curve = [[0, 1.5], [100, 1]]\npeukert = 3\n",
+		"curve = [[0, 1.5], [100, 1]]\nresistance = [[0.5, 1], [0.2, 1]]\n", "curve = \"x\"\n", "voltage = 3\n",
+		"curve = [[0, 1.5], [100, 1]]\ncurve_csv = \"x.csv\"\n", "curve_csv = \"/dev/null.csv\"\n", "x = \x00\n",
+		"curve = [[0, 1.5], [100, 1]]\nrechargeable = true\n", "curve = [[0, 1.5], [100, 1]]\nrated_mAh = \"1e400mAh\"\n",
+	} {
+		f.Add([]byte(s))
+	}
+	name := filepath.Join(f.TempDir(), "cell.toml")
+	f.Fuzz(func(t *testing.T, data []byte) {
+		c, err := ReadCellTOML(bytes.NewReader(data), name)
+		if err != nil {
+			if c != nil {
+				t.Fatalf("ReadCellTOML returned a cell with error %v", err)
+			}
+			if msg := err.Error(); !strings.HasPrefix(msg, name) || strings.Contains(msg, "\n") {
+				t.Fatalf("error %q: want one line naming %s", msg, name)
+			}
+			return
+		}
+		if err := c.Validate(); err != nil {
+			t.Fatalf("ReadCellTOML gave an invalid cell: %v", err)
+		}
+		var buf bytes.Buffer
+		if err := WriteCSV(&buf, c); err != nil {
+			if !strings.Contains(err.Error(), "cannot be written") {
+				t.Fatalf("WriteCSV: %v", err)
+			}
+			return
+		}
+		back, err := ReadCSV(bytes.NewReader(buf.Bytes()), "cell.csv")
+		if err != nil {
+			t.Fatalf("WriteCSV wrote\n%s\nwhich does not read back: %v", buf.Bytes(), err)
+		}
+		for i := 0; i < c.Curve.Len(); i++ {
+			q, _ := c.Curve.Point(i)
+			for _, amps := range []float64{0, c.RefCurrent} {
+				v0, v1 := c.Terminal(q, amps, RefTempC), back.Terminal(q, amps, RefTempC)
+				if math.Abs(v0-v1) > 1e-9 {
+					t.Fatalf("point %d (%v mAh) at %v A: %v V reads back as %v V; written\n%s", i, q, amps, v0, v1, buf.Bytes())
+				}
+			}
+		}
+	})
+}
