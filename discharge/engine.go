@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/gonum/integrate/quad"
 
@@ -655,12 +656,16 @@ func describeCause(r *Result) string {
 // Describe says in words why the product stopped (for reports).
 func (r *Result) Describe() string { return describeCause(r) }
 
-// Cautions are the usual cautions for a pack of n cells of cell c.
+// Cautions are the usual cautions for a pack of n cells of cell c: the
+// chemistry's own (curves.Cautions), without the mixing warning for a
+// single cell, and the toy-safety reminder.
 func Cautions(c *curves.Cell, n int) []string {
-	out := []string{"Estimates, not certification: check the cell maker's data, local codes and toy-safety rules (IEC 62115 and local equivalents); defer to licensed practice."}
-	out = append(out, curves.Cautions(c)...)
-	if n > 1 {
-		out = append(out, "Never mix old and new cells, or different chemistries, in one pack.")
+	var out []string
+	for _, s := range curves.Cautions(c) {
+		if n == 1 && strings.HasPrefix(s, "Never mix") {
+			continue
+		}
+		out = append(out, s)
 	}
-	return out
+	return append(out, "Electric toys fall under toy-safety standards (IEC 62115 and local equivalents); defer to them and to licensed practice.")
 }
