@@ -12,8 +12,9 @@ import (
 )
 
 // tracePoints is how many points of the voltage trace the chart asks for:
-// more than the braille dots across the widest chart drawn.
-const tracePoints = 240
+// about one per braille dot column of a chart at 120 columns (a straight
+// line joins them, so wider charts lose nothing visible).
+const tracePoints = 120
 
 // values is the design as the knobs set it.
 type values struct {
