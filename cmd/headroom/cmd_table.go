@@ -77,8 +77,20 @@ func rowOf(row scenario.Row) tableRow {
 	t.runtimeH, t.days, t.delivered = r.RuntimeH, r.RuntimeDays, r.DeliveredMAh
 	t.stranded = strandedPct(r)
 	t.lossWh, t.peakW, t.cost = r.ProtectionLossWh, r.ProtectionPeakW, r.CostPerHour
+	if r.RuntimeH <= 0 {
+		t.cost = math.NaN() // no cost per hour for a product that never runs: shown as "—"
+	}
 	t.cause, t.phase = string(r.CutoffCause), r.CutoffPhase
 	return t
+}
+
+// costKey sorts a design that never runs (cost per hour 0 because the
+// runtime is 0) after every design that does, however cheap.
+func costKey(r tableRow) float64 {
+	if r.runtimeH <= 0 || math.IsNaN(r.cost) {
+		return math.MaxFloat64
+	}
+	return r.cost
 }
 
 // sortKeys are the --sort columns: a number, or a text compared as text.
@@ -89,7 +101,7 @@ var sortKeys = map[string]func(tableRow) (float64, string){
 	"stranded":  func(r tableRow) (float64, string) { return r.stranded, "" },
 	"loss":      func(r tableRow) (float64, string) { return r.lossWh, "" },
 	"heat":      func(r tableRow) (float64, string) { return r.peakW, "" },
-	"cost":      func(r tableRow) (float64, string) { return r.cost, "" },
+	"cost":      func(r tableRow) (float64, string) { return costKey(r), "" },
 	"floor":     func(r tableRow) (float64, string) { return r.floor, "" },
 	"temp":      func(r tableRow) (float64, string) { return r.temp, "" },
 	"scale":     func(r tableRow) (float64, string) { return r.scale, "" },

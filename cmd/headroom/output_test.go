@@ -193,10 +193,10 @@ func TestCompare(t *testing.T) {
 		}
 		prev = cost
 	}
-	// The demo's budget is $0.60; pack + diode ($0.03): r6 2 × $0.25 +
-	// $0.03 = $0.53 and cr2032 $0.40 + $0.03 = $0.43 are within it, the rest
-	// is not (library prices, typical from memory).
-	_, out, _ = runCLI(t, "compare", "--within-budget", "--format", "json")
+	// With a $0.60 budget and a diode ($0.03): r6 2 × $0.25 + $0.03 =
+	// $0.53 and cr2032 $0.40 + $0.03 = $0.43 are within it, the rest is not
+	// (library prices, typical from memory).
+	_, out, _ = runCLI(t, "compare", "--budget", "0.60", "--within-budget", "--format", "json")
 	rows = nil
 	if err := json.Unmarshal([]byte(out), &rows); err != nil {
 		t.Fatal(err)
