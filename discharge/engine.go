@@ -49,14 +49,19 @@ type variant struct {
 }
 
 type evaluator struct {
-	d      *Design
-	cell   *curves.Cell
-	S, P   float64
-	T      float64
-	w      []float64 // duty weights of the phases, summing to 1
-	loads  []Load
-	end    float64 // curve end, mAh (scaled, per cell)
-	breaks []float64
+	d     *Design
+	cell  *curves.Cell
+	S, P  float64
+	T     float64
+	w     []float64 // duty weights of the phases, summing to 1
+	loads []Load
+	end   float64 // curve end, mAh (scaled, per cell)
+	// hint holds each phase's last solved current, A: the next solve, at
+	// a nearby charge, starts from it (0: none yet).
+	hint []float64
+	// lastE and lastRp are the pack source of the last phases call.
+	lastE, lastRp float64
+	breaks        []float64
 }
 
 // pack gives the pack's Thevenin source at scaled charge qs: E is the
@@ -72,7 +77,7 @@ func (e *evaluator) pack(qs float64) (E, Rp, Rcell float64) {
 
 // solve finds the operating point of load l with the pack source (E, Rp)
 // behind element v.
-func (e *evaluator) solve(l Load, v *variant, E, Rp float64) op {
+func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 	T := e.T
 	iq := v.el.Quiescent(E, T)
 	vin := func(i float64) float64 { return E - (i+iq)*Rp }
@@ -89,21 +94,23 @@ func (e *evaluator) solve(l Load, v *variant, E, Rp float64) op {
 		if vload(0) <= 0 {
 			i = 0
 		} else {
-			i = bracketRoot(g, 0, E/l.Ohms)
+			i = e.warmRoot(g, k, E/l.Ohms)
 		}
 	case LED:
 		g := func(i float64) float64 { return i*l.Ohms + l.Vf - vload(i) }
 		if vload(0) <= l.Vf {
 			i = 0
 		} else {
-			i = bracketRoot(g, 0, (E-l.Vf)/l.Ohms)
+			i = e.warmRoot(g, k, (E-l.Vf)/l.Ohms)
 		}
 	case ConstantPower:
 		pin := l.InputPower()
 		if pin > 0 {
 			var ok bool
-			i, ok = powerPoint(vload, pin, E)
-			if !ok {
+			i, ok = powerPoint(vload, pin, E, e.hint[k])
+			if ok {
+				e.hint[k] = i
+			} else {
 				return op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: CauseCollapse}
 			}
 		}
@@ -127,10 +134,34 @@ func (e *evaluator) solve(l Load, v *variant, E, Rp float64) op {
 	return o
 }
 
+// warmRoot finds the root of an increasing g on [0, hi] for phase k,
+// first within 1 % of the phase's last current: successive solves come at
+// nearby charges, so that narrow bracket usually holds the root and saves
+// half the iterations. Otherwise it searches the whole range.
+func (e *evaluator) warmRoot(g func(float64) float64, k int, hi float64) float64 {
+	if h := e.hint[k]; h > 0 {
+		a, b := 0.9*h, min(1.1*h, hi)
+		if a < b {
+			if fa, fb := g(a), g(b); fa <= 0 && fb >= 0 {
+				i := bracketRootF(g, a, b, fa, fb)
+				e.hint[k] = i
+				return i
+			}
+		}
+	}
+	i := bracketRoot(g, 0, hi)
+	e.hint[k] = i
+	return i
+}
+
 // bracketRoot finds the root of an increasing g on [lo, hi] with g(lo) ≤ 0
 // ≤ g(hi) by the Illinois variant of regula falsi, to about 1e-13 relative.
 func bracketRoot(g func(float64) float64, lo, hi float64) float64 {
-	flo, fhi := g(lo), g(hi)
+	return bracketRootF(g, lo, hi, g(lo), g(hi))
+}
+
+// bracketRootF is bracketRoot with g(lo) and g(hi) already known.
+func bracketRootF(g func(float64) float64, lo, hi, flo, fhi float64) float64 {
 	if flo >= 0 {
 		return lo
 	}
@@ -144,7 +175,7 @@ func bracketRoot(g func(float64) float64, lo, hi float64) float64 {
 			x = 0.5 * (lo + hi)
 		}
 		fx := g(x)
-		if fx == 0 || hi-lo <= 1e-13*math.Max(hi, 1e-12) {
+		if math.Abs(fx) <= 1e-14 || hi-lo <= 1e-13*math.Max(hi, 1e-12) {
 			return x
 		}
 		if fx < 0 {
@@ -170,8 +201,24 @@ func bracketRoot(g func(float64) float64, lo, hi float64) float64 {
 // overshooting; if the slope turns non-positive first there is no operating
 // point: the load collapses (DESIGN §4: Voc²/(4·R) < Pin for a resistive
 // source).
-func powerPoint(vload func(float64) float64, pin, E float64) (float64, bool) {
-	i := 0.0
+//
+// A warm start i0 > 0 (the phase's last current) is tried first, from just
+// below it. Where the slope there is positive, the first Newton step lands
+// at or below the lower root (a concave function lies under its tangent),
+// and the iterates rise from there as from zero; any failure on the warm
+// path falls back to the start from zero, so a collapse is only ever
+// declared from there.
+func powerPoint(vload func(float64) float64, pin, E, i0 float64) (float64, bool) {
+	if i0 > 0 {
+		if i, ok := newtonPower(vload, pin, E, 0.99*i0); ok {
+			return i, true
+		}
+	}
+	return newtonPower(vload, pin, E, 0)
+}
+
+// newtonPower is powerPoint's Newton iteration from current i.
+func newtonPower(vload func(float64) float64, pin, E, i float64) (float64, bool) {
 	for k := 0; k < 200; k++ {
 		v := vload(i)
 		f := i*v - pin
@@ -185,6 +232,9 @@ func powerPoint(vload func(float64) float64, pin, E float64) (float64, bool) {
 			return i, false
 		}
 		step := -f / df
+		if i+step < 0 { // a warm start above the root stepped past zero
+			step = -i
+		}
 		i += step
 		if math.Abs(step) <= 1e-13*i {
 			return i, i*vload(i) >= pin*(1-1e-9)
@@ -201,8 +251,9 @@ func (e *evaluator) phases(qs float64, v *variant, out []op) (fail Cause, phase 
 		return CauseEndPoint, 0
 	}
 	E, Rp, _ := e.pack(qs)
+	e.lastE, e.lastRp = E, Rp
 	for k, l := range e.loads {
-		o := e.solve(l, v, E, Rp)
+		o := e.solve(l, k, v, E, Rp)
 		o.CellV = (E - o.Ipack*Rp) / e.S
 		if o.Fail == "" && o.CellV < e.cell.EndPoint {
 			o.Fail = CauseEndPoint
@@ -345,6 +396,8 @@ func Evaluate(d *Design) (*Result, error) {
 	for _, p := range d.Profile {
 		total += p.Seconds
 	}
+	n := len(d.Profile)
+	e.w, e.loads, e.hint = make([]float64, 0, n), make([]Load, 0, n), make([]float64, n)
 	for _, p := range d.Profile {
 		e.w = append(e.w, p.Seconds/total)
 		e.loads = append(e.loads, p.Load)
@@ -450,7 +503,10 @@ type rates struct {
 func (e *evaluator) rates(qs float64, v *variant, buf []op) rates {
 	d := e.d
 	e.phases(qs, v, buf)
-	E, Rp, _ := e.pack(qs)
+	E, Rp := e.lastE, e.lastRp
+	if qs >= e.end { // phases stopped before solving the pack
+		E, Rp, _ = e.pack(qs)
+	}
 	f := 1.0
 	if d.HoursPerDay > 0 {
 		f = d.HoursPerDay / 24
