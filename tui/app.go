@@ -325,5 +325,5 @@ func (m Model) designView(w, h int) []string {
 	return besides(left, leftW, right, 3)
 }
 
-// keyOf says which of the KeyMap's bindings a test key is, for tests.
+// viewKeys feeds bubbles' help.
 var _ help.KeyMap = viewKeys{}

@@ -56,8 +56,8 @@ func newKnobs(sh *shared) knobsModel {
 	return knobsModel{sh: sh, input: newField("new value: ", 200, sh.styles.Cursor)}
 }
 
-// Update handles keys while the design view is active. changed reports
-// whether a knob moved (the caller re-evaluates).
+// Update handles keys while the design view is active; a knob that moves
+// re-evaluates the design at once.
 func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
 	k := m.sh.keys
 	km, isKey := msg.(tea.KeyMsg)
