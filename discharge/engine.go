@@ -119,6 +119,18 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 	o.Vin = vin(i)
 	o.Vdrop = v.el.Drop(i, o.Vin, T)
 	o.Vload = o.Vin - o.Vdrop
+	// A resistive or LED load sets its own voltage, i·R (+ Vf). Where the
+	// element's drop jumps (a FET out of gate drive hands over to its
+	// body diode) the root sits on the jump and vin − Drop(i) reads the
+	// far side of it; the element takes up the difference, as a
+	// saturated FET does.
+	if i > 0 && (l.Kind == ConstantResistance || l.Kind == LED) {
+		o.Vload = i * l.Ohms
+		if l.Kind == LED {
+			o.Vload += l.Vf
+		}
+		o.Vdrop = o.Vin - o.Vload
+	}
 	switch {
 	case i > v.lim.Trip:
 		o.Fail = CauseFuse
