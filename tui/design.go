@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"errors"
 	"math"
 	"sort"
 	"sync"
@@ -163,11 +164,15 @@ var errNotFinite error = finiteError{}
 
 // lineupRow is one cell of the line-up.
 type lineupRow struct {
-	cell *curves.Cell
-	idx  int // index into shared.cells
-	res  *discharge.Result
-	err  error
+	cell   *curves.Cell
+	idx    int // index into shared.cells
+	series int // cells in series for this row
+	res    *discharge.Result
+	err    error
 }
+
+// errNoFit marks a line-up cell with no series count that fits.
+var errNoFit = errors.New("no series count fits this product's voltage")
 
 // evaluateLineup evaluates every cell for the current pack counts, load,
 // protection and floor, on as many goroutines as there are cores to spare.
@@ -184,10 +189,19 @@ func (sh *shared) evaluateLineup() []lineupRow {
 				d := base
 				d.Cell = sh.cells[i]
 				if i != sh.vals.cell {
+					// Another chemistry in the series count that fits this
+					// product's voltage (the rule compare uses), at its own price.
 					d.PackPrice = 0
+					d.Series = scenario.FitSeries(d.Cell, &base)
 				}
-				r, err := evaluateFinite(&d)
-				rows[i] = lineupRow{cell: d.Cell, idx: i, res: r, err: err}
+				var r *discharge.Result
+				var err error
+				if d.Series == 0 {
+					err = errNoFit
+				} else {
+					r, err = evaluateFinite(&d)
+				}
+				rows[i] = lineupRow{cell: d.Cell, idx: i, series: d.Series, res: r, err: err}
 			}
 		}()
 	}

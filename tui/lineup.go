@@ -9,6 +9,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/discharge"
+	"headroom/internal/scenario"
 )
 
 // lineupModel is the line-up view: every cell for the same pack counts,
@@ -53,6 +54,7 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 		rows := m.rows()
 		if m.sel < len(rows) && m.sh.vals.cell != rows[m.sel].idx {
 			m.sh.vals.cell = rows[m.sel].idx
+			m.sh.vals.series = rows[m.sel].series
 			m.sh.evaluate()
 		}
 		return m, func() tea.Msg { return pickedMsg{} }
@@ -82,8 +84,8 @@ func (m lineupModel) View() string {
 		order, other = "runtime (longest first)", "cost per hour"
 	}
 	b.WriteString(st.Heading.Render("Cell line-up") + "\n")
-	intro := fmt.Sprintf("Every cell as %d in series × %d in parallel, on the same load (%s), protection (%s), floor (%.2f V) and ambient (%s). Ranked by %s; press o to rank by %s.",
-		v.series, v.parallel, profileLabel(sh.profile()), v.elem.Kind(), v.floor, trimFloat(v.tempC)+" °C", order, other)
+	intro := fmt.Sprintf("Every cell, %d string(s) in parallel, in the series count (S) whose nominal voltage is closest to this pack's without starting above %.1f× its fresh voltage; same load (%s), protection (%s), floor (%.2f V) and ambient (%s). Ranked by %s; press o to rank by %s.",
+		v.parallel, scenario.FreshLimit, profileLabel(sh.profile()), v.elem.Kind(), v.floor, trimFloat(v.tempC)+" °C", order, other)
 	for _, l := range wrapLines(intro, w) {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
@@ -115,7 +117,10 @@ func (m lineupModel) View() string {
 		if i == m.sel {
 			mark = st.Selected.Render("▸ ")
 		}
-		label := cellLabel(r.cell)
+		label := fmt.Sprintf("%dS ", r.series) + cellLabel(r.cell)
+		if r.series == 0 {
+			label = "   " + cellLabel(r.cell)
+		}
 		if r.idx == v.cell {
 			label = "● " + label
 		}

@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"math"
 	"sort"
 	"strings"
 
@@ -51,7 +50,7 @@ func init() { compareCmd.run = runCompare }
 
 // freshLimit is how far above the design's fresh pack voltage a candidate
 // pack may start (see the help text).
-const freshLimit = 1.5
+const freshLimit = scenario.FreshLimit
 
 type compareRow struct {
 	cell         *curves.Cell
@@ -67,26 +66,8 @@ type compareRow struct {
 func (c compareRow) runtime() float64 { return c.r.RuntimeH }
 
 // seriesFor picks the series count of cell for design d, or 0 when none
-// fits; see the help text for the rule.
-func seriesFor(cell *curves.Cell, d *discharge.Design) int {
-	nomD := float64(d.Series) * d.Cell.NominalV
-	freshD := float64(d.Series) * d.Cell.OpenCircuit(0, d.TempC)
-	ocv := cell.OpenCircuit(0, d.TempC)
-	best, bestDiff := 0, math.Inf(1)
-	for s := 1; s <= 48; s++ {
-		fresh := float64(s) * ocv
-		if fresh > freshLimit*freshD {
-			break
-		}
-		if fresh <= d.Floor {
-			continue
-		}
-		if diff := math.Abs(float64(s)*cell.NominalV - nomD); diff < bestDiff-1e-9 {
-			best, bestDiff = s, diff
-		}
-	}
-	return best
-}
+// fits: scenario.FitSeries, the rule the screen's line-up uses too.
+func seriesFor(cell *curves.Cell, d *discharge.Design) int { return scenario.FitSeries(cell, d) }
 
 // shortCaution is one chemistry's main caution in a few words.
 func shortCaution(c *curves.Cell) string {
