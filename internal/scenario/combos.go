@@ -2,7 +2,6 @@ package scenario
 
 import (
 	"headroom/discharge"
-	"headroom/protect"
 )
 
 // Combo is one row of a runtime table: a design and what makes it differ.
@@ -51,7 +50,7 @@ func (s *Scenario) Combo(i int) Combo {
 	d.Profile = ScaleProfile(s.Loads[li], sc)
 	d.TracePoints = 0
 	return Combo{Index: i, Design: d, CellID: cell.ID, Series: ser, Parallel: par,
-		Protect: protect.Short(el), Load: s.LoadSpecs[li], Floor: fl, TempC: tc, LoadScale: sc}
+		Protect: s.ProtectSpecs[pi], Load: s.LoadSpecs[li], Floor: fl, TempC: tc, LoadScale: sc}
 }
 
 // ScaleProfile returns the profile with every phase's demand times f; the

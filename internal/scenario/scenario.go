@@ -51,7 +51,7 @@ type Scenario struct {
 	Series       []int
 	Parallel     []int
 	Protects     []protect.Element
-	ProtectSpecs []string // as written, one per Protects entry
+	ProtectSpecs []string // protect.Short of each Protects entry, for labels
 	Loads        [][]discharge.Phase
 	LoadSpecs    []string
 	Floors       []float64
@@ -359,7 +359,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 			return nil, at("protect", errors.New(strings.TrimPrefix(err.Error(), "protect: ")))
 		}
 		s.Protects = append(s.Protects, el)
-		s.ProtectSpecs = append(s.ProtectSpecs, spec)
+		s.ProtectSpecs = append(s.ProtectSpecs, protect.Short(el))
 	}
 	if d.Protect, err = protect.Parse(s.ProtectSpec); err != nil {
 		return nil, at("protect", err)
