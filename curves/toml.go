@@ -262,17 +262,19 @@ func ReadCellTOML(r io.Reader, name string) (*Cell, error) {
 	if err != nil {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
+			// The message can quote the input, newlines and all.
+			msg := oneLine(pe.Message)
 			if pe.LastKey != "" {
-				return nil, fmt.Errorf("%s line %d: %s: %s", name, pe.Position.Line, pe.LastKey, pe.Message)
+				return nil, fmt.Errorf("%s line %d: %s: %s", name, pe.Position.Line, pe.LastKey, msg)
 			}
-			return nil, fmt.Errorf("%s line %d: %s", name, pe.Position.Line, pe.Message)
+			return nil, fmt.Errorf("%s line %d: %s", name, pe.Position.Line, msg)
 		}
 		// Type mismatches come as plain errors: "toml: line N (last key
 		// "k"): incompatible types: ...".
 		if m := decodeMsg.FindStringSubmatch(err.Error()); m != nil {
-			return nil, fmt.Errorf("%s line %s: %s: %s", name, m[1], m[2], m[3])
+			return nil, fmt.Errorf("%s line %s: %s: %s", name, m[1], m[2], oneLine(m[3]))
 		}
-		return nil, fmt.Errorf("%s: %w", name, err)
+		return nil, fmt.Errorf("%s: %s", name, oneLine(err.Error()))
 	}
 	lines := keyLines(data)
 	if und := md.Undecoded(); len(und) > 0 {

@@ -133,7 +133,7 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 		if l.Kind == LED {
 			o.Vload += l.Vf
 		}
-		o.Vdrop = o.Vin - o.Vload
+		o.Vdrop = math.Max(o.Vin-o.Vload, 0) // not −1e-17 from rounding
 	}
 	switch {
 	case i > v.lim.Trip:
@@ -409,6 +409,9 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	if el == nil {
 		el = protect.None{}
 	}
+	// The ambient is fixed for the whole run: work out the element's
+	// temperature terms once.
+	el = protect.Fixed(el, d.TempC)
 	e := &evaluator{d: d, cell: d.Cell, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw}
 	e.end = d.Cell.Curve.End()
 	total := 0.0
