@@ -40,6 +40,25 @@ type Shockley struct {
 	// XTI is the saturation-current temperature exponent, 0 to 10: 3 for
 	// PN junctions, 2 for Schottky barriers.
 	XTI float64
+
+	// at holds Is(T) and n·Vt(T) worked out once for one temperature by
+	// At; Drop uses them when called at that temperature. It is not a
+	// parameter: specs and comparisons of parameters ignore it.
+	at *junctionAt
+}
+
+// junctionAt is a Shockley junction's temperature terms at one temperature.
+type junctionAt struct {
+	tempC, is, nvt float64
+}
+
+// At returns s with its temperature terms worked out for tempC, so that
+// Drop at that temperature costs one Log1p instead of a Log, an Exp and a
+// Log1p. The result is a new value; s is unchanged.
+func (s Shockley) At(tempC float64) Shockley {
+	t := tempC + ZeroCelsius
+	s.at = &junctionAt{tempC: tempC, is: s.Saturation(tempC), nvt: s.N * ThermalVoltage(t)}
+	return s
 }
 
 // Saturation returns Is at tempC (°C), in amperes. Its reverse current: an
@@ -55,6 +74,9 @@ func (s Shockley) Saturation(tempC float64) float64 {
 func (s Shockley) Drop(i, tempC float64) float64 {
 	if !(i > 0) {
 		return 0
+	}
+	if a := s.at; a != nil && a.tempC == tempC {
+		return a.nvt*math.Log1p(i/a.is) + i*s.Rs
 	}
 	t := tempC + ZeroCelsius
 	r := t / NominalK
@@ -136,4 +158,40 @@ func (s *Schottky) value() Element  { return *s }
 func (s Schottky) Reverse(p Pack) Reversal {
 	return blockedReverse(s, p, s.Junction.Saturation(p.TempC),
 		"the Schottky diode is reverse-biased (its leakage grows about a hundredfold from 25 to 85 °C)")
+}
+
+// AtTemp is an element whose temperature terms can be worked out once for
+// a fixed ambient; the engine calls it once per evaluation.
+type AtTemp interface {
+	AtTemp(tempC float64) Element
+}
+
+// Fixed returns e with its temperature terms worked out for tempC when it
+// supports that (AtTemp), else e itself. Results are identical; only the
+// cost of Drop changes.
+func Fixed(e Element, tempC float64) Element {
+	if a, ok := e.(AtTemp); ok {
+		return a.AtTemp(tempC)
+	}
+	return e
+}
+
+func (d Diode) AtTemp(tempC float64) Element {
+	d.Junction = d.Junction.At(tempC)
+	return d
+}
+
+func (s Schottky) AtTemp(tempC float64) Element {
+	s.Junction = s.Junction.At(tempC)
+	return s
+}
+
+func (m PMOS) AtTemp(tempC float64) Element {
+	m.Body = m.Body.At(tempC)
+	return m
+}
+
+func (m PMOSClamp) AtTemp(tempC float64) Element {
+	m.Body = m.Body.At(tempC)
+	return m
 }
