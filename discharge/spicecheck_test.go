@@ -81,20 +81,18 @@ func TestRuntimeAgainstNgspice(t *testing.T) {
 }
 
 // limiterPulse checks a design the engine says never starts: a current
-// limiter with a pulse above its limit. Agreement here is on behaviour,
-// not on a runtime, and the mechanism differs; the test says exactly how.
+// limiter with a pulse above its limit. Agreement here is on behaviour and
+// on the clamped current, not on a runtime.
 //
 // The engine treats the limiter as ideal: above Vbe/Rsh (0.646 A at 27 °C)
 // it passes no more current, the load voltage collapses, and the product
 // stops at charge 0 with cause "current limit". In the discrete circuit
-// the PNP does throttle the pass FET's channel, but the FET's body diode
-// points from pack to load (the orientation that blocks reversed cells)
-// and carries the pulse instead: the full pulse current flows at a drop of
-// I·Rsh plus a body-diode drop, about 1.6 V at 0.9 A. So ngspice shows no
-// clamp — the load draws its whole pulse — yet the load voltage still
-// falls far below the floor during the first pulse. Both tools therefore
-// agree that the product fails on its first pulse; they disagree on the
-// current, which we check too, so a change in either model shows here.
+// (a reverse-blocking FET, then Rsh, the PNP and the pass FET turned with
+// its body diode towards the pack) the PNP pulls the pass FET's gate up
+// until the channel saturates at the limit, so ngspice, too, must hold the
+// 0.9 A pulse near Vbe/Rsh and let the load voltage fall through the floor
+// during the first pulse, to where the constant-current load's guard
+// (spicenet.CCGuard) fades its demand down to the clamped current.
 func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	if r.CutoffCause != discharge.CauseLimit {
 		t.Fatalf("engine runtime 0 with cause %q, want %q", r.CutoffCause, discharge.CauseLimit)
@@ -112,23 +110,35 @@ func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 		t.Fatal(err)
 	}
 	clamp := d.Protect.Limit(d.TempC).Clamp
-	var pulse float64
+	// The pulse is the profile's largest phase; before is when it starts.
+	var pulse, before, width, start float64
 	for _, p := range d.Profile {
-		pulse = math.Max(pulse, p.Load.Amps)
+		if p.Load.Amps > pulse {
+			pulse, before, width = p.Load.Amps, start, p.Seconds
+		}
+		start += p.Seconds
 	}
-	t.Logf("headroom: runtime 0, %s at %.3f A (clamp %.3f A); ngspice: load below the floor after %.1f s, lowest %.3f V, peak current %.3f A",
-		r.CutoffCause, r.CutoffAmps, clamp, s.CutoffH*3600, s.MinLoadV, s.PeakA)
-	// The first pulse must fail: the crossing lies inside the first cycle.
-	if s.Cause != spicenet.Floor || s.CutoffH <= 0 || s.CutoffH > period {
-		t.Errorf("ngspice cut-off at %.4f h (%q), want inside the first %.4f h cycle", s.CutoffH, s.Cause, period)
+	t.Logf("headroom: runtime 0, %s at %.3f A (clamp %.4f A); ngspice: load below the floor after %.3f s, lowest %.4f V, peak current %.4f A (%+.1e of the clamp)",
+		r.CutoffCause, r.CutoffAmps, clamp, s.CutoffH*3600, s.MinLoadV, s.PeakA, s.PeakA/clamp-1)
+	// The first pulse must fail: the crossing lies inside it, between its
+	// start (9 s into the cycle) and its end (10 s).
+	if sec := s.CutoffH * 3600; s.Cause != spicenet.Floor || sec < before || sec > before+width {
+		t.Errorf("ngspice cut-off at %.3f s (%q), want inside the first pulse, %.0f s into the cycle", sec, s.Cause, before)
 	}
-	// ngspice's pulse current: the whole demand passes through the body
-	// diode, within 1 % (the CC guard takes e^-(V/10 mV) of it, nothing
-	// at 1.26 V; 1 % leaves room for the channel and diode sharing).
-	if math.Abs(s.PeakA/pulse-1) > 0.01 {
-		t.Errorf("ngspice passes %.3f A during the %.3f A pulse; the body diode should carry it all", s.PeakA, pulse)
+	// ngspice's pulse current is held at the limit. The circuit's PNP
+	// reaches the engine's Vbe(T) at a collector current of
+	// spicenet.LimiterOnCurrent; a factor of two either way in the current
+	// it really needs at the clamp moves the limit by Vt·ln 2 ≈ 18 mV of
+	// 0.646 V, 2.8 %, so we allow 3 % (measured: −0.5 %).
+	if math.Abs(s.PeakA/clamp-1) > 0.03 {
+		t.Errorf("ngspice passes %.4f A during the %.3f A pulse; want the %.4f A limit within 3 %%", s.PeakA, pulse, clamp)
 	}
-	if !(s.MinLoadV < d.Floor) {
-		t.Errorf("ngspice's lowest load voltage %.3f V is not below the %.2f V floor", s.MinLoadV, d.Floor)
+	// The collapsed load sits where the guard's fading demand,
+	// pulse·(1 − exp(−V/CCGuard)), equals the clamped current: 12.5 mV.
+	// The clamp drifts a little over the three pulses as the pack's
+	// voltage moves, so 1 % (measured: 2e-4).
+	want := -spicenet.CCGuard * math.Log(1-s.PeakA/pulse)
+	if !(s.MinLoadV < d.Floor) || math.Abs(s.MinLoadV/want-1) > 0.01 {
+		t.Errorf("ngspice's lowest load voltage %.4f V, want the collapsed %.4f V, far below the %.2f V floor", s.MinLoadV, want, d.Floor)
 	}
 }

@@ -6,21 +6,33 @@ import (
 	"headroom/internal/units"
 )
 
-// Limiter is a shunt current limiter: a sense resistor Rsh in the rail, a
-// PNP whose base-emitter junction sees the sense voltage, and a pass
-// P-channel MOSFET (oriented like PMOS, so it also blocks reversed cells)
-// whose gate the PNP pulls towards its source once i·Rsh reaches Vbe. A
-// divider R1 (source to gate) and R2 (gate to ground) sets the gate drive
-// to |Vgs| = Vs·R1/(R1+R2), Vs being the FET's source (load-side) voltage,
-// and draws Vs/(R1+R2) from the pack all the time.
+// Limiter is a shunt current limiter behind a reverse-blocking FET, two of
+// the same P-channel MOSFET in the rail (FET holds both parts' parameters):
 //
-// Below the limit the drop is i·(Rsh + Rch): the PNP is off. The limit
-// current is Vbe(T)/Rsh with Vbe(T) = Vbe + TcVbe·(T − 25 °C) (common
-// practice; BJT Vbe falls about 2 mV/°C, Sedra and Smith, Microelectronic
-// Circuits). At the limit the pass FET takes up whatever voltage the load
-// does not: in a short it holds Ilim with almost the whole pack across it,
+//	pack ─ blocking FET ─ Rsh ─ pass FET ─ load
+//
+// The blocking FET is PMOS exactly: gate to ground, its load-side terminal
+// as source, body diode pointing from pack to load, so a reversed pack
+// leaves its gate above its source and nothing flows. The pass FET is
+// turned the other way: source towards the pack, drain to the load, body
+// diode pointing back towards the pack, so that turning its channel off
+// really stops the forward current (a single FET cannot do both: whichever
+// way it is turned, its body diode conducts one of the two ways). A divider
+// R1 (pass source to gate) and R2 (gate to ground) sets its gate drive to
+// |Vgs| = k·Vs, k = R1/(R1+R2), Vs being its source voltage, and draws
+// about vin/(R1+R2) from the pack all the time. A PNP senses Rsh — emitter
+// on the pack side, base on the load side — and once i·Rsh reaches Vbe its
+// collector pulls the pass FET's gate up towards its source.
+//
+// Below the limit the drop is i·Rsh plus the two channels' drops, each FET
+// driven by its own terminal voltages; the PNP is off. The limit current
+// is Vbe(T)/Rsh with Vbe(T) = Vbe + TcVbe·(T − 25 °C) (common practice;
+// BJT Vbe falls about 2 mV/°C, Sedra and Smith, Microelectronic Circuits).
+// At the limit the pass FET takes up whatever voltage the load does not:
+// in a short it holds Ilim with almost the whole pack across it,
 // P = Vpack·Ilim, and heats to Tamb + θja·P.
 type Limiter struct {
+	// FET is each of the two MOSFETs: the blocking one and the pass one.
 	FET
 	// Rsh is the sense resistance in ohms. Above 0.
 	Rsh float64
@@ -29,12 +41,14 @@ type Limiter struct {
 	Vbe float64
 	// TcVbe is Vbe's temperature coefficient in V/°C, from −0.005 to 0.
 	TcVbe float64
-	// R1 is the gate resistor from the FET's source to its gate, ohms.
-	// Above 0.
+	// R1 is the gate resistor from the pass FET's source to its gate,
+	// ohms. Above 0.
 	R1 float64
-	// R2 is the gate resistor from the gate to ground, ohms. Above 0.
+	// R2 is the gate resistor from the pass FET's gate to ground, ohms.
+	// Above 0.
 	R2 float64
-	// Price is the unit cost of all five parts in dollars, at least 0.
+	// Price is the unit cost of all seven parts (two FETs, the PNP, three
+	// resistors) in dollars, at least 0.
 	Price float64
 	// ThetaJA is the pass FET's junction-to-ambient thermal resistance in
 	// °C/W, above 0.
@@ -44,11 +58,12 @@ type Limiter struct {
 }
 
 // DefaultLimiter is a 1 Ω sense resistor (0.65 A limit), a small-signal
-// PNP at 0.65 V, the generic SOT-23 FET of DefaultPMOS and a 1 MΩ/100 kΩ
-// gate divider (typical, from memory), $0.20 for the parts.
+// PNP at 0.65 V, two of the generic SOT-23 FET of DefaultPMOS and a
+// 1 MΩ/100 kΩ gate divider (typical, from memory), $0.28 for the parts:
+// $0.08 a FET as DefaultPMOS, the rest for the PNP and resistors.
 func DefaultLimiter() Limiter {
 	return Limiter{FET: defaultFET(), Rsh: 1, Vbe: 0.65, TcVbe: -0.002,
-		R1: 1e6, R2: 100e3, Price: 0.20, ThetaJA: 250, TjMax: 150}
+		R1: 1e6, R2: 100e3, Price: 0.28, ThetaJA: 250, TjMax: 150}
 }
 
 func (l Limiter) Kind() string { return "limiter" }
@@ -62,24 +77,42 @@ func (l Limiter) VbeAt(tempC float64) float64 {
 // drive is the gate divider's fraction R1/(R1+R2).
 func (l Limiter) drive() float64 { return l.R1 / (l.R1 + l.R2) }
 
-// Drop is i·Rsh plus the pass FET's drop, solved in closed form. With
-// v' = vin − i·Rsh at the FET's pack-side terminal and the gate at
-// (1 − k)·(v' − d), k = R1/(R1+R2), the square law (see channelDrop)
-// gives i·A = (k·v' − Vth)·d + (1/2 − k)·d²: c = k − 1/2, b = k·v' − Vth,
-// and the channel pinches off at d = b/k, i·A = b²/(2k²). The PNP is off
-// below the limit. Drop does not clamp: above Limit().Clamp the caller
-// must take the load voltage as collapsed.
+// Drop is the blocking FET's drop, i·Rsh and the pass FET's drop, each in
+// closed form (see channelDrop for the law).
+//
+// The blocking FET is PMOS: c = 1/2, b1 = vin − Vth, its body diode in
+// parallel. The pass FET's source sits at vs = vin − d1 − i·Rsh, on the
+// pack side, and the divider holds its gate k·vs below that, so the
+// Shichman–Hodges law from the source reads i·A = (k·vs − Vth)·d − d²/2:
+// c = 1/2, b2 = k·vs − Vth, pinch-off at d = b2, i·A = b2²/2. Its body
+// diode points back towards the pack and never helps. When the pass
+// channel is off (b2 ≤ 0) or cannot carry i (it saturates: a FET at fixed
+// |Vgs| passes at most K·(|Vgs| − Vth)²/2), no operating point at i exists;
+// the drop is then max(vin, d1 + i·Rsh), all the voltage there is, so that
+// the caller sees the load voltage collapse. The PNP is off below the
+// limit. The divider's current, which passes the blocking FET and Rsh but
+// not the pass FET, is left out (2.7 µA against the load's current). Drop
+// does not clamp: above Limit().Clamp the caller must take the load
+// voltage as collapsed.
 func (l Limiter) Drop(i, vin, tempC float64) float64 {
 	if !(i > 0) {
 		return 0
 	}
-	k := l.drive()
-	vs := i * l.Rsh
-	b := k*(vin-vs) - l.Vth
-	return vs + channelDrop(i*l.slope(), b, k-0.5, b*b/(2*k*k), l.Body.Drop(i, tempC))
+	ia := i * l.slope()
+	b1 := vin - l.Vth
+	up := channelDrop(ia, b1, 0.5, 0.5*b1*b1, l.Body.Drop(i, tempC)) + i*l.Rsh // d1 + i·Rsh
+	b2 := l.drive()*(vin-up) - l.Vth
+	if !(b2 > 0) || ia > 0.5*b2*b2 {
+		return math.Max(vin, up)
+	}
+	return up + channelDrop(ia, b2, 0.5, 0.5*b2*b2, math.Inf(1))
 }
 
-// Quiescent is the gate divider's current vin/(R1+R2).
+// Quiescent is the gate divider's current vin/(R1+R2). The divider hangs
+// from the pass FET's source, which with no load current sits at vin;
+// under load it sits d1 + i·Rsh lower, so the true drain is smaller by
+// that drop's share of vin (0.3 µA of 2.7 µA at 0.3 A from 3 V), a
+// negligible overstatement beside the load.
 func (l Limiter) Quiescent(vin, tempC float64) float64 {
 	if vin > 0 {
 		return vin / (l.R1 + l.R2)
@@ -123,12 +156,19 @@ func (l Limiter) Warnings(op Operating) []string {
 			break
 		}
 	}
-	w = appendOff(w, l.FET, op)
+	if op.VFresh > l.VgsMax {
+		w = append(w, "the fresh pack's "+units.Human(op.VFresh, units.Voltage, 3)+" exceeds the blocking FET's gate-source limit of ±"+
+			units.Human(l.VgsMax, units.Voltage, 3)+": the gate oxide may fail")
+	}
+	if g := l.drive() * op.VFresh; op.VFresh > 0 && g <= l.Vth {
+		w = append(w, "the gate divider gives only "+units.Human(g, units.Voltage, 3)+" of gate drive from a fresh pack, not above the "+
+			units.Human(l.Vth, units.Voltage, 3)+" threshold: the pass FET never turns on and nothing reaches the load")
+	}
 	return appendHeat(w, l.Thermal(), op)
 }
 
 func (l Limiter) Reverse(p Pack) Reversal {
-	return blockedReverse(l, p, l.Body.Saturation(p.TempC), "the pass FET's gate sits above its source, its channel is off and its body diode is reverse-biased")
+	return blockedReverse(l, p, l.Body.Saturation(p.TempC), "the blocking FET's gate sits above its source, its channel is off and its body diode is reverse-biased")
 }
 
 func (l *Limiter) fields() []field {

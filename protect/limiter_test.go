@@ -48,22 +48,86 @@ func TestLimiterTemperature(t *testing.T) {
 	}
 }
 
-// Below the limit the drop is I·(Rsh + Rch) (DESIGN §3), Rch at the gate
-// drive the divider gives: at small current Rch → Ron·(Vref − Vth)/(k·v' −
-// Vth), v' = vin − I·Rsh at the FET. At 1 mA the channel's own drop
-// (86 µV) shifts Rch by (k − 1/2)·d/b ≈ 1.8e-5, which is 1.5e-6 of the
-// whole drop; we compare to 1e-5.
+// Below the limit the drop is I·Rsh plus the two channels' drops (DESIGN §3
+// names I·(Rsh + Rch) for the one-FET sketch; the circuit has two FETs in
+// the rail). At small current each channel is its rated law at the gate
+// drive it sees: the blocking FET's |Vgs| is the pack's vin (gate to
+// ground), the pass FET's is k·(vin − I·Rsh) from the divider. At 1 mA from
+// 3 V the channels' own drops (76 µV and 86 µV) shift those by d1/(2·b1)
+// and (k·d1 + d2/2)/b2, which adds up to 5.4e-6 of the whole drop (worked
+// by hand from the Shichman–Hodges law); we compare to 1e-5.
 func TestLimiterNormalDrop(t *testing.T) {
 	l := DefaultLimiter()
 	i, vin := 1e-3, 3.0
 	k := l.R1 / (l.R1 + l.R2)
-	want := i * (l.Rsh + l.Channel(k*(vin-i*l.Rsh)))
+	want := i * (l.Rsh + l.Channel(vin) + l.Channel(k*(vin-i*l.Rsh)))
 	if got := l.Drop(i, vin, 25); math.Abs(got/want-1) > 1e-5 {
-		t.Errorf("drop %g V, want I·(Rsh + Rch) = %g V", got, want)
+		t.Errorf("drop %g V, want I·(Rsh + Rch1 + Rch2) = %g V", got, want)
 	}
 	// The divider draws vin/(R1 + R2): 3 V / 1.1 MΩ, exact to rounding.
 	if q := l.Quiescent(3, 25); math.Abs(q-3/1.1e6) > 1e-18 {
 		t.Errorf("divider drain %g A, want %g A", q, 3/1.1e6)
+	}
+}
+
+// The closed form must solve the two laws it claims to (exact algebra, so
+// 1e-9 relative: a few roundings of sums of order 1): the blocking FET is
+// PMOS to the last bit of its expression, and the pass FET's drop d2
+// solves (k·vs − Vth)·d2 − d2²/2 = i·A with vs = vin − d1 − i·Rsh. Where
+// the pass channel is off or saturated the drop is at least vin (no
+// operating point; Element contract). The drop must rise with current
+// everywhere (contract) and fall with input voltage wherever the load
+// gets any.
+func TestLimiterDropLaws(t *testing.T) {
+	l := DefaultLimiter()
+	pm := PMOS{FET: l.FET}
+	a, k := l.slope(), l.drive()
+	carried := 0
+	for _, vin := range []float64{0.3, 0.9, 1.2, 1.5, 1.9, 2.4, 3, 4.5, 6, 9, 13.5} {
+		for _, i := range []float64{1e-6, 1e-3, 0.05, 0.3, 1, 3, 10} {
+			d := l.Drop(i, vin, 25)
+			up := pm.Drop(i, vin, 25) + i*l.Rsh
+			b2 := k*(vin-up) - l.Vth
+			if b2 > 0 && i*a <= b2*b2/2 {
+				carried++
+				d2 := d - up
+				if r := b2*d2 - d2*d2/2 - i*a; math.Abs(r) > 1e-9*i*a {
+					t.Errorf("%g V %g A: pass FET law residual %g", vin, i, r)
+				}
+				if !(d < vin) {
+					t.Errorf("%g V %g A: drop %g V leaves nothing for the load while the channel carries", vin, i, d)
+				}
+			} else if d < vin {
+				t.Errorf("%g V %g A: pass channel off or saturated, yet drop %g V is below vin", vin, i, d)
+			}
+			if l.Drop(i*1.01, vin, 25) < d {
+				t.Errorf("%g V: drop falls as current rises past %g A", vin, i)
+			}
+			if d2 := l.Drop(i, vin*1.01, 25); d < vin && d2 > d+1e-15 {
+				t.Errorf("%g A: drop rises as input rises past %g V", i, vin)
+			}
+		}
+	}
+	// Both branches must be exercised for the test to mean anything.
+	if carried < 20 || carried > 70 {
+		t.Errorf("%d of 77 points carried by the pass channel; the grid no longer tests both branches", carried)
+	}
+}
+
+// A fresh single alkaline cell (1.5 V) cannot run a 300 mA load through
+// the limiter: the divider gives the pass FET about k·1.13 V = 1.02 V of
+// gate drive, 0.22 V over its threshold, and at that drive it saturates at
+// K·0.22²/2 ≈ 0.15 A (Shichman–Hodges). A 2×AA pack (3 V) passes it.
+func TestLimiterPassSaturates(t *testing.T) {
+	l := DefaultLimiter()
+	if d := l.Drop(0.3, 1.5, 25); d < 1.5 {
+		t.Errorf("300 mA from 1.5 V: drop %g V, want the load collapsed (≥ 1.5 V)", d)
+	}
+	if d := l.Drop(0.1, 1.5, 25); !(d < 1.5) {
+		t.Errorf("100 mA from 1.5 V: drop %g V, want the channel to carry it", d)
+	}
+	if d := l.Drop(0.3, 3, 25); !(d < 0.5) {
+		t.Errorf("300 mA from 3 V: drop %g V, want about 0.34 V", d)
 	}
 }
 
@@ -92,5 +156,25 @@ func TestLimiterShortCircuit(t *testing.T) {
 	l = DefaultLimiter()
 	if w := l.Warnings(Operating{VFresh: 3, Currents: []float64{0.1, 0.9}, TempC: 25}); !strings.Contains(strings.Join(w, "|"), "collapses") {
 		t.Errorf("no limit warning for a 0.9 A phase in %q", w)
+	}
+}
+
+// Gate warnings for the two FETs: the blocking FET sees the whole fresh
+// pack as |Vgs| (9×AA, 13.5 V, is above the default ±12 V), and the pass
+// FET gets k·VFresh, so a 0.85 V pack (k·0.85 = 0.77 V) leaves it below its
+// 0.8 V threshold. Thresholds are the defaults' (from memory); the checks
+// are on which warning appears, not on numbers.
+func TestLimiterWarnings(t *testing.T) {
+	l := DefaultLimiter()
+	l.Rsh = 39 // 17 mA limit: no short-circuit warning to confuse
+	has := func(w []string, s string) bool { return strings.Contains(strings.Join(w, "|"), s) }
+	if w := l.Warnings(Operating{VFresh: 13.5, Currents: []float64{0.01}, TempC: 25}); !has(w, "blocking FET's gate-source limit") {
+		t.Errorf("13.5 V: no blocking-FET gate warning in %q", w)
+	}
+	if w := l.Warnings(Operating{VFresh: 3, Currents: []float64{0.01}, TempC: 25}); len(w) != 0 {
+		t.Errorf("3 V: unexpected warnings %q", w)
+	}
+	if w := l.Warnings(Operating{VFresh: 0.85, Currents: []float64{0.01}, TempC: 25}); !has(w, "never turns on") {
+		t.Errorf("0.85 V: no pass-FET threshold warning in %q", w)
 	}
 }

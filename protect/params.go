@@ -152,7 +152,7 @@ var kinds = []kindInfo{
 		def: func() settable { d := DefaultPMOS(); return &d }, main: "vth", lo: 0.3, hi: 3},
 	{name: "pmos-clamp", describe: "P-channel MOSFET with a Zener gate clamp: reverse blocking for packs above the gate-source limit, with a standing drain",
 		def: func() settable { d := DefaultPMOSClamp(); return &d }, main: "vz", lo: 2.4, hi: 18},
-	{name: "limiter", describe: "shunt and PNP current limiter driving a pass P-MOSFET: blocks reversed cells and limits a short's current",
+	{name: "limiter", describe: "reverse-blocking P-MOSFET, then a shunt and PNP current limiter on a second, pass P-MOSFET: blocks reversed cells and limits a short's current",
 		def: func() settable { d := DefaultLimiter(); return &d }, main: "rsh", lo: 0.1, hi: 100, log: true},
 	{name: "pptc", describe: "polyfuse: opens on over-current and resets when cool; does not block reversed cells",
 		def: func() settable { d := DefaultPPTC(); return &d }, derive: derivePPTC, main: "hold", lo: 0.05, hi: 3, log: true},

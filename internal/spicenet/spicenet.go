@@ -16,8 +16,8 @@
 //   - the protection element as ngspice's own devices: a diode model with
 //     the element's IS, N, RS, EG, XTI; a level-1 PMOS with KP·W/L matching
 //     the rated on-resistance plus a separate body diode; the current
-//     limiter as its discrete circuit (sense resistor, PNP, pass PMOS,
-//     gate divider);
+//     limiter as its discrete circuit (a reverse-blocking PMOS, then the
+//     sense resistor, PNP, pass PMOS turned the other way, gate divider);
 //   - the load as a behavioural current source following its law, switched
 //     between the phases of a pulsed profile by periodic PWL selectors.
 //
@@ -246,31 +246,53 @@ func diodeModel(name string, s protect.Shockley) string {
 }
 
 // LimiterOnCurrent is the PNP collector current, amperes, at which the
-// limiter circuit is taken to begin clamping: with the load collapsed the
-// PNP must lift the pass FET's gate by about 2 V against the 100 kΩ gate
-// resistor, some 20 µA. The PNP's IS is chosen so that it carries this at
-// the engine's Vbe(T); since Ic grows e-fold per 26 mV, a factor of two
-// error here moves the clamp by Vt·ln 2 ≈ 18 mV of 0.65 V, under 3 %.
-const LimiterOnCurrent = 20e-6
+// limiter circuit is taken to begin clamping. At the clamp the pass FET is
+// saturated at Ilim, so its |Vgs| is Vth + sqrt(2·Ilim/K), 1.26 V for the
+// default part at 0.65 A; from a fresh 2×AA pack its source sits near
+// 2.27 V, its gate near 1.01 V, and the PNP must feed R2's 10.1 µA less
+// R1's 1.3 µA: about 9 µA (more from a bigger pack, some 23 µA from 3×AA).
+// The PNP's IS is chosen so that it carries 10 µA at the engine's Vbe(T);
+// since Ic grows e-fold per 26 mV, a factor of two error here moves the
+// clamp by Vt·ln 2 ≈ 18 mV of 0.65 V, under 3 % (measured with 2×AA: the
+// circuit clamps at 0.643 A, 0.5 % below Vbe/Rsh).
+const LimiterOnCurrent = 10e-6
 
-// writeLimiter writes the discrete current limiter: Rsh from the pack to
-// the pass FET, a PNP with its emitter on the pack side of Rsh, its base on
-// the FET side and its collector on the FET's gate, and the divider R1
-// (FET source, load side, to gate) and R2 (gate to ground). The engine's
-// limiter is the idealised form of this circuit: it passes any current
-// below Vbe/Rsh untouched and none above; the PNP here starts to conduct
-// gradually, which the tests allow for.
+// writeLimiter writes the discrete current limiter as two P-channel
+// MOSFETs in the rail (protect.Limiter):
+//
+//   - the blocking FET, as PMOS: drain at the pack (a), gate to ground,
+//     source and bulk at n, body diode from a to n (pack to load);
+//   - Rsh from n to m, and a PNP with its emitter at n (pack side of Rsh),
+//     its base at m and its collector on the pass FET's gate gt;
+//   - the pass FET turned the other way: source and bulk at m (pack side),
+//     drain at the load ld, body diode from ld to m (load to pack), so
+//     that with its channel off no forward current passes;
+//   - the divider R1 (m to gt) and R2 (gt to ground);
+//   - 100 MΩ from the load node to ground. Once the pass FET saturates
+//     at the clamp, the load node hangs between two near-ideal current
+//     sinks (the saturated channel and the constant-current load well
+//     above its guard) and ngspice's Newton iteration stalls at the
+//     pulse edge ("timestep too small", measured with ngspice 39); the
+//     resistor gives the node a path to ground and draws 30 nA from 3 V,
+//     1e-7 of a 300 mA load.
+//
+// The engine's limiter is the idealised form of this circuit: it passes
+// any current below Vbe/Rsh untouched and none above; the PNP here starts
+// to conduct gradually, which the tests allow for.
 func writeLimiter(b *strings.Builder, l protect.Limiter, tempC float64) {
 	vt := protect.ThermalVoltage(protect.NominalK)
 	is := LimiterOnCurrent * math.Exp(-l.VbeAt(tempC)/vt)
-	fmt.Fprintf(b, "Rsh a m %s\n", g(l.Rsh))
-	b.WriteString("Qlim gt m a qlim temp=27\n")
+	b.WriteString("Mblk a 0 n n pser W=1u L=1u temp=27\n")
+	b.WriteString("Dblk a n dbody\n")
+	fmt.Fprintf(b, "Rsh n m %s\n", g(l.Rsh))
+	b.WriteString("Qlim gt m n qlim temp=27\n")
 	fmt.Fprintf(b, ".model qlim PNP(IS=%s BF=100)\n", g(is))
-	b.WriteString("Mser m gt ld ld pser W=1u L=1u temp=27\n")
+	b.WriteString("Mpass ld gt m m pser W=1u L=1u temp=27\n")
+	b.WriteString("Dpass ld m dbody\n")
 	b.WriteString(fetModel("pser", l.FET))
-	b.WriteString("Dbody m ld dbody\n")
 	b.WriteString(diodeModel("dbody", l.Body))
-	fmt.Fprintf(b, "R1 ld gt %s\nR2 gt 0 %s\n", g(l.R1), g(l.R2))
+	fmt.Fprintf(b, "R1 m gt %s\nR2 gt 0 %s\n", g(l.R1), g(l.R2))
+	b.WriteString("Rld ld 0 100e6\n")
 }
 
 // loadExpr returns the load current's expression in v(ld) (through the
