@@ -111,7 +111,15 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 		pin := l.InputPower()
 		if pin > 0 {
 			var ok bool
-			i, ok = powerPoint(vload, pin, E, e.hint[k])
+			// Behind an element whose drop jumps (a MOSFET handing over
+			// to its body diode) i·vload(i) is not concave and meets pin
+			// twice; a warm start from the upper branch would find the
+			// upper root. Only the element-free source is always concave.
+			hint := e.hint[k]
+			if _, none := v.el.(protect.None); !none {
+				hint = 0
+			}
+			i, ok = powerPoint(vload, pin, E, hint)
 			if ok {
 				e.hint[k] = i
 			} else {
