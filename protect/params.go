@@ -22,6 +22,9 @@ type field struct {
 	lo, hi float64 // allowed range; hi may be +Inf
 	loOpen bool    // the value must be above lo, not merely at least lo
 	what   string  // what the value is, for error messages
+	// least, when above 0, is the smallest value the models can work
+	// with; a value in range but below it is refused too.
+	least float64
 }
 
 // settable is an element whose parameters can be listed and set: a
@@ -95,6 +98,10 @@ func (f field) validate(kind string) error {
 	if !f.inRange(*f.p) {
 		return fmt.Errorf("protect: %s: key %q: %s is out of range: expected %s %s",
 			kind, f.key, strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, f.rangeText())
+	}
+	if f.least > 0 && *f.p < f.least {
+		return fmt.Errorf("protect: %s: key %q: %s is too small: expected %s of at least %s",
+			kind, f.key, strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, units.Format(f.least, f.kind))
 	}
 	return nil
 }
@@ -403,7 +410,8 @@ func thermalFields(theta, tjmax *float64) []field {
 // prefix ("" for a diode, "b" for a MOSFET's body diode).
 func shockleyFields(prefix string, s *Shockley) []field {
 	return []field{
-		{key: prefix + "is", kind: units.Current, p: &s.Is, lo: 0, hi: 1, loOpen: true, what: "the saturation current"},
+		// Below 1e-30 A, i/Is(T) overflows and the drop is infinite.
+		{key: prefix + "is", kind: units.Current, p: &s.Is, lo: 0, hi: 1, loOpen: true, what: "the saturation current", least: 1e-30},
 		{key: prefix + "n", kind: plain, p: &s.N, lo: 0.5, hi: 4, what: "the ideality factor"},
 		{key: prefix + "rs", kind: units.Resistance, p: &s.Rs, lo: 0, hi: 1000, what: "the series resistance"},
 		{key: prefix + "eg", kind: plain, p: &s.Eg, lo: 0.1, hi: 3, what: "the activation energy in eV"},
