@@ -95,6 +95,9 @@ func (c *Curve) At(q float64) float64 {
 		return c.v[n-1]
 	}
 	i := sort.SearchFloat64s(c.q, q) // c.q[i-1] < q <= c.q[i]
+	if q == c.q[i] {
+		return c.v[i] // exact at a point: the formula below can miss by an ulp
+	}
 	t := (q - c.q[i-1]) / (c.q[i] - c.q[i-1])
 	return c.v[i-1] + t*(c.v[i]-c.v[i-1])
 }
