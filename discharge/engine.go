@@ -116,10 +116,14 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 			// twice; a warm start from the upper branch would find the
 			// upper root. Only the element-free source is always concave.
 			hint := e.hint[k]
-			if _, none := v.el.(protect.None); !none {
+			_, none := v.el.(protect.None)
+			if !none {
 				hint = 0
 			}
 			i, ok = powerPoint(vload, pin, E, hint)
+			if !ok && !none {
+				i, ok = scanPower(vload, pin, i)
+			}
 			if ok {
 				e.hint[k] = i
 			} else {
@@ -239,6 +243,30 @@ func powerPoint(vload func(float64) float64, pin, E, i0 float64) (float64, bool)
 		}
 	}
 	return newtonPower(vload, pin, E, 0)
+}
+
+// scanPower looks again for the lowest current at which i·vload(i) = pin
+// after Newton gave up at current at: behind an element whose drop jumps
+// the product is not concave, and Newton can stop at a false peak or at
+// the jump. It scans from zero to where the load voltage runs out and
+// brackets the first crossing; false when there is none (a collapse).
+func scanPower(vload func(float64) float64, pin, at float64) (float64, bool) {
+	hi := math.Max(at, 1e-9)
+	for k := 0; k < 60 && vload(hi) > 0; k++ {
+		hi *= 2
+	}
+	const n = 128
+	P := func(x float64) float64 { return x*vload(x) - pin }
+	lo, flo := 0.0, -pin
+	for j := 1; j <= n; j++ {
+		x := hi * float64(j) / n
+		fx := P(x)
+		if fx >= 0 {
+			return bracketRootF(P, lo, x, flo, fx), true
+		}
+		lo, flo = x, fx
+	}
+	return at, false
 }
 
 // newtonPower is powerPoint's Newton iteration from current i.
