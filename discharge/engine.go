@@ -695,6 +695,16 @@ func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, buf []
 		r.Trace[k] = tp
 	}
 	if n > 1 {
+		// The trace and the runtime integrate over different spans; where
+		// the integrand has a corner between breakpoints (an LED going
+		// dark) they differ by a few per cent. Scale the trace onto the
+		// runtime so that it ends there and still moves forward in time.
+		if last := r.Trace[n-1].Hours; last > 0 {
+			k := r.RuntimeH / last
+			for j := range r.Trace {
+				r.Trace[j].Hours *= k
+			}
+		}
 		r.Trace[n-1].Hours = r.RuntimeH
 	}
 }
