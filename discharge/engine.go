@@ -612,15 +612,29 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 	}
 	var cal, loadWh, protWh, cellWh, stby, self float64
 	peak := 0.0
-	span := func(a, b float64) float64 { // returns calendar hours on [a, b]
+	nodes := make([]rates, len(e.gx))
+	var span func(a, b float64, depth int) float64
+	span = func(a, b float64, depth int) float64 { // returns calendar hours on [a, b]
 		if b <= a {
 			return 0
 		}
-		h := 0.0
 		half, mid := 0.5*(b-a), 0.5*(a+b)
 		for j, x := range e.gx {
-			q := mid + half*x
-			rt := e.rates(q, v, buf)
+			nodes[j] = e.rates(mid+half*x, v, buf)
+		}
+		// Between breakpoints the integrand is smooth unless an operating
+		// point jumps: a MOSFET running out of gate drive hands the current
+		// to its body diode, a limiter's pass FET saturates. A fixed rule
+		// across such a jump errs by up to the jump times the node spacing,
+		// so a span whose samples look like a step (one gap between
+		// neighbouring nodes holding most of the span's change) is halved
+		// until the step is pinned down.
+		if depth < maxSplit && stepLike(nodes) {
+			return span(a, mid, depth+1) + span(mid, b, depth+1)
+		}
+		h := 0.0
+		for j := range e.gx {
+			rt := &nodes[j]
 			dt := e.gw[j] * half * scale / rt.calendar // hours per node
 			h += dt
 			loadWh += rt.loadW * dt
@@ -635,10 +649,10 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 	prev := 0.0
 	for _, b := range e.breaks[1:] {
 		if b >= qsCut {
-			cal += span(prev, qsCut)
+			cal += span(prev, qsCut, 0)
 			break
 		}
-		cal += span(prev, b)
+		cal += span(prev, b, 0)
 		prev = b
 	}
 	// The element's peak dissipation can sit at either end of the run.
@@ -662,6 +676,27 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 	if d.TracePoints > 1 && qsCut > 0 {
 		e.trace(v, qsCut, scale, f, r, buf)
 	}
+}
+
+// maxSplit bounds how often a span with a step in it is halved: 2⁻¹⁶ of a
+// span pins a step to well under 1e-4 of the runtime.
+const maxSplit = 16
+
+// stepLike reports whether the integrand 1/calendar sampled at the nodes
+// (in increasing charge) changes mostly across one gap: the mark of a jump,
+// not of a smooth curve, whose change spreads over several gaps.
+func stepLike(nodes []rates) bool {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	maxGap := 0.0
+	for j := range nodes {
+		g := 1 / nodes[j].calendar
+		lo, hi = math.Min(lo, g), math.Max(hi, g)
+		if j > 0 {
+			maxGap = math.Max(maxGap, math.Abs(g-1/nodes[j-1].calendar))
+		}
+	}
+	spread := hi - lo
+	return spread > 1e-9*hi && maxGap > 0.6*spread
 }
 
 // trace samples the voltages at evenly spaced charges, integrating the
