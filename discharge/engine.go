@@ -613,6 +613,7 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 	var cal, loadWh, protWh, cellWh, stby, self float64
 	peak := 0.0
 	nodes := make([]rates, len(e.gx))
+	splits := 0
 	var span func(a, b float64, depth int) float64
 	span = func(a, b float64, depth int) float64 { // returns calendar hours on [a, b]
 		if b <= a {
@@ -629,7 +630,8 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 		// so a span whose samples look like a step (one gap between
 		// neighbouring nodes holding most of the span's change) is halved
 		// until the step is pinned down.
-		if depth < maxSplit && stepLike(nodes) {
+		if depth < maxSplit && splits < maxSplits && stepLike(nodes) {
+			splits++
 			return span(a, mid, depth+1) + span(mid, b, depth+1)
 		}
 		h := 0.0
@@ -682,21 +684,45 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 // span pins a step to well under 1e-4 of the runtime.
 const maxSplit = 16
 
-// stepLike reports whether the integrand 1/calendar sampled at the nodes
-// (in increasing charge) changes mostly across one gap: the mark of a jump,
-// not of a smooth curve, whose change spreads over several gaps.
+// maxSplits bounds the halvings in one evaluation, whatever the integrand
+// does: a few steps pinned to 2⁻¹⁶ each.
+const maxSplits = 96
+
+// stepLike reports whether the samples at the nodes (in order of charge)
+// change mostly across one gap — the mark of a jump, not of a smooth curve,
+// whose change spreads over several gaps — in the integrand 1/calendar or
+// in the power into the element or the load (a jump in one phase can hide
+// in the sum of the currents but not in the element's heat).
 func stepLike(nodes []rates) bool {
-	lo, hi := math.Inf(1), math.Inf(-1)
-	maxGap := 0.0
+	// The powers are judged against the total power, so rounding noise in
+	// a near-zero element loss (no element) never looks like a step.
+	power := 0.0
 	for j := range nodes {
-		g := 1 / nodes[j].calendar
-		lo, hi = math.Min(lo, g), math.Max(hi, g)
+		power = math.Max(power, math.Abs(nodes[j].loadW)+math.Abs(nodes[j].protW))
+	}
+	return steppy(nodes, 0, func(r *rates) float64 { return 1 / r.calendar }) ||
+		steppy(nodes, power, func(r *rates) float64 { return r.protW }) ||
+		steppy(nodes, power, func(r *rates) float64 { return r.loadW })
+}
+
+// steppy is stepLike for one quantity; changes below 1e-9 of scale (or of
+// the quantity itself when scale is 0) count as no change.
+func steppy(nodes []rates, scale float64, g func(*rates) float64) bool {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	maxGap, prev := 0.0, 0.0
+	for j := range nodes {
+		x := g(&nodes[j])
+		lo, hi = math.Min(lo, x), math.Max(hi, x)
 		if j > 0 {
-			maxGap = math.Max(maxGap, math.Abs(g-1/nodes[j-1].calendar))
+			maxGap = math.Max(maxGap, math.Abs(x-prev))
 		}
+		prev = x
+	}
+	if scale == 0 {
+		scale = math.Max(math.Abs(hi), math.Abs(lo))
 	}
 	spread := hi - lo
-	return spread > 1e-9*hi && maxGap > 0.6*spread
+	return spread > 1e-9*scale && maxGap > 0.6*spread
 }
 
 // trace samples the voltages at evenly spaced charges, integrating the
