@@ -147,7 +147,10 @@ func cutoffWords(r *discharge.Result, prof []discharge.Phase, floor float64) str
 		}
 		return "resets on " + what + at
 	case discharge.CauseCollapse:
-		return "the pack can no longer supply the power of " + what + ": the converter's input collapses"
+		if ph != nil && ph.Load.Kind == discharge.ConstantPower {
+			return "the pack can no longer supply the power of " + what + ": the converter's input collapses"
+		}
+		return "the pack cannot push the current of " + what + ": its voltage collapses"
 	case discharge.CauseLimit:
 		return "the protection's current limit cuts " + what + " (it wants " + amps + ")"
 	case discharge.CauseFuse:

@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"math"
 	"sort"
 	"strings"
 
@@ -250,7 +251,7 @@ func compareColumns(withBudget bool) []column[compareRow] {
 				}
 				return sig(r.perYear, 3) + " packs"
 			},
-			val: func(r compareRow) any { return r.perYear }},
+			val: func(r compareRow) any { return orNaN(r.r.RuntimeH, r.perYear) }},
 		{key: "cost_per_hour", head: "$/h", right: true, human: true, machine: true,
 			text: func(r compareRow) string {
 				if r.r.RuntimeH == 0 {
@@ -258,7 +259,7 @@ func compareColumns(withBudget bool) []column[compareRow] {
 				}
 				return money(r.r.CostPerHour)
 			},
-			val: func(r compareRow) any { return r.r.CostPerHour }},
+			val: func(r compareRow) any { return orNaN(r.r.RuntimeH, r.r.CostPerHour) }},
 		{key: "cost_per_year", head: "$/year", right: true, human: true, machine: true,
 			text: func(r compareRow) string {
 				if r.r.RuntimeH == 0 {
@@ -266,7 +267,7 @@ func compareColumns(withBudget bool) []column[compareRow] {
 				}
 				return money(r.costPerYear)
 			},
-			val: func(r compareRow) any { return r.costPerYear }},
+			val: func(r compareRow) any { return orNaN(r.r.RuntimeH, r.costPerYear) }},
 		num("stranded_pct", "stranded %", 1, func(r compareRow) float64 { return strandedPct(r.r) }),
 		{key: "pack_price", machine: true, val: func(r compareRow) any { return r.r.PackPrice }},
 		{key: "pack_and_protection", head: "pack+part", right: true, human: true, machine: true,
@@ -288,4 +289,13 @@ func compareColumns(withBudget bool) []column[compareRow] {
 			text: func(r compareRow) string { return shortCaution(r.cell) }, val: func(r compareRow) any { return shortCaution(r.cell) }},
 	)
 	return cols
+}
+
+// orNaN gives v, or NaN (written as null in JSON, empty in CSV) when the
+// design never runs and a per-hour or per-year figure means nothing.
+func orNaN(runtimeH, v float64) float64 {
+	if runtimeH <= 0 {
+		return math.NaN()
+	}
+	return v
 }

@@ -142,7 +142,7 @@ func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) [
 		{"standby_mAh", "standby drain (mAh)", r.StandbyMAh},
 		{"self_discharge_mAh", "self-discharge (mAh)", r.SelfDischargeMAh},
 		{"standby_share_pct", "standby and self-discharge (% of delivered)", 100 * r.StandbyShare},
-		{"cost_per_hour", "cost per hour of use ($/h)", r.CostPerHour},
+		{"cost_per_hour", "cost per hour of use ($/h)", orNaN(r.RuntimeH, r.CostPerHour)},
 		{"cutoff_phase", "cut-off phase", r.CutoffPhase},
 		{"cutoff_cause", "cut-off cause", string(r.CutoffCause)},
 		{"cutoff_load_V", "load voltage at cut-off (V)", r.CutoffLoadV},
@@ -202,7 +202,10 @@ func cutoffWords(d *discharge.Design, r *discharge.Result) string {
 			return fmt.Sprintf("does not start: the load voltage on %s is below the %s V floor", ph, short(d.Floor))
 		}
 	case discharge.CauseCollapse:
-		s = fmt.Sprintf("the converter's input collapses on %s: the pack cannot deliver its power", ph)
+		s = fmt.Sprintf("the pack's voltage collapses on %s: it cannot push that current", ph)
+		if d.CutoffIsPower(r) {
+			s = fmt.Sprintf("the converter's input collapses on %s: the pack cannot deliver its power", ph)
+		}
 	case discharge.CauseLimit:
 		s = fmt.Sprintf("the element's current limit clamps %s at %s", ph, human(r.CutoffAmps, units.Current))
 	case discharge.CauseFuse:
@@ -285,7 +288,11 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	line("element", "%s Wh burnt in it; peak %s W, junction %s °C", sig(r.ProtectionLossWh, 3), sig(r.ProtectionPeakW, 3), fixed(r.JunctionC, 0))
 	line("cells", "%s Wh burnt in their internal resistance", sig(r.CellLossWh, 3))
 	line("standby", "%s %% of the charge goes to standby drain and self-discharge", fixed(100*r.StandbyShare, 1))
-	line("cost", "%s per hour of use", money(r.CostPerHour))
+	if r.RuntimeH > 0 {
+		line("cost", "%s per hour of use", money(r.CostPerHour))
+	} else {
+		line("cost", "— per hour of use: the product does not run")
+	}
 	line("cut-off", "%s", cutoffWords(d, r))
 	list := func(title string, xs []string) {
 		if len(xs) == 0 {

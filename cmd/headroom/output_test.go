@@ -180,14 +180,19 @@ func TestCompare(t *testing.T) {
 	// run last.
 	prev, stopped := -1.0, false
 	for _, r := range rows {
-		rt, cost := r["runtime_h"].(float64), r["cost_per_hour"].(float64)
+		rt := r["runtime_h"].(float64)
 		if rt == 0 {
+			// A design that never runs has no cost per hour: null.
+			if r["cost_per_hour"] != nil {
+				t.Errorf("%s never runs but has cost_per_hour %v, want null", r["cell"], r["cost_per_hour"])
+			}
 			stopped = true
 			continue
 		}
 		if stopped {
 			t.Errorf("%s runs after a row that does not", r["cell"])
 		}
+		cost := r["cost_per_hour"].(float64)
 		if cost < prev {
 			t.Errorf("%s: cost %v after %v: not ranked", r["cell"], cost, prev)
 		}
@@ -240,9 +245,10 @@ func TestNoNaNOrInf(t *testing.T) {
 		}
 	}
 	m := runJSON(t, "run", "--cell", "cr2032", "--series", "1")
-	// Exact: a design that cannot start has no runtime and no cost.
-	if num(t, m, "runtime_h") != 0 || num(t, m, "cost_per_hour") != 0 {
-		t.Errorf("cr2032 under a 450 mA pulse: runtime %v, cost %v; want 0, 0", m["runtime_h"], m["cost_per_hour"])
+	// Exact: a design that cannot start has no runtime, and no cost per
+	// hour to speak of (null, as in table and compare).
+	if num(t, m, "runtime_h") != 0 || m["cost_per_hour"] != nil {
+		t.Errorf("cr2032 under a 450 mA pulse: runtime %v, cost %v; want 0, null", m["runtime_h"], m["cost_per_hour"])
 	}
 	if !strings.HasPrefix(m["cutoff_text"].(string), "does not start") {
 		t.Errorf("cutoff_text %q, want it to say the product does not start", m["cutoff_text"])
