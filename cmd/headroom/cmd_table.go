@@ -84,11 +84,12 @@ func rowOf(row scenario.Row) tableRow {
 	return t
 }
 
-// costKey sorts a design that never runs (cost per hour 0 because the
-// runtime is 0) after every design that does, however cheap.
+// costKey sorts a design that never runs (no cost per hour, its runtime
+// is 0) after every design that does, however cheap, in either direction:
+// NaN keys go last (see runTable).
 func costKey(r tableRow) float64 {
-	if r.runtimeH <= 0 || math.IsNaN(r.cost) {
-		return math.MaxFloat64
+	if r.runtimeH <= 0 {
+		return math.NaN()
 	}
 	return r.cost
 }
@@ -221,7 +222,8 @@ func runTable(c *cli, args []string) error {
 	sort.SliceStable(rows, func(i, j int) bool {
 		a, as := get(rows[i])
 		b, bs := get(rows[j])
-		// Invalid rows (NaN) go last whatever the direction.
+		// Invalid rows, and for cost those that never run (NaN), go last
+		// whatever the direction.
 		if an, bn := math.IsNaN(a), math.IsNaN(b); an || bn {
 			return !an && bn
 		}

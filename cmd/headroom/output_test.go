@@ -4,9 +4,13 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"math"
+	"os"
+	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
+
+	"headroom/internal/scenario"
 )
 
 // Golden files pin the four output formats for the built-in demo, so a
@@ -252,5 +256,54 @@ func TestNoNaNOrInf(t *testing.T) {
 	}
 	if !strings.HasPrefix(m["cutoff_text"].(string), "does not start") {
 		t.Errorf("cutoff_text %q, want it to say the product does not start", m["cutoff_text"])
+	}
+}
+
+// A design that never runs has no cost per hour: sorted by cost it goes
+// after every design that runs, descending as well as ascending. A floor of
+// 3.1 V stops the demo's 2×AA (3.15 V fresh, sagging on its 450 mA pulse)
+// before it starts, whatever the element, while 1.8 V lets most run.
+func TestTableCostSortNeverRunsLast(t *testing.T) {
+	demo := string(scenario.DemoTOML())
+	sweep := strings.Replace(demo, `floor = ["1.8V", "2.0V"]`, `floor = ["3.1V", "1.8V"]`, 1)
+	if sweep == demo {
+		t.Fatal("demo scenario has no floor sweep to replace")
+	}
+	path := filepath.Join(t.TempDir(), "sweep.toml")
+	if err := os.WriteFile(path, []byte(sweep), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, desc := range []bool{false, true} {
+		args := []string{"table", path, "--sort", "cost", "--format", "csv"}
+		if desc {
+			args = append(args, "--desc")
+		}
+		_, out, errs := runCLI(t, args...)
+		if errs != "" {
+			t.Fatalf("desc=%v: %s", desc, errs)
+		}
+		recs, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+		if err != nil {
+			t.Fatal(err)
+		}
+		col := indexOf(recs[0], "runtime_h")
+		stopped, runs := 0, 0
+		for _, r := range recs[1:] {
+			v, err := strconv.ParseFloat(r[col], 64)
+			if err != nil {
+				t.Fatalf("runtime_h %q: %v", r[col], err)
+			}
+			if v > 0 {
+				runs++
+				if stopped > 0 {
+					t.Fatalf("desc=%v: a design that runs comes after %d that never run", desc, stopped)
+				}
+			} else {
+				stopped++
+			}
+		}
+		if stopped == 0 || runs == 0 {
+			t.Fatalf("desc=%v: %d rows run, %d never run; the check needs both", desc, runs, stopped)
+		}
 	}
 }
