@@ -71,6 +71,9 @@ func TestErrorsNameTheLine(t *testing.T) {
 		{"zero series", "series = -1\n", "bad.toml:1: series:"},
 		{"unknown cell", "cell = \"aa-nope\"\n", `unknown cell "aa-nope"`},
 		{"bad protect", "protect = \"diode:zz=1\"\n", "bad.toml:1: protect:"},
+		// The design's own element, when the options list others, once
+		// named "protect:" twice.
+		{"bad design protect", "protect = \"diode:is=0\"\n[options]\nprotect = [\"none\"]\n", "bad.toml:1: protect: diode: key \"is\""},
 		{"bad load", "\nload = \"12 parsecs\"\n", "bad.toml:2: load:"},
 		{"zero phase", "[[phase]]\nload = \"10mA\"\nduration = \"0s\"\n", "[[phase]] 1: duration"},
 		{"binary", "\x00\x01\x02", "binary data"},
