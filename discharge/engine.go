@@ -66,6 +66,10 @@ type evaluator struct {
 	// gx and gw are the quadrature rule on [-1, 1]: gaussX and gaussW,
 	// or a finer rule in the convergence test.
 	gx, gw []float64
+	// duty is the share of the day in use, HoursPerDay/24 (1 for
+	// continuous use); self is the pack's self-discharge drain, mA. Both
+	// are fixed for the run and read at every quadrature node.
+	duty, self float64
 }
 
 // pack gives the pack's Thevenin source at scaled charge qs: E is the
@@ -461,6 +465,11 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		e.loads = append(e.loads, p.Load)
 	}
 	e.breaks = breakpoints(d.Cell)
+	e.duty = 1.0
+	if d.HoursPerDay > 0 {
+		e.duty = d.HoursPerDay / 24
+	}
+	e.self = e.selfDischarge()
 
 	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor}
 	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor}
@@ -565,10 +574,7 @@ func (e *evaluator) rates(qs float64, v *variant, buf []op) rates {
 	if qs >= e.end { // phases stopped before solving the pack
 		E, Rp, _ = e.pack(qs)
 	}
-	f := 1.0
-	if d.HoursPerDay > 0 {
-		f = d.HoursPerDay / 24
-	}
+	f := e.duty
 	var r rates
 	var use, loadW, protW, cellW float64
 	for j, o := range buf {
@@ -585,7 +591,7 @@ func (e *evaluator) rates(qs float64, v *variant, buf []op) rates {
 	iq := v.el.Quiescent(E, e.T)
 	idle := d.Standby + iq
 	r.standby = (1 - f) * idle * 1000
-	r.self = e.selfDischarge()
+	r.self = e.self
 	r.calendar = f*use*1000 + r.standby + r.self
 	r.loadW = f * loadW
 	r.protW = f*protW + (1-f)*E*iq
@@ -606,10 +612,7 @@ func (e *evaluator) selfDischarge() float64 {
 // the trace.
 func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf []op) {
 	d := e.d
-	f := 1.0
-	if d.HoursPerDay > 0 {
-		f = d.HoursPerDay / 24
-	}
+	f := e.duty
 	var cal, loadWh, protWh, cellWh, stby, self float64
 	peak := 0.0
 	nodes := make([]rates, len(e.gx))
