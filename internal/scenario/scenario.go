@@ -571,7 +571,7 @@ func CheckStandby(v float64) error {
 
 func CheckPrice(v float64) error {
 	if v < 0 || v > 1e6 {
-		return fmt.Errorf("price %v: must be 0 or more", v)
+		return fmt.Errorf("price %v: must be 0 or more and at most 1000000", v)
 	}
 	return nil
 }

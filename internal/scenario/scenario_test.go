@@ -88,6 +88,20 @@ func TestErrorsNameTheLine(t *testing.T) {
 	}
 }
 
+// A price above the check's ceiling is refused in words that say so (it
+// once said "must be 0 or more" of 2e6).
+func TestCheckPriceSaysItsRange(t *testing.T) {
+	for _, v := range []float64{-1, 2e6} {
+		err := CheckPrice(v)
+		if err == nil || !strings.Contains(err.Error(), "0 or more and at most 1000000") {
+			t.Errorf("CheckPrice(%v): %v, want the range 0 to 1000000", v, err)
+		}
+	}
+	if err := CheckPrice(1e6); err != nil {
+		t.Errorf("CheckPrice(1e6): %v, want it allowed", err)
+	}
+}
+
 func TestSweepRange(t *testing.T) {
 	s, err := Parse([]byte("[sweep]\nfloor = { from = \"1.6V\", to = \"2.4V\", step = \"0.1V\" }\n"), "r.toml", "")
 	if err != nil {
