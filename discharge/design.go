@@ -57,7 +57,7 @@ func (d *Design) Validate() error {
 	case !fin(d.TempC) || d.TempC < -40 || d.TempC > 85:
 		return fmt.Errorf("temperature: %v °C must be between -40 and 85 °C", d.TempC)
 	case !fin(d.HoursPerDay) || d.HoursPerDay < 0 || d.HoursPerDay > 24:
-		return fmt.Errorf("hours per day: %v must be above 0 and at most 24", d.HoursPerDay)
+		return fmt.Errorf("hours per day: %v must be between 0 (continuous use) and 24", d.HoursPerDay)
 	case !fin(d.Standby) || d.Standby < 0 || d.Standby > 10:
 		return fmt.Errorf("standby: %v A must be between 0 and 10 A", d.Standby)
 	case !fin(d.PackPrice) || d.PackPrice < 0:

@@ -532,9 +532,18 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	r.ReferenceMAh = qC
 
 	e.integrate(real, qsCut, scale, r, buf)
+	if !finite(r.RuntimeH) || !finite(r.DeliveredWh) || !finite(r.ProtectionLossWh) || !finite(r.CellLossWh) {
+		// The drain fell to nothing before any cut-off: a load of zero, or
+		// an LED below its forward voltage, with no standby and a cell with
+		// no self-discharge. Time to empty is unbounded; say so rather
+		// than print an infinite runtime.
+		return nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
+	}
 	e.priceAndNotes(el, r, buf)
 	return r, nil
 }
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // breakpoints are the scaled charges where the curve or the resistance
 // table has a corner, sorted, from 0 to the curve's end.

@@ -319,3 +319,20 @@ func resistive(d *Design) bool {
 	}
 	return false
 }
+
+// A design that draws nothing from a cell that never self-discharges has
+// no finite runtime: Evaluate must say so, not return +Inf or NaN.
+func TestNoDrainIsAnError(t *testing.T) {
+	for _, l := range []Load{
+		{Kind: ConstantCurrent, Amps: 0},
+		{Kind: ConstantPower, Watts: 0, Efficiency: 1},
+		{Kind: LED, Vf: 5, Ohms: 10}, // Vf above the 1.6 V cell: always dark
+	} {
+		d := &Design{Cell: linearCell(1.6, 0.8, 2000, 0.1), Series: 1, Parallel: 1,
+			Profile: []Phase{{Load: l, Seconds: 1}}, TempC: 20}
+		r, err := Evaluate(d)
+		if err == nil {
+			t.Errorf("%s: runtime %v h, want an error saying the pack is never run down", l.Label(), r.RuntimeH)
+		}
+	}
+}
