@@ -12,6 +12,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/protect"
 )
 
 // Saved is what a saved scenario holds: one design and its labels.
@@ -39,8 +40,8 @@ func Format(s Saved) []byte {
 	fmt.Fprintf(&b, "cell = %q\n", d.Cell.ID)
 	fmt.Fprintf(&b, "series = %d\nparallel = %d\n", d.Series, d.Parallel)
 	spec := s.ProtectSpec
-	if spec == "" && d.Protect != nil {
-		spec = d.Protect.Spec()
+	if d.Protect != nil {
+		spec = protect.Short(d.Protect) // only what differs from the kind's defaults
 	}
 	if spec == "" {
 		spec = "none"
