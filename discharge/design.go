@@ -142,16 +142,3 @@ type Result struct {
 	Cautions []string
 	Trace    []TracePoint
 }
-
-// CutoffIsPower reports whether the phase that ended the run is a
-// constant-power (converter) load, so that a collapse can be told in the
-// right words: a converter's input collapses, any other load simply asks
-// for more than the pack can push.
-func (d *Design) CutoffIsPower(r *Result) bool {
-	for _, p := range d.Profile {
-		if p.Label() == r.CutoffPhase {
-			return p.Load.Kind == ConstantPower
-		}
-	}
-	return false
-}

@@ -830,28 +830,10 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("standby drain and self-discharge take %.0f %% of the charge: the pack goes flat on the shelf", r.StandbyShare*100))
 	}
 	if r.RuntimeH == 0 {
-		r.Warnings = append(r.Warnings, "the product does not start: "+describeCause(r))
+		r.Warnings = append(r.Warnings, "the product "+d.CutoffText(r))
 	}
 	r.Cautions = append(r.Cautions, Cautions(c, d.Series*d.Parallel)...)
 }
-
-// describeCause says in words why the product stopped.
-func describeCause(r *Result) string {
-	switch r.CutoffCause {
-	case CauseFloor:
-		return fmt.Sprintf("the load voltage on %s falls to %.2f V, below the floor", r.CutoffPhase, r.CutoffLoadV)
-	case CauseCollapse:
-		return fmt.Sprintf("the pack cannot deliver what %s draws: its voltage collapses", r.CutoffPhase)
-	case CauseLimit:
-		return fmt.Sprintf("%s draws %.3g A, above the element's current limit", r.CutoffPhase, r.CutoffAmps)
-	case CauseFuse:
-		return fmt.Sprintf("%s draws %.3g A and the fuse opens", r.CutoffPhase, r.CutoffAmps)
-	}
-	return "the cells reach their end-point voltage"
-}
-
-// Describe says in words why the product stopped (for reports).
-func (r *Result) Describe() string { return describeCause(r) }
 
 // Cautions are the usual cautions for a pack of n cells of cell c: the
 // chemistry's own (curves.Cautions), without the mixing warning for a

@@ -99,80 +99,11 @@ func wrapAfter(s string, w, used int) string {
 	return strings.Join(lines, "\n"+strings.Repeat(" ", used))
 }
 
-// cutoffWords says in plain words why and where the product stopped:
-// "resets on the 450 mA motor wag pulse at 1.80 V".
+// cutoffWords says in plain words why and where the product stopped, in
+// the same words as the command line (discharge.Design.CutoffText).
 func cutoffWords(r *discharge.Result, prof []discharge.Phase, floor float64) string {
-	phase := r.CutoffPhase
-	var ph *discharge.Phase
-	heaviest := true
-	for i := range prof {
-		if prof[i].Label() == phase && ph == nil {
-			ph = &prof[i]
-		}
-	}
-	amps := units.Human(r.CutoffAmps, units.Current, 3)
-	what := "the " + phase + " phase"
-	if ph != nil {
-		for _, q := range prof {
-			if q.Load.Label() != ph.Load.Label() && demand(q) > demand(*ph) {
-				heaviest = false
-			}
-		}
-		label := ph.Load.Label()
-		switch {
-		case len(prof) == 1:
-			what = "the steady " + label + " load"
-		case ph.Name != "" && heaviest:
-			what = "the " + label + " " + ph.Name + " pulse"
-		case ph.Name != "":
-			what = "the " + label + " " + ph.Name + " phase"
-		case heaviest:
-			what = "the " + label + " pulse"
-		default:
-			what = "the " + label + " phase"
-		}
-	}
-	v := fmt.Sprintf("%.2f V", r.CutoffLoadV)
-	at := " at " + v + " (the floor)"
-	if math.Abs(r.CutoffLoadV-floor) >= 0.005 {
-		at = fmt.Sprintf(" at %s, below the %.2f V floor", v, floor)
-	}
-	if r.RuntimeH == 0 {
-		at += ", from the start"
-	}
-	switch r.CutoffCause {
-	case discharge.CauseFloor:
-		if len(prof) == 1 {
-			return "the load voltage falls below its floor on " + what + at
-		}
-		return "resets on " + what + at
-	case discharge.CauseCollapse:
-		if ph != nil && ph.Load.Kind == discharge.ConstantPower {
-			return "the pack can no longer supply the power of " + what + ": the converter's input collapses"
-		}
-		return "the pack cannot push the current of " + what + ": its voltage collapses"
-	case discharge.CauseLimit:
-		return "the protection's current limit cuts " + what + " (it wants " + amps + ")"
-	case discharge.CauseFuse:
-		return "the fuse opens on " + what + " (" + amps + ")"
-	case discharge.CauseEndPoint:
-		return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V) on %s", r.CutoffPackV, what)
-	}
-	return r.Describe()
-}
-
-// demand orders phases by how hard they pull: input power at 1 V for any
-// load law (amperes for a constant-current load).
-func demand(p discharge.Phase) float64 {
-	switch l := p.Load; l.Kind {
-	case discharge.ConstantCurrent:
-		return l.Amps
-	case discharge.ConstantPower:
-		return l.InputPower()
-	case discharge.ConstantResistance, discharge.LED:
-		return 1 / l.Ohms
-	}
-	return 0
+	d := discharge.Design{Profile: prof, Floor: floor}
+	return d.CutoffText(r)
 }
 
 // peakLabel is the heaviest phase's load, e.g. "450 mA".
@@ -180,7 +111,7 @@ func peakLabel(prof []discharge.Phase) string {
 	best := -1.0
 	s := ""
 	for _, p := range prof {
-		if d := demand(p); d > best {
+		if d := p.Demand(); d > best {
 			best, s = d, p.Load.Label()
 		}
 	}

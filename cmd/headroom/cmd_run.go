@@ -148,75 +148,10 @@ func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) [
 		{"cutoff_load_V", "load voltage at cut-off (V)", r.CutoffLoadV},
 		{"cutoff_pack_V", "pack voltage at cut-off (V)", r.CutoffPackV},
 		{"cutoff_A", "current at cut-off (A)", r.CutoffAmps},
-		{"cutoff_text", "cut-off", cutoffWords(d, r)},
+		{"cutoff_text", "cut-off", d.CutoffText(r)},
 		{"warnings", "warnings", append([]string{}, r.Warnings...)},
 		{"cautions", "cautions", dedupe(r.Cautions)},
 	}
-}
-
-// phaseWords names the phase that failed for a sentence: "the 450 mA
-// motor wag pulse", "the 100 mA load".
-func phaseWords(d *discharge.Design, r *discharge.Result) string {
-	idx := -1
-	longest := 0.0
-	for i, p := range d.Profile {
-		if idx < 0 && p.Label() == r.CutoffPhase {
-			idx = i
-		}
-		longest = max(longest, p.Seconds)
-	}
-	if idx < 0 {
-		return r.CutoffPhase
-	}
-	p := d.Profile[idx]
-	what := trimZeros(p.Load.Label())
-	if p.Load.Kind == discharge.ConstantCurrent || r.CutoffAmps <= 0 {
-		// the label is the current already
-	} else {
-		what += " (" + human(r.CutoffAmps, units.Current) + ")"
-	}
-	if p.Name != "" {
-		what += " " + p.Name
-	}
-	switch {
-	case len(d.Profile) == 1:
-		return "the " + what + " load"
-	case p.Seconds < longest:
-		return "the " + what + " pulse"
-	}
-	return "the " + what + " phase"
-}
-
-// cutoffWords says why the product stopped, in one phrase.
-func cutoffWords(d *discharge.Design, r *discharge.Result) string {
-	ph := phaseWords(d, r)
-	var s string
-	switch r.CutoffCause {
-	case discharge.CauseFloor:
-		verb := "stops"
-		if len(d.Profile) > 1 {
-			verb = "resets"
-		}
-		s = fmt.Sprintf("%s on %s at %s (floor)", verb, ph, fixed(d.Floor, 2)+" V")
-		if r.RuntimeH == 0 {
-			return fmt.Sprintf("does not start: the load voltage on %s is below the %s V floor", ph, short(d.Floor))
-		}
-	case discharge.CauseCollapse:
-		s = fmt.Sprintf("the pack's voltage collapses on %s: it cannot push that current", ph)
-		if d.CutoffIsPower(r) {
-			s = fmt.Sprintf("the converter's input collapses on %s: the pack cannot deliver its power", ph)
-		}
-	case discharge.CauseLimit:
-		s = fmt.Sprintf("the element's current limit clamps %s at %s", ph, human(r.CutoffAmps, units.Current))
-	case discharge.CauseFuse:
-		s = fmt.Sprintf("the fuse opens on %s at %s", ph, human(r.CutoffAmps, units.Current))
-	default:
-		s = fmt.Sprintf("the cells reach their %s end-point on %s", fixed(d.Cell.EndPoint, 2)+" V", ph)
-	}
-	if r.RuntimeH == 0 {
-		s = "does not start: " + s
-	}
-	return s
 }
 
 // loadWords lists the profile for people.
@@ -293,7 +228,7 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	} else {
 		line("cost", "— per hour of use: the product does not run")
 	}
-	line("cut-off", "%s", cutoffWords(d, r))
+	line("cut-off", "%s", d.CutoffText(r))
 	list := func(title string, xs []string) {
 		if len(xs) == 0 {
 			return

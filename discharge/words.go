@@ -1,0 +1,93 @@
+package discharge
+
+import (
+	"fmt"
+	"math"
+
+	"headroom/internal/units"
+)
+
+// CutoffText says in plain words why and where the product stopped, for
+// reports and the screen alike: "resets on the 450 mA motor wag pulse at
+// 1.80 V (the floor)", "does not start: the fuse opens on the 900 mA drive
+// pulse (900 mA)".
+func (d *Design) CutoffText(r *Result) string {
+	s := d.cutoffText(r)
+	if r.RuntimeH == 0 {
+		return "does not start: " + s
+	}
+	return s
+}
+
+func (d *Design) cutoffText(r *Result) string {
+	ph := d.cutoffPhase(r)
+	what := "the " + r.CutoffPhase + " phase"
+	if ph != nil {
+		heaviest := true
+		for _, q := range d.Profile {
+			if q.Load.Label() != ph.Load.Label() && q.Demand() > ph.Demand() {
+				heaviest = false
+			}
+		}
+		label := ph.Load.Label()
+		switch {
+		case len(d.Profile) == 1:
+			what = "the steady " + label + " load"
+		case ph.Name != "" && heaviest:
+			what = "the " + label + " " + ph.Name + " pulse"
+		case ph.Name != "":
+			what = "the " + label + " " + ph.Name + " phase"
+		case heaviest:
+			what = "the " + label + " pulse"
+		default:
+			what = "the " + label + " phase"
+		}
+	}
+	amps := units.Human(r.CutoffAmps, units.Current, 3)
+	v := fmt.Sprintf("%.2f V", r.CutoffLoadV)
+	at := " at " + v + " (the floor)"
+	if math.Abs(r.CutoffLoadV-d.Floor) >= 0.005 {
+		at = fmt.Sprintf(" at %s, below the %.2f V floor", v, d.Floor)
+	}
+	switch r.CutoffCause {
+	case CauseFloor:
+		if len(d.Profile) == 1 {
+			return "stops on " + what + at
+		}
+		return "resets on " + what + at
+	case CauseCollapse:
+		if ph != nil && ph.Load.Kind == ConstantPower {
+			return "the pack can no longer supply the power of " + what + ": the converter's input collapses"
+		}
+		return "the pack cannot push the current of " + what + ": its voltage collapses"
+	case CauseLimit:
+		return "the protection's current limit cuts " + what + " (it wants " + amps + ")"
+	case CauseFuse:
+		return "the fuse opens on " + what + " (" + amps + ")"
+	}
+	return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V) on %s", r.CutoffPackV, what)
+}
+
+// cutoffPhase is the profile phase the result names, or nil.
+func (d *Design) cutoffPhase(r *Result) *Phase {
+	for i := range d.Profile {
+		if d.Profile[i].Label() == r.CutoffPhase {
+			return &d.Profile[i]
+		}
+	}
+	return nil
+}
+
+// Demand orders phases by how hard they pull: input power at 1 V for any
+// load law (amperes for a constant-current load).
+func (p Phase) Demand() float64 {
+	switch l := p.Load; l.Kind {
+	case ConstantCurrent:
+		return l.Amps
+	case ConstantPower:
+		return l.InputPower()
+	case ConstantResistance, LED:
+		return 1 / l.Ohms
+	}
+	return 0
+}
