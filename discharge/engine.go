@@ -826,6 +826,11 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 		}
 	}
 	r.Warnings = append(r.Warnings, el.Warnings(protect.Operating{VFresh: r.FreshV, Currents: cur, PeakW: r.ProtectionPeakW, TempC: d.TempC})...)
+	for j, p := range d.Profile {
+		if p.Load.Kind == LED && cur[j] == 0 {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("the LED of %s never lights: the voltage it gets stays below its %.2f V forward voltage (set the floor above it to count that as a stop)", p.Label(), p.Load.Vf))
+		}
+	}
 	if r.StandbyShare > 0.2 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("standby drain and self-discharge take %.0f %% of the charge: the pack goes flat on the shelf", r.StandbyShare*100))
 	}

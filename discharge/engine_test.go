@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"headroom/curves"
@@ -333,6 +334,32 @@ func TestNoDrainIsAnError(t *testing.T) {
 		r, err := Evaluate(d)
 		if err == nil {
 			t.Errorf("%s: runtime %v h, want an error saying the pack is never run down", l.Label(), r.RuntimeH)
+		}
+	}
+}
+
+// An LED whose forward voltage is above the fresh pack never lights; the
+// run then lasts on self-discharge alone, so the result must say so.
+func TestDarkLEDWarns(t *testing.T) {
+	c := linearCell(1.6, 0.8, 2000, 0.1)
+	c.SelfDischarge = 0.02
+	d := &Design{Cell: c, Series: 2, Parallel: 1, TempC: 20,
+		Profile: []Phase{{Name: "eyes", Load: Load{Kind: LED, Vf: 3.6, Ohms: 47}, Seconds: 1}}}
+	r := mustEval(t, d)
+	found := false
+	for _, w := range r.Warnings {
+		if strings.Contains(w, "eyes never lights") {
+			found = true
+		}
+	}
+	if !found {
+		t.Errorf("warnings %q: want one saying the LED never lights", r.Warnings)
+	}
+	// A lit LED gets no such warning.
+	d.Profile[0].Load.Vf = 2.0
+	for _, w := range mustEval(t, d).Warnings {
+		if strings.Contains(w, "never lights") {
+			t.Errorf("lit LED warned: %q", w)
 		}
 	}
 }
