@@ -63,6 +63,9 @@ type evaluator struct {
 	// lastE and lastRp are the pack source of the last phases call.
 	lastE, lastRp float64
 	breaks        []float64
+	// steepEnd is set when a phase is a constant-power or LED load, whose
+	// current can turn steep just before the cut-off.
+	steepEnd bool
 	// gx and gw are the quadrature rule on [-1, 1]: gaussX and gaussW,
 	// or a finer rule in the convergence test.
 	gx, gw []float64
@@ -461,6 +464,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	n := len(d.Profile)
 	e.w, e.loads, e.hint = make([]float64, 0, n), make([]Load, 0, n), make([]float64, n)
 	for _, p := range d.Profile {
+		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED
 		e.w = append(e.w, p.Seconds/total)
 		e.loads = append(e.loads, p.Load)
 	}
@@ -622,19 +626,39 @@ func (e *evaluator) selfDischarge() float64 {
 func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf []op) {
 	d := e.d
 	f := e.duty
-	var cal, loadWh, protWh, cellWh, stby, self float64
-	peak := 0.0
+	var tot sums
 	nodes := make([]rates, len(e.gx))
 	splits := 0
-	var span func(a, b float64, depth int) float64
-	span = func(a, b float64, depth int) float64 { // returns calendar hours on [a, b]
-		if b <= a {
-			return 0
-		}
+	// rule applies the Gauss rule on [a, b] to the sampled nodes.
+	rule := func(a, b float64) sums {
 		half, mid := 0.5*(b-a), 0.5*(a+b)
+		var s sums
 		for j, x := range e.gx {
 			nodes[j] = e.rates(mid+half*x, v, buf)
 		}
+		for j := range e.gx {
+			rt := &nodes[j]
+			dt := e.gw[j] * half * scale / rt.calendar // hours per node
+			s.h += dt
+			s.loadWh += rt.loadW * dt
+			s.protWh += rt.protW * dt
+			s.cellWh += rt.cellW * dt
+			s.stby += rt.standby * dt
+			s.self += rt.self * dt
+			s.peak = math.Max(s.peak, rt.peakW)
+		}
+		return s
+	}
+	var span func(a, b float64, depth int, last bool) sums
+	span = func(a, b float64, depth int, last bool) sums { // calendar hours and energies on [a, b]
+		if b <= a {
+			return sums{}
+		}
+		whole := rule(a, b)
+		if depth >= maxSplit || splits >= maxSplits {
+			return whole
+		}
+		mid := 0.5 * (a + b)
 		// Between breakpoints the integrand is smooth unless an operating
 		// point jumps: a MOSFET running out of gate drive hands the current
 		// to its body diode, a limiter's pass FET saturates. A fixed rule
@@ -642,33 +666,35 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 		// so a span whose samples look like a step (one gap between
 		// neighbouring nodes holding most of the span's change) is halved
 		// until the step is pinned down.
-		if depth < maxSplit && splits < maxSplits && stepLike(nodes) {
+		if stepLike(nodes) {
 			splits++
-			return span(a, mid, depth+1) + span(mid, b, depth+1)
+			return span(a, mid, depth+1, false).add(span(mid, b, depth+1, last))
 		}
-		h := 0.0
-		for j := range e.gx {
-			rt := &nodes[j]
-			dt := e.gw[j] * half * scale / rt.calendar // hours per node
-			h += dt
-			loadWh += rt.loadW * dt
-			protWh += rt.protW * dt
-			cellWh += rt.cellW * dt
-			stby += rt.standby * dt
-			self += rt.self * dt
-			peak = math.Max(peak, rt.peakW)
+		// The last span ends at the cut-off, which can sit just short of a
+		// constant-power load's collapse, where the current rises like a
+		// square root (or where an LED's current fades to nothing): there
+		// the rule is checked against its two halves and halved until they
+		// agree. Constant-current and resistive loads have no such point.
+		if last && e.steepEnd && e.steepTail(nodes) {
+			l, r := rule(a, mid), rule(mid, b)
+			if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h {
+				splits++
+				return span(a, mid, depth+1, false).add(span(mid, b, depth+1, true))
+			}
+			return l.add(r)
 		}
-		return h
+		return whole
 	}
 	prev := 0.0
 	for _, b := range e.breaks[1:] {
 		if b >= qsCut {
-			cal += span(prev, qsCut, 0)
+			tot = tot.add(span(prev, qsCut, 0, true))
 			break
 		}
-		cal += span(prev, b, 0)
+		tot = tot.add(span(prev, b, 0, false))
 		prev = b
 	}
+	cal, loadWh, protWh, cellWh, stby, self, peak := tot.h, tot.loadWh, tot.protWh, tot.cellWh, tot.stby, tot.self, tot.peak
 	// The element's peak dissipation can sit at either end of the run.
 	for _, q := range []float64{0, qsCut} {
 		if q < e.end {
@@ -690,6 +716,48 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 	if d.TracePoints > 1 && qsCut > 0 {
 		e.trace(v, qsCut, scale, f, r, buf)
 	}
+}
+
+// steepTail reports whether the integrand's slope at the span's end is
+// over twice its slope in the middle: the mark of a singular point just
+// past the end. gx need not be ordered; the nodes nearest the end (x → 1)
+// and nearest the middle (x → 0) are compared.
+func (e *evaluator) steepTail(nodes []rates) bool {
+	end, next, m0, m1 := -1, -1, -1, -1
+	for j, x := range e.gx {
+		switch {
+		case end < 0 || x > e.gx[end]:
+			next, end = end, j
+		case next < 0 || x > e.gx[next]:
+			next = j
+		}
+	}
+	for j, x := range e.gx {
+		if m0 < 0 || math.Abs(x) < math.Abs(e.gx[m0]) {
+			m1, m0 = m0, j
+		} else if m1 < 0 || math.Abs(x) < math.Abs(e.gx[m1]) {
+			m1 = j
+		}
+	}
+	if end < 0 || next < 0 || m0 < 0 || m1 < 0 || e.gx[m0] == e.gx[m1] {
+		return true
+	}
+	g := func(j int) float64 { return 1 / nodes[j].calendar }
+	slopeEnd := math.Abs(g(end)-g(next)) / (e.gx[end] - e.gx[next])
+	slopeMid := math.Abs(g(m0)-g(m1)) / math.Abs(e.gx[m0]-e.gx[m1])
+	return slopeEnd > 2*slopeMid
+}
+
+// sums are the quadrature's totals over a span: calendar hours, energies
+// into the load, the element and the cells, standby and self-discharge
+// charge, and the highest element dissipation seen.
+type sums struct {
+	h, loadWh, protWh, cellWh, stby, self, peak float64
+}
+
+func (s sums) add(t sums) sums {
+	return sums{s.h + t.h, s.loadWh + t.loadWh, s.protWh + t.protWh, s.cellWh + t.cellWh,
+		s.stby + t.stby, s.self + t.self, math.Max(s.peak, t.peak)}
 }
 
 // maxSplit bounds how often a span with a step in it is halved: 2⁻¹⁶ of a
