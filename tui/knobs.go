@@ -161,15 +161,6 @@ func niceStep(x float64) float64 {
 	return p
 }
 
-// roundSig rounds x to sig significant digits.
-func roundSig(x float64, sig int) float64 {
-	if x == 0 || sig <= 0 {
-		return x
-	}
-	p := math.Pow(10, float64(sig)-math.Ceil(math.Log10(math.Abs(x))))
-	return math.Round(x*p) / p
-}
-
 // step moves v one step in direction dir, rounded to a tidy value, within
 // the slider's ends (or v itself where v was typed outside them).
 func (r knobRange) step(v float64, dir int, coarse bool) float64 {
@@ -181,14 +172,14 @@ func (r knobRange) step(v float64, dir int, coarse bool) float64 {
 	var n float64
 	if r.log {
 		n = v * math.Pow(s, float64(dir))
-		n = roundSig(n, r.sig)
+		n = units.RoundSig(n, r.sig)
 		if n == v { // rounding undid the step: move one unit of the last digit
 			unit := math.Pow(10, math.Ceil(math.Log10(math.Abs(v)))-float64(r.sig))
 			n = v + float64(dir)*unit
 		}
 	} else {
 		n = math.Round((v+float64(dir)*s)/s) * s
-		n = roundSig(n, 12) // 0.1+0.2 shows as 0.3
+		n = units.RoundSig(n, 12) // 0.1+0.2 shows as 0.3
 	}
 	return math.Min(hi, math.Max(lo, n))
 }

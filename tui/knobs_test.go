@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"headroom/internal/units"
 	"math"
 	"strings"
 	"testing"
@@ -94,7 +95,7 @@ func TestStepIsTidy(t *testing.T) {
 	v := 1.0
 	for range 10 {
 		n := r.step(v, 1, false)
-		if !(n > v) || roundSig(n, 2) != n {
+		if !(n > v) || units.RoundSig(n, 2) != n {
 			t.Fatalf("log step from %v gave %v", v, n)
 		}
 		v = n

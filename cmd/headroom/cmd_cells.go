@@ -266,7 +266,7 @@ func cellsImport(c *cli, args []string) error {
 func openLimited(path string, limit int64) ([]byte, error) {
 	st, err := os.Stat(path)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, unwrapPathErr(err))
+		return nil, fmt.Errorf("%s: %w", path, scenario.UnwrapPath(err))
 	}
 	if st.IsDir() {
 		return nil, fmt.Errorf("%s: is a directory, expected a file", path)
@@ -276,15 +276,7 @@ func openLimited(path string, limit int64) ([]byte, error) {
 	}
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, unwrapPathErr(err))
+		return nil, fmt.Errorf("%s: %w", path, scenario.UnwrapPath(err))
 	}
 	return data, nil
-}
-
-func unwrapPathErr(err error) error {
-	var pe *os.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
 }

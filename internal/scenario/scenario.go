@@ -191,17 +191,9 @@ func (s sweepValues) values(kind units.Kind, bare bool) ([]float64, error) {
 	out := make([]float64, n)
 	for i := range out {
 		// Round to 12 significant digits so 1.6 + 3·0.1 prints as 1.9.
-		out[i] = roundSig(from+float64(i)*step, 12)
+		out[i] = units.RoundSig(from+float64(i)*step, 12)
 	}
 	return out, nil
-}
-
-func roundSig(x float64, sig int) float64 {
-	if x == 0 {
-		return 0
-	}
-	p := math.Pow(10, float64(sig)-math.Ceil(math.Log10(math.Abs(x))))
-	return math.Round(x*p) / p
 }
 
 // Demo returns the built-in demo scenario.
@@ -218,7 +210,7 @@ func Demo() *Scenario {
 func Load(path string) (*Scenario, error) {
 	st, err := os.Stat(path)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, unwrapPath(err))
+		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
 	}
 	if st.IsDir() {
 		return nil, fmt.Errorf("%s: is a directory, expected a scenario file (.toml)", path)
@@ -232,12 +224,12 @@ func Load(path string) (*Scenario, error) {
 	}
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, unwrapPath(err))
+		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
 	}
 	defer f.Close()
 	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, unwrapPath(err))
+		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
 	}
 	s, err := Parse(data, path, filepath.Dir(path))
 	if err != nil {
@@ -247,7 +239,9 @@ func Load(path string) (*Scenario, error) {
 	return s, nil
 }
 
-func unwrapPath(err error) error {
+// UnwrapPath returns the reason inside an *os.PathError (the path is
+// named in the message already), or err itself.
+func UnwrapPath(err error) error {
 	var pe *os.PathError
 	if errors.As(err, &pe) {
 		return pe.Err

@@ -135,12 +135,12 @@ func writeAtomic(path string, data []byte, overwrite bool, write func(*os.File, 
 		}
 		mode = st.Mode().Perm()
 	} else if !errors.Is(err, fs.ErrNotExist) {
-		return fmt.Errorf("%s: %w", path, unwrapPath(err))
+		return fmt.Errorf("%s: %w", path, UnwrapPath(err))
 	}
 	dir := filepath.Dir(path)
 	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
 	if err != nil {
-		return fmt.Errorf("%s: cannot create a temporary file beside it: %w", path, unwrapPath(err))
+		return fmt.Errorf("%s: cannot create a temporary file beside it: %w", path, UnwrapPath(err))
 	}
 	name := tmp.Name()
 	fail := func(err error) error {
@@ -169,14 +169,14 @@ func writeAtomic(path string, data []byte, overwrite bool, write func(*os.File, 
 			if errors.Is(err, fs.ErrExist) {
 				return fmt.Errorf("%s: %w", path, ErrExists)
 			}
-			return fmt.Errorf("%s: %w", path, unwrapPath(err))
+			return fmt.Errorf("%s: %w", path, UnwrapPath(err))
 		}
 		os.Remove(name)
 		return nil
 	}
 	if err := os.Rename(name, path); err != nil {
 		os.Remove(name)
-		return fmt.Errorf("%s: %w", path, unwrapPath(err))
+		return fmt.Errorf("%s: %w", path, UnwrapPath(err))
 	}
 	return nil
 }

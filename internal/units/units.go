@@ -329,3 +329,13 @@ func (r Raw) String() string {
 	}
 	return r.text
 }
+
+// RoundSig rounds x to sig significant digits (x itself when sig ≤ 0 or x
+// is 0), so that steps such as 1.6 + 3·0.1 read as 1.9.
+func RoundSig(x float64, sig int) float64 {
+	if x == 0 || sig <= 0 {
+		return x
+	}
+	p := math.Pow(10, float64(sig)-math.Ceil(math.Log10(math.Abs(x))))
+	return math.Round(x*p) / p
+}
