@@ -195,3 +195,8 @@ func (m PMOSClamp) AtTemp(tempC float64) Element {
 	m.Body = m.Body.At(tempC)
 	return m
 }
+
+func (l Limiter) AtTemp(tempC float64) Element {
+	l.Body = l.Body.At(tempC)
+	return l
+}
