@@ -3,6 +3,8 @@ package curves
 import (
 	"fmt"
 	"math"
+
+	"headroom/internal/rc"
 )
 
 // RefTempC is the temperature, in °C, at which curves, resistances and
@@ -61,6 +63,22 @@ type Cell struct {
 	// RefTempC, 0 to 1.
 	SelfDischarge float64
 
+	// RC are the cell's polarisation branches (Thevenin equivalent:
+	// terminal = E − I·R0 − Σ vᵢ, each vᵢ the voltage of one parallel RC
+	// stage): R in ohms at RefTempC (scaled by the temperature table's
+	// resistance factor like R0), above 0; Tau in seconds, above 0. At
+	// most MaxRC; empty means no memory (the sag is I·R0 at once).
+	// Resistance (R0) is the instant part of the cell's resistance; a
+	// constant current for much longer than every Tau sags by
+	// I·(R0 + Σ Rᵢ).
+	RC []rc.Stage
+	// CutoffV is the under-voltage cut-off of the pack's own protection,
+	// volts per cell (rechargeables; 0: none). A dip below it shorter
+	// than CutoffDelay seconds does not trip it. CutoffV 0 or above 0 and
+	// below 10; CutoffDelay above 0 when CutoffV is set.
+	CutoffV     float64
+	CutoffDelay float64
+
 	Rechargeable     bool
 	CycleLife        int     // full cycles to end of life, rechargeables only
 	ChargeEfficiency float64 // charge out ÷ charge in, 0 to 1, rechargeables only
@@ -68,6 +86,9 @@ type Cell struct {
 	Price  float64 // typical price of one cell in dollars, at least 0
 	Source string  // where the numbers come from
 }
+
+// MaxRC is the most polarisation branches a cell may have.
+const MaxRC = 3
 
 // Validate checks the cell's fields and says which is wrong.
 func (c *Cell) Validate() error {
@@ -102,6 +123,23 @@ func (c *Cell) Validate() error {
 		if !fin(c.ChargeEfficiency) || c.ChargeEfficiency <= 0 || c.ChargeEfficiency > 1 {
 			return bad("charge_efficiency", "%v must be above 0 and at most 1", c.ChargeEfficiency)
 		}
+	}
+	if len(c.RC) > MaxRC {
+		return bad("rc", "%d branches, at most %d", len(c.RC), MaxRC)
+	}
+	for i, b := range c.RC {
+		if !fin(b.R) || b.R <= 0 || b.R > 1e4 {
+			return bad("rc", "point %d: %v Ω must be above 0 and at most 10 kΩ", i+1, b.R)
+		}
+		if !fin(b.Tau) || b.Tau <= 0 || b.Tau > 1e7 {
+			return bad("rc", "point %d: time constant %v s must be above 0 and at most 1e7 s", i+1, b.Tau)
+		}
+	}
+	if !fin(c.CutoffV) || c.CutoffV < 0 || c.CutoffV >= 10 {
+		return bad("cutoff_v", "%v V must be 0 (none) or above 0 and below 10 V", c.CutoffV)
+	}
+	if !fin(c.CutoffDelay) || c.CutoffDelay < 0 || c.CutoffDelay > 60 || c.CutoffV > 0 && c.CutoffDelay == 0 {
+		return bad("cutoff_delay", "%v s must be above 0 and at most 60 s when cutoff_v is set", c.CutoffDelay)
 	}
 	for i, r := range c.Resistance {
 		if !fin(r.Depth) || r.Depth < 0 || r.Depth > 1 {

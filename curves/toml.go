@@ -13,6 +13,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"headroom/internal/rc"
 	"headroom/internal/units"
 )
 
@@ -46,6 +47,10 @@ type CellDef struct {
 	CurveCSV    string      `toml:"curve_csv"`   // or a CSV file of points, relative to BaseDir
 	Resistance  [][]float64 `toml:"resistance"`  // [[depth 0–1, ohm], ...]
 	Temperature [][]float64 `toml:"temperature"` // [[°C, capacity factor, resistance factor], ...]
+	RC          [][]float64 `toml:"rc"`          // polarisation branches [[ohm, tau seconds], ...], at most 3
+
+	CutoffV     units.Raw `toml:"cutoff_v"`     // V per cell, the pack protection's under-voltage cut-off; default none
+	CutoffDelay units.Raw `toml:"cutoff_delay"` // s (or "50ms") a dip must last to trip it
 
 	// BaseDir is the directory curve_csv is relative to; the readers set
 	// it to the TOML file's directory.
@@ -221,6 +226,18 @@ func (d *CellDef) build() (*Cell, error) {
 			return nil, fe("temperature", i+1, "want [°C, capacity factor, resistance factor], got %d numbers", len(p))
 		}
 		c.Temperature = append(c.Temperature, TempPoint{Celsius: p[0], Capacity: p[1], Resistance: p[2]})
+	}
+	for i, p := range d.RC {
+		if len(p) != 2 {
+			return nil, fe("rc", i+1, "want [ohm, tau seconds], got %d numbers", len(p))
+		}
+		c.RC = append(c.RC, rc.Stage{R: p[0], Tau: p[1]})
+	}
+	if c.CutoffV, err = get("cutoff_v", d.CutoffV, units.Voltage, 0); err != nil {
+		return nil, err
+	}
+	if c.CutoffDelay, err = get("cutoff_delay", d.CutoffDelay, units.Time, 0); err != nil {
+		return nil, err
 	}
 	if err := c.Validate(); err != nil {
 		return nil, validateFieldError(err)

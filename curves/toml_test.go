@@ -152,3 +152,31 @@ func TestCellDefInCode(t *testing.T) {
 		t.Errorf("got %v", err)
 	}
 }
+
+// The polarisation branches and the pack cut-off read from TOML, and bad
+// values are refused naming the key (the cell-memory fields).
+func TestCellTOMLPolarisation(t *testing.T) {
+	good := "curve = [[0, 4.1], [2000, 3.0]]\nrc = [[0.02, 8], [0.03, 900]]\ncutoff_v = \"2.5V\"\ncutoff_delay = \"50ms\"\n"
+	c, err := ReadCellTOML(strings.NewReader(good), "pol.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(c.RC) != 2 || c.RC[1].R != 0.03 || c.RC[1].Tau != 900 || c.CutoffV != 2.5 || math.Abs(c.CutoffDelay-0.05) > 1e-15 {
+		t.Errorf("read %+v, cutoff %v V after %v s", c.RC, c.CutoffV, c.CutoffDelay)
+	}
+	for _, bad := range []struct{ text, want string }{
+		{"rc = [[0.02, 0]]", "rc point 1"},
+		{"rc = [[0, 5]]", "rc point 1"},
+		{"rc = [[-0.1, 5]]", "rc point 1"},
+		{"rc = [[0.02]]", "rc point 1"},
+		{"rc = [[0.1, 1], [0.1, 2], [0.1, 3], [0.1, 4]]", "at most 3"},
+		{"cutoff_v = 2.5", "cutoff_delay"},
+		{"cutoff_v = 2.5\ncutoff_delay = -1", "cutoff_delay"},
+		{"cutoff_v = -1", "cutoff_v"},
+	} {
+		_, err := ReadCellTOML(strings.NewReader("curve = [[0, 4.1], [2000, 3.0]]\n"+bad.text+"\n"), "bad.toml")
+		if err == nil || !strings.Contains(err.Error(), bad.want) || !strings.Contains(err.Error(), "bad.toml") {
+			t.Errorf("%q: error %v, want one naming the file and %q", bad.text, err, bad.want)
+		}
+	}
+}
