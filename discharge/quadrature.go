@@ -1,0 +1,283 @@
+// The charge-domain quadrature: time, energy and drains from 0 to the cut-off.
+
+package discharge
+
+import (
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/integrate/quad"
+
+	"headroom/curves"
+)
+
+// gaussN is the Gauss–Legendre order used on each smooth span. The
+// integrand between breakpoints is a smooth function of charge (a ratio of
+// low-order polynomials and logarithms); 8 nodes integrate it to about 1e-9
+// relative on typical designs and 2e-5 at worst (constant power near
+// collapse), against a 48-node rule (TestQuadratureConverges).
+const gaussN = 8
+
+// gauss holds the nodes and weights on [-1, 1]; computed once, read-only.
+var gaussX, gaussW = func() ([]float64, []float64) {
+	x := make([]float64, gaussN)
+	w := make([]float64, gaussN)
+	quad.Legendre{}.FixedLocations(x, w, -1, 1)
+	return x, w
+}()
+
+// breakpoints are the scaled charges where the curve or the resistance
+// table has a corner, sorted, from 0 to the curve's end.
+func breakpoints(c *curves.Cell) []float64 {
+	end := c.Curve.End()
+	b := []float64{0, end}
+	b = append(b, c.Curve.Charges()...)
+	for _, r := range c.Resistance {
+		b = append(b, r.Depth*end)
+	}
+	sort.Float64s(b)
+	out := b[:0]
+	for _, x := range b {
+		if x < 0 || x > end || len(out) > 0 && x-out[len(out)-1] <= 1e-12*end {
+			continue
+		}
+		out = append(out, x)
+	}
+	return out
+}
+
+// rates gathers the per-node quantities the quadrature sums.
+type rates struct {
+	calendar float64 // pack drain over a calendar hour, mA
+	loadW    float64 // power into the load, W (averaged over the day)
+	protW    float64 // power in the element, W
+	cellW    float64 // power in the cells' resistance, W
+	standby  float64 // standby drain, mA
+	self     float64 // self-discharge, mA
+	peakW    float64 // highest element dissipation among the phases, W
+}
+
+func (e *evaluator) rates(qs float64, v *variant, buf []op) rates {
+	d := e.d
+	e.phases(qs, v, buf)
+	E, Rp := e.lastE, e.lastRp
+	if qs >= e.end { // phases stopped before solving the pack
+		E, Rp, _ = e.pack(qs)
+	}
+	f := e.duty
+	var r rates
+	var use, loadW, protW, cellW float64
+	for j, o := range buf {
+		w := e.w[j]
+		use += w * o.Ipack
+		loadW += w * o.Vload * o.I
+		pw := o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
+		protW += w * pw
+		cellW += w * o.Ipack * o.Ipack * Rp
+		if pw > r.peakW {
+			r.peakW = pw
+		}
+	}
+	iq := v.el.Quiescent(E, e.T)
+	idle := d.Standby + iq
+	r.standby = (1 - f) * idle * 1000
+	r.self = e.self
+	r.calendar = f*use*1000 + r.standby + r.self
+	r.loadW = f * loadW
+	r.protW = f*protW + (1-f)*E*iq
+	r.cellW = f*cellW + (1-f)*idle*idle*Rp
+	return r
+}
+
+// selfDischarge is the pack's self-discharge as a steady drain in mA: the
+// cell's fraction per month of the rated capacity, doubling for every 10 °C
+// above the reference (common practice rule of thumb for the Arrhenius
+// rise of side reactions).
+func (e *evaluator) selfDischarge() float64 {
+	c := e.cell
+	return c.SelfDischarge * c.RatedMAh * e.P / hoursPerMonth * math.Pow(2, (e.T-curves.RefTempC)/10)
+}
+
+// integrate fills the time, energy and drain totals from 0 to qsCut and
+// the trace.
+func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf []op) {
+	d := e.d
+	f := e.duty
+	var tot sums
+	nodes := make([]rates, len(e.gx))
+	splits := 0
+	// rule applies the Gauss rule on [a, b] to the sampled nodes.
+	rule := func(a, b float64) sums {
+		half, mid := 0.5*(b-a), 0.5*(a+b)
+		var s sums
+		for j, x := range e.gx {
+			nodes[j] = e.rates(mid+half*x, v, buf)
+		}
+		for j := range e.gx {
+			rt := &nodes[j]
+			dt := e.gw[j] * half * scale / rt.calendar // hours per node
+			s.h += dt
+			s.loadWh += rt.loadW * dt
+			s.protWh += rt.protW * dt
+			s.cellWh += rt.cellW * dt
+			s.stby += rt.standby * dt
+			s.self += rt.self * dt
+			s.peak = math.Max(s.peak, rt.peakW)
+		}
+		return s
+	}
+	var span func(a, b float64, depth int, last bool) sums
+	span = func(a, b float64, depth int, last bool) sums { // calendar hours and energies on [a, b]
+		if b <= a {
+			return sums{}
+		}
+		whole := rule(a, b)
+		if depth >= maxSplit || splits >= maxSplits {
+			return whole
+		}
+		mid := 0.5 * (a + b)
+		// Between breakpoints the integrand is smooth unless an operating
+		// point jumps: a MOSFET running out of gate drive hands the current
+		// to its body diode, a limiter's pass FET saturates. A fixed rule
+		// across such a jump errs by up to the jump times the node spacing,
+		// so a span whose samples look like a step (one gap between
+		// neighbouring nodes holding most of the span's change) is halved
+		// until the step is pinned down.
+		if stepLike(nodes) {
+			splits++
+			return span(a, mid, depth+1, false).add(span(mid, b, depth+1, last))
+		}
+		// The last span ends at the cut-off, which can sit just short of a
+		// constant-power load's collapse, where the current rises like a
+		// square root (or where an LED's current fades to nothing): there
+		// the rule is checked against its two halves and halved until they
+		// agree. Constant-current and resistive loads have no such point.
+		if last && e.steepEnd && e.steepTail(nodes) {
+			l, r := rule(a, mid), rule(mid, b)
+			if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h {
+				splits++
+				return span(a, mid, depth+1, false).add(span(mid, b, depth+1, true))
+			}
+			return l.add(r)
+		}
+		return whole
+	}
+	prev := 0.0
+	for _, b := range e.breaks[1:] {
+		if b >= qsCut {
+			tot = tot.add(span(prev, qsCut, 0, true))
+			break
+		}
+		tot = tot.add(span(prev, b, 0, false))
+		prev = b
+	}
+	cal, loadWh, protWh, cellWh, stby, self, peak := tot.h, tot.loadWh, tot.protWh, tot.cellWh, tot.stby, tot.self, tot.peak
+	// The element's peak dissipation can sit at either end of the run.
+	for _, q := range []float64{0, qsCut} {
+		if q < e.end {
+			peak = math.Max(peak, e.rates(q, v, buf).peakW)
+		}
+	}
+	r.RuntimeDays = cal / 24
+	r.RuntimeH = cal * f
+	r.DeliveredWh = loadWh
+	r.ProtectionLossWh = protWh
+	r.CellLossWh = cellWh
+	r.StandbyMAh = stby
+	r.SelfDischargeMAh = self
+	if r.DeliveredMAh > 0 {
+		r.StandbyShare = math.Min(1, (stby+self)/r.DeliveredMAh)
+	}
+	r.ProtectionPeakW = peak
+
+	if d.TracePoints > 1 && qsCut > 0 {
+		e.trace(v, qsCut, scale, f, r, buf)
+	}
+}
+
+// steepTail reports whether the integrand's slope at the span's end is
+// over twice its slope in the middle: the mark of a singular point just
+// past the end. gx need not be ordered; the nodes nearest the end (x → 1)
+// and nearest the middle (x → 0) are compared.
+func (e *evaluator) steepTail(nodes []rates) bool {
+	end, next, m0, m1 := -1, -1, -1, -1
+	for j, x := range e.gx {
+		switch {
+		case end < 0 || x > e.gx[end]:
+			next, end = end, j
+		case next < 0 || x > e.gx[next]:
+			next = j
+		}
+	}
+	for j, x := range e.gx {
+		if m0 < 0 || math.Abs(x) < math.Abs(e.gx[m0]) {
+			m1, m0 = m0, j
+		} else if m1 < 0 || math.Abs(x) < math.Abs(e.gx[m1]) {
+			m1 = j
+		}
+	}
+	if end < 0 || next < 0 || m0 < 0 || m1 < 0 || e.gx[m0] == e.gx[m1] {
+		return true
+	}
+	g := func(j int) float64 { return 1 / nodes[j].calendar }
+	slopeEnd := math.Abs(g(end)-g(next)) / (e.gx[end] - e.gx[next])
+	slopeMid := math.Abs(g(m0)-g(m1)) / math.Abs(e.gx[m0]-e.gx[m1])
+	return slopeEnd > 2*slopeMid
+}
+
+// sums are the quadrature's totals over a span: calendar hours, energies
+// into the load, the element and the cells, standby and self-discharge
+// charge, and the highest element dissipation seen.
+type sums struct {
+	h, loadWh, protWh, cellWh, stby, self, peak float64
+}
+
+func (s sums) add(t sums) sums {
+	return sums{s.h + t.h, s.loadWh + t.loadWh, s.protWh + t.protWh, s.cellWh + t.cellWh,
+		s.stby + t.stby, s.self + t.self, math.Max(s.peak, t.peak)}
+}
+
+// maxSplit bounds how often a span with a step in it is halved: 2⁻¹⁶ of a
+// span pins a step to well under 1e-4 of the runtime.
+const maxSplit = 16
+
+// maxSplits bounds the halvings in one evaluation, whatever the integrand
+// does: a few steps pinned to 2⁻¹⁶ each.
+const maxSplits = 96
+
+// stepLike reports whether the samples at the nodes (in order of charge)
+// change mostly across one gap — the mark of a jump, not of a smooth curve,
+// whose change spreads over several gaps — in the integrand 1/calendar or
+// in the power into the element or the load (a jump in one phase can hide
+// in the sum of the currents but not in the element's heat).
+func stepLike(nodes []rates) bool {
+	// The powers are judged against the total power, so rounding noise in
+	// a near-zero element loss (no element) never looks like a step.
+	power := 0.0
+	for j := range nodes {
+		power = math.Max(power, math.Abs(nodes[j].loadW)+math.Abs(nodes[j].protW))
+	}
+	return steppy(nodes, 0, func(r *rates) float64 { return 1 / r.calendar }) ||
+		steppy(nodes, power, func(r *rates) float64 { return r.protW }) ||
+		steppy(nodes, power, func(r *rates) float64 { return r.loadW })
+}
+
+// steppy is stepLike for one quantity; changes below 1e-9 of scale (or of
+// the quantity itself when scale is 0) count as no change.
+func steppy(nodes []rates, scale float64, g func(*rates) float64) bool {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	maxGap, prev := 0.0, 0.0
+	for j := range nodes {
+		x := g(&nodes[j])
+		lo, hi = math.Min(lo, x), math.Max(hi, x)
+		if j > 0 {
+			maxGap = math.Max(maxGap, math.Abs(x-prev))
+		}
+		prev = x
+	}
+	if scale == 0 {
+		scale = math.Max(math.Abs(hi), math.Abs(lo))
+	}
+	spread := hi - lo
+	return spread > 1e-9*scale && maxGap > 0.6*spread
+}
