@@ -274,8 +274,10 @@ func WriteCSV(w io.Writer, c *Cell) error {
 	fmt.Fprintln(bw, "mAh,V,ohm")
 	prev := math.Inf(1)
 	for _, q := range qs {
-		r := c.ResistanceAt(q, RefTempC)
-		v := c.Curve.At(q) + c.RefCurrent*r
+		// The polarisation branches fold into the steady resistance: the
+		// format has no time, so it keeps what a steady current meets.
+		r := c.SteadyResistance(q, RefTempC)
+		v := c.OpenCircuit(q, RefTempC)
 		if v > prev {
 			return fmt.Errorf("cell %s: rest voltage rises at %g mAh (%g V after %g V); it cannot be written as mAh,V,ohm points", c.ID, q, v, prev)
 		}

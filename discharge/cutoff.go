@@ -3,31 +3,18 @@
 package discharge
 
 import (
-	"math"
 	"sort"
 )
 
-// margin solves every phase at qs and returns whether any fails and the
-// smallest of their margins: load voltage above the floor, cell voltage
-// above the end-point, current below the clamp and the trip, charge left
-// on the curve. The margin is continuous in qs and crosses zero where the
-// first phase fails, except where a constant-power load collapses (no
-// operating point, no margin): there it is NaN.
-func (e *evaluator) margin(qs float64, v *variant, buf []op) (bool, float64) {
-	fail, _ := e.phases(qs, v, buf)
+// margin solves variant v at qs and returns whether it fails and its
+// smallest margin (see judge); past the curve's end the margin is the
+// charge left, negative.
+func (e *evaluator) margin(qs float64, v *variant, nd *node) (bool, float64) {
 	if qs >= e.end {
 		return true, e.end - qs
 	}
-	m := math.Inf(1)
-	for _, o := range buf {
-		if o.Fail == CauseCollapse {
-			return true, math.NaN()
-		}
-		m = min(m, o.Vload-v.floor, o.CellV-e.cell.EndPoint, v.lim.Clamp-o.I, v.lim.Trip-o.I)
-	}
-	if fail != "" && m > 0 || fail == "" && m < 0 { // a rule the margin does not see
-		m = math.NaN()
-	}
+	e.solveNode(qs, v, nd)
+	fail, _, m := e.judge(nd, v)
 	return fail != "", m
 }
 
@@ -36,7 +23,7 @@ func (e *evaluator) margin(qs float64, v *variant, buf []op) (bool, float64) {
 // still works (0: from the start), then narrows the first span that
 // fails. Failure is taken to be permanent once it starts, as the scan
 // always has.
-func (e *evaluator) cutoff(v *variant, buf []op, from float64) float64 {
+func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 	first := 1
 	lo, mlo := 0.0, 0.0
 	if from > 0 {
@@ -45,25 +32,25 @@ func (e *evaluator) cutoff(v *variant, buf []op, from float64) float64 {
 			j--
 		}
 		if j > 0 {
-			if f, m := e.margin(e.breaks[j], v, buf); !f {
+			if f, m := e.margin(e.breaks[j], v, nd); !f {
 				first, lo, mlo = j+1, e.breaks[j], m
 			}
 		}
 	}
 	if first == 1 {
-		f, m := e.margin(0, v, buf)
+		f, m := e.margin(0, v, nd)
 		if f {
 			return 0
 		}
 		mlo = m
 	}
 	for _, b := range e.breaks[first:] {
-		f, m := e.margin(b, v, buf)
+		f, m := e.margin(b, v, nd)
 		if !f {
 			lo, mlo = b, m
 			continue
 		}
-		return e.narrow(v, buf, lo, mlo, b, m)
+		return e.narrow(v, nd, lo, mlo, b, m)
 	}
 	return lo
 }
@@ -73,12 +60,12 @@ func (e *evaluator) cutoff(v *variant, buf []op, from float64) float64 {
 // takes Illinois (modified regula falsi) steps on the margin while both
 // ends have one, and bisects otherwise; the result is the last charge
 // found to work. About ten evaluations instead of bisection's forty.
-func (e *evaluator) narrow(v *variant, buf []op, lo, mlo, hi, mhi float64) float64 {
+func (e *evaluator) narrow(v *variant, nd *node, lo, mlo, hi, mhi float64) float64 {
 	tol := 1e-12 * e.end
 	side := 0
 	for k := 0; k < 200 && hi-lo > tol; k++ {
 		x := 0.5 * (lo + hi)
-		if mlo > 0 && mhi < 0 {
+		if mlo > 0 && mhi <= 0 {
 			x = lo + (hi-lo)*mlo/(mlo-mhi)
 			// Keep a little inside the bracket, so that it shrinks from
 			// both ends once the estimate is good.
@@ -87,7 +74,13 @@ func (e *evaluator) narrow(v *variant, buf []op, lo, mlo, hi, mhi float64) float
 		if !(x > lo && x < hi) {
 			x = 0.5 * (lo + hi)
 		}
-		f, m := e.margin(x, v, buf)
+		f, m := e.margin(x, v, nd)
+		if !f && m == 0 {
+			// A step that lands on the root: x works with nothing to
+			// spare, so it is the cut-off. (Kept as lo with mlo = 0, the
+			// next step could only bisect, about 37 more times.)
+			return x
+		}
 		if f {
 			hi, mhi = x, m
 			if side == 1 {

@@ -7,6 +7,7 @@ import (
 	"math"
 
 	"headroom/curves"
+	"headroom/internal/rc"
 	"headroom/protect"
 )
 
@@ -25,13 +26,18 @@ type op struct {
 }
 
 // variant is the design seen with a given element and floor: the real one,
-// the same without the element, and the reference (no element, no floor).
+// the same without the element, and the reference (no element, no floor,
+// no pack cut-off).
 type variant struct {
-	el    protect.Element
-	lim   protect.Limit
-	floor float64
+	el     protect.Element
+	lim    protect.Limit
+	floor  float64
+	cutoff bool // the pack's own under-voltage cut-off applies
 }
 
+// evaluator holds what one evaluation works out once: the design's
+// phases, the cell's breakpoints and polarisation branches, the drains
+// that do not change with charge.
 type evaluator struct {
 	d     *Design
 	cell  *curves.Cell
@@ -41,11 +47,10 @@ type evaluator struct {
 	loads []Load
 	end   float64 // curve end, mAh (scaled, per cell)
 	// hint holds each phase's last solved current, A: the next solve, at
-	// a nearby charge, starts from it (0: none yet).
-	hint []float64
-	// lastE and lastRp are the pack source of the last phases call.
-	lastE, lastRp float64
-	breaks        []float64
+	// a nearby charge, starts from it (0: none yet). It only saves work:
+	// every solve converges to the same root from any start.
+	hint   []float64
+	breaks []float64
 	// steepEnd is set when a phase is a constant-power or LED load, whose
 	// current can turn steep just before the cut-off.
 	steepEnd bool
@@ -56,17 +61,16 @@ type evaluator struct {
 	// continuous use); self is the pack's self-discharge drain, mA. Both
 	// are fixed for the run and read at every quadrature node.
 	duty, self float64
-}
-
-// pack gives the pack's Thevenin source at scaled charge qs: E is the
-// voltage at zero current and Rp the pack resistance, so that
-// Vpack(I) = E − I·Rp (DESIGN §2: Vpack = S·Vcell, Rpack = S·R/P).
-func (e *evaluator) pack(qs float64) (E, Rp, Rcell float64) {
-	c := e.cell
-	Rcell = c.ResistanceAt(qs, e.T)
-	E = e.S * (c.Curve.At(qs) + c.RefCurrent*Rcell)
-	Rp = e.S * Rcell / e.P
-	return E, Rp, Rcell
+	// pol is the cell's RC branches under this profile and day (nil for a
+	// cell without them).
+	pol *polarisation
+	// cutoffV is the pack's under-voltage cut-off per cell (0: none);
+	// pLate marks the phases long enough to trip it.
+	cutoffV float64
+	pLate   []bool
+	// unsettled counts the charges at which the phases' currents and the
+	// branches' voltages did not settle within maxPasses.
+	unsettled int
 }
 
 // Evaluate computes runtime, capacity and losses for design d.
@@ -84,71 +88,73 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// The ambient is fixed for the whole run: work out the element's
 	// temperature terms once.
 	el = protect.Fixed(el, d.TempC)
-	e := &evaluator{d: d, cell: d.Cell, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw}
-	e.end = d.Cell.Curve.End()
-	total := 0.0
-	for _, p := range d.Profile {
-		total += p.Seconds
-	}
-	n := len(d.Profile)
-	e.w, e.loads, e.hint = make([]float64, 0, n), make([]Load, 0, n), make([]float64, n)
-	for _, p := range d.Profile {
-		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED
-		e.w = append(e.w, p.Seconds/total)
-		e.loads = append(e.loads, p.Load)
-	}
-	e.breaks = breakpoints(d.Cell)
-	e.duty = 1.0
-	if d.HoursPerDay > 0 {
-		e.duty = d.HoursPerDay / 24
-	}
-	e.self = e.selfDischarge()
+	e := newEvaluator(d, gx, gw)
 
-	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor}
-	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor}
+	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true}
+	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, cutoff: true}
 	ref := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
-	buf := make([]op, len(e.loads))
+	nd := e.newNode()
 
-	// Rate effect: one effective per-cell current at half depth, the
-	// Peukert-weighted average of the phases (see doc.go).
-	k := d.Cell.Peukert
-	e.phases(0.5*e.end, real, buf)
-	sum := 0.0
-	for j, o := range buf {
-		sum += e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
+	// The cut-offs, in scaled charge: the voltages at a charge do not
+	// depend on the rate law's stretch of the charge axis. Each variant
+	// asks less of the pack than the one before, so its scan resumes near
+	// the previous cut-off; without an element the bare variant is the
+	// real one.
+	qsCut := e.cutoff(real, nd, 0)
+	qsBare := qsCut
+	if _, none := el.(protect.None); !none {
+		qsBare = e.cutoff(bare, nd, qsCut)
 	}
+	qsRef := e.cutoff(ref, nd, qsBare)
+
+	// Rate and cold (curves.Cell.CapacityFactor): one effective per-cell
+	// current, the Peukert-weighted average (Σ wᵢ·Iᵢᵏ)^(1/k) over the day:
+	// the phases' currents with the fresh pack for the hours of use, the
+	// standby drain for the rest, so that a daily pattern and the same
+	// rest written into the profile give the same. The fresh pack's
+	// currents rise with every load's demand, so a bigger load never gets
+	// a kinder rate factor (a point deeper in the run can fail, or move
+	// with the load).
+	k := d.Cell.Peukert
+	e.solveNode(0, real, nd)
+	sum := 0.0
+	for j, o := range nd.mean {
+		sum += e.duty * e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
+	}
+	sum += (1 - e.duty) * math.Pow((d.Standby+el.Quiescent(nd.Epack, d.TempC))/e.P, k)
 	ieff := math.Pow(sum, 1/k)
 	F := d.Cell.CapacityFactor(ieff, d.TempC)
 	scale := e.P * F // pack mAh per scaled cell mAh
 
 	r := &Result{EffectiveA: ieff, CapacityFac: F}
-	E0, _, _ := e.pack(0)
-	r.FreshV = E0
-	r.QuiescentA = el.Quiescent(E0, d.TempC)
-
-	// Each variant asks less of the pack than the one before, so its scan
-	// resumes near the previous cut-off; without an element the bare
-	// variant is the real one.
-	qsCut := e.cutoff(real, buf, 0)
-	qsBare := qsCut
-	if _, none := el.(protect.None); !none {
-		qsBare = e.cutoff(bare, buf, qsCut)
-	}
-	qsRef := e.cutoff(ref, buf, qsBare)
+	r.FreshV = e.S * d.Cell.OpenCircuit(0, d.TempC)
+	r.QuiescentA = el.Quiescent(r.FreshV, d.TempC)
 
 	// Cut-off cause: the first failure just past the cut.
 	past := math.Min(qsCut+1e-9*e.end, e.end)
 	if qsCut == 0 {
 		past = 0
 	}
-	fail, ph := e.phases(past, real, buf)
-	if fail == "" { // numerical edge: call it the end of the curve
-		fail, ph = CauseEndPoint, 0
+	fail, ph := CauseEndPoint, 0
+	if past < e.end {
+		e.solveNode(past, real, nd)
+		if f, p, _ := e.judge(nd, real); f != "" {
+			fail, ph = f, p
+		}
 	}
 	r.CutoffCause = fail
 	r.CutoffPhase = d.Profile[ph].Label()
-	e.phases(qsCut, real, buf)
-	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = buf[ph].Vload, buf[ph].Vin, buf[ph].I
+	e.solveNode(math.Min(qsCut, e.end), real, nd)
+	o := nd.worst[ph]
+	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = o.Vload, o.Vin, o.I
+	switch fail {
+	case CauseEndPoint: // the cycle's average, not one instant
+		r.CutoffPackV = e.S * nd.cellAvg
+	case CauseCutoff:
+		if !math.IsNaN(nd.late[ph]) {
+			r.CutoffPackV = e.S * nd.late[ph]
+		}
+	}
 	// A hopeless design can solve to negative volts: report what a meter
 	// would show, nothing below zero.
 	r.CutoffLoadV = math.Max(r.CutoffLoadV, 0)
@@ -164,7 +170,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	r.StrandedMAh = qC - qA
 	r.ReferenceMAh = qC
 
-	e.integrate(real, qsCut, scale, r, buf)
+	e.integrate(real, qsCut, scale, r, nd)
 	if !finite(r.RuntimeH) || !finite(r.DeliveredWh) || !finite(r.ProtectionLossWh) || !finite(r.CellLossWh) {
 		// The drain fell to nothing before any cut-off: a load of zero, or
 		// an LED below its forward voltage, with no standby and a cell with
@@ -172,8 +178,58 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		// than print an infinite runtime.
 		return nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
 	}
-	e.priceAndNotes(el, r, buf)
+	e.priceAndNotes(el, r, nd)
 	return r, nil
+}
+
+// newEvaluator works out what stays fixed for the evaluation of d.
+func newEvaluator(d *Design, gx, gw []float64) *evaluator {
+	if len(gx) > maxGauss {
+		panic("discharge: quadrature rule above maxGauss nodes")
+	}
+	c := d.Cell
+	e := &evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw}
+	e.end = c.Curve.End()
+	total := 0.0
+	for _, p := range d.Profile {
+		total += p.Seconds
+	}
+	n := len(d.Profile)
+	e.w, e.loads, e.hint = make([]float64, 0, n), make([]Load, 0, n), make([]float64, n)
+	dur := make([]float64, 0, n)
+	for _, p := range d.Profile {
+		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED
+		e.w = append(e.w, p.Seconds/total)
+		e.loads = append(e.loads, p.Load)
+		dur = append(dur, p.Seconds)
+	}
+	e.breaks = breakpoints(c)
+	e.duty = 1.0
+	if d.HoursPerDay > 0 {
+		e.duty = d.HoursPerDay / 24
+	}
+	e.self = e.selfDischarge()
+	e.cutoffV = c.CutoffV
+	e.pLate = make([]bool, n)
+	for k, p := range d.Profile {
+		e.pLate[k] = c.CutoffV > 0 && (n == 1 || p.Seconds >= c.CutoffDelay)
+	}
+	if len(c.RC) > 0 {
+		_, fr := c.TempFactors(d.TempC)
+		st := make([]rc.Stage, len(c.RC))
+		for i, b := range c.RC {
+			st[i] = rc.Stage{R: b.R * fr, Tau: b.Tau}
+		}
+		e.pol = newPolarisation(st, dur, e.w, d.HoursPerDay, c.CutoffDelay*btoi(c.CutoffV > 0))
+	}
+	return e
+}
+
+func btoi(b bool) float64 {
+	if b {
+		return 1
+	}
+	return 0
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

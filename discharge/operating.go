@@ -184,28 +184,174 @@ func newtonPower(vload func(float64) float64, pin, E, i float64) (float64, bool)
 	return i, math.Abs(i*v-pin) <= 1e-9*pin
 }
 
-// phases solves every phase at qs; it returns the first failure.
-func (e *evaluator) phases(qs float64, v *variant, out []op) (fail Cause, phase int) {
-	fail, phase = "", -1
-	if qs >= e.end {
-		return CauseEndPoint, 0
+// node is what one charge gives for one variant: the cells' source and
+// every phase's operating points, at the polarisation the whole periodic
+// history gives (see polarisation.go). The caller owns it and passes it
+// in; it is reused from charge to charge to save allocations, and its
+// currents are the starting guess of the next solve.
+type node struct {
+	E, R0     float64 // one cell: open-circuit voltage and instant resistance
+	Epack, Rp float64 // the pack: S·E and S·R0/P
+	// mean holds each phase at its mean polarisation: the charge it
+	// draws and the power it delivers. worst holds each phase at its
+	// worst instant: what the floor, a limit or a fuse sees.
+	mean, worst []op
+	// cellAvg is one cell's voltage averaged over the charge it delivers
+	// in a day's use (each phase at its mean polarisation, weighted by
+	// the charge it draws; rests weigh nothing): what the end-point, a
+	// rating convention, applies to — never the bottom of a pulse. An
+	// explicit rest phase and the daily pattern's rest give the same.
+	cellAvg float64
+	// late is one cell's voltage the cut-off delay before the end of each
+	// phase (the worst cycle); NaN where the phase is shorter than the
+	// delay or the cell has no cut-off.
+	late  []float64
+	icell []float64 // per-cell phase currents driving the RC branches, A
+	pol   *polState
+}
+
+func (e *evaluator) newNode() *node {
+	n := len(e.loads)
+	return &node{mean: make([]op, n), worst: make([]op, n), late: make([]float64, n), icell: make([]float64, n), pol: newPolState(n)}
+}
+
+// maxPasses bounds the fixed-point passes per charge: a phase's current
+// sets the branches' voltages, which set every voltage-dependent phase's
+// current. The map contracts by about ΣRᵢ·I/V per pass; near a
+// collapse it may not settle, which the evaluation warns about.
+const maxPasses = 12
+
+// solveNode solves every phase of variant v at scaled charge qs into nd.
+func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
+	c := e.cell
+	nd.E = c.OpenCircuit(qs, e.T)
+	nd.R0 = c.ResistanceAt(qs, e.T)
+	nd.Epack, nd.Rp = e.S*nd.E, e.S*nd.R0/e.P
+	if e.pol == nil {
+		for k, l := range e.loads {
+			o := e.solve(l, k, v, nd.Epack, nd.Rp)
+			o.CellV = (nd.Epack - o.Ipack*nd.Rp) / e.S
+			nd.mean[k], nd.worst[k] = o, o
+			nd.late[k] = math.NaN()
+			if e.cutoffV > 0 && e.pLate[k] {
+				nd.late[k] = o.CellV
+			}
+		}
+		nd.cellAvg = e.chargeAverage(nd.mean)
+		return
 	}
-	E, Rp, _ := e.pack(qs)
-	e.lastE, e.lastRp = E, Rp
+	// The rest between sessions carries the standby drain and the
+	// element's standing drain, shared by the strings.
+	irest := (e.d.Standby + v.el.Quiescent(nd.Epack, e.T)) / e.P
+	fresh := true
+	for _, x := range nd.icell {
+		fresh = fresh && x == 0
+	}
+	if fresh { // no guess yet: the currents without polarisation
+		for k, l := range e.loads {
+			nd.icell[k] = e.solve(l, k, v, nd.Epack, nd.Rp).Ipack / e.P
+		}
+	}
+	settled := false
+	for pass := 0; pass < maxPasses && !settled; pass++ {
+		e.pol.state(nd.icell, irest, nd.pol)
+		change, failed := 0.0, false
+		for k, l := range e.loads {
+			src := e.S * (nd.E - nd.pol.mean[k])
+			o := e.solve(l, k, v, src, nd.Rp)
+			o.CellV = (src - o.Ipack*nd.Rp) / e.S
+			nd.mean[k] = o
+			ic := o.Ipack / e.P
+			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
+			nd.icell[k] = ic
+			failed = failed || o.Fail == CauseCollapse
+		}
+		// A collapse has no current to settle on: the phase fails
+		// whatever the branches do.
+		settled = change <= 1e-10 || failed
+	}
+	if !settled {
+		e.unsettled++
+	}
 	for k, l := range e.loads {
-		o := e.solve(l, k, v, E, Rp)
-		o.CellV = (E - o.Ipack*Rp) / e.S
-		if o.Fail == "" && o.CellV < e.cell.EndPoint {
-			o.Fail = CauseEndPoint
-		}
-		if out != nil {
-			out[k] = o
-		}
-		if o.Fail != "" && (fail == "" || rank(o.Fail) < rank(fail)) {
-			fail, phase = o.Fail, k
+		src := e.S * (nd.E - nd.pol.worst[k])
+		o := e.solve(l, k, v, src, nd.Rp)
+		o.CellV = (src - o.Ipack*nd.Rp) / e.S
+		nd.worst[k] = o
+		nd.late[k] = math.NaN()
+		if e.cutoffV > 0 && e.pLate[k] {
+			nd.late[k] = nd.E - nd.icell[k]*nd.R0 - nd.pol.late[k]
 		}
 	}
-	return fail, phase
+	nd.cellAvg = e.chargeAverage(nd.mean)
+}
+
+// chargeAverage is the cell voltage of the phases ops weighted by the
+// charge each draws; the plain duty-weighted mean where none draws any.
+func (e *evaluator) chargeAverage(ops []op) float64 {
+	var qv, q, v float64
+	for k, o := range ops {
+		x := e.w[k] * math.Max(o.Ipack, 0)
+		qv += x * o.CellV
+		q += x
+		v += e.w[k] * o.CellV
+	}
+	if q > 0 {
+		return qv / q
+	}
+	return v
+}
+
+// judge says whether variant v fails at the charge nd was solved at, and
+// gives the smallest margin: load voltage above the floor, current below
+// the clamp and the trip (each phase at its worst instant), the cycle's
+// average cell voltage above the end-point, each long-enough phase's cell
+// voltage above the pack's cut-off. The margin is continuous in charge
+// and crosses zero where the first rule fails, except where a
+// constant-power load collapses (no operating point, no margin): there it
+// is NaN. phase is the failing phase (-1 when none fails).
+func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float64) {
+	fail, phase, m = "", -1, math.Inf(1)
+	note := func(c Cause, k int) {
+		if fail == "" || rank(c) < rank(fail) {
+			fail, phase = c, k
+		}
+	}
+	low := 0 // the phase whose cell voltage dips lowest: named for an end-point
+	for k, o := range nd.worst {
+		if o.Fail != "" {
+			note(o.Fail, k)
+		}
+		if o.Fail == CauseCollapse {
+			m = math.NaN()
+		} else if !math.IsNaN(m) {
+			m = min(m, o.Vload-v.floor, v.lim.Clamp-o.I, v.lim.Trip-o.I)
+		}
+		if o.CellV < nd.worst[low].CellV {
+			low = k
+		}
+		if v.cutoff && !math.IsNaN(nd.late[k]) {
+			d := nd.late[k] - e.cutoffV
+			if d < 0 {
+				note(CauseCutoff, k)
+			}
+			if !math.IsNaN(m) {
+				m = min(m, d)
+			}
+		}
+	}
+	if d := nd.cellAvg - e.cell.EndPoint; d < 0 {
+		note(CauseEndPoint, low)
+		if !math.IsNaN(m) {
+			m = min(m, d)
+		}
+	} else if !math.IsNaN(m) {
+		m = min(m, d)
+	}
+	if fail != "" && m > 0 || fail == "" && m < 0 { // a rule the margin does not see
+		m = math.NaN()
+	}
+	return fail, phase, m
 }
 
 // rank orders causes when several phases fail at once: the most telling first.
@@ -219,6 +365,8 @@ func rank(c Cause) int {
 		return 2
 	case CauseFloor:
 		return 3
+	case CauseCutoff:
+		return 4
 	}
-	return 4
+	return 5
 }

@@ -57,35 +57,37 @@ type rates struct {
 	peakW    float64 // highest element dissipation among the phases, W
 }
 
-func (e *evaluator) rates(qs float64, v *variant, buf []op) rates {
+// rates solves variant v at qs into nd and returns what the quadrature
+// sums there: each phase's charge and powers at its mean polarisation,
+// the element's peak at the phases' worst instants.
+func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 	d := e.d
-	e.phases(qs, v, buf)
-	E, Rp := e.lastE, e.lastRp
-	if qs >= e.end { // phases stopped before solving the pack
-		E, Rp, _ = e.pack(qs)
-	}
+	e.solveNode(qs, v, nd)
 	f := e.duty
 	var r rates
 	var use, loadW, protW, cellW float64
-	for j, o := range buf {
+	for j, o := range nd.mean {
 		w := e.w[j]
 		use += w * o.Ipack
 		loadW += w * o.Vload * o.I
 		pw := o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
 		protW += w * pw
-		cellW += w * o.Ipack * o.Ipack * Rp
-		if pw > r.peakW {
-			r.peakW = pw
-		}
+		// R0's heat, and the branches': in the periodic steady state the
+		// energy a branch stores returns each cycle, so it burns the
+		// mean of I·v (per cell, times the S·P cells).
+		cellW += w * (o.Ipack*o.Ipack*nd.Rp + e.S*o.Ipack*nd.pol.mean[j])
 	}
-	iq := v.el.Quiescent(E, e.T)
+	for _, o := range nd.worst {
+		r.peakW = math.Max(r.peakW, o.Vdrop*o.I+o.Vin*(o.Ipack-o.I))
+	}
+	iq := v.el.Quiescent(nd.Epack, e.T)
 	idle := d.Standby + iq
 	r.standby = (1 - f) * idle * 1000
 	r.self = e.self
 	r.calendar = f*use*1000 + r.standby + r.self
 	r.loadW = f * loadW
-	r.protW = f*protW + (1-f)*E*iq
-	r.cellW = f*cellW + (1-f)*idle*idle*Rp
+	r.protW = f*protW + (1-f)*nd.Epack*iq
+	r.cellW = f*cellW + (1-f)*idle*idle*nd.Rp
 	return r
 }
 
@@ -100,82 +102,25 @@ func (e *evaluator) selfDischarge() float64 {
 
 // integrate fills the time, energy and drain totals from 0 to qsCut and
 // the trace.
-func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf []op) {
+func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *node) {
 	d := e.d
 	f := e.duty
 	var tot sums
-	nodes := make([]rates, len(e.gx))
-	splits := 0
-	// rule applies the Gauss rule on [a, b] to the sampled nodes.
-	rule := func(a, b float64) sums {
-		half, mid := 0.5*(b-a), 0.5*(a+b)
-		var s sums
-		for j, x := range e.gx {
-			nodes[j] = e.rates(mid+half*x, v, buf)
-		}
-		for j := range e.gx {
-			rt := &nodes[j]
-			dt := e.gw[j] * half * scale / rt.calendar // hours per node
-			s.h += dt
-			s.loadWh += rt.loadW * dt
-			s.protWh += rt.protW * dt
-			s.cellWh += rt.cellW * dt
-			s.stby += rt.standby * dt
-			s.self += rt.self * dt
-			s.peak = math.Max(s.peak, rt.peakW)
-		}
-		return s
-	}
-	var span func(a, b float64, depth int, last bool) sums
-	span = func(a, b float64, depth int, last bool) sums { // calendar hours and energies on [a, b]
-		if b <= a {
-			return sums{}
-		}
-		whole := rule(a, b)
-		if depth >= maxSplit || splits >= maxSplits {
-			return whole
-		}
-		mid := 0.5 * (a + b)
-		// Between breakpoints the integrand is smooth unless an operating
-		// point jumps: a MOSFET running out of gate drive hands the current
-		// to its body diode, a limiter's pass FET saturates. A fixed rule
-		// across such a jump errs by up to the jump times the node spacing,
-		// so a span whose samples look like a step (one gap between
-		// neighbouring nodes holding most of the span's change) is halved
-		// until the step is pinned down.
-		if stepLike(nodes) {
-			splits++
-			return span(a, mid, depth+1, false).add(span(mid, b, depth+1, last))
-		}
-		// The last span ends at the cut-off, which can sit just short of a
-		// constant-power load's collapse, where the current rises like a
-		// square root (or where an LED's current fades to nothing): there
-		// the rule is checked against its two halves and halved until they
-		// agree. Constant-current and resistive loads have no such point.
-		if last && e.steepEnd && e.steepTail(nodes) {
-			l, r := rule(a, mid), rule(mid, b)
-			if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h {
-				splits++
-				return span(a, mid, depth+1, false).add(span(mid, b, depth+1, true))
-			}
-			return l.add(r)
-		}
-		return whole
-	}
+	q := &quadrature{e: e, v: v, nd: nd, scale: scale}
 	prev := 0.0
 	for _, b := range e.breaks[1:] {
 		if b >= qsCut {
-			tot = tot.add(span(prev, qsCut, 0, true))
+			tot = tot.add(q.span(prev, qsCut, 0, true))
 			break
 		}
-		tot = tot.add(span(prev, b, 0, false))
+		tot = tot.add(q.span(prev, b, 0, false))
 		prev = b
 	}
 	cal, loadWh, protWh, cellWh, stby, self, peak := tot.h, tot.loadWh, tot.protWh, tot.cellWh, tot.stby, tot.self, tot.peak
 	// The element's peak dissipation can sit at either end of the run.
-	for _, q := range []float64{0, qsCut} {
-		if q < e.end {
-			peak = math.Max(peak, e.rates(q, v, buf).peakW)
+	for _, x := range []float64{0, qsCut} {
+		if x < e.end {
+			peak = math.Max(peak, e.rates(x, v, nd).peakW)
 		}
 	}
 	r.RuntimeDays = cal / 24
@@ -191,8 +136,86 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, buf [
 	r.ProtectionPeakW = peak
 
 	if d.TracePoints > 1 && qsCut > 0 {
-		e.trace(v, qsCut, scale, f, r, buf)
+		e.trace(v, qsCut, scale, f, r, nd)
 	}
+}
+
+// maxGauss is the most nodes a quadrature rule may have.
+const maxGauss = 64
+
+// quadrature integrates one variant over charge: the Gauss rule on each
+// span, halving spans where the integrand jumps or steepens.
+type quadrature struct {
+	e      *evaluator
+	v      *variant
+	nd     *node
+	scale  float64 // pack mAh per scaled cell mAh
+	splits int     // halvings so far, bounded by maxSplits
+}
+
+// rule applies the Gauss rule on [a, b], leaving the sampled rates in
+// nodes (len(gx) long, in the rule's node order).
+func (q *quadrature) rule(a, b float64, nodes []rates) sums {
+	e := q.e
+	half, mid := 0.5*(b-a), 0.5*(a+b)
+	var s sums
+	for j, x := range e.gx {
+		nodes[j] = e.rates(mid+half*x, q.v, q.nd)
+	}
+	for j := range e.gx {
+		rt := &nodes[j]
+		dt := e.gw[j] * half * q.scale / rt.calendar // hours per node
+		s.h += dt
+		s.loadWh += rt.loadW * dt
+		s.protWh += rt.protW * dt
+		s.cellWh += rt.cellW * dt
+		s.stby += rt.standby * dt
+		s.self += rt.self * dt
+		s.peak = math.Max(s.peak, rt.peakW)
+	}
+	return s
+}
+
+// span is the calendar hours and energies on [a, b]; last marks the span
+// ending at the cut-off.
+func (q *quadrature) span(a, b float64, depth int, last bool) sums {
+	if b <= a {
+		return sums{}
+	}
+	e := q.e
+	var store [maxGauss]rates
+	nodes := store[:len(e.gx)]
+	whole := q.rule(a, b, nodes)
+	if depth >= maxSplit || q.splits >= maxSplits {
+		return whole
+	}
+	mid := 0.5 * (a + b)
+	// Between breakpoints the integrand is smooth unless an operating
+	// point jumps: a MOSFET running out of gate drive hands the current
+	// to its body diode, a limiter's pass FET saturates. A fixed rule
+	// across such a jump errs by up to the jump times the node spacing,
+	// so a span whose samples look like a step (one gap between
+	// neighbouring nodes holding most of the span's change) is halved
+	// until the step is pinned down.
+	if stepLike(nodes) {
+		q.splits++
+		return q.span(a, mid, depth+1, false).add(q.span(mid, b, depth+1, last))
+	}
+	// The last span ends at the cut-off, which can sit just short of a
+	// constant-power load's collapse, where the current rises like a
+	// square root (or where an LED's current fades to nothing): there
+	// the rule is checked against its two halves and halved until they
+	// agree. Constant-current and resistive loads have no such point.
+	if last && e.steepEnd && e.steepTail(nodes) {
+		var halves [maxGauss]rates
+		l, r := q.rule(a, mid, halves[:len(e.gx)]), q.rule(mid, b, halves[:len(e.gx)])
+		if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h {
+			q.splits++
+			return q.span(a, mid, depth+1, false).add(q.span(mid, b, depth+1, true))
+		}
+		return l.add(r)
+	}
+	return whole
 }
 
 // steepTail reports whether the integrand's slope at the span's end is

@@ -12,7 +12,7 @@ import (
 )
 
 // priceAndNotes fills cost, heat, warnings and cautions.
-func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
+func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	d := e.d
 	c := d.Cell
 	r.PackPrice = d.PackPrice
@@ -49,8 +49,8 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 			continue
 		}
 		v := &variant{el: el, lim: protect.NoLimit, floor: 0}
-		e.phases(q, v, buf)
-		for j, o := range buf {
+		e.solveNode(q, v, nd)
+		for j, o := range nd.worst {
 			cur[j] = math.Max(cur[j], o.I)
 		}
 	}

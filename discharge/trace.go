@@ -8,7 +8,7 @@ import (
 
 // trace samples the voltages at evenly spaced charges, integrating the
 // time between samples with the same rule.
-func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, buf []op) {
+func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, nd *node) {
 	n := e.d.TracePoints
 	r.Trace = make([]TracePoint, n)
 	hours := 0.0
@@ -21,14 +21,14 @@ func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, buf []
 		if k > 0 {
 			half, mid := 0.5*(q-prev), 0.5*(q+prev)
 			for j, x := range e.gx {
-				rt := e.rates(mid+half*x, v, buf)
+				rt := e.rates(mid+half*x, v, nd)
 				hours += e.gw[j] * half * scale / rt.calendar
 			}
 		}
 		prev = q
-		e.phases(q, v, buf)
+		e.solveNode(q, v, nd)
 		tp := TracePoint{Hours: hours * f, MAh: q * scale, LoadV: math.Inf(1), IdleV: math.Inf(-1)}
-		for _, o := range buf {
+		for _, o := range nd.worst {
 			if o.Vload < tp.LoadV {
 				tp.LoadV, tp.PackV = o.Vload, o.Vin
 			}
