@@ -257,9 +257,14 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		e.pol.state(nd.icell, irest, nd.pol)
 		change, failed := 0.0, false
 		for k, l := range e.loads {
-			src := e.S * (nd.E - nd.pol.mean[k])
-			o := e.solve(l, k, v, src, nd.Rp)
-			o.CellV = (src - o.Ipack*nd.Rp) / e.S
+			// Phase k's own share of its polarisation acts as a series
+			// resistance (self[k] per cell); only the other phases' share
+			// is held from the last pass.
+			self := e.pol.self[k]
+			other := nd.pol.mean[k] - self*nd.icell[k]
+			src := e.S * (nd.E - other)
+			o := e.solve(l, k, v, src, nd.Rp+e.S*self/e.P)
+			o.CellV = (src-o.Ipack*nd.Rp)/e.S - self*o.Ipack/e.P
 			nd.mean[k] = o
 			ic := o.Ipack / e.P
 			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
@@ -319,6 +324,12 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 	}
 	low := 0 // the phase whose cell voltage dips lowest: named for an end-point
 	for k, o := range nd.worst {
+		if nd.mean[k].Fail == CauseCollapse {
+			// No operating point with the phase's polarisation following
+			// its own current: it cannot be sustained, whatever the worst
+			// instant alone would give.
+			o.Fail = CauseCollapse
+		}
 		if o.Fail != "" {
 			note(o.Fail, k)
 		}

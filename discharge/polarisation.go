@@ -61,6 +61,11 @@ type polarisation struct {
 	late   []bool    // phase k lasts at least the cut-off delay
 	day    bool
 	vs, ve []float64 // scratch: each branch's periodic start and end of phase k
+	// self[k] is how much phase k's own mean polarisation rises per
+	// ampere of its own current (volts per ampere, per cell): the map is
+	// linear in the currents, so the operating point can take that part
+	// exactly, as a resistance, and iterate only on the other phases'.
+	self []float64
 }
 
 // polState is the polarisation (volts per cell, summed over the
@@ -127,6 +132,14 @@ func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *pol
 			b.last = math.Exp(-math.Max(hs-tp, 0) / tau)
 		}
 		p.br = append(p.br, b)
+	}
+	p.self = make([]float64, n)
+	unit, st := make([]float64, n), newPolState(n)
+	for k := range unit {
+		unit[k] = 1
+		p.state(unit, 0, st)
+		p.self[k] = st.mean[k]
+		unit[k] = 0
 	}
 	return p
 }

@@ -60,6 +60,9 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("the LED of %s never lights: the voltage it gets stays below its %.2f V forward voltage (set the floor above it to count that as a stop)", p.Label(), p.Load.Vf))
 		}
 	}
+	if e.unsettled > 0 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("at %d points of the run the phases' currents and the cells' polarisation did not settle (a load near collapse): the figures there are approximate", e.unsettled))
+	}
 	if r.StandbyShare > 0.2 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("standby drain and self-discharge take %.0f %% of the charge: the pack goes flat on the shelf", r.StandbyShare*100))
 	}
