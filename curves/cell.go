@@ -3,7 +3,6 @@ package curves
 import (
 	"fmt"
 	"math"
-	"sort"
 
 	"headroom/internal/rc"
 )
@@ -336,27 +335,44 @@ func (c *Cell) Terminal(qs, i, tempC float64) float64 {
 func (c *Cell) EndCharge(i, tempC float64) float64 {
 	end := c.Curve.End()
 	g := func(q float64) float64 { return c.Terminal(q, i, tempC) - c.EndPoint }
-	if g(0) <= 0 {
+	g0 := g(0)
+	if g0 <= 0 {
 		return 0
 	}
-	xs := c.Curve.Charges()
-	for _, r := range c.Resistance {
-		xs = append(xs, r.Depth*end)
-	}
-	xs = append(xs, end)
-	sort.Float64s(xs)
-	lo, glo := 0.0, g(0)
-	for _, x := range xs {
-		if x <= lo || x > end {
-			continue
+	// The first breakpoint at or below the end-point (the curve's end if
+	// none), then the last breakpoint before it: the crossing lies
+	// between them, on one straight piece. No sorting, no allocation.
+	x, gx := end, g(end)
+	each := func(f func(q float64)) {
+		for k := 0; k < c.Curve.Len(); k++ {
+			q, _ := c.Curve.Point(k)
+			f(q)
 		}
-		gx := g(x)
-		if gx <= 0 {
-			return lo + (x-lo)*glo/(glo-gx)
+		for _, r := range c.Resistance {
+			f(r.Depth * end)
 		}
-		lo, glo = x, gx
 	}
-	return end
+	each(func(q float64) {
+		if q > 0 && q < x {
+			if gq := g(q); gq <= 0 {
+				x, gx = q, gq
+			}
+		}
+	})
+	if gx > 0 {
+		return end
+	}
+	lo := 0.0
+	each(func(q float64) {
+		if q > lo && q < x {
+			lo = q
+		}
+	})
+	glo := g0
+	if lo > 0 {
+		glo = g(lo)
+	}
+	return lo + (x-lo)*glo/(glo-gx)
 }
 
 // IsPrimary reports whether the cell is single-use.

@@ -4,6 +4,7 @@ package discharge
 
 import (
 	"math"
+	"slices"
 
 	"headroom/protect"
 )
@@ -208,11 +209,16 @@ type node struct {
 	late  []float64
 	icell []float64 // per-cell phase currents driving the RC branches, A
 	pol   *polState
+	// polI and polRest are the currents pol was worked out for: a node
+	// whose currents have not moved (constant-current phases) reuses it.
+	polI    []float64
+	polRest float64
 }
 
 func (e *evaluator) newNode() *node {
 	n := len(e.loads)
-	return &node{mean: make([]op, n), worst: make([]op, n), late: make([]float64, n), icell: make([]float64, n), pol: newPolState(n)}
+	return &node{mean: make([]op, n), worst: make([]op, n), late: make([]float64, n), icell: make([]float64, n),
+		pol: newPolState(n), polI: make([]float64, n), polRest: math.NaN()}
 }
 
 // maxPasses bounds the fixed-point passes per charge: a phase's current
@@ -222,7 +228,10 @@ func (e *evaluator) newNode() *node {
 const maxPasses = 12
 
 // solveNode solves every phase of variant v at scaled charge qs into nd.
+var zzCount int
+
 func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
+	zzCount++
 	c := e.cell
 	nd.E = c.OpenCircuit(qs, e.T)
 	nd.R0 = c.ResistanceAt(qs, e.T)
@@ -254,7 +263,11 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 	}
 	settled := false
 	for pass := 0; pass < maxPasses && !settled; pass++ {
-		e.pol.state(nd.icell, irest, nd.pol)
+		if irest != nd.polRest || !slices.Equal(nd.icell, nd.polI) {
+			e.pol.state(nd.icell, irest, nd.pol)
+			copy(nd.polI, nd.icell)
+			nd.polRest = irest
+		}
 		change, failed := 0.0, false
 		for k, l := range e.loads {
 			// Phase k's own share of its polarisation acts as a series
@@ -272,13 +285,31 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			failed = failed || o.Fail == CauseCollapse
 		}
 		// A collapse has no current to settle on: the phase fails
-		// whatever the branches do.
+		// whatever the branches do. A lone phase settles in one pass:
+		// its own polarisation is solved with it, and nothing else moves;
+		// the branches then only need its final current.
 		settled = change <= 1e-10 || failed
+		if !settled && len(e.loads) == 1 {
+			e.pol.state(nd.icell, irest, nd.pol)
+			copy(nd.polI, nd.icell)
+			nd.polRest = irest
+			settled = true
+		}
 	}
 	if !settled {
 		e.unsettled++
 	}
 	for k, l := range e.loads {
+		if w, m := nd.pol.worst[k], nd.pol.mean[k]; math.Abs(w-m) <= 1e-12*math.Abs(m) {
+			// A steady load: its worst instant is its mean (up to
+			// rounding), and so is its operating point.
+			nd.worst[k] = nd.mean[k]
+			nd.late[k] = math.NaN()
+			if e.cutoffV > 0 && e.pLate[k] {
+				nd.late[k] = nd.E - nd.icell[k]*nd.R0 - nd.pol.late[k]
+			}
+			continue
+		}
 		src := e.S * (nd.E - nd.pol.worst[k])
 		o := e.solve(l, k, v, src, nd.Rp)
 		o.CellV = (src - o.Ipack*nd.Rp) / e.S

@@ -106,7 +106,10 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	d := e.d
 	f := e.duty
 	var tot sums
-	q := &quadrature{e: e, v: v, nd: nd, scale: scale}
+	q := &quadrature{e: e, v: v, nd: nd, scale: scale, gx: e.gx, gw: e.gw}
+	if e.linear(v) {
+		q.gx, q.gw = midpointX, midpointW
+	}
 	prev := 0.0
 	for _, b := range e.breaks[1:] {
 		if b >= qsCut {
@@ -136,8 +139,38 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	r.ProtectionPeakW = peak
 
 	if d.TracePoints > 1 && qsCut > 0 {
-		e.trace(v, qsCut, scale, f, r, nd)
+		e.trace(v, qsCut, scale, f, r, nd, q.gx, q.gw)
 	}
+}
+
+// midpointX and midpointW are the one-node rule on [-1, 1], exact for an
+// integrand linear in charge.
+var midpointX, midpointW = []float64{0}, []float64{2}
+
+// linear reports whether variant v's integrand is linear in charge
+// between breakpoints, so that the midpoint rule is exact there: every
+// phase a constant current (its polarisation then fixed too), behind an
+// element whose drop and standing drain do not move with the pack's
+// voltage (tried at the fresh pack's voltage and at a half and a tenth of
+// it). Then the drain is constant and the powers are linear in the
+// cells' voltage, which is linear in charge between breakpoints.
+func (e *evaluator) linear(v *variant) bool {
+	for _, l := range e.loads {
+		if l.Kind != ConstantCurrent {
+			return false
+		}
+	}
+	vin := e.S * e.cell.OpenCircuit(0, e.T)
+	for _, l := range e.loads {
+		d0 := v.el.Drop(l.Amps, vin, e.T)
+		for _, f := range []float64{0.5, 0.1} {
+			if v.el.Drop(l.Amps, f*vin, e.T) != d0 {
+				return false
+			}
+		}
+	}
+	q0 := v.el.Quiescent(vin, e.T)
+	return v.el.Quiescent(0.5*vin, e.T) == q0 && v.el.Quiescent(0.1*vin, e.T) == q0
 }
 
 // maxGauss is the most nodes a quadrature rule may have.
@@ -151,6 +184,20 @@ type quadrature struct {
 	nd     *node
 	scale  float64 // pack mAh per scaled cell mAh
 	splits int     // halvings so far, bounded by maxSplits
+	// gx and gw are the rule on [-1, 1]: the evaluator's, or the
+	// midpoint where the integrand is linear between breakpoints.
+	gx, gw []float64
+	// bufs[d] holds the sampled rates of the span being judged at depth
+	// d of the halving: a span reads its own only until it recurses.
+	bufs [maxSplit + 2][]rates
+}
+
+// buf is the node buffer for depth d, made on first use.
+func (q *quadrature) buf(d int) []rates {
+	if q.bufs[d] == nil {
+		q.bufs[d] = make([]rates, len(q.gx))
+	}
+	return q.bufs[d]
 }
 
 // rule applies the Gauss rule on [a, b], leaving the sampled rates in
@@ -159,12 +206,12 @@ func (q *quadrature) rule(a, b float64, nodes []rates) sums {
 	e := q.e
 	half, mid := 0.5*(b-a), 0.5*(a+b)
 	var s sums
-	for j, x := range e.gx {
+	for j, x := range q.gx {
 		nodes[j] = e.rates(mid+half*x, q.v, q.nd)
 	}
-	for j := range e.gx {
+	for j := range q.gx {
 		rt := &nodes[j]
-		dt := e.gw[j] * half * q.scale / rt.calendar // hours per node
+		dt := q.gw[j] * half * q.scale / rt.calendar // hours per node
 		s.h += dt
 		s.loadWh += rt.loadW * dt
 		s.protWh += rt.protW * dt
@@ -183,8 +230,7 @@ func (q *quadrature) span(a, b float64, depth int, last bool) sums {
 		return sums{}
 	}
 	e := q.e
-	var store [maxGauss]rates
-	nodes := store[:len(e.gx)]
+	nodes := q.buf(depth)
 	whole := q.rule(a, b, nodes)
 	if depth >= maxSplit || q.splits >= maxSplits {
 		return whole
@@ -206,9 +252,9 @@ func (q *quadrature) span(a, b float64, depth int, last bool) sums {
 	// square root (or where an LED's current fades to nothing): there
 	// the rule is checked against its two halves and halved until they
 	// agree. Constant-current and resistive loads have no such point.
-	if last && e.steepEnd && e.steepTail(nodes) {
-		var halves [maxGauss]rates
-		l, r := q.rule(a, mid, halves[:len(e.gx)]), q.rule(mid, b, halves[:len(e.gx)])
+	if last && e.steepEnd && len(q.gx) == len(e.gx) && e.steepTail(nodes) {
+		// The halves' samples are not judged: depth+1's buffer is free.
+		l, r := q.rule(a, mid, q.buf(depth+1)), q.rule(mid, b, q.buf(depth+1))
 		if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h {
 			q.splits++
 			return q.span(a, mid, depth+1, false).add(q.span(mid, b, depth+1, true))

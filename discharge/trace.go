@@ -7,8 +7,8 @@ import (
 )
 
 // trace samples the voltages at evenly spaced charges, integrating the
-// time between samples with the same rule.
-func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, nd *node) {
+// time between samples with the rule given (the quadrature's).
+func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, nd *node, gx, gw []float64) {
 	n := e.d.TracePoints
 	r.Trace = make([]TracePoint, n)
 	hours := 0.0
@@ -20,9 +20,9 @@ func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, nd *no
 		}
 		if k > 0 {
 			half, mid := 0.5*(q-prev), 0.5*(q+prev)
-			for j, x := range e.gx {
+			for j, x := range gx {
 				rt := e.rates(mid+half*x, v, nd)
-				hours += e.gw[j] * half * scale / rt.calendar
+				hours += gw[j] * half * scale / rt.calendar
 			}
 		}
 		prev = q
