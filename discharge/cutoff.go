@@ -7,10 +7,7 @@ import "sort"
 // margin solves variant v at qs and returns whether it fails and its
 // smallest margin (see judge); past the curve's end the margin is the
 // charge left, negative.
-var zzMargin int
-
 func (e *evaluator) margin(qs float64, v *variant, nd *node) (bool, float64) {
-	zzMargin++
 	if qs >= e.end {
 		return true, e.end - qs
 	}

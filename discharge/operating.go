@@ -228,10 +228,7 @@ func (e *evaluator) newNode() *node {
 const maxPasses = 12
 
 // solveNode solves every phase of variant v at scaled charge qs into nd.
-var zzCount int
-
 func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
-	zzCount++
 	c := e.cell
 	nd.E = c.OpenCircuit(qs, e.T)
 	nd.R0 = c.ResistanceAt(qs, e.T)
