@@ -254,7 +254,7 @@ func WriteCSV(w io.Writer, c *Cell) error {
 		fmt.Fprintf(bw, "# source: %s\n", oneLine(c.Source))
 	}
 	g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
-	if len(c.Resistance) == 0 {
+	if len(c.Resistance) == 0 && len(c.RC) == 0 {
 		if c.RefCurrent > 0 {
 			fmt.Fprintf(bw, "# terminal voltage at %s A\n", g(c.RefCurrent))
 		}
