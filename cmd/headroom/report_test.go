@@ -289,4 +289,3 @@ func TestNetlistRunsInNgspice(t *testing.T) {
 		})
 	}
 }
-
