@@ -33,7 +33,7 @@ func steppedCell(t *testing.T, id string) *curves.Cell {
 // It reads the engine's criteria, per block of use (one session a day,
 // or one cycle in continuous use): the lowest terminal voltage at any
 // phase's start or end against the floor, at the block's end, and the
-// voltage averaged over the charge delivered in the block against the
+// voltage averaged over the time the block draws current against the
 // end-point, at the block's middle. The runtime is where the first of the
 // two margins crosses zero, interpolated in hours of use between blocks.
 func stepped(c *curves.Cell, ph []Phase, hoursPerDay, standby, floor, tempC, F float64) float64 {
@@ -71,15 +71,15 @@ func stepped(c *curves.Cell, ph []Phase, hoursPerDay, standby, floor, tempC, F f
 	hours := 0.0
 	var floorH, floorM, endH, endM, qM []float64 // each criterion's samples: hours of use, margin
 	for block := 0; block < 10_000_000; block++ {
-		low, qv, qq := math.Inf(1), 0.0, 0.0
+		low, tv, tt := math.Inf(1), 0.0, 0.0
 		for cy := 0; cy < cycles; cy++ {
 			for _, p := range ph {
 				i := p.Load.Amps
 				e0, r0 := c.OpenCircuit(q, tempC), c.ResistanceAt(q, tempC)
 				vStart := e0 - i*r0 - sum()
-				// The charge-weighted mean over the phase: R0's part at
-				// the start's E and R0 (they move by parts per million in
-				// one phase), each branch's exact mean over the step.
+				// The mean over the phase: R0's part at the start's E and
+				// R0 (they move by parts per million in one phase), each
+				// branch's exact mean over the step.
 				mean := e0 - i*r0
 				for j, b := range c.RC {
 					x := i * R[j]
@@ -88,15 +88,17 @@ func stepped(c *curves.Cell, ph []Phase, hoursPerDay, standby, floor, tempC, F f
 				step(i, p.Seconds)
 				vEnd := c.OpenCircuit(q, tempC) - i*c.ResistanceAt(q, tempC) - sum()
 				low = math.Min(low, math.Min(vStart, vEnd))
-				qv += i * p.Seconds * mean
-				qq += i * p.Seconds
+				if i > 0 {
+					tv += p.Seconds * mean
+					tt += p.Seconds
+				}
 			}
 		}
 		use := float64(cycles) * tp / 3600
 		// The lowest instant belongs to the block's end (the polarisation
-		// builds up through it); the charge-weighted mean to its middle.
+		// builds up through it); the mean to its middle.
 		floorH, floorM = append(floorH, hours+use), append(floorM, low-floor)
-		endH, endM = append(endH, hours+use/2), append(endM, qv/qq-c.EndPoint)
+		endH, endM = append(endH, hours+use/2), append(endM, tv/tt-c.EndPoint)
 		qM = append(qM, c.Curve.End()-q) // the curve running out
 		hours += use
 		if q >= c.Curve.End() || floorM[len(floorM)-1] <= 0 && endM[len(endM)-1] <= 0 {

@@ -5,6 +5,8 @@ package discharge
 import (
 	"fmt"
 	"math"
+	"slices"
+	"sort"
 
 	"headroom/curves"
 	"headroom/internal/rc"
@@ -68,6 +70,10 @@ type evaluator struct {
 	// pLate marks the phases long enough to trip it.
 	cutoffV float64
 	pLate   []bool
+	// usePerQ is the seconds of use per scaled mAh, from the fresh
+	// pack's drain: the time since the start that a charge stands for,
+	// for the polarisation of a pack that started rested (0 until known).
+	usePerQ float64
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
@@ -95,18 +101,6 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	ref := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
 	nd := e.newNode()
 
-	// The cut-offs, in scaled charge: the voltages at a charge do not
-	// depend on the rate law's stretch of the charge axis. Each variant
-	// asks less of the pack than the one before, so its scan resumes near
-	// the previous cut-off; without an element the bare variant is the
-	// real one.
-	qsCut := e.cutoff(real, nd, 0)
-	qsBare := qsCut
-	if _, none := el.(protect.None); !none {
-		qsBare = e.cutoff(bare, nd, qsCut)
-	}
-	qsRef := e.cutoff(ref, nd, qsBare)
-
 	// Rate and cold (curves.Cell.CapacityFactor): one effective per-cell
 	// current, the Peukert-weighted average (Σ wᵢ·Iᵢᵏ)^(1/k) over the day:
 	// the phases' currents with the fresh pack for the hours of use, the
@@ -125,6 +119,24 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	ieff := math.Pow(sum, 1/k)
 	F := d.Cell.CapacityFactor(ieff, d.TempC)
 	scale := e.P * F // pack mAh per scaled cell mAh
+
+	// The time a charge stands for, from the fresh pack's drain over a
+	// calendar hour and the share of it in use.
+	if rate := e.rates(0, real, nd).calendar; rate > 0 {
+		e.usePerQ = scale / rate * e.duty * 3600
+		e.breaks = e.transientBreaks()
+	}
+
+	// The cut-offs, in scaled charge. Each variant
+	// asks less of the pack than the one before, so its scan resumes near
+	// the previous cut-off; without an element the bare variant is the
+	// real one.
+	qsCut := e.cutoff(real, nd, 0)
+	qsBare := qsCut
+	if _, none := el.(protect.None); !none {
+		qsBare = e.cutoff(bare, nd, qsCut)
+	}
+	qsRef := e.cutoff(ref, nd, qsBare)
 
 	r := &Result{EffectiveA: ieff, CapacityFac: F}
 	r.FreshV = e.S * d.Cell.OpenCircuit(0, d.TempC)
@@ -180,6 +192,33 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	}
 	e.priceAndNotes(el, r, nd)
 	return r, nil
+}
+
+// transientBreaks adds breakpoints where a pack that started rested is
+// half a, two, eight and thirty of each branch's time constants into its
+// first session, so that the quadrature resolves the polarisation
+// building up (e^(−t/τ)) on spans of its own, and where that session
+// ends.
+func (e *evaluator) transientBreaks() []float64 {
+	if e.pol == nil || e.usePerQ <= 0 {
+		return e.breaks
+	}
+	out := append([]float64(nil), e.breaks...)
+	// The end of the first session, where the day-periodic state takes
+	// over from the rested start: a step in the polarisation.
+	if q := e.pol.hs / e.usePerQ; q < e.end {
+		out = append(out, q)
+	}
+	for _, b := range e.pol.br {
+		for _, k := range []float64{0.5, 2, 8, 30} {
+			t := k * b.tau
+			if q := t / e.usePerQ; t < e.pol.hs && q < e.end {
+				out = append(out, q)
+			}
+		}
+	}
+	sort.Float64s(out)
+	return slices.Compact(out)
 }
 
 // newEvaluator works out what stays fixed for the evaluation of d.

@@ -197,11 +197,11 @@ type node struct {
 	// draws and the power it delivers. worst holds each phase at its
 	// worst instant: what the floor, a limit or a fuse sees.
 	mean, worst []op
-	// cellAvg is one cell's voltage averaged over the charge it delivers
-	// in a day's use (each phase at its mean polarisation, weighted by
-	// the charge it draws; rests weigh nothing): what the end-point, a
-	// rating convention, applies to — never the bottom of a pulse. An
-	// explicit rest phase and the daily pattern's rest give the same.
+	// cellAvg is one cell's voltage averaged over the time it delivers
+	// current in a day's use (each phase at its mean polarisation; rests
+	// weigh nothing, see activeAverage): what the end-point, a rating
+	// convention, applies to — never the bottom of a pulse. An explicit
+	// rest phase and the daily pattern's rest give the same.
 	cellAvg float64
 	// late is one cell's voltage the cut-off delay before the end of each
 	// phase (the worst cycle); NaN where the phase is shorter than the
@@ -209,10 +209,10 @@ type node struct {
 	late  []float64
 	icell []float64 // per-cell phase currents driving the RC branches, A
 	pol   *polState
-	// polI and polRest are the currents pol was worked out for: a node
-	// whose currents have not moved (constant-current phases) reuses it.
-	polI    []float64
-	polRest float64
+	// polI, polRest and polT are the currents and the time pol was
+	// worked out for: a node where none has moved reuses it.
+	polI          []float64
+	polRest, polT float64
 }
 
 func (e *evaluator) newNode() *node {
@@ -243,12 +243,14 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 				nd.late[k] = o.CellV
 			}
 		}
-		nd.cellAvg = e.chargeAverage(nd.mean)
+		nd.cellAvg = e.activeAverage(nd.mean)
 		return
 	}
 	// The rest between sessions carries the standby drain and the
-	// element's standing drain, shared by the strings.
+	// element's standing drain, shared by the strings; t is the seconds
+	// of use since the fresh pack at this charge.
 	irest := (e.d.Standby + v.el.Quiescent(nd.Epack, e.T)) / e.P
+	t := qs * e.usePerQ
 	fresh := true
 	for _, x := range nd.icell {
 		fresh = fresh && x == 0
@@ -260,17 +262,17 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 	}
 	settled := false
 	for pass := 0; pass < maxPasses && !settled; pass++ {
-		if irest != nd.polRest || !slices.Equal(nd.icell, nd.polI) {
-			e.pol.state(nd.icell, irest, nd.pol)
+		if irest != nd.polRest || t != nd.polT || !slices.Equal(nd.icell, nd.polI) {
+			e.pol.state(nd.icell, irest, t, nd.pol)
 			copy(nd.polI, nd.icell)
-			nd.polRest = irest
+			nd.polRest, nd.polT = irest, t
 		}
 		change, failed := 0.0, false
 		for k, l := range e.loads {
 			// Phase k's own share of its polarisation acts as a series
 			// resistance (self[k] per cell); only the other phases' share
 			// is held from the last pass.
-			self := e.pol.self[k]
+			self := nd.pol.self[k]
 			other := nd.pol.mean[k] - self*nd.icell[k]
 			src := e.S * (nd.E - other)
 			o := e.solve(l, k, v, src, nd.Rp+e.S*self/e.P)
@@ -287,9 +289,9 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		// the branches then only need its final current.
 		settled = change <= 1e-10 || failed
 		if !settled && len(e.loads) == 1 {
-			e.pol.state(nd.icell, irest, nd.pol)
+			e.pol.state(nd.icell, irest, t, nd.pol)
 			copy(nd.polI, nd.icell)
-			nd.polRest = irest
+			nd.polRest, nd.polT = irest, t
 			settled = true
 		}
 	}
@@ -316,21 +318,27 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			nd.late[k] = nd.E - nd.icell[k]*nd.R0 - nd.pol.late[k]
 		}
 	}
-	nd.cellAvg = e.chargeAverage(nd.mean)
+	nd.cellAvg = e.activeAverage(nd.mean)
 }
 
-// chargeAverage is the cell voltage of the phases ops weighted by the
-// charge each draws; the plain duty-weighted mean where none draws any.
-func (e *evaluator) chargeAverage(ops []op) float64 {
-	var qv, q, v float64
+// activeAverage is the cell voltage of the phases ops averaged over the
+// time they draw current: each phase whose load draws any, weighted by
+// its duration; a phase that draws none (a rest written into the
+// profile, a dark LED) does not count, as the day's rest does not. The
+// plain duty-weighted mean where none draws any. A heavier load lowers
+// every phase's voltage and can only darken a phase, never light one, so
+// the average never rises with the load.
+func (e *evaluator) activeAverage(ops []op) float64 {
+	var tv, t, v float64
 	for k, o := range ops {
-		x := e.w[k] * math.Max(o.Ipack, 0)
-		qv += x * o.CellV
-		q += x
 		v += e.w[k] * o.CellV
+		if o.I > 0 {
+			tv += e.w[k] * o.CellV
+			t += e.w[k]
+		}
 	}
-	if q > 0 {
-		return qv / q
+	if t > 0 {
+		return tv / t
 	}
 	return v
 }

@@ -41,11 +41,15 @@ import (
 // branch holds one stage's decay factors for the profile and the day,
 // fixed for the evaluation: only the currents change between charges.
 type branch struct {
-	R       float64   // ohms at the ambient
-	a       []float64 // e^(−d_k/τ)
-	m       []float64 // mean of the approach over phase k: (τ/d_k)·(1 − a_k)
-	settle  float64   // 1 − e^(−Tp/τ)
-	average bool      // τ ≫ Tp: the branch holds the profile's average
+	R   float64 // ohms at the ambient
+	tau float64 // seconds
+	// pSelf[k] is phase k's periodic mean per ampere of its own current,
+	// vSelf[k] the fixed point v* per ampere of phase k's current.
+	pSelf, vSelf []float64
+	a            []float64 // e^(−d_k/τ)
+	m            []float64 // mean of the approach over phase k: (τ/d_k)·(1 − a_k)
+	settle       float64   // 1 − e^(−Tp/τ)
+	average      bool      // τ ≫ Tp: the branch holds the profile's average
 	// Day level (zero without a daily pattern).
 	A, B                    float64   // e^(−H/τ), e^(−rest/τ)
 	oneA, oneB, oneAB, sess float64   // 1 − A, 1 − B, 1 − A·B; mean of e^(−t/τ) over the session
@@ -56,16 +60,13 @@ type branch struct {
 
 // polarisation is the set of branches of one cell under one design.
 type polarisation struct {
-	br     []branch
-	w      []float64 // duty weights of the phases
-	late   []bool    // phase k lasts at least the cut-off delay
-	day    bool
-	vs, ve []float64 // scratch: each branch's periodic start and end of phase k
-	// self[k] is how much phase k's own mean polarisation rises per
-	// ampere of its own current (volts per ampere, per cell): the map is
-	// linear in the currents, so the operating point can take that part
-	// exactly, as a resistance, and iterate only on the other phases'.
-	self []float64
+	br      []branch
+	w       []float64 // duty weights of the phases
+	late    []bool    // phase k lasts at least the cut-off delay
+	day     bool
+	vs, ve  []float64 // scratch: each branch's periodic start and end of phase k
+	hs      float64   // seconds of use in a day's session; +Inf in continuous use
+	slowest float64   // the longest time constant, s
 }
 
 // polState is the polarisation (volts per cell, summed over the
@@ -74,11 +75,16 @@ type polState struct {
 	worst []float64 // at phase k's worst instant
 	mean  []float64 // averaged over phase k and over the session
 	late  []float64 // delay seconds before the end of phase k, worst cycle
-	cand  []float64 // scratch: 4 candidates per phase, 2 late ones
+	// self[k] is how much phase k's own mean rises per ampere of its own
+	// current (volts per ampere, per cell): the map is linear in the
+	// currents, so the operating point can take that part exactly, as a
+	// resistance, and iterate only on the other phases'.
+	self []float64
+	cand []float64 // scratch: 4 candidates per phase, 2 late ones
 }
 
 func newPolState(n int) *polState {
-	return &polState{worst: make([]float64, n), mean: make([]float64, n), late: make([]float64, n), cand: make([]float64, 6*n)}
+	return &polState{worst: make([]float64, n), mean: make([]float64, n), late: make([]float64, n), self: make([]float64, n), cand: make([]float64, 6*n)}
 }
 
 // newPolarisation prepares the branches for phases of durations dur (s,
@@ -99,7 +105,8 @@ func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *pol
 	p.day = h > 0 && h < 24
 	for _, st := range stages {
 		tau := st.Tau
-		b := branch{R: st.R, a: make([]float64, n), m: make([]float64, n),
+		p.slowest = math.Max(p.slowest, tau)
+		b := branch{R: st.R, tau: tau, a: make([]float64, n), m: make([]float64, n),
 			s: make([]float64, n), e: make([]float64, n), lateA: make([]float64, n), lateK: make([]float64, n)}
 		b.settle = -math.Expm1(-tp / tau)
 		b.average = tau/tp > 1e12
@@ -133,60 +140,104 @@ func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *pol
 		}
 		p.br = append(p.br, b)
 	}
-	p.self = make([]float64, n)
-	unit, st := make([]float64, n), newPolState(n)
-	for k := range unit {
-		unit[k] = 1
-		p.state(unit, 0, st)
-		p.self[k] = st.mean[k]
-		unit[k] = 0
+	// Each phase's own share of its mean, per ampere: the periodic part
+	// and the fixed point v* that the rested start and the day's drift
+	// act on (see state).
+	unit := make([]float64, n)
+	for bi := range p.br {
+		b := &p.br[bi]
+		b.pSelf, b.vSelf = make([]float64, n), make([]float64, n)
+		for k := range unit {
+			unit[k] = 1
+			vstar := b.periodic(unit, p.w, p.vs, p.ve)
+			b.pSelf[k] = b.R + (p.vs[k]-b.R)*b.m[k]
+			b.vSelf[k] = vstar
+			unit[k] = 0
+		}
+	}
+	p.hs = math.Inf(1)
+	if p.day {
+		p.hs = hs
 	}
 	return p
 }
 
-// state fills out for the per-cell phase currents I (A) and the per-cell
-// current during the day's rest, irest (A).
-func (p *polarisation) state(I []float64, irest float64, out *polState) {
+// periodic fills vs and ve with the branch's value at the start and the
+// end of each phase in the periodic steady state under currents I, and
+// returns its fixed point v* (the value at the start of a cycle). One
+// period from zero gives b; the fixed point is b / (1 − a)
+// (rc.Stage.Periodic, with the decays kept).
+func (b *branch) periodic(I, w, vs, ve []float64) float64 {
+	var vstar float64
+	if b.average {
+		for k := range I {
+			vstar += w[k] * I[k] * b.R
+		}
+	} else {
+		v := 0.0
+		for k := range I {
+			x := b.R * I[k]
+			v = x + (v-x)*b.a[k]
+		}
+		vstar = v / b.settle
+	}
+	v := vstar
+	for k := range I {
+		x := b.R * I[k]
+		vs[k] = v
+		v = x + (v-x)*b.a[k]
+		ve[k] = v
+	}
+	return vstar
+}
+
+// state fills out for the per-cell phase currents I (A), the per-cell
+// current during the day's rest irest (A), at t seconds of use since the
+// fresh pack. In the first session — the whole run in continuous use —
+// the pack started rested, so each branch is its periodic value less
+// v*·e^(−t'/τ) at time t' of the cycle that starts at t; later sessions
+// are day-periodic.
+func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 	n := len(I)
 	clear(out.worst)
 	clear(out.mean)
 	clear(out.late)
 	clear(out.cand)
+	clear(out.self)
+	first := t < p.hs
 	for bi := range p.br {
 		b := &p.br[bi]
-		// The periodic solution: one period from zero gives b, the fixed
-		// point is b / (1 − a) (rc.Stage.Periodic, with the decays kept).
-		var vstar float64
-		if b.average {
-			for k := range I {
-				vstar += p.w[k] * I[k] * b.R
-			}
+		vstar := b.periodic(I, p.w, p.vs, p.ve)
+		var dev, now, gain float64
+		if first {
+			// v0 = 0: the drift is −v*, decayed to the cycle at t.
+			dev, now = -vstar, math.Exp(-t/b.tau)
 		} else {
-			v := 0.0
-			for k := range I {
-				x := b.R * I[k]
-				v = x + (v-x)*b.a[k]
-			}
-			vstar = v / b.settle
-		}
-		v := vstar
-		for k := range I {
-			x := b.R * I[k]
-			p.vs[k] = v
-			v = x + (v-x)*b.a[k]
-			p.ve[k] = v
-		}
-		dev := 0.0
-		if p.day {
 			c := b.R * irest
 			v0 := (c*b.oneB + b.B*b.oneA*vstar) / b.oneAB
 			dev = v0 - vstar
+			gain = b.B*b.oneA/b.oneAB - 1 // ∂dev/∂v* at a fixed rest current
 		}
 		for k := range I {
 			x := b.R * I[k]
 			mean := x + (p.vs[k]-x)*b.m[k]
-			out.mean[k] += mean + dev*b.sess
 			c := out.cand[6*k : 6*k+6]
+			if first {
+				d := dev * now
+				out.mean[k] += mean + d*b.s[k]*b.m[k]
+				out.self[k] += b.pSelf[k] - b.vSelf[k]*now*b.s[k]*b.m[k]
+				c[0] += p.vs[k] + d*b.s[k]
+				c[1] += p.ve[k] + d*b.e[k]
+				c[2], c[3] = c[0], c[1]
+				if p.late[k] {
+					lv := x + (p.vs[k]-x)*b.lateA[k]
+					c[4] += lv + d*b.lateK[k]
+					c[5] = c[4]
+				}
+				continue
+			}
+			out.mean[k] += mean + dev*b.sess
+			out.self[k] += b.pSelf[k] + b.vSelf[k]*gain*b.sess
 			c[0] += p.vs[k] + dev*b.s[k]
 			c[1] += p.ve[k] + dev*b.e[k]
 			c[2] += p.vs[k] + dev*b.last*b.s[k]

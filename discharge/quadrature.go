@@ -106,10 +106,7 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	d := e.d
 	f := e.duty
 	var tot sums
-	q := &quadrature{e: e, v: v, nd: nd, scale: scale, gx: e.gx, gw: e.gw}
-	if e.linear(v) {
-		q.gx, q.gw = midpointX, midpointW
-	}
+	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: e.linear(v)}
 	prev := 0.0
 	for _, b := range e.ledCorners(v, qsCut, nd) {
 		if b >= qsCut {
@@ -139,7 +136,7 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	r.ProtectionPeakW = peak
 
 	if d.TracePoints > 1 && qsCut > 0 {
-		e.trace(v, qsCut, scale, f, r, nd, q.gx, q.gw)
+		e.trace(v, qsCut, scale, f, r, nd, q)
 	}
 }
 
@@ -224,9 +221,9 @@ type quadrature struct {
 	nd     *node
 	scale  float64 // pack mAh per scaled cell mAh
 	splits int     // halvings so far, bounded by maxSplits
-	// gx and gw are the rule on [-1, 1]: the evaluator's, or the
-	// midpoint where the integrand is linear between breakpoints.
-	gx, gw []float64
+	// linear marks an integrand linear in charge between breakpoints
+	// once the rested start's polarisation has settled (see rule).
+	linear bool
 	// bufs[d] holds the sampled rates of the span being judged at depth
 	// d of the halving: a span reads its own only until it recurses.
 	bufs [maxSplit + 2][]rates
@@ -235,23 +232,37 @@ type quadrature struct {
 // buf is the node buffer for depth d, made on first use.
 func (q *quadrature) buf(d int) []rates {
 	if q.bufs[d] == nil {
-		q.bufs[d] = make([]rates, len(q.gx))
+		q.bufs[d] = make([]rates, len(q.e.gx))
 	}
 	return q.bufs[d]
 }
 
-// rule applies the Gauss rule on [a, b], leaving the sampled rates in
-// nodes (len(gx) long, in the rule's node order).
-func (q *quadrature) rule(a, b float64, nodes []rates) sums {
+// nodesOn is the rule for [a, b]: the midpoint where the integrand is
+// linear there, else the evaluator's Gauss rule. The polarisation of a
+// pack that started rested builds up as e^(−t/τ) in the first session:
+// a span is linear once 30 of the slowest τ have passed at its start.
+func (q *quadrature) nodesOn(a float64) (gx, gw []float64) {
 	e := q.e
+	if q.linear && (e.pol == nil || a*e.usePerQ > 30*e.pol.slowest || e.pol.day) {
+		return midpointX, midpointW
+	}
+	return e.gx, e.gw
+}
+
+// rule applies the quadrature rule on [a, b], leaving the sampled rates
+// in nodes (in the rule's node order); it returns the sums and how many
+// nodes it sampled.
+func (q *quadrature) rule(a, b float64, nodes []rates) (sums, int) {
+	e := q.e
+	gx, gw := q.nodesOn(a)
 	half, mid := 0.5*(b-a), 0.5*(a+b)
 	var s sums
-	for j, x := range q.gx {
+	for j, x := range gx {
 		nodes[j] = e.rates(mid+half*x, q.v, q.nd)
 	}
-	for j := range q.gx {
+	for j := range gx {
 		rt := &nodes[j]
-		dt := q.gw[j] * half * q.scale / rt.calendar // hours per node
+		dt := gw[j] * half * q.scale / rt.calendar // hours per node
 		s.h += dt
 		s.loadWh += rt.loadW * dt
 		s.protWh += rt.protW * dt
@@ -260,7 +271,7 @@ func (q *quadrature) rule(a, b float64, nodes []rates) sums {
 		s.self += rt.self * dt
 		s.peak = math.Max(s.peak, rt.peakW)
 	}
-	return s
+	return s, len(gx)
 }
 
 // span is the calendar hours and energies on [a, b]; last marks the span
@@ -271,7 +282,8 @@ func (q *quadrature) span(a, b float64, depth int, last bool) sums {
 	}
 	e := q.e
 	nodes := q.buf(depth)
-	whole := q.rule(a, b, nodes)
+	whole, used := q.rule(a, b, nodes)
+	nodes = nodes[:used]
 	if depth >= maxSplit || q.splits >= maxSplits {
 		return whole
 	}
@@ -292,9 +304,10 @@ func (q *quadrature) span(a, b float64, depth int, last bool) sums {
 	// square root (or where an LED's current fades to nothing): there
 	// the rule is checked against its two halves and halved until they
 	// agree. Constant-current and resistive loads have no such point.
-	if last && e.steepEnd && len(q.gx) == len(e.gx) && e.steepTail(nodes) {
+	if last && e.steepEnd && used == len(e.gx) && e.steepTail(nodes) {
 		// The halves' samples are not judged: depth+1's buffer is free.
-		l, r := q.rule(a, mid, q.buf(depth+1)), q.rule(mid, b, q.buf(depth+1))
+		l, _ := q.rule(a, mid, q.buf(depth+1))
+		r, _ := q.rule(mid, b, q.buf(depth+1))
 		if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h {
 			q.splits++
 			return q.span(a, mid, depth+1, false).add(q.span(mid, b, depth+1, true))

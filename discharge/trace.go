@@ -7,8 +7,8 @@ import (
 )
 
 // trace samples the voltages at evenly spaced charges, integrating the
-// time between samples with the rule given (the quadrature's).
-func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, nd *node, gx, gw []float64) {
+// time between samples with the quadrature's rules.
+func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, nd *node, quad *quadrature) {
 	n := e.d.TracePoints
 	r.Trace = make([]TracePoint, n)
 	hours := 0.0
@@ -20,6 +20,7 @@ func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, nd *no
 		}
 		if k > 0 {
 			half, mid := 0.5*(q-prev), 0.5*(q+prev)
+			gx, gw := quad.nodesOn(prev)
 			for j, x := range gx {
 				rt := e.rates(mid+half*x, v, nd)
 				hours += gw[j] * half * scale / rt.calendar
