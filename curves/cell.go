@@ -224,21 +224,33 @@ const LightLoadSpan = 2
 // by the rest, Cref·(Iref/i)^(k−1) / EndCharge(i), held between 1 and
 // (Iref/i)^(k−1) — a stated k is what two constant-current runs measure
 // while the sag is less than Peukert asks, k = 1 means the sag alone, and
-// the sag is never undone. Below Iref/LightLoadSpan the gain stops growing.
-// At RefTempC: cold is ColdFactor's.
+// the sag is never undone. Below Iref/LightLoadSpan the factor stops
+// growing, and it never rises with the current (held at its lowest on a
+// grid of doublings). At RefTempC: cold is ColdFactor's.
 func (c *Cell) RateFactor(i float64) float64 {
 	iref := c.rateRef()
 	if c.Peukert <= 1 || iref <= 0 || !(i > 0) {
 		return 1
 	}
-	ie := math.Max(i, iref/LightLoadSpan)
-	p := math.Pow(iref/ie, c.Peukert-1)
-	cref, q := c.EndCharge(iref, RefTempC), c.EndCharge(i, RefTempC)
-	if !(q > 0) || !(cref > 0) {
-		return p
+	cref := c.EndCharge(iref, RefTempC)
+	raw := func(j float64) float64 {
+		p := math.Pow(iref/j, c.Peukert-1)
+		q := c.EndCharge(j, RefTempC)
+		if !(q > 0) || !(cref > 0) {
+			return p
+		}
+		return math.Min(math.Max(p*cref/q, math.Min(1, p)), math.Max(1, p))
 	}
-	f := p * cref / q
-	return math.Min(math.Max(f, math.Min(1, p)), math.Max(1, p))
+	// Where the sag grows faster than Peukert asks, raw rises again
+	// towards 1 (no extra loss): the factor is held at its lowest so far,
+	// on a grid of doublings from the light-load span, so that a bigger
+	// current never gets a kinder factor.
+	lo := iref / LightLoadSpan
+	f := raw(math.Max(i, lo))
+	for j := lo; j < i; j *= 2 {
+		f = math.Min(f, raw(j))
+	}
+	return f
 }
 
 // ColdFactor is the share of the charge the cold leaves at current i (A)
@@ -335,44 +347,39 @@ func (c *Cell) Terminal(qs, i, tempC float64) float64 {
 func (c *Cell) EndCharge(i, tempC float64) float64 {
 	end := c.Curve.End()
 	g := func(q float64) float64 { return c.Terminal(q, i, tempC) - c.EndPoint }
-	g0 := g(0)
-	if g0 <= 0 {
+	lo, glo := 0.0, g(0)
+	if glo <= 0 {
 		return 0
 	}
-	// The first breakpoint at or below the end-point (the curve's end if
-	// none), then the last breakpoint before it: the crossing lies
-	// between them, on one straight piece. No sorting, no allocation.
-	x, gx := end, g(end)
-	each := func(f func(q float64)) {
-		for k := 0; k < c.Curve.Len(); k++ {
-			q, _ := c.Curve.Point(k)
-			f(q)
+	// Walk the curve's points and the resistance table's depths in
+	// order of charge (both are sorted: a merge), stopping at the first
+	// at or below the end-point; the crossing lies on the straight piece
+	// before it.
+	n, r := c.Curve.Len(), c.Resistance
+	ci, ri := 0, 0
+	for ci < n || ri < len(r) {
+		var x float64
+		cq := math.Inf(1)
+		if ci < n {
+			cq, _ = c.Curve.Point(ci)
 		}
-		for _, r := range c.Resistance {
-			f(r.Depth * end)
+		if ri < len(r) && r[ri].Depth*end < cq {
+			x = r[ri].Depth * end
+			ri++
+		} else {
+			x = cq
+			ci++
 		}
+		if x <= lo || x > end {
+			continue
+		}
+		gx := g(x)
+		if gx <= 0 {
+			return lo + (x-lo)*glo/(glo-gx)
+		}
+		lo, glo = x, gx
 	}
-	each(func(q float64) {
-		if q > 0 && q < x {
-			if gq := g(q); gq <= 0 {
-				x, gx = q, gq
-			}
-		}
-	})
-	if gx > 0 {
-		return end
-	}
-	lo := 0.0
-	each(func(q float64) {
-		if q > lo && q < x {
-			lo = q
-		}
-	})
-	glo := g0
-	if lo > 0 {
-		glo = g(lo)
-	}
-	return lo + (x-lo)*glo/(glo-gx)
+	return end
 }
 
 // IsPrimary reports whether the cell is single-use.

@@ -350,7 +350,7 @@ func FuzzLoadScale(f *testing.F) {
 			slack += res / r2.DeliveredMAh
 		}
 		if r2.RuntimeH > r1.RuntimeH*(1+slack) {
-			t.Fatalf("%s: load ×%v raises the runtime %v → %v h", describeDesign(d), k, r1.RuntimeH, r2.RuntimeH)
+			t.Fatalf("%s: load ×%v raises the runtime %v → %v h (%s, %s; F %v, %v; delivered %v, %v; self %v, %v; rc %v)", describeDesign(d), k, r1.RuntimeH, r2.RuntimeH, r1.CutoffCause, r2.CutoffCause, r1.CapacityFac, r2.CapacityFac, r1.DeliveredMAh, r2.DeliveredMAh, r1.SelfDischargeMAh, r2.SelfDischargeMAh, c.RC)
 		}
 	})
 }

@@ -106,9 +106,18 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	d := e.d
 	f := e.duty
 	var tot sums
-	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: e.linear(v)}
+	// A finer rule than the default is a reference (the convergence
+	// test): it takes no shortcut.
+	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
+	if e.pol != nil {
+		for _, b := range e.pol.br {
+			if b.tau >= 1e-4*qsCut*e.usePerQ {
+				q.slowest = math.Max(q.slowest, b.tau)
+			}
+		}
+	}
 	prev := 0.0
-	for _, b := range e.ledCorners(v, qsCut, nd) {
+	for _, b := range e.ledCorners(v, qsCut, nd, e.transientBreaks(qsCut)) {
 		if b >= qsCut {
 			tot = tot.add(q.span(prev, qsCut, 0, true))
 			break
@@ -140,13 +149,13 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	}
 }
 
-// ledCorners returns the breakpoints from the second on, with the
+// ledCorners returns breaks from the second on, with the
 // charges added where an LED phase goes dark before qsCut: its current
 // falls to zero with a corner there, which a Gauss rule across it
 // integrates to only about 1e-5. Each is bisected on lit/dark between
 // the breakpoints around it, to 1e-13 of the curve.
-func (e *evaluator) ledCorners(v *variant, qsCut float64, nd *node) []float64 {
-	breaks := e.breaks[1:]
+func (e *evaluator) ledCorners(v *variant, qsCut float64, nd *node, breaks []float64) []float64 {
+	breaks = breaks[1:]
 	var leds []int
 	for k, l := range e.loads {
 		if l.Kind == LED {
@@ -222,8 +231,10 @@ type quadrature struct {
 	scale  float64 // pack mAh per scaled cell mAh
 	splits int     // halvings so far, bounded by maxSplits
 	// linear marks an integrand linear in charge between breakpoints
-	// once the rested start's polarisation has settled (see rule).
-	linear bool
+	// once the rested start's polarisation has settled (see nodesOn);
+	// slowest is the longest time constant that counts (transientBreaks).
+	linear  bool
+	slowest float64
 	// bufs[d] holds the sampled rates of the span being judged at depth
 	// d of the halving: a span reads its own only until it recurses.
 	bufs [maxSplit + 2][]rates
@@ -237,13 +248,16 @@ func (q *quadrature) buf(d int) []rates {
 	return q.bufs[d]
 }
 
-// nodesOn is the rule for [a, b]: the midpoint where the integrand is
-// linear there, else the evaluator's Gauss rule. The polarisation of a
-// pack that started rested builds up as e^(−t/τ) in the first session:
-// a span is linear once 30 of the slowest τ have passed at its start.
+// nodesOn is the rule for a span starting at a: the midpoint where the
+// integrand is linear, else the evaluator's Gauss rule. In the first
+// session the polarisation of a pack that started rested builds up as
+// e^(−t/τ), which bends the powers (not the drain): spans there take the
+// Gauss rule until the session ends or 30 of the slowest τ have passed
+// (e^(−30): settled). The transient's breakpoints (transientBreaks) keep
+// those spans short against τ.
 func (q *quadrature) nodesOn(a float64) (gx, gw []float64) {
 	e := q.e
-	if q.linear && (e.pol == nil || a*e.usePerQ > 30*e.pol.slowest || e.pol.day) {
+	if q.linear && (e.pol == nil || a*e.usePerQ >= math.Min(e.pol.hs, 30*q.slowest)) {
 		return midpointX, midpointW
 	}
 	return e.gx, e.gw
