@@ -66,6 +66,7 @@ type polarisation struct {
 	day     bool
 	vs, ve  []float64 // scratch: each branch's periodic start and end of phase k
 	hs      float64   // seconds of use in a day's session; +Inf in continuous use
+	period  float64   // seconds of one cycle of the profile
 	slowest float64   // the longest time constant, s
 }
 
@@ -155,6 +156,7 @@ func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *pol
 			unit[k] = 0
 		}
 	}
+	p.period = tp
 	p.hs = math.Inf(1)
 	if p.day {
 		p.hs = hs

@@ -60,6 +60,9 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("the LED of %s never lights: the voltage it gets stays below its %.2f V forward voltage (set the floor above it to count that as a stop)", p.Label(), p.Load.Vf))
 		}
 	}
+	if e.pol != nil && e.pol.hs < e.pol.period {
+		r.Warnings = append(r.Warnings, "a day's use is shorter than one cycle of the load profile: the cells' polarisation is approximate (the model takes whole cycles)")
+	}
 	if e.unsettled > 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("at %d points of the run the phases' currents and the cells' polarisation did not settle (a load near collapse): the figures there are approximate", e.unsettled))
 	}
