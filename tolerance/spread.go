@@ -34,7 +34,7 @@ type Side struct {
 	// nominal, hours (0 when neither does).
 	LostH float64
 	// WorstLow is true when the low limit is the shortening side.
-	WorstLow bool
+	WorstLow  bool
 	low, high *discharge.Result
 }
 
