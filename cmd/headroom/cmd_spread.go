@@ -7,7 +7,6 @@ import (
 	"strconv"
 	"strings"
 
-	"headroom/discharge"
 	"headroom/internal/scenario"
 	"headroom/tolerance"
 )
