@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 
+	"headroom/discharge"
 	"headroom/internal/scenario"
 	"headroom/tolerance"
 )
@@ -296,4 +297,27 @@ func spreadMarkdown(b *bytes.Buffer, rep *tolerance.Report) {
 			fmt.Fprintf(b, "- %s\n", mdEscape(w))
 		}
 	}
+}
+
+// rankKeys are the spread figures table and compare can rank by.
+var rankKeys = map[string]string{"worst": "worst corner", "p10": "p10"}
+
+// rankFigure is design d's worst-corner runtime ("worst") or p10 runtime
+// ("p10") under the scenario's tolerances, hours of use.
+func rankFigure(s *scenario.Scenario, d *discharge.Design, key string) (float64, error) {
+	if key == "worst" {
+		c, err := tolerance.Worst(d, s.Tolerances)
+		if err != nil {
+			return 0, err
+		}
+		return c.WorstH(), nil
+	}
+	st, err := tolerance.Spread(d, s.Tolerances, s.Samples, s.Seed)
+	return st.P10H, err
+}
+
+// rankColumn is the column that shows the figure a table is ranked by.
+func rankColumn[T any](key string, get func(T) float64) column[T] {
+	return column[T]{key: key + "_h", head: key + " h", right: true, human: true, machine: true, width: 7,
+		text: func(r T) string { return fixed(get(r), 2) }, val: func(r T) any { return get(r) }}
 }

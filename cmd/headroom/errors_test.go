@@ -77,7 +77,7 @@ func TestErrors(t *testing.T) {
 		{"bad cell file", []string{"cells", "check", badCell}, "bad-cell.csv line 3:", false},
 		{"bad cell file", []string{"run", "--cell", badCell}, "--cell: ", false},
 		{"bad --sort", []string{"table", "--sort", "speed"}, `--sort: "speed" is not a column: expected one of runtime, days`, false},
-		{"bad --sort", []string{"compare", "--sort", "speed"}, `--sort: "speed" is not a compare column: expected cost or runtime`, true},
+		{"bad --sort", []string{"compare", "--sort", "speed"}, `--sort: "speed" is not a compare column: expected cost, runtime, worst or p10`, true},
 		{"--desc without --sort", []string{"table", "--desc"}, "--desc: sorts descending, so it needs --sort COLUMN", true},
 		{"no budget", []string{"compare", "--within-budget", example, "--budget", "0"}, "--within-budget: no budget", false},
 		{"too many arguments", []string{"run", example, example}, "run: unexpected argument", false},

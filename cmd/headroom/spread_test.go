@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -100,6 +101,41 @@ func TestSpreadTextWarnsOnLimit(t *testing.T) {
 	for _, want := range []string{"in 9 of 10 products", "ilim at its low limit (375 mA)", "sensitivity:"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("no %q in:\n%s", want, out)
+		}
+	}
+}
+
+// table and compare rank by the worst corner and the p10: the column is
+// there and falls down the rows.
+func TestRankBySpread(t *testing.T) {
+	for _, args := range [][]string{
+		{"table", "--sort", "worst", "--desc", "--format", "csv"},
+		{"compare", "--sort", "p10", "--samples", "200", "--format", "csv"},
+	} {
+		out := runOK(t, args...)
+		rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+		if err != nil || len(rows) < 3 {
+			t.Fatalf("%v: %v\n%s", args, err, out)
+		}
+		col := -1
+		for i, h := range rows[0] {
+			if h == args[2]+"_h" {
+				col = i
+			}
+		}
+		if col < 0 {
+			t.Fatalf("%v: no %s_h column in %v", args, args[2], rows[0])
+		}
+		prev := math.Inf(1)
+		for _, r := range rows[1:] {
+			var v float64
+			if _, err := fmt.Sscan(r[col], &v); err != nil {
+				continue // a design that never runs: last, empty
+			}
+			if v > prev {
+				t.Errorf("%v: %s %v after %v: not ranked longest first", args, args[2], v, prev)
+			}
+			prev = v
 		}
 	}
 }
