@@ -29,6 +29,7 @@ const (
 	screenDesign  screen = iota // knobs, verdict and chart
 	screenLineup                // every cell ranked
 	screenReverse               // cells put in wrong
+	screenSpread                // the spread over the tolerances
 	screenCount
 )
 
@@ -40,6 +41,8 @@ func (s screen) String() string {
 		return "Line-up"
 	case screenReverse:
 		return "Reversed cells"
+	case screenSpread:
+		return "Spread"
 	}
 	return "?"
 }
@@ -67,6 +70,7 @@ type Model struct {
 	notes   notesModel
 	lineup  lineupModel
 	reverse reverseModel
+	spread  spreadModel
 	save    saveModel
 	help    help.Model
 }
@@ -79,7 +83,7 @@ func New(s *scenario.Scenario) Model {
 	sh := newShared(s)
 	m := Model{shared: sh,
 		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
-		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, save: newSave(sh), help: newHelp(sh.styles)}
+		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, save: newSave(sh), help: newHelp(sh.styles)}
 	return m
 }
 
@@ -97,8 +101,9 @@ func Run(s *scenario.Scenario) error {
 // reason when the design cannot run.
 func (m Model) Result() (*discharge.Result, error) { return m.res, m.err }
 
-// Init starts nothing: the first evaluation ran in New.
-func (m Model) Init() tea.Cmd { return nil }
+// Init starts the spread over the tolerances; the first evaluation ran
+// in New.
+func (m Model) Init() tea.Cmd { return m.spreadCmd() }
 
 func (m Model) mode() mode {
 	switch {
@@ -114,8 +119,20 @@ func (m Model) mode() mode {
 	return modeNone
 }
 
-// Update handles a message.
+// Update handles a message, then starts the spread of the design when it
+// has changed (off the key path: it fills in when ready).
 func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	if sm, ok := msg.(spreadMsg); ok {
+		return m, m.gotSpread(sm)
+	}
+	next, cmd := m.update(msg)
+	if sc := m.spreadCmd(); sc != nil {
+		cmd = tea.Batch(cmd, sc)
+	}
+	return next, cmd
+}
+
+func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	var cmd tea.Cmd
 	switch msg := msg.(type) {
 	case tea.WindowSizeMsg:
@@ -191,6 +208,9 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(km, k.Reverse):
 		m.show(screenReverse)
 		return m, nil
+	case key.Matches(km, k.Spread):
+		m.show(screenSpread)
+		return m, nil
 	case key.Matches(km, k.Back):
 		m.show(screenDesign)
 		return m, nil
@@ -240,6 +260,9 @@ func (m Model) View() string {
 	case m.view == screenReverse:
 		m.reverse.SetSize(w, bodyH)
 		body = fitLines(m.reverse.View(), w, bodyH)
+	case m.view == screenSpread:
+		m.spread.SetSize(w, bodyH)
+		body = fitLines(m.spread.View(), w, bodyH)
 	default:
 		body = m.designView(w, bodyH)
 	}
