@@ -156,7 +156,7 @@ func (m chartModel) View() string {
 	}
 	p10, p90, band := sh.spreadBand()
 	if band {
-		legend = append(legend, st.Warn.Render("⣤⣤")+st.Dim.Render(" 8 of 10 products stop here (p10–p90)"))
+		legend = append(legend, st.Warn.Render("⣤⣤")+st.Dim.Render(" p10–p90 cut-off"))
 	}
 	for _, l := range joinItems(legend, w, "  ") {
 		b.WriteString(l + "\n")

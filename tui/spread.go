@@ -88,8 +88,7 @@ func (sh *shared) spreadVerdict(line func(label, value, note string)) {
 		line("Spread", "—", s.err.Error())
 	default:
 		st, c := s.rep.Stats, s.rep.Corner
-		line("9 of 10 run", "≥ "+hours(st.P10H), "(p10; p50 "+hours(st.P50H)+")")
-		line("Worst corner", hours(c.WorstH()), "every tolerance against it")
+		line("9 of 10 run", "≥ "+hours(st.P10H), "(p10), worst "+hours(c.WorstH()))
 	}
 }
 

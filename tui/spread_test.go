@@ -61,7 +61,7 @@ func TestSpreadFillsVerdict(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"9 of 10 run", "≥ " + hours(rep.Stats.P10H), "Worst corner", "8 of 10 products stop here"} {
+	for _, want := range []string{"9 of 10 run", "≥ " + hours(rep.Stats.P10H), "(p10), worst " + hours(rep.Corner.WorstH()), "p10–p90 cut-off"} {
 		if !strings.Contains(view, want) {
 			t.Errorf("no %q after the spread ran:\n%s", want, view)
 		}
