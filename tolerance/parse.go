@@ -189,3 +189,34 @@ func number(v any) (float64, bool) {
 	}
 	return 0, false
 }
+
+// TOML writes t as a value of the [tolerance] table that Parse reads back
+// to t exactly.
+func (t Tol) TOML() string {
+	p, _ := lookup(t.Name)
+	num := func(v float64) string {
+		if p.name == "shelf" {
+			return strconv.FormatFloat(v, 'g', -1, 64)
+		}
+		if p.ratio {
+			return strconv.Quote(units.Format(v, units.Fraction))
+		}
+		return strconv.Quote(units.Format(v, p.kind))
+	}
+	var parts []string
+	switch t.Form {
+	case Percent:
+		parts = append(parts, "spread = "+strconv.Quote(units.Format(t.Pct, units.Fraction)))
+	case Offset:
+		parts = append(parts, "spread = "+num(t.Delta))
+	case Range:
+		parts = append(parts, "min = "+num(t.Min), "max = "+num(t.Max))
+	}
+	if t.Dist != p.def.Dist || len(parts) == 2 {
+		parts = append(parts, "dist = "+strconv.Quote(t.Dist.String()))
+	}
+	if len(parts) == 1 {
+		return strings.TrimPrefix(parts[0], "spread = ")
+	}
+	return "{ " + strings.Join(parts, ", ") + " }"
+}

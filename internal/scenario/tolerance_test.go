@@ -85,3 +85,37 @@ func TestToleranceTableErrors(t *testing.T) {
 		}
 	}
 }
+
+// A saved scenario writes the tolerances that differ from the defaults,
+// and Parse reads them back exactly (every form and distribution).
+func TestToleranceTableRoundTrip(t *testing.T) {
+	s := Demo()
+	tols := tolerance.Defaults()
+	for _, x := range []tolerance.Tol{
+		{Name: "capacity", Form: tolerance.Percent, Pct: 0.07, Dist: tolerance.Uniform},
+		{Name: "floor", Form: tolerance.Offset, Delta: 0.035, Dist: tolerance.Normal},
+		{Name: "shelf", Form: tolerance.Offset, Delta: 18, Dist: tolerance.Uniform},
+		{Name: "ambient", Form: tolerance.Range, Min: -5, Max: 45, Dist: tolerance.Uniform},
+		{Name: "load", Form: tolerance.Range, Min: -0.05, Max: 0.15, Dist: tolerance.Normal},
+		{Name: "ilim", Form: tolerance.Range, Min: 0.4, Max: 0.6, Dist: tolerance.Normal},
+	} {
+		tols = tolerance.With(tols, x)
+	}
+	text := Format(Saved{Name: "x", Design: s.Design, Tolerances: tols, Samples: 777, Seed: 9})
+	back, err := Parse(text, "saved.toml", "")
+	if err != nil {
+		t.Fatalf("%v\n%s", err, text)
+	}
+	if back.Samples != 777 || back.Seed != 9 {
+		t.Errorf("samples %d, seed %d read back; want 777 and 9", back.Samples, back.Seed)
+	}
+	for i := range tols {
+		if back.Tolerances[i] != tols[i] {
+			t.Errorf("%s: wrote %+v, read back %+v\n%s", tols[i].Name, tols[i], back.Tolerances[i], text)
+		}
+	}
+	// Defaults only: no table at all.
+	if text := Format(Saved{Name: "x", Design: s.Design, Tolerances: tolerance.Defaults()}); strings.Contains(string(text), "[tolerance]") {
+		t.Errorf("defaults wrote a [tolerance] table:\n%s", text)
+	}
+}
