@@ -136,7 +136,7 @@ func (m spreadModel) View() string {
 	for _, sd := range c.Sides {
 		maxLost = max(maxLost, sd.LostH)
 	}
-	barW := max(4, w-nameW-2-34)
+	barW := min(40, max(4, w-nameW-2-34))
 	for _, sd := range c.Sides {
 		n := 0
 		if maxLost > 0 {

@@ -238,7 +238,11 @@ func spreadText(b *bytes.Buffer, s *scenario.Scenario, rep *tolerance.Report) {
 	c, st := rep.Corner, rep.Stats
 	line := func(k, format string, a ...any) { fmt.Fprintf(b, "%-10s %s\n", k, fmt.Sprintf(format, a...)) }
 	line("nominal", "%s of use", hoursWords(c.NominalH()))
-	line("p10", "at least %s h in 9 of 10 products", sig(st.P10H, 3))
+	if st.P10H > 0 {
+		line("p10", "at least %s h in 9 of 10 products", sig(st.P10H, 3))
+	} else {
+		line("p10", "0 h: more than 1 product in 10 does not start")
+	}
 	line("spread", "p10 %s h, p50 %s h, p90 %s h (%d samples, seed %d, Latin hypercube)", sig(st.P10H, 3), sig(st.P50H, 3), sig(st.P90H, 3), st.Samples, st.Seed)
 	line("delivered", "p10 %s, p50 %s, p90 %s", mAh(st.P10MAh), mAh(st.P50MAh), mAh(st.P90MAh))
 	line("worst", "%s: every tolerance at the limit that shortens the runtime", hoursWords(c.WorstH()))
