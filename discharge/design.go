@@ -101,7 +101,7 @@ type TracePoint struct {
 	IdleV float64 // load voltage during the lightest phase (the highest of all phases)
 }
 
-// Result is what Evaluate computes (DESIGN §6). Charges are in mAh of the
+// Result is what Evaluate computes (docs/engine.md §What a result holds). Charges are in mAh of the
 // pack, energies in Wh, times in hours of use unless named otherwise.
 type Result struct {
 	RuntimeH    float64 // hours of use until cut-off

@@ -65,7 +65,7 @@ func TestFlagsOverrideFile(t *testing.T) {
 	}
 }
 
-// The hand check of the issue: a CSV cell with header mAh,V, two in series,
+// A hand check: a CSV cell with header mAh,V, two in series,
 // a PN diode with Is = 2.5 nA, n = 1.75, Rs = 0.1 Ω, 100 mA, floor 1.8 V at
 // 27 °C. By hand: the diode drop is Vd = n·Vt·ln(1 + I/Is) + I·Rs
 // (Shockley 1949, with series resistance) and Vt = k·T/q with k and q exact
@@ -104,7 +104,7 @@ func TestHandCheckDiodeCSV(t *testing.T) {
 		floor  = 1.8 // V
 		series = 2
 	)
-	vt := k * T / qe // 25.8649 mV at 300.15 K (SI Brochure value, see DESIGN §7)
+	vt := k * T / qe // 25.8649 mV at 300.15 K (SI Brochure value, see docs/references.md)
 	vd := n*vt*math.Log(1+I/Is) + I*Rs
 	// Solve series·V(q) − vd = floor on the segment where it crosses.
 	target := (floor + vd) / series
@@ -131,7 +131,7 @@ func TestHandCheckDiodeCSV(t *testing.T) {
 		m := runJSON(t, append(args, c.extra...)...)
 		want := qcut / 1000 / c.amps
 		got := num(t, m, "runtime_h")
-		// 1 %: the issue's tolerance. The engine solves the same equations
+		// 1 %: the acceptance bound set for this hand check. The engine solves the same equations
 		// by root finding and quadrature, so it agrees far closer (the
 		// measured difference is logged).
 		if rel := math.Abs(got-want) / want; rel > 0.01 {
