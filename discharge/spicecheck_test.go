@@ -5,7 +5,7 @@ import (
 	"testing"
 
 	"headroom/discharge"
-	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 	"headroom/internal/spicenet"
 )
 
@@ -35,7 +35,7 @@ import (
 // engine's quasi-static phases fail, so those cases get one period on
 // top (30 s of 6.3 h, 1.3e-3; measured 3.5e-4).
 func TestRuntimeAgainstNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	cases, err := spicenet.Cases()
 	if err != nil {
 		t.Fatal(err)

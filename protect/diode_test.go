@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 )
 
 // SI Brochure, 9th edition (2019): k and q are exact, so Vt = kT/q is
@@ -95,7 +96,7 @@ func diodeNetlist(tempC float64) string {
 // 3.5e-7 below the exact SI value): 3.5e-7 × 0.5–1 V. At 85 °C the same
 // 1 mV checks our saturation-current temperature law against ngspice's.
 func TestDiodeAgainstNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	for _, tempC := range []float64{27, 85} {
 		out, err := spice.Run(diodeNetlist(tempC))
 		if err != nil {

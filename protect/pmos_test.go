@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 )
 
 // kp is the Shichman–Hodges K = KP·W/L matching a FET's rating: in the
@@ -37,7 +38,7 @@ func spiceFET(name string, f FET) string {
 // (2.7 µA·1.08 Ω over 0.117 V, 2.5e-5 of the drop at 100 mA). Measured: at
 // most 4e-6 relative for the FETs, 2.4e-5 for the limiter; we allow 1e-4.
 func TestPMOSAgainstNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	fet := defaultFET()
 	eol := defaultFET()
 	eol.Vth = 1.2

@@ -1,7 +1,7 @@
 // Package spicenet turns a headroom design into an ngspice transient
 // netlist, so that a general-purpose circuit simulator can compute the same
 // runtime independently of the engine's charge-domain quadrature. The
-// discharge cross-check test and the speed comparison (internal/spicebench)
+// discharge cross-check test and the speed comparison (cmd/spicebench)
 // share it.
 //
 // The circuit (docs/references.md, "ngspice"):
