@@ -34,7 +34,7 @@ var designFlags = []designFlag{
 	{"protect", "SPEC", "protection element: " + strings.Join(protect.Kinds(), ", ") + ", with optional :key=value,...", func(s *scenario.Scenario, v string) error {
 		el, err := protect.Parse(v)
 		if err != nil {
-			return fmt.Errorf("%s", strings.TrimPrefix(err.Error(), "protect: "))
+			return protect.Unprefixed(err)
 		}
 		s.Design.Protect, s.ProtectSpec = el, strings.TrimSpace(v)
 		return nil

@@ -349,13 +349,13 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	for _, spec := range specs {
 		el, err := protect.Parse(spec)
 		if err != nil {
-			return nil, at("protect", unprefixed(err))
+			return nil, at("protect", protect.Unprefixed(err))
 		}
 		s.Protects = append(s.Protects, el)
 		s.ProtectSpecs = append(s.ProtectSpecs, protect.Short(el))
 	}
 	if d.Protect, err = protect.Parse(s.ProtectSpec); err != nil {
-		return nil, at("protect", unprefixed(err))
+		return nil, at("protect", protect.Unprefixed(err))
 	}
 
 	switch {
@@ -484,12 +484,6 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
 	return s, nil
-}
-
-// unprefixed drops the "protect: " that protect's messages start with,
-// which at adds already with the file and line.
-func unprefixed(err error) error {
-	return errors.New(strings.TrimPrefix(err.Error(), "protect: "))
 }
 
 // ResolveCell finds a cell by library id, by the id of a cell defined in
