@@ -16,6 +16,7 @@ import (
 
 var cellsCmd = &command{
 	name:  "cells",
+	run:   runCells,
 	args:  "[show ID|FILE | check FILE | import LOG.csv --current I -o CELL.csv] [flags]",
 	short: "list the cell library, show a cell, check a cell file, import a discharge log",
 	help: `
@@ -37,8 +38,6 @@ examples:
   headroom cells check testdata/cells/example-cell.csv
 `,
 }
-
-func init() { cellsCmd.run = runCells }
 
 func runCells(c *cli, args []string) error {
 	if len(args) > 0 {

@@ -13,6 +13,7 @@ import (
 
 var compareCmd = &command{
 	name:  "compare",
+	run:   runCompare,
 	args:  "[scenario.toml] [--budget DOLLARS] [--within-budget] [--sort cost|runtime] [--format text|json|csv|md]",
 	short: "every chemistry that fits the product, ranked by cost per hour of use",
 	help: `
@@ -46,8 +47,6 @@ examples:
   headroom compare --sort runtime --format md
 `,
 }
-
-func init() { compareCmd.run = runCompare }
 
 // freshLimit is how far above the design's fresh pack voltage a candidate
 // pack may start (see the help text).

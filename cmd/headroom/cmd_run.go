@@ -14,6 +14,7 @@ import (
 
 var runCmd = &command{
 	name:  "run",
+	run:   runRun,
 	args:  "[scenario.toml] [flags]",
 	short: "evaluate one design: runtime, stranded capacity, heat, cost",
 	help: `
@@ -34,8 +35,6 @@ examples:
   headroom run --load 450mA/3s,120mA/2s,15mA/25s --floor 1.8 --temp -10C
 `,
 }
-
-func init() { runCmd.run = runRun }
 
 func runRun(c *cli, args []string) error {
 	fs := newFlags("run")
