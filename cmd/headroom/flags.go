@@ -21,12 +21,12 @@ type designFlag struct {
 
 var designFlags = []designFlag{
 	{"cell", "ID|FILE.csv|FILE.toml", "cell: a library id (headroom cells) or a cell file", setCell},
-	{"series", "N", "cells in series, 1 to 48", func(s *scenario.Scenario, v string) error {
+	{"series", "N", fmt.Sprintf("cells in series, 1 to %d", discharge.MaxSeries), func(s *scenario.Scenario, v string) error {
 		n, err := scenario.ParseCount(v, scenario.CheckSeries)
 		s.Design.Series = n
 		return err
 	}},
-	{"parallel", "N", "strings in parallel, 1 to 16", func(s *scenario.Scenario, v string) error {
+	{"parallel", "N", fmt.Sprintf("strings in parallel, 1 to %d", discharge.MaxParallel), func(s *scenario.Scenario, v string) error {
 		n, err := scenario.ParseCount(v, scenario.CheckParallel)
 		s.Design.Parallel = n
 		return err

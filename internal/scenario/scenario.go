@@ -520,50 +520,17 @@ func (s *Scenario) ResolveCell(ref string) (*curves.Cell, error) {
 	return c, nil
 }
 
-// Field checks shared by flags, files and screen fields.
+// Field checks shared by flags, files and screen fields. The ranges live
+// in discharge (limits.go); these name them for the readers here.
 
-func CheckSeries(n int) error {
-	if n < 1 || n > 48 {
-		return fmt.Errorf("%d cells in series: must be 1 to 48", n)
-	}
-	return nil
-}
+func CheckSeries(n int) error      { return discharge.CheckSeries(n) }
+func CheckParallel(n int) error    { return discharge.CheckParallel(n) }
+func CheckFloor(v float64) error   { return discharge.CheckFloor(v) }
+func CheckTemp(v float64) error    { return discharge.CheckTemp(v) }
+func CheckStandby(v float64) error { return discharge.CheckStandby(v) }
+func CheckPrice(v float64) error   { return discharge.CheckPrice(v) }
 
-func CheckParallel(n int) error {
-	if n < 1 || n > 16 {
-		return fmt.Errorf("%d strings in parallel: must be 1 to 16", n)
-	}
-	return nil
-}
-
-func CheckFloor(v float64) error {
-	if v < 0 || v > 1000 {
-		return fmt.Errorf("floor %v V: must be 0 to 1000 V", v)
-	}
-	return nil
-}
-
-func CheckTemp(v float64) error {
-	if v < -40 || v > 85 {
-		return fmt.Errorf("ambient %v °C: must be -40 to 85 °C", v)
-	}
-	return nil
-}
-
-func CheckStandby(v float64) error {
-	if v < 0 || v > 10 {
-		return fmt.Errorf("standby %v A: must be 0 to 10 A", v)
-	}
-	return nil
-}
-
-func CheckPrice(v float64) error {
-	if v < 0 || v > 1e6 {
-		return fmt.Errorf("price %v: must be 0 or more and at most 1000000", v)
-	}
-	return nil
-}
-
+// CheckScale checks a load scale (a sweep's factor on every phase).
 func CheckScale(v float64) error {
 	if !(v > 0) || v > 1000 {
 		return fmt.Errorf("load scale %v: must be above 0 and at most 1000 (×)", v)
@@ -595,8 +562,8 @@ func ParseHoursPerDay(s string) (float64, error) {
 		v *= 3600 // a bare number means hours here
 	}
 	h := v / 3600
-	if !(h > 0) || h > 24 {
-		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most 24", s)
+	if discharge.CheckHoursPerDay(h) != nil {
+		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most %g", s, discharge.MaxHoursPerDay)
 	}
 	return h, nil
 }

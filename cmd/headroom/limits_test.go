@@ -1,0 +1,74 @@
+package main
+
+import (
+	"fmt"
+	"testing"
+
+	"headroom/discharge"
+	"headroom/internal/scenario"
+)
+
+// Every range of a design's values has one home, discharge's limits: the
+// flag parser, the scenario reader and Design.Validate accept the limit
+// and refuse the value just past it, all alike (the screen's knobs:
+// tui TestLimitsOneHome). The prices once had a ceiling in the reader and
+// none in Validate.
+func TestLimitsOneHome(t *testing.T) {
+	cases := []struct {
+		flag, key string // command-line flag, scenario key
+		ok, bad   string // the limit, and just past it
+		set       func(d *discharge.Design, bad bool)
+	}{
+		{"series", "series", fmt.Sprint(discharge.MaxSeries), fmt.Sprint(discharge.MaxSeries + 1),
+			func(d *discharge.Design, bad bool) { d.Series = discharge.MaxSeries + b2i(bad) }},
+		{"parallel", "parallel", fmt.Sprint(discharge.MaxParallel), fmt.Sprint(discharge.MaxParallel + 1),
+			func(d *discharge.Design, bad bool) { d.Parallel = discharge.MaxParallel + b2i(bad) }},
+		{"temp", "temp", fmt.Sprint(discharge.MaxTempC), fmt.Sprint(discharge.MaxTempC + 1),
+			func(d *discharge.Design, bad bool) { d.TempC = discharge.MaxTempC + float64(b2i(bad)) }},
+		{"standby", "standby", fmt.Sprint(discharge.MaxStandbyA), fmt.Sprint(discharge.MaxStandbyA + 1),
+			func(d *discharge.Design, bad bool) { d.Standby = discharge.MaxStandbyA + float64(b2i(bad)) }},
+		{"price", "price", fmt.Sprint(discharge.MaxPrice), fmt.Sprint(discharge.MaxPrice + 1),
+			func(d *discharge.Design, bad bool) { d.PackPrice = discharge.MaxPrice + float64(b2i(bad)) }},
+		{"", "electricity_price", fmt.Sprint(discharge.MaxPrice), fmt.Sprint(discharge.MaxPrice + 1),
+			func(d *discharge.Design, bad bool) { d.ElectricityPrice = discharge.MaxPrice + float64(b2i(bad)) }},
+	}
+	for _, c := range cases {
+		if c.flag != "" {
+			for _, v := range []string{c.ok, c.bad} {
+				fs := newFlags("run")
+				addDesignFlags(fs)
+				if _, err := parseArgs(fs, []string{"--" + c.flag, v}); err != nil {
+					t.Fatal(err)
+				}
+				err := applyDesignFlags(fs, scenario.Demo())
+				if (err == nil) != (v == c.ok) {
+					t.Errorf("--%s %s: error %v", c.flag, v, err)
+				}
+			}
+		}
+		for _, v := range []string{c.ok, c.bad} {
+			_, err := scenario.Parse([]byte(c.key+" = "+v+"\n"), "l.toml", "")
+			if (err == nil) != (v == c.ok) {
+				t.Errorf("scenario %s = %s: error %v", c.key, v, err)
+			}
+		}
+		for _, bad := range []bool{false, true} {
+			d := scenario.Demo().Design
+			c.set(&d, bad)
+			if err := d.Validate(); (err == nil) == bad {
+				t.Errorf("Validate with %s past the limit %v: error %v", c.key, bad, err)
+			}
+		}
+	}
+	// The budget is a price too.
+	if _, err := scenario.Parse([]byte(fmt.Sprintf("budget = %v\n", discharge.MaxPrice+1)), "l.toml", ""); err == nil {
+		t.Errorf("a budget past discharge.MaxPrice was taken")
+	}
+}
+
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
+}
