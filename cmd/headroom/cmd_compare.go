@@ -1,9 +1,9 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"math"
-	"sort"
 	"strings"
 
 	"headroom/curves"
@@ -23,7 +23,7 @@ count as the file's design. With no file the built-in demo is used.
 
 Series count, per chemistry: the count whose nominal pack voltage is closest
 to the design's (ties go to fewer cells), among the counts whose fresh
-open-circuit pack voltage is at most 1.5 × the design's and above the floor.
+open-circuit pack voltage is at most ` + fmt.Sprint(scenario.FreshLimit) + ` × the design's and above the floor.
 A chemistry with no such count does not fit and is listed as such.
 
 Columns: runtime in hours of use, packs bought (primary) or charges
@@ -48,10 +48,6 @@ examples:
 `,
 }
 
-// freshLimit is how far above the design's fresh pack voltage a candidate
-// pack may start (see the help text).
-const freshLimit = scenario.FreshLimit
-
 type compareRow struct {
 	cell         *curves.Cell
 	series, par  int
@@ -62,12 +58,6 @@ type compareRow struct {
 	overBudget   bool
 	budgetActive bool
 }
-
-func (c compareRow) runtime() float64 { return c.r.RuntimeH }
-
-// seriesFor picks the series count of cell for design d, or 0 when none
-// fits: scenario.FitSeries, the rule the screen's line-up uses too.
-func seriesFor(cell *curves.Cell, d *discharge.Design) int { return scenario.FitSeries(cell, d) }
 
 // shortCaution is one chemistry's main caution in a few words.
 func shortCaution(c *curves.Cell) string {
@@ -149,22 +139,16 @@ func runCompare(c *cli, args []string) error {
 	}
 	var rows []compareRow
 	var misfits []string
-	for _, cell := range cells {
-		n := seriesFor(cell, &d)
-		if n == 0 {
-			misfits = append(misfits, cell.ID)
+	for _, lr := range scenario.RankLineup(scenario.Lineup(&d, cells, nil), key == "runtime") {
+		if errors.Is(lr.Err, scenario.ErrNoFit) {
+			misfits = append(misfits, lr.Cell.ID)
 			continue
 		}
-		cd := d
-		cd.Cell, cd.Series, cd.TracePoints = cell, n, 0
-		if !(cell == d.Cell && n == d.Series) {
-			cd.PackPrice = 0 // the file's price is for its own pack
+		if lr.Err != nil {
+			return fmt.Errorf("compare %s: %w", lr.Cell.ID, lr.Err)
 		}
-		r, err := discharge.Evaluate(&cd)
-		if err != nil {
-			return fmt.Errorf("compare %s: %w", cell.ID, err)
-		}
-		row := compareRow{cell: cell, series: n, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
+		r := lr.Result
+		row := compareRow{cell: lr.Cell, series: lr.Series, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
 		if r.RuntimeDays > 0 {
 			row.perYear = 365 / r.RuntimeDays
 		}
@@ -175,16 +159,6 @@ func runCompare(c *cli, args []string) error {
 		}
 		rows = append(rows, row)
 	}
-	sort.SliceStable(rows, func(i, j int) bool {
-		a, b := rows[i], rows[j]
-		if (a.runtime() > 0) != (b.runtime() > 0) {
-			return a.runtime() > 0
-		}
-		if key == "runtime" {
-			return a.runtime() > b.runtime()
-		}
-		return a.r.CostPerHour < b.r.CostPerHour
-	})
 
 	if f == formatText {
 		if err := compareContext(c, s, &d, budget); err != nil {
@@ -217,8 +191,8 @@ func compareContext(c *cli, s *scenario.Scenario, d *discharge.Design, budget fl
 	freshD := float64(d.Series) * d.Cell.OpenCircuit(0, d.TempC)
 	b := fmt.Sprintf("%s: chemistries for load %s; protect %s; floor %s V; %s h of use a day\n",
 		name, loadWords(d), s.ProtectSpec, fixed(d.Floor, 2), short(hoursPerDay(d)))
-	b += fmt.Sprintf("series count: nominal pack voltage closest to %s V (%d × %s), fresh at most %s V (1.5 × %s V)\n",
-		short(float64(d.Series)*d.Cell.NominalV), d.Series, d.Cell.ID, fixed(freshLimit*freshD, 2), fixed(freshD, 2))
+	b += fmt.Sprintf("series count: nominal pack voltage closest to %s V (%d × %s), fresh at most %s V (%g × %s V)\n",
+		short(float64(d.Series)*d.Cell.NominalV), d.Series, d.Cell.ID, fixed(scenario.FreshLimit*freshD, 2), scenario.FreshLimit, fixed(freshD, 2))
 	if budget > 0 {
 		b += fmt.Sprintf("budget for pack + protection part: %s\n", money(budget))
 	}

@@ -1,8 +1,12 @@
 package main
 
 import (
+	"encoding/json"
 	"fmt"
+	"math"
 	"testing"
+
+	"headroom/curves"
 
 	"headroom/discharge"
 	"headroom/internal/scenario"
@@ -71,4 +75,45 @@ func b2i(b bool) int {
 		return 1
 	}
 	return 0
+}
+
+// compare's rows are scenario.Lineup's, in scenario.RankLineup's order:
+// the same cells, series counts and runtimes (the screen's line-up calls
+// the same function: tui TestLineupOneHome).
+func TestCompareIsTheLineup(t *testing.T) {
+	code, out, errs := runCLI(t, "compare", "--format", "json")
+	if code != 0 {
+		t.Fatalf("compare: status %d, %s", code, errs)
+	}
+	var got []map[string]any
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatalf("compare json: %v\n%s", err, out)
+	}
+	s := scenario.Demo()
+	var cells []*curves.Cell
+	seen := map[string]bool{}
+	for _, c := range append(curves.Library(), s.FileCells...) {
+		if !seen[c.ID] {
+			seen[c.ID] = true
+			cells = append(cells, c)
+		}
+	}
+	var want []scenario.LineupRow
+	for _, r := range scenario.RankLineup(scenario.Lineup(&s.Design, cells, nil), false) {
+		if r.Err == nil {
+			want = append(want, r)
+		}
+	}
+	if len(got) != len(want) {
+		t.Fatalf("compare has %d rows, the line-up %d", len(got), len(want))
+	}
+	for i, w := range want {
+		g := got[i]
+		// Runtime to 1e-5 relative: the JSON output rounds to six
+		// significant digits (at most 5e-6 relative).
+		if g["cell"] != w.Cell.ID || g["series"] != float64(w.Series) ||
+			math.Abs(g["runtime_h"].(float64)-w.Result.RuntimeH) > 1e-5*w.Result.RuntimeH {
+			t.Errorf("row %d: compare %v %v %v, line-up %s %d %v", i+1, g["cell"], g["series"], g["runtime_h"], w.Cell.ID, w.Series, w.Result.RuntimeH)
+		}
+	}
 }
