@@ -5,8 +5,8 @@ import (
 	"testing"
 
 	"headroom/discharge"
-	"headroom/internal/spicetest"
 	"headroom/internal/spicenet"
+	"headroom/internal/spicetest"
 )
 
 // TestRuntimeAgainstNgspice compares the engine's runtime with ngspice
