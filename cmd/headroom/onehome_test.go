@@ -4,6 +4,9 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
+	"strings"
 	"testing"
 
 	"headroom/curves"
@@ -114,6 +117,46 @@ func TestCompareIsTheLineup(t *testing.T) {
 		if g["cell"] != w.Cell.ID || g["series"] != float64(w.Series) ||
 			math.Abs(g["runtime_h"].(float64)-w.Result.RuntimeH) > 1e-5*w.Result.RuntimeH {
 			t.Errorf("row %d: compare %v %v %v, line-up %s %d %v", i+1, g["cell"], g["series"], g["runtime_h"], w.Cell.ID, w.Series, w.Result.RuntimeH)
+		}
+	}
+}
+
+// Every reader of a user file goes through internal/limited: a scenario,
+// a cell file given to --cell or to cells check, and a discharge log all
+// name a folder, a FIFO and an oversized file the same way. And both
+// ways of naming a cell (--cell, cells show) resolve through
+// scenario.ResolveCell, so an unknown id reads the same.
+func TestFileReadsOneHome(t *testing.T) {
+	dir := t.TempDir()
+	folder := filepath.Join(dir, "folder.csv")
+	if err := os.Mkdir(folder, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	big := filepath.Join(dir, "big.csv")
+	if err := os.WriteFile(big, make([]byte, curves.MaxFileSize+1), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	bigTOML := filepath.Join(dir, "big.toml")
+	if err := os.WriteFile(bigTOML, make([]byte, scenario.MaxFileSize+1), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"run", folder}, ": is a directory, expected a scenario file (.toml)"},
+		{[]string{"run", "--cell", folder}, ": is a directory, expected a cell file (.csv or .toml)"},
+		{[]string{"cells", "check", folder}, ": is a directory, expected a cell file (.csv or .toml)"},
+		{[]string{"cells", "import", folder, "--current", "1A", "-o", filepath.Join(dir, "o.csv")}, ": is a directory, expected a discharge log"},
+		{[]string{"run", bigTOML}, fmt.Sprintf(": %d bytes, larger than the %d-byte limit for a scenario file", scenario.MaxFileSize+1, scenario.MaxFileSize)},
+		{[]string{"cells", "check", big}, fmt.Sprintf(": %d bytes, larger than the %d-byte limit for a cell file", curves.MaxFileSize+1, curves.MaxFileSize)},
+		{[]string{"cells", "import", big, "--current", "1A", "-o", filepath.Join(dir, "o.csv")}, fmt.Sprintf(": %d bytes, larger than the %d-byte limit for a discharge log", curves.MaxFileSize+1, curves.MaxFileSize)},
+		{[]string{"run", "--cell", "nosuch"}, `--cell: unknown cell "nosuch": not a library id`},
+		{[]string{"cells", "show", "nosuch"}, `unknown cell "nosuch": not a library id`},
+	} {
+		code, _, errs := runCLI(t, c.args...)
+		if code != 2 || !strings.Contains(errs, c.want) {
+			t.Errorf("%v: status %d, %q; want 2 and %q", c.args, code, errs, c.want)
 		}
 	}
 }

@@ -8,9 +8,7 @@ import (
 	_ "embed"
 	"errors"
 	"fmt"
-	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -19,6 +17,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/limited"
 	"headroom/internal/units"
 	"headroom/protect"
 )
@@ -208,28 +207,9 @@ func Demo() *Scenario {
 
 // Load reads a scenario file.
 func Load(path string) (*Scenario, error) {
-	st, err := os.Stat(path)
+	data, err := limited.ReadFile(path, MaxFileSize, "a scenario file (.toml)")
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
-	}
-	if st.IsDir() {
-		return nil, fmt.Errorf("%s: is a directory, expected a scenario file (.toml)", path)
-	}
-	if !st.Mode().IsRegular() {
-		// A FIFO or a device would block the open or the read forever.
-		return nil, fmt.Errorf("%s: not a regular file (%s), expected a scenario file (.toml)", path, st.Mode().Type())
-	}
-	if st.Size() > MaxFileSize {
-		return nil, fmt.Errorf("%s: %d bytes, larger than the %d-byte limit for a scenario file", path, st.Size(), MaxFileSize)
-	}
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
+		return nil, err
 	}
 	s, err := Parse(data, path, filepath.Dir(path))
 	if err != nil {
@@ -240,20 +220,14 @@ func Load(path string) (*Scenario, error) {
 }
 
 // UnwrapPath returns the reason inside an *os.PathError (the path is
-// named in the message already), or err itself.
-func UnwrapPath(err error) error {
-	var pe *os.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
-}
+// named in the message already), or err itself: limited.UnwrapPath.
+func UnwrapPath(err error) error { return limited.UnwrapPath(err) }
 
 // Parse reads a scenario from data; name is used in messages and dir is
 // the folder relative cell paths start from.
 func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if len(data) > MaxFileSize {
-		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file", name, MaxFileSize)
+		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file (.toml)", name, MaxFileSize)
 	}
 	if i := strings.IndexByte(string(data), 0); i >= 0 {
 		return nil, fmt.Errorf("%s: binary data (a NUL byte at offset %d), expected a TOML text file", name, i)
@@ -485,6 +459,10 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	}
 	return s, nil
 }
+
+// FindCell resolves a library id, or a .csv or .toml cell file path
+// relative to the working folder: ResolveCell with no scenario around it.
+func FindCell(ref string) (*curves.Cell, error) { return (&Scenario{}).ResolveCell(ref) }
 
 // ResolveCell finds a cell by library id, by the id of a cell defined in
 // the file, or as a path to a .csv or .toml cell file (relative to the
