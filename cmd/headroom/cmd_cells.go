@@ -242,4 +242,3 @@ func cellsImport(c *cli, args []string) error {
 		*out, cell.Curve.Len(), sig(q, 4), human(amps, units.Current), fixed(v, 3))
 	return err
 }
-
