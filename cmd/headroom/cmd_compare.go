@@ -59,33 +59,6 @@ type compareRow struct {
 	budgetActive bool
 }
 
-// shortCaution is one chemistry's main caution in a few words.
-func shortCaution(c *curves.Cell) string {
-	var s string
-	switch c.Chemistry {
-	case "li-ion":
-		s = "needs a protection circuit and a Li-ion charger"
-	case "lifepo4":
-		s = "needs a protection circuit and a LiFePO4 charger"
-	case "nimh":
-		s = "NiMH charger only; stop at the end-point"
-	case "alkaline", "zinc-carbon":
-		s = "may leak when flat or flipped; do not recharge"
-	case "lithium-fes2", "lithium-mno2":
-		s = "do not recharge; may vent if shorted"
-	default:
-		s = "check the maker's data"
-	}
-	d := strings.ToUpper(c.Designation)
-	for _, p := range []string{"CR", "BR", "SR", "LR4", "LR5"} {
-		if strings.HasPrefix(d, p) {
-			s = "swallowing hazard: screw the compartment shut; " + s
-			break
-		}
-	}
-	return s
-}
-
 func runCompare(c *cli, args []string) error {
 	fs := newFlags("compare")
 	budgetFlag := fs.String("budget", "", "")
@@ -259,7 +232,7 @@ func compareColumns(withBudget bool) []column[compareRow] {
 	cols = append(cols,
 		column[compareRow]{key: "cutoff_cause", machine: true, val: func(r compareRow) any { return string(r.r.CutoffCause) }},
 		column[compareRow]{key: "caution", head: "caution", human: true, machine: true,
-			text: func(r compareRow) string { return shortCaution(r.cell) }, val: func(r compareRow) any { return shortCaution(r.cell) }},
+			text: func(r compareRow) string { return curves.ShortCaution(r.cell) }, val: func(r compareRow) any { return curves.ShortCaution(r.cell) }},
 	)
 	return cols
 }

@@ -160,3 +160,28 @@ func TestFileReadsOneHome(t *testing.T) {
 		}
 	}
 }
+
+// compare's caution column is curves.ShortCaution, the short form kept
+// beside the full cautions.
+func TestCompareCautionOneHome(t *testing.T) {
+	code, out, errs := runCLI(t, "compare", "--format", "json")
+	if code != 0 {
+		t.Fatalf("compare: status %d, %s", code, errs)
+	}
+	var rows []map[string]any
+	if err := json.Unmarshal([]byte(out), &rows); err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range rows {
+		c, ok := curves.Lookup(r["cell"].(string))
+		if !ok {
+			continue
+		}
+		if r["caution"] != curves.ShortCaution(c) {
+			t.Errorf("%s: caution %q, curves.ShortCaution %q", c.ID, r["caution"], curves.ShortCaution(c))
+		}
+	}
+	if len(rows) == 0 {
+		t.Fatal("compare gave no rows")
+	}
+}
