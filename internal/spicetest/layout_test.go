@@ -30,8 +30,8 @@ func TestOnlyTestsImport(t *testing.T) {
 		if !strings.HasSuffix(path, ".go") || strings.HasSuffix(path, "_test.go") {
 			return nil
 		}
-		if filepath.Base(filepath.Dir(path)) == "spicetest" {
-			return nil // the helper itself
+		if strings.HasSuffix(filepath.Base(filepath.Dir(path)), "test") {
+			return nil // the test helpers themselves (spicetest, goldentest)
 		}
 		f, err := parser.ParseFile(fset, path, nil, parser.ImportsOnly)
 		if err != nil {
@@ -40,7 +40,7 @@ func TestOnlyTestsImport(t *testing.T) {
 		seen++
 		for _, imp := range f.Imports {
 			p, _ := strconv.Unquote(imp.Path.Value)
-			if p == "testing" || p == "headroom/internal/spicetest" {
+			if p == "testing" || strings.HasPrefix(p, "headroom/internal/") && strings.HasSuffix(p, "test") {
 				t.Errorf("%s imports %q; only _test.go files may", path, p)
 			}
 		}
