@@ -95,42 +95,9 @@ func runCompare(c *cli, args []string) error {
 	}
 
 	d := s.Design
-	el := d.Protect
-	elCost := 0.0
-	if el != nil {
-		elCost = el.Cost()
-	}
-	var cells []*curves.Cell
-	seen := map[string]bool{}
-	for _, list := range [][]*curves.Cell{curves.Library(), s.FileCells} {
-		for _, cell := range list {
-			if !seen[cell.ID] {
-				seen[cell.ID] = true
-				cells = append(cells, cell)
-			}
-		}
-	}
-	var rows []compareRow
-	var misfits []string
-	for _, lr := range scenario.RankLineup(scenario.Lineup(&d, cells, nil), key == "runtime") {
-		if errors.Is(lr.Err, scenario.ErrNoFit) {
-			misfits = append(misfits, lr.Cell.ID)
-			continue
-		}
-		if lr.Err != nil {
-			return fmt.Errorf("compare %s: %w", lr.Cell.ID, lr.Err)
-		}
-		r := lr.Result
-		row := compareRow{cell: lr.Cell, series: lr.Series, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
-		if r.RuntimeDays > 0 {
-			row.perYear = 365 / r.RuntimeDays
-		}
-		row.costPerYear = r.CostPerHour * hoursPerDay(&d) * 365
-		row.overBudget = budget > 0 && row.partCost > budget+1e-9
-		if *within && row.overBudget {
-			continue
-		}
-		rows = append(rows, row)
+	rows, misfits, err := lineupRows(s, &d, budget, *within, key)
+	if err != nil {
+		return err
 	}
 
 	if f == formatText {
@@ -244,4 +211,50 @@ func orNaN(runtimeH, v float64) float64 {
 		return math.NaN()
 	}
 	return v
+}
+
+// lineupRows evaluates every library cell and the scenario's own in design
+// d's place (scenario.Lineup: series count by scenario.FitSeries), marks rows over budget (leaving
+// them out when within), and ranks them by key ("cost" or "runtime");
+// misfits are the cells no series count fits. compare and the report
+// share it.
+func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, within bool, key string) (rows []compareRow, misfits []string, err error) {
+	d := *dp
+	el := d.Protect
+	elCost := 0.0
+	if el != nil {
+		elCost = el.Cost()
+	}
+	var cells []*curves.Cell
+	seen := map[string]bool{}
+	for _, list := range [][]*curves.Cell{curves.Library(), s.FileCells} {
+		for _, cell := range list {
+			if !seen[cell.ID] {
+				seen[cell.ID] = true
+				cells = append(cells, cell)
+			}
+		}
+	}
+	// The screen's line-up is the same function (scenario.Lineup).
+	for _, lr := range scenario.RankLineup(scenario.Lineup(&d, cells, nil), key == "runtime") {
+		if errors.Is(lr.Err, scenario.ErrNoFit) {
+			misfits = append(misfits, lr.Cell.ID)
+			continue
+		}
+		if lr.Err != nil {
+			return nil, nil, fmt.Errorf("compare %s: %w", lr.Cell.ID, lr.Err)
+		}
+		r := lr.Result
+		row := compareRow{cell: lr.Cell, series: lr.Series, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
+		if r.RuntimeDays > 0 {
+			row.perYear = 365 / r.RuntimeDays
+		}
+		row.costPerYear = r.CostPerHour * hoursPerDay(&d) * 365
+		row.overBudget = budget > 0 && row.partCost > budget+1e-9
+		if within && row.overBudget {
+			continue
+		}
+		rows = append(rows, row)
+	}
+	return rows, misfits, nil
 }
