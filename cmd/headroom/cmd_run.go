@@ -14,7 +14,7 @@ import (
 
 var runCmd = &command{
 	name:  "run",
-	run:   runRun,
+	run:   runDesign,
 	args:  "[scenario.toml] [flags]",
 	short: "evaluate one design: runtime, stranded capacity, heat, cost",
 	help: `
@@ -36,7 +36,7 @@ examples:
 `,
 }
 
-func runRun(c *cli, args []string) error {
+func runDesign(c *cli, args []string) error {
 	fs := newFlags("run")
 	addDesignFlags(fs)
 	formatFlag := fs.String("format", "text", "")
