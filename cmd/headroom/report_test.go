@@ -242,7 +242,7 @@ func TestReportAndNetlistBadOutput(t *testing.T) {
 
 // The exported netlist runs in ngspice (Debian's package) with no edits,
 // and its measured time to the floor agrees with headroom's runtime within
-// 1 % (the bound) — one design per load law, a pulsed profile, and
+// 1 % (the acceptance bound) — one design per load law, a pulsed profile, and
 // one behind the current limiter. The demo's netlist is also kept as a
 // golden file.
 func TestNetlistRunsInNgspice(t *testing.T) {
