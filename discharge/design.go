@@ -39,7 +39,7 @@ type Design struct {
 const DefaultElectricityPrice = 0.30
 
 // Validate checks the design and says which value is wrong. The ranges are
-// those of limits.go, shared with every reader of a design.
+// those of ranges.go, shared with every reader of a design.
 func (d *Design) Validate() error {
 	fin := func(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 	type check struct {

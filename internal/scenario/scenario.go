@@ -499,7 +499,7 @@ func (s *Scenario) ResolveCell(ref string) (*curves.Cell, error) {
 }
 
 // Field checks shared by flags, files and screen fields. The ranges live
-// in discharge (limits.go); these name them for the readers here.
+// in discharge (ranges.go); these name them for the readers here.
 
 func CheckSeries(n int) error      { return discharge.CheckSeries(n) }
 func CheckParallel(n int) error    { return discharge.CheckParallel(n) }
