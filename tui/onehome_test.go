@@ -9,7 +9,7 @@ import (
 )
 
 // TestLimitsOneHome: the screen takes its series, parallel and ambient limits from their one
-// home, discharge's limits: the slider ends there and a typed value one
+// home, discharge's ranges (ranges.go): the slider ends there and a typed value one
 // past it is refused, as the flags and the scenario reader refuse it
 // (cmd/headroom TestLimitsOneHome).
 func TestLimitsOneHome(t *testing.T) {

@@ -15,7 +15,7 @@ import (
 	"headroom/internal/scenario"
 )
 
-// Every range of a design's values has one home, discharge's limits: the
+// Every range of a design's values has one home, discharge's ranges (ranges.go): the
 // flag parser, the scenario reader and Design.Validate accept the limit
 // and refuse the value just past it, all alike (the screen's knobs:
 // tui TestLimitsOneHome). The prices once had a ceiling in the reader and
