@@ -51,10 +51,11 @@ func TestLineupOneHome(t *testing.T) {
 	sh := newShared(scenario.Demo())
 	base := sh.design()
 	want := scenario.Lineup(&base, sh.cells, nil)
-	if len(sh.lineupRows) != len(want) {
-		t.Fatalf("%d rows, scenario.Lineup gives %d", len(sh.lineupRows), len(want))
+	rows := sh.evaluateLineup()
+	if len(rows) != len(want) {
+		t.Fatalf("%d rows, scenario.Lineup gives %d", len(rows), len(want))
 	}
-	for i, r := range sh.lineupRows {
+	for i, r := range rows {
 		w := want[i]
 		if r.cell != w.Cell || r.series != w.Series || (r.err == nil) != (w.Err == nil) {
 			t.Errorf("row %d: %s %dS err %v, scenario.Lineup: %s %dS err %v", i, r.cell.ID, r.series, r.err, w.Cell.ID, w.Series, w.Err)
@@ -66,7 +67,7 @@ func TestLineupOneHome(t *testing.T) {
 		}
 	}
 	for _, byRuntime := range []bool{false, true} {
-		got, rank := ranked(sh.lineupRows, byRuntime), scenario.RankLineup(want, byRuntime)
+		got, rank := ranked(rows, byRuntime), scenario.RankLineup(want, byRuntime)
 		for i := range got {
 			if got[i].cell != rank[i].Cell {
 				t.Errorf("byRuntime %v: rank %d is %s, scenario.RankLineup has %s", byRuntime, i+1, got[i].cell.ID, rank[i].Cell.ID)
