@@ -13,6 +13,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -59,7 +60,23 @@ type Scenario struct {
 	LoadScales   []float64
 
 	Budget float64 // dollars for cells + protection; 0 for none
-	dir    string
+
+	// OptionKeys are the keys written in the file's [options] table
+	// ("cells", "protect", ...), so that a search can tell a list the
+	// user narrowed from the design's own single value.
+	OptionKeys []string
+	// Pick holds the [pick] table's settings as written, in file order,
+	// for the pick command to read with the same parsers as its flags.
+	Pick []Setting
+
+	dir string
+}
+
+// Setting is one key of a table read as text: its key, its value as
+// written (numbers and booleans in Go's shortest form) and its line.
+type Setting struct {
+	Key, Value string
+	Line       int
 }
 
 type phaseDef struct {
@@ -74,6 +91,22 @@ type optionsDef struct {
 	Parallel []int    `toml:"parallel"`
 	Protect  []string `toml:"protect"`
 	Loads    []string `toml:"loads"`
+}
+
+// pickDef is the [pick] table: the search's target and limits, checked
+// by the pick command's parsers (the same as its flags).
+type pickDef struct {
+	Need          units.Raw `toml:"need"`
+	At            string    `toml:"at"`
+	Budget        units.Raw `toml:"budget"`
+	MaxCells      int       `toml:"max_cells"`
+	MaxParallel   int       `toml:"max_parallel"`
+	MaxStranded   units.Raw `toml:"max_stranded"`
+	MaxJunction   units.Raw `toml:"max_junction"`
+	BlockReversed bool      `toml:"block_reversed"`
+	MaxInput      units.Raw `toml:"max_input"`
+	By            string    `toml:"by"`
+	Top           int       `toml:"top"`
 }
 
 type sweepDef struct {
@@ -100,6 +133,7 @@ type fileDef struct {
 	Budget      units.Raw        `toml:"budget"`
 	Options     optionsDef       `toml:"options"`
 	Sweep       sweepDef         `toml:"sweep"`
+	Pick        pickDef          `toml:"pick"`
 	Cells       []curves.CellDef `toml:"define_cell"`
 }
 
@@ -282,6 +316,12 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		return fmt.Errorf("%s:%d: %s: %w", name, lineOf(data, key), key, err)
 	}
 	s := &Scenario{Name: f.Name, Note: f.Note, dir: dir}
+	for _, k := range []string{"cells", "series", "parallel", "protect", "loads"} {
+		if md.IsDefined("options", k) {
+			s.OptionKeys = append(s.OptionKeys, k)
+		}
+	}
+	s.Pick = pickSettings(f.Pick, md, data)
 
 	// Cells defined in the file come first, so a design can name them.
 	for i := range f.Cells {
@@ -486,6 +526,28 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	return s, nil
 }
 
+// pickSettings lists the [pick] keys the file sets, in the order of
+// pickDef, with their values as text and their lines.
+func pickSettings(p pickDef, md toml.MetaData, data []byte) []Setting {
+	vals := []struct {
+		key string
+		val string
+	}{
+		{"need", p.Need.String()}, {"at", p.At}, {"budget", p.Budget.String()},
+		{"max_cells", strconv.Itoa(p.MaxCells)}, {"max_parallel", strconv.Itoa(p.MaxParallel)},
+		{"max_stranded", p.MaxStranded.String()}, {"max_junction", p.MaxJunction.String()},
+		{"block_reversed", strconv.FormatBool(p.BlockReversed)}, {"max_input", p.MaxInput.String()},
+		{"by", p.By}, {"top", strconv.Itoa(p.Top)},
+	}
+	var out []Setting
+	for _, v := range vals {
+		if md.IsDefined("pick", v.key) {
+			out = append(out, Setting{Key: v.key, Value: v.val, Line: lineInTable(data, "pick", v.key)})
+		}
+	}
+	return out
+}
+
 // unprefixed drops the "protect: " that protect's messages start with,
 // which at adds already with the file and line.
 func unprefixed(err error) error {
@@ -641,6 +703,27 @@ func orInts(xs []int, def int) []int {
 func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
 
 var tomlLineErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
+
+// lineInTable finds the line that sets key inside [table], for messages;
+// the table's own line, or 1, if none does.
+func lineInTable(data []byte, table, key string) int {
+	head := regexp.MustCompile(`(?m)^[ \t]*\[[ \t]*` + regexp.QuoteMeta(table) + `[ \t]*\]`)
+	loc := head.FindIndex(data)
+	if loc == nil {
+		return lineOf(data, key)
+	}
+	start := 1 + strings.Count(string(data[:loc[0]]), "\n")
+	rest := data[loc[1]:]
+	if next := regexp.MustCompile(`(?m)^[ \t]*\[`).FindIndex(rest); next != nil {
+		rest = rest[:next[0]]
+	}
+	re := regexp.MustCompile(`(?m)^[ \t]*"?` + regexp.QuoteMeta(key) + `"?[ \t]*=`)
+	k := re.FindIndex(rest)
+	if k == nil {
+		return start
+	}
+	return start + strings.Count(string(data[loc[0]:loc[1]]), "\n") + strings.Count(string(rest[:k[0]]), "\n")
+}
 
 // lineOf finds the first line that sets key, for messages; 1 if none.
 func lineOf(data []byte, key string) int {
