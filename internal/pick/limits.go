@@ -138,6 +138,12 @@ func LookupKey(name string) (Key, bool) {
 func setNeed(l *Limits, v string) error {
 	t := strings.TrimSpace(v)
 	h, err := strconv.ParseFloat(t, 64)
+	if days, ok := strings.CutSuffix(t, "d"); err != nil && ok {
+		// Days of use are not a unit the unit parser knows: 3d is 72 h.
+		if h, err = strconv.ParseFloat(strings.TrimSpace(days), 64); err == nil {
+			h *= 24
+		}
+	}
 	if err != nil {
 		sec, perr := units.Parse(t, units.Time, false)
 		if perr != nil {

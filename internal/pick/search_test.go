@@ -460,7 +460,7 @@ func TestKeysParse(t *testing.T) {
 		key, val string
 		ok       bool
 	}{
-		{"need", "20h", true}, {"need", "20", true}, {"need", "90min", true}, {"need", "0", false}, {"need", "-3h", false},
+		{"need", "20h", true}, {"need", "20", true}, {"need", "90min", true}, {"need", "3d", true}, {"need", "xd", false}, {"need", "0", false}, {"need", "-3h", false},
 		{"budget", "1.50", true}, {"budget", "$2", true}, {"budget", "-1", false}, {"budget", "0", false},
 		{"max_stranded", "30%", true}, {"max_stranded", "30", true}, {"max_stranded", "130%", false},
 		{"max_junction", "125C", true}, {"max_input", "6V", true}, {"max_input", "0", false},
