@@ -168,7 +168,11 @@ func runPick(c *cli, args []string) error {
 
 	bar := newPickBar(c)
 	start := time.Now()
-	out, err := pick.Search(sp, lim, pick.Nominal{}, bar.update)
+	st, err := pick.StatisticFor(lim.At)
+	if err != nil {
+		return fmt.Errorf("%s: %s", src.name("at"), strings.TrimPrefix(err.Error(), "at: "))
+	}
+	out, err := pick.Search(sp, lim, st, bar.update)
 	bar.done()
 	if err != nil {
 		key, rest, _ := strings.Cut(err.Error(), ": ")
@@ -379,7 +383,7 @@ func pickJSON(w io.Writer, out *pick.Outcome) error {
 		screened[string(k)] = v
 	}
 	doc := map[string]any{
-		"need_h": num(out.Limits.Need), "at": "nominal", "by": out.Limits.By.String(),
+		"need_h": num(out.Limits.Need), "at": out.Limits.At, "by": out.Limits.By.String(),
 		"designs": list(out.Designs), "front": list(out.Front), "near_misses": list(out.NearMisses),
 		"longest": nil,
 		"counts": map[string]any{"space": out.Space, "screened": screened, "no_start": out.NoStart,
@@ -412,7 +416,7 @@ func pickText(w io.Writer, s *scenario.Scenario, sp *pick.Space, out *pick.Outco
 		name = s.Path
 	}
 	var b strings.Builder
-	fmt.Fprintf(&b, "%s: designs running at least %s h of use (nominal)\n", name, short(lim.Need))
+	fmt.Fprintf(&b, "%s: designs running at least %s h of use (%s)\n", name, short(lim.Need), atWords(lim.At))
 	fmt.Fprintf(&b, "load %s; floor %s V; %s h of use a day\n", loadWords(d), fixed(d.Floor, 2), short(hoursPerDay(d)))
 	var limits []string
 	if lim.Budget > 0 {
@@ -494,6 +498,17 @@ var screenedPhrase = map[pick.Constraint]string{
 	pick.Cells:   "%d with too many cells",
 	pick.Reverse: "%d letting a reversed pack through",
 	pick.Input:   "%d above the input limit",
+}
+
+// atWords says which runtime is judged.
+func atWords(at string) string {
+	switch at {
+	case "worst":
+		return "at the worst corner of the typical tolerances"
+	case "p10":
+		return fmt.Sprintf("at the tenth percentile of %d samples over the typical tolerances", pick.DefaultSamples)
+	}
+	return "nominal"
 }
 
 func screenedWords(out *pick.Outcome) string {

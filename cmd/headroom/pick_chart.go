@@ -25,7 +25,7 @@ func frontChart(s *scenario.Scenario, out *pick.Outcome, ext string) ([]byte, er
 	if title == "" {
 		title = filepath.Base(s.Path)
 	}
-	p.Title.Text = fmt.Sprintf("%s\nunit cost against runtime (nominal), %d designs within the other limits", title, len(out.Others))
+	p.Title.Text = fmt.Sprintf("%s\nunit cost against runtime (%s), %d designs within the other limits", title, out.Limits.At, len(out.Others))
 	p.Title.TextStyle.Font.Size = vg.Points(11)
 	p.X.Label.Text = "unit cost: cells + protection part ($)"
 	p.Y.Label.Text = "runtime (hours of use)"

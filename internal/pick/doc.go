@@ -16,5 +16,6 @@
 // already found. The runtime bound is the same pack with no element: for
 // loads that draw no less current at a lower voltage (constant current,
 // constant power) an element only adds drop and drain, so it can only
-// shorten the run.
+// shorten the run. Every statistic is capped at the nominal runtime, so the
+// bound holds at p10 and at the worst corner too.
 package pick

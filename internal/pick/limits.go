@@ -84,7 +84,7 @@ func (k Key) Flag() string { return strings.ReplaceAll(k.Name, "_", "-") }
 var Keys = []Key{
 	{"need", "TIME", "runtime target in hours of use (20h, 90min, 3d; a bare number is hours)", setNeed},
 	{"at", "STAT", "the runtime judged at: nominal, p10 or worst", setAt},
-	{"budget", "DOLLARS", "most a unit may cost, cells plus element ($1.50 or 1.50)", setBudget},
+	{"budget", "DOLLARS", "most a unit may cost, cells plus element ($1.50 or 1.50; none lifts the file's)", setBudget},
 	{"max_cells", "N", "most cells in the pack", func(l *Limits, v string) error {
 		n, err := parseCount(v, 1, 48*16)
 		l.MaxCells = n
@@ -172,6 +172,10 @@ func setAt(l *Limits, v string) error {
 }
 
 func setBudget(l *Limits, v string) error {
+	if strings.EqualFold(strings.TrimSpace(v), "none") {
+		l.Budget = 0 // lifts a budget the file gives
+		return nil
+	}
 	b, err := units.Parse(v, units.Money, true)
 	if err != nil {
 		return err

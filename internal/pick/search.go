@@ -132,7 +132,7 @@ func Search(sp *Space, lim Limits, st Statistic, progress func(done, total int))
 	}
 	bounds := map[int]float64{}
 	bare := map[int]*discharge.Result{}
-	if st.Monotone() && boundable(sp.Base.Profile) {
+	if st.Capped() && boundable(sp.Base.Profile) {
 		keys := make([]int, 0, len(packs))
 		for k := range packs {
 			keys = append(keys, k)
@@ -140,7 +140,7 @@ func Search(sp *Space, lim Limits, st Statistic, progress func(done, total int))
 		sort.Ints(keys)
 		res := make([]*discharge.Result, len(keys))
 		parallelFor(len(keys), func(i int) {
-			r, err := st.Evaluate(packs[keys[i]])
+			r, err := discharge.Evaluate(packs[keys[i]])
 			if err == nil {
 				res[i] = r
 			}
@@ -149,7 +149,9 @@ func Search(sp *Space, lim Limits, st Statistic, progress func(done, total int))
 		for i, k := range keys {
 			if res[i] != nil {
 				bounds[k] = res[i].RuntimeH*(1+boundSlack) + 1e-9
-				bare[k] = res[i]
+				if st.Name() == "nominal" {
+					bare[k] = res[i]
+				}
 			} else {
 				bounds[k] = math.Inf(1)
 			}
@@ -517,8 +519,6 @@ func (l Limits) check(base *discharge.Design) error {
 		return fmt.Errorf("max_junction: %.3g °C is not above the ambient %.3g °C: no part runs that cool", l.MaxJunction, base.TempC)
 	case l.MaxCells > 0 && l.MaxParallel > l.MaxCells:
 		return fmt.Errorf("max_parallel: %d strings cannot fit in at most %d cells", l.MaxParallel, l.MaxCells)
-	case l.At != "" && l.At != "nominal":
-		return fmt.Errorf("at: %s needs the tolerance model, which this build does not have yet: use nominal", l.At)
 	}
 	return nil
 }

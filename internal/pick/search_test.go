@@ -32,7 +32,7 @@ func (b bruteDesign) id() string {
 }
 
 // brute enumerates the space and judges each design from scratch.
-func brute(t *testing.T, sp *Space, lim Limits) []bruteDesign {
+func brute(t *testing.T, sp *Space, lim Limits, st Statistic) []bruteDesign {
 	t.Helper()
 	maxIn := lim.MaxInput
 	if maxIn == 0 {
@@ -56,7 +56,7 @@ func brute(t *testing.T, sp *Space, lim Limits) []bruteDesign {
 					}
 					d := sp.Base
 					d.Cell, d.Series, d.Parallel, d.Protect, d.PackPrice, d.TracePoints = cell, s, p, e, 0, 0
-					r, err := discharge.Evaluate(&d)
+					r, err := st.Evaluate(&d)
 					if err != nil {
 						continue
 					}
@@ -121,16 +121,29 @@ func TestPrunedMatchesBrute(t *testing.T) {
 	lib := curves.Library()
 	loads := []string{"", "", "", "0.6W@85%", "33ohm"} // the demo's pulses (CC), constant power, a resistor
 	kinds := protect.Kinds()
-	pruned, cases := 0, 60
+	pruned, cases := 0, 66
 	if testing.Short() {
-		cases = 15
+		cases = 18
 	}
 	for n := range cases {
+		// Every eleventh case judges the runtime at the worst corner, every
+		// eleventh but one at the tenth percentile, on a smaller space.
+		st := Statistic(Nominal{})
+		switch n % 11 {
+		case 9:
+			st, _ = StatisticFor("worst")
+		case 10:
+			st, _ = StatisticFor("p10")
+		}
 		sp := &Space{Base: demoBase(t, loads[rng.IntN(len(loads))]), Parallel: []int{1, 2, 3}[:1+rng.IntN(3)]}
 		for _, i := range rng.Perm(len(lib))[:2+rng.IntN(3)] {
 			sp.Cells = append(sp.Cells, lib[i])
 		}
-		for _, i := range rng.Perm(len(kinds))[:2+rng.IntN(4)] {
+		nk := 2 + rng.IntN(4)
+		if st.Name() != "nominal" {
+			sp.Cells, sp.Parallel, nk = sp.Cells[:2], sp.Parallel[:min(2, len(sp.Parallel))], 2
+		}
+		for _, i := range rng.Perm(len(kinds))[:nk] {
 			sp.Elements = append(sp.Elements, mustLadder(t, kinds[i])...)
 		}
 		lim := DefaultLimits()
@@ -153,14 +166,15 @@ func TestPrunedMatchesBrute(t *testing.T) {
 			lim.By = ByCostPerHour
 		}
 		lim.MaxParallel = slices.Max(sp.Parallel)
-		name := fmt.Sprintf("case%d", n)
+		lim.At = st.Name()
+		name := fmt.Sprintf("case%d-%s", n, st.Name())
 		t.Run(name, func(t *testing.T) {
-			got, err := Search(sp, lim, Nominal{}, nil)
+			got, err := Search(sp, lim, st, nil)
 			if err != nil {
 				t.Fatal(err)
 			}
 			pruned += got.Pruned
-			all := brute(t, sp, lim)
+			all := brute(t, sp, lim, st)
 			checkList(t, got, all, lim)
 			checkFront(t, got, all)
 		})
@@ -461,7 +475,7 @@ func TestKeysParse(t *testing.T) {
 		ok       bool
 	}{
 		{"need", "20h", true}, {"need", "20", true}, {"need", "90min", true}, {"need", "3d", true}, {"need", "xd", false}, {"need", "0", false}, {"need", "-3h", false},
-		{"budget", "1.50", true}, {"budget", "$2", true}, {"budget", "-1", false}, {"budget", "0", false},
+		{"budget", "1.50", true}, {"budget", "$2", true}, {"budget", "-1", false}, {"budget", "0", false}, {"budget", "none", true},
 		{"max_stranded", "30%", true}, {"max_stranded", "30", true}, {"max_stranded", "130%", false},
 		{"max_junction", "125C", true}, {"max_input", "6V", true}, {"max_input", "0", false},
 		{"at", "worst", true}, {"at", "mean", false}, {"by", "cost-per-hour", true}, {"by", "runtime", false},
