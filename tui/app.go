@@ -29,6 +29,7 @@ const (
 	screenDesign  screen = iota // knobs, verdict and chart
 	screenLineup                // every cell ranked
 	screenReverse               // cells put in wrong
+	screenPick                  // the cheapest designs for a target
 	screenCount
 )
 
@@ -40,6 +41,8 @@ func (s screen) String() string {
 		return "Line-up"
 	case screenReverse:
 		return "Reversed cells"
+	case screenPick:
+		return "Pick"
 	}
 	return "?"
 }
@@ -67,6 +70,7 @@ type Model struct {
 	notes   notesModel
 	lineup  lineupModel
 	reverse reverseModel
+	pick    pickModel
 	save    saveModel
 	help    help.Model
 }
@@ -79,7 +83,7 @@ func New(s *scenario.Scenario) Model {
 	sh := newShared(s)
 	m := Model{shared: sh,
 		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
-		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, save: newSave(sh), help: newHelp(sh.styles)}
+		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, pick: newPick(sh), save: newSave(sh), help: newHelp(sh.styles)}
 	return m
 }
 
@@ -128,8 +132,17 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.view = screenDesign
 		m.knobs.sel = knobCell
 		return m, nil
+	case pickDoneMsg:
+		m.pick, cmd = m.pick.Update(msg)
+		return m, cmd
 	case tea.KeyMsg:
-		return m.key(msg)
+		nm, cmd := m.key(msg)
+		if next, ok := nm.(Model); ok && next.view == screenPick && next.mode() == modeNone {
+			// Off the key path: the search runs in a command.
+			cmd = tea.Batch(cmd, next.pick.search())
+			return next, cmd
+		}
+		return nm, cmd
 	}
 	// Anything else (a cursor blink) goes to the text field in use.
 	switch {
@@ -191,6 +204,9 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(km, k.Reverse):
 		m.show(screenReverse)
 		return m, nil
+	case key.Matches(km, pickKeys.Open):
+		m.show(screenPick)
+		return m, nil
 	case key.Matches(km, k.Back):
 		m.show(screenDesign)
 		return m, nil
@@ -200,6 +216,8 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.lineup, cmd = m.lineup.Update(km)
 	case screenReverse:
 		m.reverse, cmd = m.reverse.Update(km)
+	case screenPick:
+		m.pick, cmd = m.pick.Update(km)
 	default:
 		m.knobs, cmd = m.knobs.Update(km)
 	}
@@ -240,6 +258,9 @@ func (m Model) View() string {
 	case m.view == screenReverse:
 		m.reverse.SetSize(w, bodyH)
 		body = fitLines(m.reverse.View(), w, bodyH)
+	case m.view == screenPick:
+		m.pick.SetSize(w, bodyH)
+		body = fitLines(m.pick.View(), w, bodyH)
 	default:
 		body = m.designView(w, bodyH)
 	}

@@ -103,19 +103,23 @@ func (v viewKeys) ShortHelp() []key.Binding {
 		return []key.Binding{hint("↑/↓", "choose cell"), k.Pick, k.Rank, hint("tab", "views"), k.Save}
 	case screenReverse:
 		return []key.Binding{hint("↑/↓", "choose protection"), hint("tab", "views"), k.Save}
+	case screenPick:
+		return pickShortHelp(k)
 	}
 	return k.ShortHelp()
 }
 
 func (v viewKeys) FullHelp() [][]key.Binding {
 	k := v.k
-	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse}
+	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, pickKeys.Open}
 	general := []key.Binding{k.Save, k.Help, k.Back, k.Quit}
 	switch v.view {
 	case screenLineup:
 		return [][]key.Binding{{k.Up, k.Down, k.Pick, k.Rank}, views, general}
 	case screenReverse:
 		return [][]key.Binding{{k.Up, k.Down}, views, general}
+	case screenPick:
+		return [][]key.Binding{{k.Up, k.Down, pickKeys.Less, pickKeys.More, pickKeys.LessCoarse, pickKeys.MoreCoarse, pickKeys.Use}, views, general}
 	}
 	return [][]key.Binding{{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type}, views, general}
 }
