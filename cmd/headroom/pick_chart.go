@@ -25,13 +25,15 @@ func frontChart(s *scenario.Scenario, out *pick.Outcome, ext string) ([]byte, er
 	if title == "" {
 		title = filepath.Base(s.Path)
 	}
-	p.Title.Text = fmt.Sprintf("%s\nunit cost against runtime (%s), %d designs within the other limits", title, out.Limits.At, len(out.Others))
+	p.Title.Text = fmt.Sprintf("%s\nunit cost against runtime (%s): %d evaluated designs within the other limits", title, out.Limits.At, len(out.Others))
 	p.Title.TextStyle.Font.Size = vg.Points(11)
 	p.X.Label.Text = "unit cost: cells + protection part ($)"
 	p.Y.Label.Text = "runtime (hours of use)"
 	p.Add(plotter.NewGrid())
-	p.Legend.Top = false
-	p.Legend.Left = false
+	// Cheap and long-running is the empty corner: the legend goes there.
+	p.Legend.Top = true
+	p.Legend.Left = true
+	p.Legend.XOffs = vg.Points(6)
 	p.Legend.TextStyle.Font.Size = vg.Points(9)
 
 	grey := color.RGBA{150, 150, 150, 255}

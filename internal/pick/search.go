@@ -77,15 +77,17 @@ type Outcome struct {
 	// Designs are the passing designs, ranked, at most Limits.Top.
 	Designs []Design
 	// Front is the Pareto front of unit cost against runtime among the
-	// designs meeting every constraint but the runtime target, cheapest
+	// designs that run at all and meet every constraint but the runtime
+	// target, cheapest
 	// first: none on it is both dearer and shorter-running than another.
 	Front []Design
 	// NearMisses are designs that fail exactly one constraint, by a
 	// quarter or less, and are cheaper than the first passing design (any
 	// cost when none passes), closest first; at most five.
 	NearMisses []Design
-	// Others are every evaluated design that meets every constraint but
-	// the runtime target (the front's population), for charts.
+	// Others are every evaluated design that runs at all and meets every
+	// constraint but the runtime target (the front's population), for
+	// charts.
 	Others []Design
 	// Longest is the longest-running design meeting every constraint but
 	// the target; nil when none does.
@@ -238,7 +240,7 @@ func Search(sp *Space, lim Limits, st Statistic, progress func(done, total int))
 				maxBelow = math.Max(maxBelow, maxGroup)
 				groupCost, maxGroup = c.UnitCost, math.Inf(-1)
 			}
-			if onlyRuntime(d) {
+			if onlyRuntime(d) && d.Result.RuntimeH > 0 {
 				maxGroup = math.Max(maxGroup, d.Result.RuntimeH)
 				out.Others = append(out.Others, *d)
 			}

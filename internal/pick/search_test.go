@@ -71,7 +71,7 @@ func brute(t *testing.T, sp *Space, lim Limits, st Statistic) []bruteDesign {
 						stranded <= lim.MaxStranded && r.JunctionC <= lim.MaxJunction &&
 						(!lim.BlockReversed || rev.WholePack.Outcome == protect.Blocked) && rev.OneCell.Volts >= 0
 					out = append(out, bruteDesign{cell: cell, series: s, par: p, spec: protect.Short(e), cost: cost,
-						runtime: r.RuntimeH, r: r, other: other, passes: other && r.RuntimeH >= lim.Need})
+						runtime: r.RuntimeH, r: r, other: other && r.RuntimeH > 0, passes: other && r.RuntimeH >= lim.Need})
 				}
 			}
 		}
