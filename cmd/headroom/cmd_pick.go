@@ -387,7 +387,7 @@ func pickJSON(w io.Writer, out *pick.Outcome) error {
 		"designs": list(out.Designs), "front": list(out.Front), "near_misses": list(out.NearMisses),
 		"longest": nil,
 		"counts": map[string]any{"space": out.Space, "screened": screened, "no_start": out.NoStart,
-			"evaluated": out.Evaluated, "pruned": out.Pruned, "errors": out.Errors, "passing_found": out.Passing},
+			"evaluated": out.Evaluated, "bound_runs": out.Nominal, "pruned": out.Pruned, "errors": out.Errors, "passing_found": out.Passing},
 		"max_input_v": num(out.MaxInput),
 	}
 	if out.Limits.Budget > 0 {
@@ -436,8 +436,8 @@ func pickText(w io.Writer, s *scenario.Scenario, sp *pick.Space, out *pick.Outco
 	}
 	limits = append(limits, "fresh pack at most "+fixed(out.MaxInput, 2)+" V")
 	fmt.Fprintf(&b, "limits: %s\n", strings.Join(limits, "; "))
-	fmt.Fprintf(&b, "searched %d designs in %s: %s; %d evaluated, %d skipped as unable to win\n\n",
-		out.Space, took.Round(time.Millisecond), screenedWords(out), out.Evaluated, out.Pruned)
+	fmt.Fprintf(&b, "searched %d designs in %s: %s; %d evaluated, %d skipped as unable to win (%d nominal runs for bounds)\n\n",
+		out.Space, took.Round(time.Millisecond), screenedWords(out), out.Evaluated, out.Pruned, out.Nominal)
 	if _, err := io.WriteString(w, b.String()); err != nil {
 		return err
 	}
@@ -488,7 +488,22 @@ func pickText(w io.Writer, s *scenario.Scenario, sp *pick.Space, out *pick.Outco
 	if plotTo != "" {
 		fmt.Fprintf(w, "\nwrote %s\n", plotTo)
 	}
-	_, err := fmt.Fprintf(w, "\n✓ meets the target. Reversed pack: what a pack put in backwards does; one flipped\ncell is never seen by a series part (the load gets two cells' voltage less).\nUsual cautions apply (headroom cells show ID); defer to toy-safety standards\nand licensed practice.\n")
+	fmt.Fprintf(w, "\n✓ meets the target. Reversed pack: what a pack put in backwards does; one flipped\ncell is never seen by a series part (the load gets two cells' voltage less).\n")
+	// The listed cells' main cautions, once per cell.
+	seen := map[string]bool{}
+	var cautions []string
+	for _, list := range [][]pick.Design{out.Designs, out.Front} {
+		for _, d := range list {
+			if !seen[d.Cell.ID] {
+				seen[d.Cell.ID] = true
+				cautions = append(cautions, fmt.Sprintf("  %s: %s", d.Cell.ID, shortCaution(d.Cell)))
+			}
+		}
+	}
+	if len(cautions) > 0 {
+		fmt.Fprintf(w, "Cautions (full text: headroom cells show ID):\n%s\n", strings.Join(cautions, "\n"))
+	}
+	_, err := fmt.Fprintf(w, "Electric toys fall under toy-safety standards (IEC 62115 and local equivalents);\ndefer to them and to licensed practice.\n")
 	return err
 }
 

@@ -498,3 +498,36 @@ func TestKeysParse(t *testing.T) {
 		t.Errorf("90min → %v h", l.Need)
 	}
 }
+
+// TestSpaceOfOptions: a file's [options] narrow the space; a bare kind
+// stands for its ladder, a part with values for itself; --all ignores
+// them.
+func TestSpaceOfOptions(t *testing.T) {
+	src := `cell = "lr6"
+series = 2
+load = "100mA"
+[options]
+cells = ["lr6", "fr6"]
+parallel = [1, 2]
+protect = ["pmos", "limiter:rsh=0.47"]
+`
+	s, err := scenario.Parse([]byte(src), "t.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sp, err := SpaceOf(s, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pm, _ := Ladder("pmos")
+	if len(sp.Cells) != 2 || !slices.Equal(sp.Parallel, []int{1, 2}) || sp.Series != nil || len(sp.Elements) != len(pm)+1 {
+		t.Fatalf("cells %d, parallel %v, series %v, elements %d", len(sp.Cells), sp.Parallel, sp.Series, len(sp.Elements))
+	}
+	if last := protect.Short(sp.Elements[len(sp.Elements)-1]); last != "limiter:rsh=0.47ohm" {
+		t.Errorf("the exact part became %q", last)
+	}
+	all, _ := SpaceOf(s, true)
+	if len(all.Cells) != len(curves.Library()) || all.Parallel != nil {
+		t.Errorf("--all: %d cells, parallel %v", len(all.Cells), all.Parallel)
+	}
+}
