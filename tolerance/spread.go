@@ -324,5 +324,12 @@ func Analyse(d *discharge.Design, tols []Tol, samples int, seed uint64) (*Report
 	if err != nil {
 		return nil, err
 	}
-	return &Report{Corner: c, Stats: st, Warnings: m.cliffs(c)}, nil
+	ws := m.cliffs(c)
+	if n := st.Causes[discharge.CauseLimit] + st.Causes[discharge.CauseFuse]; n > 0 {
+		ws = append(ws, fmt.Sprintf("%d of %d samples stop on the protection's current limit or fuse", n, st.Samples))
+	}
+	if c.Worst.RuntimeH == 0 && c.Nominal.RuntimeH > 0 {
+		ws = append(ws, "at the worst corner the product does not start")
+	}
+	return &Report{Corner: c, Stats: st, Warnings: ws}, nil
 }

@@ -123,7 +123,20 @@ func (p param) format(v float64) string {
 	if p.name == "shelf" {
 		return trimNum(v) + " months"
 	}
-	return units.Human(v, p.kind, 3)
+	return trimZeros(units.Human(v, p.kind, 3))
+}
+
+// trimZeros drops the trailing zeros of the number s starts with:
+// "10.0 °C" → "10 °C", "1.50 V" → "1.5 V".
+func trimZeros(s string) string {
+	num, rest, _ := strings.Cut(s, " ")
+	if strings.Contains(num, ".") {
+		num = strings.TrimRight(strings.TrimRight(num, "0"), ".")
+	}
+	if rest == "" {
+		return num
+	}
+	return num + " " + rest
 }
 
 func trimNum(v float64) string { return strconv.FormatFloat(units.RoundSig(v, 3), 'f', -1, 64) }

@@ -29,6 +29,7 @@ const (
 	screenDesign  screen = iota // knobs, verdict and chart
 	screenLineup                // every cell ranked
 	screenReverse               // cells put in wrong
+	screenSpread                // the spread over the tolerances
 	screenPick                  // the cheapest designs for a target
 	screenCount
 )
@@ -41,6 +42,8 @@ func (s screen) String() string {
 		return "Line-up"
 	case screenReverse:
 		return "Reversed cells"
+	case screenSpread:
+		return "Spread"
 	case screenPick:
 		return "Pick"
 	}
@@ -70,6 +73,7 @@ type Model struct {
 	notes   notesModel
 	lineup  lineupModel
 	reverse reverseModel
+	spread  spreadModel
 	pick    pickModel
 	save    saveModel
 	help    help.Model
@@ -83,7 +87,7 @@ func New(s *scenario.Scenario) Model {
 	sh := newShared(s)
 	m := Model{shared: sh,
 		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
-		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, pick: newPick(sh), save: newSave(sh), help: newHelp(sh.styles)}
+		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, pick: newPick(sh), save: newSave(sh), help: newHelp(sh.styles)}
 	return m
 }
 
@@ -101,8 +105,9 @@ func Run(s *scenario.Scenario) error {
 // reason when the design cannot run.
 func (m Model) Result() (*discharge.Result, error) { return m.res, m.err }
 
-// Init starts nothing: the first evaluation ran in New.
-func (m Model) Init() tea.Cmd { return nil }
+// Init starts the spread over the tolerances; the first evaluation ran
+// in New.
+func (m Model) Init() tea.Cmd { return m.spreadCmd() }
 
 func (m Model) mode() mode {
 	switch {
@@ -118,8 +123,20 @@ func (m Model) mode() mode {
 	return modeNone
 }
 
-// Update handles a message.
+// Update handles a message, then starts the spread of the design when it
+// has changed (off the key path: it fills in when ready).
 func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	if sm, ok := msg.(spreadMsg); ok {
+		return m, m.gotSpread(sm)
+	}
+	next, cmd := m.update(msg)
+	if sc := m.spreadCmd(); sc != nil {
+		cmd = tea.Batch(cmd, sc)
+	}
+	return next, cmd
+}
+
+func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	var cmd tea.Cmd
 	switch msg := msg.(type) {
 	case tea.WindowSizeMsg:
@@ -204,6 +221,8 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(km, k.Reverse):
 		m.show(screenReverse)
 		return m, nil
+	case key.Matches(km, k.Spread):
+		m.show(screenSpread)
 	case key.Matches(km, pickKeys.Open):
 		m.show(screenPick)
 		return m, nil
@@ -258,6 +277,9 @@ func (m Model) View() string {
 	case m.view == screenReverse:
 		m.reverse.SetSize(w, bodyH)
 		body = fitLines(m.reverse.View(), w, bodyH)
+	case m.view == screenSpread:
+		m.spread.SetSize(w, bodyH)
+		body = fitLines(m.spread.View(), w, bodyH)
 	case m.view == screenPick:
 		m.pick.SetSize(w, bodyH)
 		body = fitLines(m.pick.View(), w, bodyH)

@@ -44,7 +44,7 @@ type pickDoneMsg struct {
 var pickKeys = struct {
 	Open, Use, Less, More, LessCoarse, MoreCoarse key.Binding
 }{
-	Open:       key.NewBinding(key.WithKeys("4"), key.WithHelp("4", "pick")),
+	Open:       key.NewBinding(key.WithKeys("5"), key.WithHelp("5", "pick")),
 	Use:        key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "use this design")),
 	Less:       key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/→", "target")),
 	More:       key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "longer target")),

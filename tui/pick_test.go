@@ -49,12 +49,12 @@ func drive(t *testing.T, m tea.Model, msgs ...tea.Msg) (tea.Model, bool) {
 	return m, searched
 }
 
-// TestPickView: 4 opens the pick view; the search runs in a command; the
+// TestPickView: 5 opens the pick view; the search runs in a command; the
 // view lists ranked designs for the target and fits 100×30 and 80×24
 // (golden file, colour stripped; -update rewrites it).
 func TestPickView(t *testing.T) {
 	for _, size := range [][2]int{{100, 30}, {80, 24}} {
-		m, searched := drive(t, sized(size[0], size[1]), runes("4"))
+		m, searched := drive(t, sized(size[0], size[1]), runes("5"))
 		if !searched {
 			t.Fatal("opening the pick view started no search")
 		}
@@ -84,7 +84,7 @@ func TestPickView(t *testing.T) {
 // TestPickEnterUsesDesign: enter on the second design makes it the
 // design view's: cell, counts and protection part.
 func TestPickEnterUsesDesign(t *testing.T) {
-	m, _ := drive(t, sized(100, 30), runes("4"), keyDown)
+	m, _ := drive(t, sized(100, 30), runes("5"), keyDown)
 	pm := m.(Model)
 	if pm.pick.out == nil || len(pm.pick.out.Designs) < 2 {
 		t.Fatal("fewer than two designs to choose from")
@@ -110,7 +110,7 @@ func TestPickEnterUsesDesign(t *testing.T) {
 // search in a command; the key itself returns at once with the old list
 // still shown, and a result for an older target is dropped.
 func TestPickTargetKnob(t *testing.T) {
-	m, _ := drive(t, sized(100, 30), runes("4"))
+	m, _ := drive(t, sized(100, 30), runes("5"))
 	before := m.(Model).pick
 	next, cmd := m.Update(keyRight)
 	after := next.(Model).pick

@@ -168,7 +168,7 @@ func runPick(c *cli, args []string) error {
 
 	bar := newPickBar(c)
 	start := time.Now()
-	st, err := pick.StatisticFor(lim.At)
+	st, err := pick.StatisticFor(lim.At, s.Tolerances, s.Seed)
 	if err != nil {
 		return fmt.Errorf("%s: %s", src.name("at"), strings.TrimPrefix(err.Error(), "at: "))
 	}
@@ -519,9 +519,9 @@ var screenedPhrase = map[pick.Constraint]string{
 func atWords(at string) string {
 	switch at {
 	case "worst":
-		return "at the worst corner of the typical tolerances"
+		return "at the worst corner of the file's tolerances"
 	case "p10":
-		return fmt.Sprintf("at the tenth percentile of %d samples over the typical tolerances", pick.DefaultSamples)
+		return fmt.Sprintf("at the tenth percentile of %d samples over the file's tolerances", pick.DefaultSamples)
 	}
 	return "nominal"
 }

@@ -24,7 +24,7 @@ func BenchmarkPickDemo(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				st, err := StatisticFor(at)
+				st, err := StatisticFor(at, s.Tolerances, s.Seed)
 				if err != nil {
 					b.Fatal(err)
 				}

@@ -131,9 +131,9 @@ func TestPrunedMatchesBrute(t *testing.T) {
 		st := Statistic(Nominal{})
 		switch n % 11 {
 		case 9:
-			st, _ = StatisticFor("worst")
+			st, _ = StatisticFor("worst", nil, 1)
 		case 10:
-			st, _ = StatisticFor("p10")
+			st, _ = StatisticFor("p10", nil, 1)
 		}
 		sp := &Space{Base: demoBase(t, loads[rng.IntN(len(loads))]), Parallel: []int{1, 2, 3}[:1+rng.IntN(3)]}
 		for _, i := range rng.Perm(len(lib))[:2+rng.IntN(3)] {

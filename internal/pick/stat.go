@@ -22,15 +22,18 @@ type Statistic interface {
 }
 
 // StatisticFor returns the statistic --at names: nominal, p10 or worst,
-// the last two over tolerance.Defaults().
-func StatisticFor(name string) (Statistic, error) {
+// the last two over tols (nil: tolerance.Defaults()), p10 seeded by seed.
+func StatisticFor(name string, tols []tolerance.Tol, seed uint64) (Statistic, error) {
+	if tols == nil {
+		tols = tolerance.Defaults()
+	}
 	switch name {
 	case "", "nominal":
 		return Nominal{}, nil
 	case "worst":
-		return Worst{Tols: tolerance.Defaults()}, nil
+		return Worst{Tols: tols}, nil
 	case "p10":
-		return P10{Tols: tolerance.Defaults(), Samples: DefaultSamples, Seed: 1}, nil
+		return P10{Tols: tols, Samples: DefaultSamples, Seed: seed}, nil
 	}
 	return nil, fmt.Errorf("at: %q: expected nominal, p10 or worst", name)
 }

@@ -13,6 +13,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -22,6 +23,7 @@ import (
 	"headroom/discharge"
 	"headroom/internal/units"
 	"headroom/protect"
+	"headroom/tolerance"
 )
 
 //go:embed demo.toml
@@ -61,6 +63,13 @@ type Scenario struct {
 
 	Budget float64 // dollars for cells + protection; 0 for none
 
+	// Tolerances are the spreads of parts and conditions (the [tolerance]
+	// table over tolerance.Defaults), with the spread's sample count and
+	// seed.
+	Tolerances []tolerance.Tol
+	Samples    int
+	Seed       uint64
+
 	// OptionKeys are the keys written in the file's [options] table
 	// ("cells", "protect", ...), so that a search can tell a list the
 	// user narrowed from the design's own single value.
@@ -78,6 +87,13 @@ type Setting struct {
 	Key, Value string
 	Line       int
 }
+
+// DefaultSamples and DefaultSeed are the spread's sample count and seed
+// when the [tolerance] table does not give them.
+const (
+	DefaultSamples = 2000
+	DefaultSeed    = 1
+)
 
 type phaseDef struct {
 	Name     string    `toml:"name"`
@@ -135,6 +151,7 @@ type fileDef struct {
 	Sweep       sweepDef         `toml:"sweep"`
 	Pick        pickDef          `toml:"pick"`
 	Cells       []curves.CellDef `toml:"define_cell"`
+	Tolerance   map[string]any   `toml:"tolerance"`
 }
 
 // sweepValues is a list of values or a {from, to, step} range, decoded
@@ -308,7 +325,16 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if len(md.Keys()) == 0 {
 		return nil, fmt.Errorf("%s: no settings in the file: expected keys such as cell, load and floor", name)
 	}
-	if und := md.Undecoded(); len(und) > 0 {
+	var und []toml.Key
+	for _, k := range md.Undecoded() {
+		// Inline tables inside [tolerance] are decoded into map[string]any
+		// and read by readTolerances, which names its own unknown keys.
+		if len(k) > 2 && k[0] == "tolerance" {
+			continue
+		}
+		und = append(und, k)
+	}
+	if len(und) > 0 {
 		k := und[0].String()
 		return nil, fmt.Errorf("%s:%d: unknown key %q", name, lineOf(data, und[0][len(und[0])-1]), k)
 	}
@@ -523,6 +549,11 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if err := d.Validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
+	if err := s.readTolerances(f.Tolerance, func(key string, err error) error {
+		return fmt.Errorf("%s:%d: [tolerance] %w", name, lineInTable(data, "tolerance", key), err)
+	}); err != nil {
+		return nil, err
+	}
 	return s, nil
 }
 
@@ -546,6 +577,44 @@ func pickSettings(p pickDef, md toml.MetaData, data []byte) []Setting {
 		}
 	}
 	return out
+}
+
+// readTolerances sets s.Tolerances, Samples and Seed from the [tolerance]
+// table (nil: the defaults). at names the key and its line.
+func (s *Scenario) readTolerances(tab map[string]any, at func(key string, err error) error) error {
+	s.Tolerances, s.Samples, s.Seed = tolerance.Defaults(), DefaultSamples, DefaultSeed
+	keys := make([]string, 0, len(tab))
+	for k := range tab {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	for _, k := range keys {
+		v := tab[k]
+		switch k {
+		case "samples":
+			n, ok := v.(int64)
+			if !ok || n < 1 || n > tolerance.MaxSamples {
+				return at(k, fmt.Errorf("samples: %v must be a whole number from 1 to %d", v, tolerance.MaxSamples))
+			}
+			s.Samples = int(n)
+		case "seed":
+			n, ok := v.(int64)
+			if !ok || n < 0 {
+				return at(k, fmt.Errorf("seed: %v must be a whole number, 0 or more", v))
+			}
+			s.Seed = uint64(n)
+		default:
+			if _, ok := tolerance.Default(k); !ok {
+				return at(k, fmt.Errorf("unknown key %q: expected samples, seed or a tolerance (%s)", k, strings.Join(tolerance.Names(), ", ")))
+			}
+			t, err := tolerance.Parse(k, v)
+			if err != nil {
+				return at(k, err)
+			}
+			s.Tolerances = tolerance.With(s.Tolerances, t)
+		}
+	}
+	return nil
 }
 
 // unprefixed drops the "protect: " that protect's messages start with,
@@ -704,27 +773,6 @@ func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
 
 var tomlLineErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
 
-// lineInTable finds the line that sets key inside [table], for messages;
-// the table's own line, or 1, if none does.
-func lineInTable(data []byte, table, key string) int {
-	head := regexp.MustCompile(`(?m)^[ \t]*\[[ \t]*` + regexp.QuoteMeta(table) + `[ \t]*\]`)
-	loc := head.FindIndex(data)
-	if loc == nil {
-		return lineOf(data, key)
-	}
-	start := 1 + strings.Count(string(data[:loc[0]]), "\n")
-	rest := data[loc[1]:]
-	if next := regexp.MustCompile(`(?m)^[ \t]*\[`).FindIndex(rest); next != nil {
-		rest = rest[:next[0]]
-	}
-	re := regexp.MustCompile(`(?m)^[ \t]*"?` + regexp.QuoteMeta(key) + `"?[ \t]*=`)
-	k := re.FindIndex(rest)
-	if k == nil {
-		return start
-	}
-	return start + strings.Count(string(data[loc[0]:loc[1]]), "\n") + strings.Count(string(rest[:k[0]]), "\n")
-}
-
 // lineOf finds the first line that sets key, for messages; 1 if none.
 func lineOf(data []byte, key string) int {
 	re := regexp.MustCompile(`(?m)^[ \t]*"?` + regexp.QuoteMeta(key) + `"?[ \t]*=`)
@@ -733,4 +781,16 @@ func lineOf(data []byte, key string) int {
 		return 1
 	}
 	return 1 + strings.Count(string(data[:loc[0]]), "\n")
+}
+
+// lineInTable finds the first line that sets key after the [table]
+// header, for messages; the header's line if none, 1 if no header.
+func lineInTable(data []byte, table, key string) int {
+	re := regexp.MustCompile(`(?m)^[ \t]*\[[ \t]*` + regexp.QuoteMeta(table) + `[ \t]*\][ \t]*(#.*)?$`)
+	loc := re.FindIndex(data)
+	if loc == nil {
+		return 1
+	}
+	head := 1 + strings.Count(string(data[:loc[0]]), "\n")
+	return head - 1 + lineOf(data[loc[0]:], key)
 }
