@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -10,6 +9,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/ansi"
 
+	"headroom/internal/goldentest"
 	"headroom/protect"
 )
 
@@ -63,21 +63,7 @@ func TestPickView(t *testing.T) {
 		if !strings.Contains(got, "Pick: the cheapest designs") || !strings.Contains(got, " 1 ") {
 			t.Fatalf("no ranked designs:\n%s", got)
 		}
-		path := filepath.Join("testdata", "TestPickView", fmt.Sprintf("%dx%d.golden", size[0], size[1]))
-		if updating() {
-			os.MkdirAll(filepath.Dir(path), 0o755)
-			if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
-				t.Fatal(err)
-			}
-			continue
-		}
-		want, err := os.ReadFile(path)
-		if err != nil {
-			t.Fatalf("%v (run go test ./tui -run TestPickView -update)", err)
-		}
-		if got != string(want) {
-			t.Errorf("view differs from %s:\n--- got\n%s\n--- want\n%s", path, got, want)
-		}
+		goldentest.Check(t, filepath.Join("testdata", "TestPickView", fmt.Sprintf("%dx%d.golden", size[0], size[1])), got)
 	}
 }
 

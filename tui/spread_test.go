@@ -1,7 +1,6 @@
 package tui
 
 import (
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -9,6 +8,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/ansi"
 
+	"headroom/internal/goldentest"
 	"headroom/tolerance"
 )
 
@@ -93,18 +93,5 @@ func TestSpreadView(t *testing.T) {
 			t.Errorf("no %q in the spread view:\n%s", want, got)
 		}
 	}
-	path := filepath.Join("testdata", "TestSpreadView.golden")
-	if updating() {
-		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test ./tui -run TestSpreadView -update to create it)", err)
-	}
-	if got != string(want) {
-		t.Errorf("view differs from %s:\n--- got\n%s\n--- want\n%s", path, got, want)
-	}
+	goldentest.Check(t, filepath.Join("testdata", "TestSpreadView.golden"), got)
 }

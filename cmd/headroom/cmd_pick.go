@@ -13,6 +13,7 @@ import (
 
 	"github.com/charmbracelet/bubbles/progress"
 
+	"headroom/curves"
 	"headroom/internal/pick"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
@@ -496,7 +497,7 @@ func pickText(w io.Writer, s *scenario.Scenario, sp *pick.Space, out *pick.Outco
 		for _, d := range list {
 			if !seen[d.Cell.ID] {
 				seen[d.Cell.ID] = true
-				cautions = append(cautions, fmt.Sprintf("  %s: %s", d.Cell.ID, shortCaution(d.Cell)))
+				cautions = append(cautions, fmt.Sprintf("  %s: %s", d.Cell.ID, curves.ShortCaution(d.Cell)))
 			}
 		}
 	}

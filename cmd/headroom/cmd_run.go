@@ -15,6 +15,7 @@ import (
 
 var runCmd = &command{
 	name:  "run",
+	run:   runDesign,
 	args:  "[scenario.toml] [flags]",
 	short: "evaluate one design: runtime, stranded capacity, heat, cost",
 	help: `
@@ -38,9 +39,7 @@ examples:
 `,
 }
 
-func init() { runCmd.run = runRun }
-
-func runRun(c *cli, args []string) error {
+func runDesign(c *cli, args []string) error {
 	fs := newFlags("run")
 	addDesignFlags(fs)
 	formatFlag := fs.String("format", "text", "")

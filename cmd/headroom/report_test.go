@@ -11,6 +11,7 @@ import (
 	"golang.org/x/net/html"
 
 	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 )
 
 // parseHTML parses a report with the HTML5 parser of golang.org/x/net/html
@@ -241,11 +242,11 @@ func TestReportAndNetlistBadOutput(t *testing.T) {
 
 // The exported netlist runs in ngspice (Debian's package) with no edits,
 // and its measured time to the floor agrees with headroom's runtime within
-// 1 % (the bound) — one design per load law, a pulsed profile, and
+// 1 % (the acceptance bound) — one design per load law, a pulsed profile, and
 // one behind the current limiter. The demo's netlist is also kept as a
 // golden file.
 func TestNetlistRunsInNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	dir := t.TempDir()
 	for _, c := range []struct {
 		name string
