@@ -52,7 +52,7 @@ func Parse(name string, v any) (Tol, error) {
 				case "uniform":
 					t.Dist = Uniform
 				default:
-					return Tol{}, fmt.Errorf("%s: dist %v: expected \"normal\" or \"uniform\"", name, x[k])
+					return Tol{}, fmt.Errorf("%s: dist %q: expected \"normal\" or \"uniform\"", name, fmt.Sprint(x[k]))
 				}
 			default:
 				return Tol{}, fmt.Errorf("%s: unknown key %q: expected spread, or min and max, and dist", name, k)

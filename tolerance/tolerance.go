@@ -182,7 +182,7 @@ var params = []param{
 	{name: "vth", what: "MOSFET gate threshold", kind: units.Voltage, key: "vth", kinds: elementKinds.fets,
 		// A data sheet's min–max about ±0.3 V around typical (typical,
 		// from memory: 0.5 to 1.1 V for a 0.8 V part).
-		def: Tol{Form: Offset, Delta: 0.3, Dist: Uniform}, lo: 0, hi: 20},
+		def: Tol{Form: Offset, Delta: 0.3, Dist: Uniform}, lo: 0.01, hi: 20},
 	{name: "ron", what: "MOSFET or protector on-resistance", kind: units.Fraction, ratio: true, key: "ron", kinds: elementKinds.ron,
 		// ±20 % (typical, from memory).
 		def: Tol{Form: Percent, Pct: 0.20, Dist: Normal}, lo: 0, hi: math.Inf(1)},
@@ -436,6 +436,12 @@ func newModel(d *discharge.Design, tols []Tol) (*model, error) {
 			} else {
 				a.lo, a.hi = t.Min, t.Max
 			}
+		}
+		if !p.ratio && t == p.def {
+			// A default that would leave the parameter's range (±10 °C
+			// around −35 °C) is cut at the range; a spread the user
+			// gave is refused below instead.
+			a.lo, a.hi = math.Max(a.lo, p.lo), math.Min(a.hi, p.hi)
 		}
 		if !p.ratio && (a.lo < p.lo || a.hi > p.hi) {
 			return nil, fmt.Errorf("%s: %s to %s around %s reaches outside %s to %s",

@@ -339,3 +339,29 @@ func TestShelfCutsTop(t *testing.T) {
 		t.Errorf("starts at %v V, want %v V (24 %% down a linear curve)", v, 1.5-0.5*0.24)
 	}
 }
+
+// A default tolerance that would leave its parameter's range is cut at the
+// range (the demo at −35 °C: ambient −40 to −25 °C), not refused.
+func TestDefaultsClampedToRange(t *testing.T) {
+	d := demo(t, "pmos:vth=0.2")
+	d.TempC = -35
+	m, err := newModel(d, Defaults())
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, a := range m.act {
+		switch a.p.name {
+		case "ambient":
+			if a.lo != -40 || a.hi != -25 {
+				t.Errorf("ambient %v to %v °C, want -40 to -25", a.lo, a.hi)
+			}
+		case "vth":
+			if a.lo != 0.01 || math.Abs(a.hi-0.5) > 1e-12 {
+				t.Errorf("vth %v to %v V, want 0.01 to 0.5", a.lo, a.hi)
+			}
+		}
+	}
+	if _, err := Worst(d, Defaults()); err != nil {
+		t.Errorf("worst corner at -35 °C with a 0.2 V threshold: %v", err)
+	}
+}

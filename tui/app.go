@@ -124,16 +124,22 @@ func (m Model) mode() mode {
 }
 
 // Update handles a message, then starts the spread of the design when it
-// has changed (off the key path: it fills in when ready).
+// has changed (off the key path, after a short pause: it fills in when
+// ready).
 func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
-	if sm, ok := msg.(spreadMsg); ok {
+	switch sm := msg.(type) {
+	case spreadMsg:
 		return m, m.gotSpread(sm)
+	case spreadTickMsg:
+		return m, m.gotTick(sm)
 	}
 	next, cmd := m.update(msg)
-	if sc := m.spreadCmd(); sc != nil {
-		cmd = tea.Batch(cmd, sc)
+	if cmd != nil {
+		// The message cmd brings back passes here again and starts the
+		// spread then; a command stays a single one for its callers.
+		return next, cmd
 	}
-	return next, cmd
+	return next, m.spreadCmd()
 }
 
 func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {

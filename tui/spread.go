@@ -3,6 +3,7 @@ package tui
 import (
 	"fmt"
 	"strings"
+	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
 
@@ -15,6 +16,7 @@ import (
 type spreadState struct {
 	gen     uint64 // bumped by every evaluation of the design
 	doneGen uint64 // the generation rep is for
+	waiting uint64 // the generation a pause is running for
 	busy    bool
 	rep     *tolerance.Report
 	err     error
@@ -30,9 +32,38 @@ type spreadMsg struct {
 // ready reports whether the spread shown is the current design's.
 func (s *spreadState) ready() bool { return s.doneGen == s.gen && (s.rep != nil || s.err != nil) }
 
-// spreadCmd starts the spread of the current design unless one is running
-// or it is up to date; nil then.
+// spreadPause is how long the design must stay still before its spread
+// starts, so that a held key's evaluations do not share the cores with
+// spreads of designs already left behind.
+const spreadPause = 120 * time.Millisecond
+
+// spreadTickMsg says the design of generation gen has been still for
+// spreadPause.
+type spreadTickMsg struct{ gen uint64 }
+
+// spreadCmd waits spreadPause for the current design, unless its spread
+// is running, done or already waited for; nil then.
 func (sh *shared) spreadCmd() tea.Cmd {
+	s := &sh.spread
+	if s.busy || s.ready() || sh.err != nil || s.waiting == s.gen {
+		return nil
+	}
+	s.waiting = s.gen
+	gen := s.gen
+	return tea.Tick(spreadPause, func(time.Time) tea.Msg { return spreadTickMsg{gen: gen} })
+}
+
+// gotTick starts the spread when the design is still the one waited for.
+func (sh *shared) gotTick(msg spreadTickMsg) tea.Cmd {
+	s := &sh.spread
+	if msg.gen != s.gen {
+		return sh.spreadCmd()
+	}
+	return sh.startSpread()
+}
+
+// startSpread runs the spread of the current design in a command.
+func (sh *shared) startSpread() tea.Cmd {
 	s := &sh.spread
 	if s.busy || s.ready() || sh.err != nil {
 		return nil

@@ -94,11 +94,18 @@ func TestRunSpreadCSV(t *testing.T) {
 	}
 }
 
-// The text names the p10 in words and the protector's limit warning on
-// the demo behind the integrated protector.
+// The text names the p10 in words (or says that more than one in ten
+// does not start) and the protector's limit warning on the demo behind
+// the integrated protector.
 func TestSpreadTextWarnsOnLimit(t *testing.T) {
 	out := runOK(t, "spread", "--protect", "ic", "--samples", "300")
-	for _, want := range []string{"in 9 of 10 products", "ilim at its low limit (375 mA)", "sensitivity:"} {
+	for _, want := range []string{"0 h: more than 1 product in 10 does not start", "ilim at its low limit (375 mA)", "sensitivity:"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("no %q in:\n%s", want, out)
+		}
+	}
+	out = runOK(t, "spread", "--protect", "pmos", "--samples", "300")
+	for _, want := range []string{"in 9 of 10 products", "vth", "ron"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("no %q in:\n%s", want, out)
 		}

@@ -72,7 +72,7 @@ func TestToleranceTableErrors(t *testing.T) {
 		{`ambient = "5%"`, `t.toml:5: [tolerance] ambient: a percentage means nothing`},
 		{`floor = { min = "1.9V", max = "1.7V" }`, `t.toml:5: [tolerance] floor: min 1.9 V is above max 1.7 V`},
 		{`floor = { min = "1.7V" }`, `t.toml:5: [tolerance] floor: give both min and max`},
-		{`floor = { spread = "1%", dist = "lognormal" }`, `t.toml:5: [tolerance] floor: dist lognormal`},
+		{`floor = { spread = "1%", dist = "lognormal" }`, `t.toml:5: [tolerance] floor: dist "lognormal"`},
 		{`load = "50mV"`, `t.toml:5: [tolerance] load: "50mV": expected a percentage`},
 		{`samples = 0`, `t.toml:5: [tolerance] samples: 0 must be a whole number from 1 to 1000000`},
 		{`samples = 2000000`, `t.toml:5: [tolerance] samples: 2000000 must be`},
