@@ -46,10 +46,18 @@ var pickKeys = struct {
 }{
 	Open:       key.NewBinding(key.WithKeys("5"), key.WithHelp("5", "pick")),
 	Use:        key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "use this design")),
-	Less:       key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/→", "target")),
-	More:       key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "longer target")),
-	LessCoarse: key.NewBinding(key.WithKeys("shift+left", "["), key.WithHelp("[/]", "target ×2")),
-	MoreCoarse: key.NewBinding(key.WithKeys("shift+right", "]"), key.WithHelp("]", "target ×2")),
+	Less:       key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/h", "target ÷1.1")),
+	More:       key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "target ×1.1")),
+	LessCoarse: key.NewBinding(key.WithKeys("shift+left", "["), key.WithHelp("[", "halve target")),
+	MoreCoarse: key.NewBinding(key.WithKeys("shift+right", "]"), key.WithHelp("]", "double target")),
+}
+
+// pickAbout is the pick view's note in the full help.
+var pickAbout = []string{
+	"The cheapest designs that run at least the target, for this load,",
+	"floor and ambient, within the file's budget and [pick] limits.",
+	"The list follows the target a moment after a key; enter puts the",
+	"chosen design into the design view. headroom pick does more.",
 }
 
 // newPick reads the file's [pick] table and starts the target at its
