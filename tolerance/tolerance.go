@@ -287,6 +287,9 @@ func (t Tol) Check() error {
 		if p.ratio {
 			return fmt.Errorf("%s: give a percentage for %s", t.Name, p.what)
 		}
+		if p.oneSided && t.Delta > p.hi {
+			return fmt.Errorf("%s: %s is more than %s", t.Name, p.format(t.Delta), p.format(p.hi))
+		}
 	case Range:
 		if !fin(t.Min) || !fin(t.Max) {
 			return fmt.Errorf("%s: min and max must be numbers", t.Name)

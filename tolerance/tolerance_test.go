@@ -288,6 +288,7 @@ func TestBadTolerances(t *testing.T) {
 		{Tol{Name: "ambient", Form: Percent, Pct: 0.1}, "means nothing"},
 		{Tol{Name: "floor", Form: Range, Min: 2, Max: 1.7}, "above max"},
 		{Tol{Name: "floor", Form: Offset, Delta: -0.05}, "negative"},
+		{Tol{Name: "shelf", Form: Offset, Delta: 200}, "200 months is more than 120 months"},
 		{Tol{Name: "vt", Form: Percent, Pct: 0.1}, "expected one of capacity, lot_capacity"},
 	} {
 		err := c.t.Check()

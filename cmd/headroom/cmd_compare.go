@@ -2,6 +2,7 @@ package main
 
 import (
 	"errors"
+	"flag"
 	"fmt"
 	"math"
 	"sort"
@@ -94,6 +95,17 @@ func runCompare(c *cli, args []string) error {
 	}
 	if err := sf.apply(s); err != nil {
 		return err
+	}
+	if !ranked {
+		given := ""
+		fs.Visit(func(fl *flag.Flag) {
+			if sf.given(fl.Name) && given == "" {
+				given = fl.Name
+			}
+		})
+		if given != "" {
+			return fmt.Errorf("--%s: sets the spread, so it needs --sort worst or --sort p10", given)
+		}
 	}
 	budget := s.Budget
 	if *budgetFlag != "" {

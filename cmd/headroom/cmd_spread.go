@@ -14,6 +14,7 @@ import (
 
 var spreadCmd = &command{
 	name:  "spread",
+	run:   runSpread,
 	args:  "[scenario.toml] [flags] [--samples N] [--seed S] [--tol NAME=SPREAD]",
 	short: "runtime over the parts' tolerances: worst corner, p10/p50/p90, what to tighten",
 	help: `
@@ -41,10 +42,6 @@ examples:
   headroom spread --protect ic --tol ilim=10% --format json
   headroom spread testdata/scenarios/example.toml --tol ambient=0C..40C,uniform
 `,
-}
-
-func init() {
-	spreadCmd.run = runSpread
 }
 
 // tolFlags collects repeated --tol NAME=SPREAD.

@@ -41,6 +41,8 @@ func TestErrors(t *testing.T) {
 		exact bool
 	}{
 		{"bad flag value", []string{"run", "--series", "0"}, "--series: 0 cells in series: must be 1 to 48", true},
+		{"bad spread flag", []string{"compare", "--samples", "500"}, "--samples: sets the spread, so it needs --sort worst or --sort p10", true},
+		{"bad spread flag", []string{"table", "--seed", "3"}, "--seed: sets the spread, so it needs --sort worst or --sort p10", true},
 		{"bad spread flag", []string{"spread", "--samples", "0"}, `--samples: "0" must be a whole number from 1 to 1000000`, true},
 		{"bad spread flag", []string{"spread", "--samples", "1000001"}, `--samples: "1000001" must be a whole number from 1 to 1000000`, true},
 		{"bad spread flag", []string{"run", "--spread", "--samples", "x"}, `--samples: "x" must be a whole number from 1 to 1000000`, true},
