@@ -129,7 +129,7 @@ func Search(sp *Space, lim Limits, st Statistic, progress func(done, total int))
 	packs := map[int]*discharge.Design{}
 	for _, c := range append(append([]Candidate(nil), cands...), over...) {
 		if _, ok := packs[c.pack]; !ok {
-			d := sp.design(c.Candidate(protect.None{}))
+			d := sp.design(c.With(protect.None{}))
 			packs[c.pack] = d
 		}
 	}
@@ -340,8 +340,8 @@ func Search(sp *Space, lim Limits, st Statistic, progress func(done, total int))
 	return out, nil
 }
 
-// Candidate returns c with element e (and its cost) instead.
-func (c Candidate) Candidate(e protect.Element) Candidate {
+// With returns c with element e (and its cost) instead.
+func (c Candidate) With(e protect.Element) Candidate {
 	c.UnitCost += e.Cost() - c.Element.Cost()
 	c.Element, c.Spec = e, protect.Short(e)
 	return c
