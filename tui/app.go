@@ -30,6 +30,7 @@ const (
 	screenLineup                // every cell ranked
 	screenReverse               // cells put in wrong
 	screenSpread                // the spread over the tolerances
+	screenPick                  // the cheapest designs for a target
 	screenCount
 )
 
@@ -43,6 +44,8 @@ func (s screen) String() string {
 		return "Reversed cells"
 	case screenSpread:
 		return "Spread"
+	case screenPick:
+		return "Pick"
 	}
 	return "?"
 }
@@ -71,6 +74,7 @@ type Model struct {
 	lineup  lineupModel
 	reverse reverseModel
 	spread  spreadModel
+	pick    pickModel
 	save    saveModel
 	help    help.Model
 }
@@ -83,7 +87,7 @@ func New(s *scenario.Scenario) Model {
 	sh := newShared(s)
 	m := Model{shared: sh,
 		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
-		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, save: newSave(sh), help: newHelp(sh.styles)}
+		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, pick: newPick(sh), save: newSave(sh), help: newHelp(sh.styles)}
 	return m
 }
 
@@ -151,8 +155,17 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.view = screenDesign
 		m.knobs.sel = knobCell
 		return m, nil
+	case pickDoneMsg:
+		m.pick, cmd = m.pick.Update(msg)
+		return m, cmd
 	case tea.KeyMsg:
-		return m.key(msg)
+		nm, cmd := m.key(msg)
+		if next, ok := nm.(Model); ok && next.view == screenPick && next.mode() == modeNone {
+			// Off the key path: the search runs in a command.
+			cmd = tea.Batch(cmd, next.pick.search())
+			return next, cmd
+		}
+		return nm, cmd
 	}
 	// Anything else (a cursor blink) goes to the text field in use.
 	switch {
@@ -216,6 +229,8 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		return m, nil
 	case key.Matches(km, k.Spread):
 		m.show(screenSpread)
+	case key.Matches(km, pickKeys.Open):
+		m.show(screenPick)
 		return m, nil
 	case key.Matches(km, k.Back):
 		m.show(screenDesign)
@@ -226,6 +241,8 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.lineup, cmd = m.lineup.Update(km)
 	case screenReverse:
 		m.reverse, cmd = m.reverse.Update(km)
+	case screenPick:
+		m.pick, cmd = m.pick.Update(km)
 	default:
 		m.knobs, cmd = m.knobs.Update(km)
 	}
@@ -269,6 +286,9 @@ func (m Model) View() string {
 	case m.view == screenSpread:
 		m.spread.SetSize(w, bodyH)
 		body = fitLines(m.spread.View(), w, bodyH)
+	case m.view == screenPick:
+		m.pick.SetSize(w, bodyH)
+		body = fitLines(m.pick.View(), w, bodyH)
 	default:
 		body = m.designView(w, bodyH)
 	}

@@ -107,13 +107,15 @@ func (v viewKeys) ShortHelp() []key.Binding {
 		return []key.Binding{hint("↑/↓", "choose protection"), hint("tab", "views"), k.Save}
 	case screenSpread:
 		return []key.Binding{hint("tab", "views"), k.Design, k.Save}
+	case screenPick:
+		return pickShortHelp(k)
 	}
 	return k.ShortHelp()
 }
 
 func (v viewKeys) FullHelp() [][]key.Binding {
 	k := v.k
-	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, k.Spread}
+	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, k.Spread, pickKeys.Open}
 	general := []key.Binding{k.Save, k.Help, k.Back, k.Quit}
 	switch v.view {
 	case screenLineup:
@@ -122,6 +124,8 @@ func (v viewKeys) FullHelp() [][]key.Binding {
 		return [][]key.Binding{{k.Up, k.Down}, views, general}
 	case screenSpread:
 		return [][]key.Binding{views, general}
+	case screenPick:
+		return [][]key.Binding{{k.Up, k.Down, pickKeys.Less, pickKeys.More, pickKeys.LessCoarse, pickKeys.MoreCoarse, pickKeys.Use}, views, general}
 	}
 	return [][]key.Binding{{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type}, views, general}
 }

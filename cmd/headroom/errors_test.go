@@ -64,7 +64,7 @@ func TestErrors(t *testing.T) {
 		{"wrong unit kind", []string{"run", "--standby", "2V"}, `--standby: "2V" is a voltage (V), expected a current (A)`, true},
 		{"wrong unit kind", []string{"run", "--temp", "300K"}, `--temp: "300K": unknown unit "K", expected a temperature (C)`, true},
 		{"NaN value", []string{"run", "--floor", "NaN"}, `--floor: "NaN" is not a number`, true},
-		{"unknown subcommand", []string{"frobnicate"}, `unknown command "frobnicate": expected one of run, spread, table, compare, cells, plot, report, netlist, demo, help`, false},
+		{"unknown subcommand", []string{"frobnicate"}, `unknown command "frobnicate": expected one of run, spread, table, compare, pick, cells, plot, report, netlist, demo, help`, false},
 		{"missing file", []string{"run", filepath.Join(dir, "nope.toml")}, "nope.toml: no such file or directory", false},
 		{"missing file", []string{"table", filepath.Join(dir, "nope.toml")}, "nope.toml: no such file or directory", false},
 		{"directory instead of file", []string{"run", dir}, "is a directory, expected a scenario file (.toml)", false},
@@ -159,8 +159,8 @@ func TestHelpAndItsExamples(t *testing.T) {
 					redirect = filepath.Join(tmp, f[i+1])
 					made[f[i+1]] = redirect
 					i++
-				case f[i] == "-o":
-					args = append(args, "-o", filepath.Join(tmp, fmt.Sprint(n, "-", f[i+1])))
+				case f[i] == "-o" || f[i] == "--plot":
+					args = append(args, f[i], filepath.Join(tmp, fmt.Sprint(n, "-", f[i+1])))
 					i++
 				case made[f[i]] != "":
 					args = append(args, made[f[i]])

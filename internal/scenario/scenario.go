@@ -12,6 +12,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -68,7 +69,22 @@ type Scenario struct {
 	Samples    int
 	Seed       uint64
 
+	// OptionKeys are the keys written in the file's [options] table
+	// ("cells", "protect", ...), so that a search can tell a list the
+	// user narrowed from the design's own single value.
+	OptionKeys []string
+	// Pick holds the [pick] table's settings as written, in file order,
+	// for the pick command to read with the same parsers as its flags.
+	Pick []Setting
+
 	dir string
+}
+
+// Setting is one key of a table read as text: its key, its value as
+// written (numbers and booleans in Go's shortest form) and its line.
+type Setting struct {
+	Key, Value string
+	Line       int
 }
 
 // DefaultSamples and DefaultSeed are the spread's sample count and seed
@@ -90,6 +106,22 @@ type optionsDef struct {
 	Parallel []int    `toml:"parallel"`
 	Protect  []string `toml:"protect"`
 	Loads    []string `toml:"loads"`
+}
+
+// pickDef is the [pick] table: the search's target and limits, checked
+// by the pick command's parsers (the same as its flags).
+type pickDef struct {
+	Need          units.Raw `toml:"need"`
+	At            string    `toml:"at"`
+	Budget        units.Raw `toml:"budget"`
+	MaxCells      int       `toml:"max_cells"`
+	MaxParallel   int       `toml:"max_parallel"`
+	MaxStranded   units.Raw `toml:"max_stranded"`
+	MaxJunction   units.Raw `toml:"max_junction"`
+	BlockReversed bool      `toml:"block_reversed"`
+	MaxInput      units.Raw `toml:"max_input"`
+	By            string    `toml:"by"`
+	Top           int       `toml:"top"`
 }
 
 type sweepDef struct {
@@ -116,6 +148,7 @@ type fileDef struct {
 	Budget      units.Raw        `toml:"budget"`
 	Options     optionsDef       `toml:"options"`
 	Sweep       sweepDef         `toml:"sweep"`
+	Pick        pickDef          `toml:"pick"`
 	Cells       []curves.CellDef `toml:"define_cell"`
 	Tolerance   map[string]any   `toml:"tolerance"`
 }
@@ -283,6 +316,12 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		return fmt.Errorf("%s:%d: %s: %w", name, lineOf(data, key), key, err)
 	}
 	s := &Scenario{Name: f.Name, Note: f.Note, dir: dir}
+	for _, k := range []string{"cells", "series", "parallel", "protect", "loads"} {
+		if md.IsDefined("options", k) {
+			s.OptionKeys = append(s.OptionKeys, k)
+		}
+	}
+	s.Pick = pickSettings(f.Pick, md, data)
 
 	// Cells defined in the file come first, so a design can name them.
 	for i := range f.Cells {
@@ -490,6 +529,28 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		return nil, err
 	}
 	return s, nil
+}
+
+// pickSettings lists the [pick] keys the file sets, in the order of
+// pickDef, with their values as text and their lines.
+func pickSettings(p pickDef, md toml.MetaData, data []byte) []Setting {
+	vals := []struct {
+		key string
+		val string
+	}{
+		{"need", p.Need.String()}, {"at", p.At}, {"budget", p.Budget.String()},
+		{"max_cells", strconv.Itoa(p.MaxCells)}, {"max_parallel", strconv.Itoa(p.MaxParallel)},
+		{"max_stranded", p.MaxStranded.String()}, {"max_junction", p.MaxJunction.String()},
+		{"block_reversed", strconv.FormatBool(p.BlockReversed)}, {"max_input", p.MaxInput.String()},
+		{"by", p.By}, {"top", strconv.Itoa(p.Top)},
+	}
+	var out []Setting
+	for _, v := range vals {
+		if md.IsDefined("pick", v.key) {
+			out = append(out, Setting{Key: v.key, Value: v.val, Line: lineInTable(data, "pick", v.key)})
+		}
+	}
+	return out
 }
 
 // readTolerances sets s.Tolerances, Samples and Seed from the [tolerance]
