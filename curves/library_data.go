@@ -4,7 +4,7 @@ import "headroom/internal/rc"
 
 // The built-in cells. Every number here is a typical value from memory for
 // a generic cell of the type, not any maker's data and not a brand: curve
-// shapes after DESIGN §2, capacities and prices as commonly seen in retail.
+// shapes after docs/cells.md, capacities and prices as commonly seen in retail.
 // Each curve is the terminal voltage at the cell's RefCurrent and 20 °C, and
 // each RatedMAh is the charge where that curve crosses EndPoint, so the
 // library is self-consistent (TestLibraryConsistent checks it).
@@ -33,7 +33,7 @@ var alkalineShape = shape{
 }
 
 // alkalineResistance is the instant series resistance R0, rising
-// several-fold near the end (DESIGN §2); scaled per size by the fresh
+// several-fold near the end (docs/cells.md); scaled per size by the fresh
 // total resistance, half of which is R0 and half the polarisation
 // branches (alkalineRC), so that a steady current meets what it met
 // before the cells had memory. From memory.
@@ -177,7 +177,7 @@ func library() []*Cell {
 		{
 			// Lithium coin (Li/MnO2), rated at a light load of about 0.2 mA
 			// (a 15 kΩ resistor) to 2.0 V. Its 10–20 Ω resistance makes a
-			// 20 mA pulse sag it by a volt or more (DESIGN §2).
+			// 20 mA pulse sag it by a volt or more (docs/cells.md).
 			ID: "cr2032", Name: "lithium coin 20 × 3.2 mm", Chemistry: "lithium-mno2", Designation: "CR2032",
 			Curve: MustCurve(
 				[]float64{0, 5, 30, 80, 130, 170, 195, 210, 218, 225, 228},

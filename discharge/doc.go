@@ -7,7 +7,7 @@
 // seconds); power in watts, energy in watt-hours; temperatures in °C; money
 // in dollars.
 //
-// Method (DESIGN §5; docs/cells.md). The slow state is the charge q drawn
+// Method (docs/engine.md; docs/cell-model.md). The slow state is the charge q drawn
 // from the pack. Each cell is a Thevenin equivalent, E(q) − I·R0 − Σ vᵢ,
 // whose RC branches sit at every q in the periodic steady state of the
 // repeating profile and of the daily use and rest, in closed form

@@ -116,7 +116,7 @@ func (e *evaluator) warmRoot(g func(float64) float64, k int, hi float64) float64
 // Newton's method from zero current. i·vload(i) is concave for every element
 // headroom models, so the iterates rise monotonically to the root without
 // overshooting; if the slope turns non-positive first there is no operating
-// point: the load collapses (DESIGN §4: Voc²/(4·R) < Pin for a resistive
+// point: the load collapses (docs/loads.md: Voc²/(4·R) < Pin for a resistive
 // source).
 //
 // A warm start i0 > 0 (the phase's last current) is tried first, from just

@@ -10,7 +10,7 @@ import (
 	"headroom/internal/rc"
 )
 
-// Polarisation (DESIGN §5, "fast states"). Each RC branch of a cell
+// Polarisation (docs/engine.md; docs/cell-model.md). Each RC branch of a cell
 // (rc.Stage: R at the ambient, τ) is driven by the cell's current, a
 // piecewise-constant train: phase k carries I_k for d_k seconds and the
 // profile repeats with period Tp. The profile is short against the run,

@@ -11,6 +11,7 @@ import (
 	"golang.org/x/net/html"
 
 	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 )
 
 // parseHTML parses a report with the HTML5 parser of golang.org/x/net/html
@@ -75,7 +76,7 @@ func TestReportHTMLMatchesRun(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			want := runJSON(t, append([]string{"run"}, c.args...)...)
+			want := runJSON(t, append([]string{"run", "--spread"}, c.args...)...)
 			doc := parseHTML(t, page)
 			ids := map[string]bool{}
 			seen := 0
@@ -122,14 +123,15 @@ func TestReportHTMLMatchesRun(t *testing.T) {
 					t.Errorf("%s: run --format json has %T %v", key, w, w)
 				}
 			})
-			for _, id := range []string{"job", "design", "verdict", "chart", "figures", "lineup", "reverse", "cautions", "reproduce"} {
+			for _, id := range []string{"job", "design", "verdict", "chart", "figures", "spread", "lineup", "reverse", "cautions", "reproduce"} {
 				if !ids[id] {
 					t.Errorf("section %q missing", id)
 				}
 			}
-			// Every figure of run's JSON but the lists and the name is in
-			// the verdict table.
-			if n := len(want) - 3; seen != n {
+			// Every figure of run --spread's JSON but the lists (warnings,
+			// cautions, sensitivity, spread warnings) and the name is in
+			// the figures and spread tables.
+			if n := len(want) - 5; seen != n {
 				t.Errorf("%d verdict figures in the report, run --format json has %d", seen, n)
 			}
 			if !strings.Contains(string(page), "<svg") || !strings.Contains(string(page), "@media print") {
@@ -241,11 +243,11 @@ func TestReportAndNetlistBadOutput(t *testing.T) {
 
 // The exported netlist runs in ngspice (Debian's package) with no edits,
 // and its measured time to the floor agrees with headroom's runtime within
-// 1 % (the bound) — one design per load law, a pulsed profile, and
+// 1 % (the acceptance bound) — one design per load law, a pulsed profile, and
 // one behind the current limiter. The demo's netlist is also kept as a
 // golden file.
 func TestNetlistRunsInNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	dir := t.TempDir()
 	for _, c := range []struct {
 		name string
@@ -256,7 +258,7 @@ func TestNetlistRunsInNgspice(t *testing.T) {
 		{"resistance", []string{"--load", "8.2ohm", "--protect", "pmos", "--floor", "2.0", "--hours-per-day", "24", "--standby", "0"}},
 		{"led", []string{"--load", "led:vf=1.9,r=10", "--protect", "none", "--floor", "2.1", "--hours-per-day", "24", "--standby", "0"}},
 		{"pulsed demo", nil},
-		{"limiter", []string{"--load", "250mA/2s,20mA/8s", "--protect", "limiter", "--floor", "1.9"}},
+		{"limiter", []string{"--load", "400mA/20s,100mA/40s", "--protect", "limiter", "--floor", "2.0"}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			out := filepath.Join(dir, strings.ReplaceAll(c.name, " ", "-")+".cir")
