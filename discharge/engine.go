@@ -35,6 +35,11 @@ type variant struct {
 	lim    protect.Limit
 	floor  float64
 	cutoff bool // the pack's own under-voltage cut-off applies
+	// steady marks an element whose drop and standing drain do not move
+	// with the pack's voltage (none, a diode, a resistance): behind it a
+	// constant-power load's i·vload(i) is concave, so a warm start from
+	// the last solve is safe (see powerPoint).
+	steady bool
 }
 
 // evaluator holds what one evaluation works out once: the design's
@@ -96,9 +101,9 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	el = protect.Fixed(el, d.TempC)
 	e := newEvaluator(d, gx, gw)
 
-	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true}
-	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, cutoff: true}
-	ref := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
+	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el)}
+	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, cutoff: true, steady: true}
+	ref := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0, steady: true}
 	nd := e.newNode()
 
 	// Rate and cold (curves.Cell.CapacityFactor): one effective per-cell
@@ -124,6 +129,12 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// calendar hour and the share of it in use.
 	if rate := e.rates(0, real, nd).calendar; rate > 0 {
 		e.usePerQ = scale / rate * e.duty * 3600
+		// A run that could span twenty sessions or more: the first one's
+		// rested start is a small part of it and is taken as
+		// day-periodic like the rest (docs/cell-model.md).
+		if e.pol != nil && e.pol.day && e.end*e.usePerQ >= 20*e.pol.hs {
+			e.pol.periodicOnly = true
+		}
 	}
 
 	// The cut-offs, in scaled charge. Each variant
@@ -197,11 +208,11 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 // that started rested is half a, two, eight and thirty of a branch's time
 // constants into its first session, so that the quadrature resolves the
 // polarisation building up (e^(−t/τ)) on spans of its own, and where that
-// session ends. A branch faster than 1e-4 of the run (hours of use to
-// qsCut) is left out: the midpoint rule across its transient errs by
-// about 0.1·τ/run of the energies, under 1e-5.
+// session ends. A branch faster than 1e-3 of the run (hours of use to
+// qsCut) is left out: the rule across its transient errs by about
+// 0.1·τ/run of its share of the energies, under 1e-4.
 func (e *evaluator) transientBreaks(qsCut float64) []float64 {
-	if e.pol == nil || e.usePerQ <= 0 {
+	if e.pol == nil || e.usePerQ <= 0 || e.pol.periodicOnly {
 		return e.breaks
 	}
 	run := qsCut * e.usePerQ
@@ -212,7 +223,7 @@ func (e *evaluator) transientBreaks(qsCut float64) []float64 {
 		out = append(out, q)
 	}
 	for _, b := range e.pol.br {
-		if b.tau < 1e-4*run {
+		if b.tau < 1e-3*run {
 			continue
 		}
 		for _, k := range []float64{0.5, 2, 8, 30} {

@@ -44,10 +44,11 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 			// Behind an element whose drop jumps (a MOSFET handing over
 			// to its body diode) i·vload(i) is not concave and meets pin
 			// twice; a warm start from the upper branch would find the
-			// upper root. Only the element-free source is always concave.
+			// upper root. Behind a steady element (none, a diode, a
+			// resistance) it is always concave.
 			hint := e.hint[k]
 			_, none := v.el.(protect.None)
-			if !none {
+			if !v.steady {
 				hint = 0
 			}
 			i, ok = powerPoint(vload, pin, E, hint)

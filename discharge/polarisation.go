@@ -67,6 +67,9 @@ type polarisation struct {
 	vs, ve  []float64 // scratch: each branch's periodic start and end of phase k
 	hs      float64   // seconds of use in a day's session; +Inf in continuous use
 	period  float64   // seconds of one cycle of the profile
+	// periodicOnly takes every session as day-periodic, the first too:
+	// set when the run spans many sessions (see evaluate).
+	periodicOnly bool
 	slowest float64   // the longest time constant, s
 }
 
@@ -206,7 +209,7 @@ func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 	clear(out.late)
 	clear(out.cand)
 	clear(out.self)
-	first := t < p.hs
+	first := t < p.hs && !p.periodicOnly
 	for bi := range p.br {
 		b := &p.br[bi]
 		vstar := b.periodic(I, p.w, p.vs, p.ve)

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"headroom/curves"
+	"headroom/protect"
 )
 
 // gaussN is the Gauss–Legendre order used on each smooth span. The
@@ -111,7 +112,7 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
 	if e.pol != nil {
 		for _, b := range e.pol.br {
-			if b.tau >= 1e-4*qsCut*e.usePerQ {
+			if b.tau >= 1e-3*qsCut*e.usePerQ {
 				q.slowest = math.Max(q.slowest, b.tau)
 			}
 		}
@@ -195,28 +196,40 @@ var midpointX, midpointW = []float64{0}, []float64{2}
 
 // linear reports whether variant v's integrand is linear in charge
 // between breakpoints, so that the midpoint rule is exact there: every
-// phase a constant current (its polarisation then fixed too), behind an
-// element whose drop and standing drain do not move with the pack's
-// voltage (tried at the fresh pack's voltage and at a half and a tenth of
-// it). Then the drain is constant and the powers are linear in the
-// cells' voltage, which is linear in charge between breakpoints.
+// phase a constant current (its polarisation then fixed too), behind a
+// steady element (steadyElement). Then the drain is constant and the
+// powers are linear in the cells' voltage, which is linear in charge
+// between breakpoints.
 func (e *evaluator) linear(v *variant) bool {
 	for _, l := range e.loads {
 		if l.Kind != ConstantCurrent {
 			return false
 		}
 	}
+	return v.steady
+}
+
+// steadyElement reports whether el's drop and standing drain ignore the
+// pack's voltage: tried at a milliampere, the phases' currents and an
+// ampere, at the fresh pack's voltage and at a half and a tenth of it.
+func (e *evaluator) steadyElement(el protect.Element) bool {
 	vin := e.S * e.cell.OpenCircuit(0, e.T)
+	amps := []float64{1e-3, 1}
 	for _, l := range e.loads {
-		d0 := v.el.Drop(l.Amps, vin, e.T)
+		if l.Kind == ConstantCurrent {
+			amps = append(amps, l.Amps)
+		}
+	}
+	for _, i := range amps {
+		d0 := el.Drop(i, vin, e.T)
 		for _, f := range []float64{0.5, 0.1} {
-			if v.el.Drop(l.Amps, f*vin, e.T) != d0 {
+			if el.Drop(i, f*vin, e.T) != d0 {
 				return false
 			}
 		}
 	}
-	q0 := v.el.Quiescent(vin, e.T)
-	return v.el.Quiescent(0.5*vin, e.T) == q0 && v.el.Quiescent(0.1*vin, e.T) == q0
+	q0 := el.Quiescent(vin, e.T)
+	return el.Quiescent(0.5*vin, e.T) == q0 && el.Quiescent(0.1*vin, e.T) == q0
 }
 
 // maxGauss is the most nodes a quadrature rule may have.
@@ -257,7 +270,7 @@ func (q *quadrature) buf(d int) []rates {
 // those spans short against τ.
 func (q *quadrature) nodesOn(a float64) (gx, gw []float64) {
 	e := q.e
-	if q.linear && (e.pol == nil || a*e.usePerQ >= math.Min(e.pol.hs, 30*q.slowest)) {
+	if q.linear && (e.pol == nil || e.pol.periodicOnly || a*e.usePerQ >= math.Min(e.pol.hs, 30*q.slowest)) {
 		return midpointX, midpointW
 	}
 	return e.gx, e.gw
