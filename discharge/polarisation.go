@@ -60,17 +60,17 @@ type branch struct {
 
 // polarisation is the set of branches of one cell under one design.
 type polarisation struct {
-	br      []branch
-	w       []float64 // duty weights of the phases
-	late    []bool    // phase k lasts at least the cut-off delay
-	day     bool
-	vs, ve  []float64 // scratch: each branch's periodic start and end of phase k
-	hs      float64   // seconds of use in a day's session; +Inf in continuous use
-	period  float64   // seconds of one cycle of the profile
+	br     []branch
+	w      []float64 // duty weights of the phases
+	late   []bool    // phase k lasts at least the cut-off delay
+	day    bool
+	vs, ve []float64 // scratch: each branch's periodic start and end of phase k
+	hs     float64   // seconds of use in a day's session; +Inf in continuous use
+	period float64   // seconds of one cycle of the profile
 	// periodicOnly takes every session as day-periodic, the first too:
 	// set when the run spans many sessions (see evaluate).
 	periodicOnly bool
-	slowest float64   // the longest time constant, s
+	slowest      float64 // the longest time constant, s
 }
 
 // polState is the polarisation (volts per cell, summed over the
