@@ -229,12 +229,23 @@ func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 			c := out.cand[6*k : 6*k+6]
 			if first {
 				d := dev * now
-				out.mean[k] += mean + d*b.s[k]*b.m[k]
+				m := mean + d*b.s[k]*b.m[k]
+				out.mean[k] += m
 				out.self[k] += b.pSelf[k] - b.vSelf[k]*now*b.s[k]*b.m[k]
-				c[0] += p.vs[k] + d*b.s[k]
-				c[1] += p.ve[k] + d*b.e[k]
+				if n == 1 {
+					// A steady load: its worst instant is now, as is its
+					// mean (the "cycle" is a bookkeeping second).
+					c[0] += m
+					c[1] += m
+				} else {
+					c[0] += p.vs[k] + d*b.s[k]
+					c[1] += p.ve[k] + d*b.e[k]
+				}
 				c[2], c[3] = c[0], c[1]
-				if p.late[k] {
+				if p.late[k] && n == 1 {
+					c[4] += m
+					c[5] = c[4]
+				} else if p.late[k] {
 					lv := x + (p.vs[k]-x)*b.lateA[k]
 					c[4] += lv + d*b.lateK[k]
 					c[5] = c[4]
