@@ -68,9 +68,9 @@ func (d *Design) cutoffText(r *Result) string {
 		return fmt.Sprintf("the pack's under-voltage cut-off trips on %s (pack %.2f V for longer than its delay)", what, r.CutoffPackV)
 	}
 	if len(d.Profile) > 1 {
-		// The end-point applies to the voltage over the charge a cycle
-		// delivers, not to one phase's dip.
-		return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V averaged over the charge of a cycle)", r.CutoffPackV)
+		// The end-point applies to the voltage averaged over a cycle
+		// while current flows, not to one phase's dip.
+		return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V averaged over a cycle while it draws current)", r.CutoffPackV)
 	}
 	return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V) on %s", r.CutoffPackV, what)
 }
