@@ -353,6 +353,13 @@ func FuzzLoadScale(f *testing.F) {
 		if !ok1 || !ok2 {
 			return
 		}
+		// A run of under a minute lies inside the rested start's first
+		// seconds, where the time a charge stands for is taken from the
+		// fresh pack's drain (docs/cell-model.md §Approximated): the
+		// property is not asked there.
+		if r1.RuntimeH < 1.0/60 {
+			return
+		}
 		res := 2e-12 * c.Curve.End() * float64(d.Parallel) * math.Max(r1.CapacityFac, r2.CapacityFac)
 		slack := 1e-9
 		if r2.DeliveredMAh > 0 {
