@@ -17,10 +17,10 @@ func (e *evaluator) margin(qs float64, v *variant, nd *node) (bool, float64) {
 }
 
 // cutoff returns the scaled charge at which variant v first fails. It
-// bisects the breakpoints, from the last one at or below from where v
-// still works (0: from the start), for the first span that fails, then
-// narrows that span. Failure is taken to be permanent once it starts:
-// every rule's margin falls as the cells empty.
+// scans the breakpoints, from the last one at or below from where v
+// still works (0: from the start), then narrows the first span that
+// fails. Failure is taken to be permanent once it starts, as the scan
+// always has.
 func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 	first := 1
 	lo, mlo := 0.0, 0.0
@@ -42,24 +42,19 @@ func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 		}
 		mlo = m
 	}
-	// Bisect on the breakpoints: a works, b fails (past the curve's end
-	// everything fails), so about log₂ of their number of margins find
-	// the first failing span, where a scan took one per breakpoint.
-	a, b := first-1, len(e.breaks)
-	mhi := 0.0
-	for b-a > 1 {
-		j := (a + b) / 2
-		f, m := e.margin(e.breaks[j], v, nd)
-		if f {
-			b, mhi = j, m
-		} else {
-			a, lo, mlo = j, e.breaks[j], m
+	// Scan the breakpoints in order for the first that fails: a
+	// bisection over them would be faster but could step over a span
+	// where a rule fails and then holds again (a MOSFET handing over to
+	// its body diode), which the first failure must not miss.
+	for _, b := range e.breaks[first:] {
+		f, m := e.margin(b, v, nd)
+		if !f {
+			lo, mlo = b, m
+			continue
 		}
+		return e.narrow(v, nd, lo, mlo, b, m)
 	}
-	if b == len(e.breaks) {
-		return lo // works to the last breakpoint, the curve's end
-	}
-	return e.narrow(v, nd, lo, mlo, e.breaks[b], mhi)
+	return lo
 }
 
 // narrow finds the first failure in [lo, hi], where v works at lo with
