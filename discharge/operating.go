@@ -224,9 +224,13 @@ func (e *evaluator) newNode() *node {
 
 // maxPasses bounds the fixed-point passes per charge: a phase's current
 // sets the branches' voltages, which set every voltage-dependent phase's
-// current. The map contracts by about ΣRᵢ·I/V per pass; near a
-// collapse it may not settle, which the evaluation warns about.
-const maxPasses = 12
+// current. The map contracts by about ΣRᵢ·I/V per pass; near a collapse
+// it may oscillate, so later passes are damped; where it still does not
+// settle, the evaluation warns.
+const maxPasses = 40
+
+// dampFrom is the pass from which the currents move half way only.
+const dampFrom = 4
 
 // solveNode solves every phase of variant v at scaled charge qs into nd.
 func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
@@ -281,6 +285,11 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			nd.mean[k] = o
 			ic := o.Ipack / e.P
 			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
+			if pass >= dampFrom {
+				// Not settling by plain passes (phases pulling each other
+				// near a collapse or a MOSFET's handover): take half steps.
+				ic = 0.5 * (ic + nd.icell[k])
+			}
 			nd.icell[k] = ic
 			failed = failed || o.Fail == CauseCollapse
 		}

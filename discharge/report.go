@@ -64,7 +64,11 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 		r.Warnings = append(r.Warnings, "a day's use is shorter than one cycle of the load profile: the cells' polarisation is approximate (the model takes whole cycles)")
 	}
 	if e.unsettled > 0 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("at %d points of the run the phases' currents and the cells' polarisation did not settle (a load near collapse): the figures there are approximate", e.unsettled))
+		where := "at 1 point"
+		if e.unsettled > 1 {
+			where = fmt.Sprintf("at %d points", e.unsettled)
+		}
+		r.Warnings = append(r.Warnings, where+" of the run the phases' currents and the cells' polarisation did not settle (a load near collapse or a MOSFET handing over to its body diode): the figures there are approximate")
 	}
 	if r.StandbyShare > 0.2 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("standby drain and self-discharge take %.0f %% of the charge: the pack goes flat on the shelf", r.StandbyShare*100))
