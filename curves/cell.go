@@ -225,8 +225,8 @@ const LightLoadSpan = 2
 // (Iref/i)^(k−1) — a stated k is what two constant-current runs measure
 // while the sag is less than Peukert asks, k = 1 means the sag alone, and
 // the sag is never undone. Below Iref/LightLoadSpan the factor stops
-// growing, and it never rises with the current (held at its lowest on a
-// grid of doublings). At RefTempC: cold is ColdFactor's.
+// growing, and it never rises with the current (the running minimum on a
+// grid of half-doublings). At RefTempC: cold is ColdFactor's.
 func (c *Cell) RateFactor(i float64) float64 {
 	iref := c.rateRef()
 	if c.Peukert <= 1 || iref <= 0 || !(i > 0) {
@@ -242,15 +242,24 @@ func (c *Cell) RateFactor(i float64) float64 {
 		return math.Min(math.Max(p*cref/q, math.Min(1, p)), math.Max(1, p))
 	}
 	// Where the sag grows faster than Peukert asks, raw rises again
-	// towards 1 (no extra loss): the factor is held at its lowest so far,
-	// on a grid of doublings from the light-load span, so that a bigger
-	// current never gets a kinder factor.
+	// towards 1 (no extra loss). The factor is the running minimum of raw
+	// on a grid of half-doublings from the light-load span, interpolated
+	// in log current between grid points: exact on the grid (Iref and
+	// 2·Iref among them), never rising with the current.
 	lo := iref / LightLoadSpan
-	f := raw(math.Max(i, lo))
-	for j := lo; j < i; j *= 2 {
-		f = math.Min(f, raw(j))
+	if i <= lo {
+		return raw(lo)
 	}
-	return f
+	const step = math.Sqrt2
+	run := raw(lo)
+	for g := lo; ; g *= step {
+		next := math.Min(run, raw(g*step))
+		if i <= g*step {
+			w := math.Log(i/g) / math.Log(step)
+			return run + w*(next-run)
+		}
+		run = next
+	}
 }
 
 // ColdFactor is the share of the charge the cold leaves at current i (A)

@@ -27,7 +27,7 @@ func ExampleLookup() {
 	// Output:
 	// alkaline AA (LR6): 2400 mAh to 0.9 V at 0.1 A
 	// at 1200 mAh, 0.1 A: 1.273 V
-	// at 1200 mAh, 0.5 A: 1.115 V
+	// at 1200 mAh, 0.5 A: 1.116 V
 }
 
 // Every built-in cell id, in library order.
