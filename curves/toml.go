@@ -13,6 +13,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"headroom/internal/guard"
 	"headroom/internal/rc"
 	"headroom/internal/units"
 )
@@ -273,6 +274,9 @@ func ReadCellTOML(r io.Reader, name string) (*Cell, error) {
 	}
 	if bytes.IndexByte(data, 0) >= 0 {
 		return nil, fmt.Errorf("%s: not a text file (binary data)", name)
+	}
+	if err := guard.CheckTOML(data); err != nil {
+		return nil, fmt.Errorf("%s %w", name, err)
 	}
 	var d CellDef
 	md, err := toml.Decode(string(data), &d)

@@ -19,6 +19,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/units"
 	"headroom/protect"
 )
@@ -257,6 +258,10 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	}
 	if i := strings.IndexByte(string(data), 0); i >= 0 {
 		return nil, fmt.Errorf("%s: binary data (a NUL byte at offset %d), expected a TOML text file", name, i)
+	}
+	var se *guard.ShapeError
+	if err := guard.CheckTOML(data); errors.As(err, &se) {
+		return nil, fmt.Errorf("%s:%d: %s", name, se.Line, se.Reason)
 	}
 	var f fileDef
 	md, err := toml.Decode(string(data), &f)
