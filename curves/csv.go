@@ -13,6 +13,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"headroom/internal/guard"
 	"headroom/internal/units"
 )
 
@@ -115,10 +116,10 @@ func parseNumber(s string, col csvColumn) (float64, error) {
 }
 
 // cellName is the id a file gives its cell: the base name without the
-// extension.
+// extension, fit to print on a terminal.
 func cellName(name string) string {
 	b := filepath.Base(name)
-	return strings.TrimSuffix(b, filepath.Ext(b))
+	return guard.Clean(strings.TrimSuffix(b, filepath.Ext(b)))
 }
 
 // ReadCSV reads a user cell from CSV points. name is used for the cell id
@@ -201,7 +202,7 @@ func ReadCSV(r io.Reader, name string) (*Cell, error) {
 		RatedMAh:  curve.End(),
 		EndPoint:  v[len(v)-1],
 		Peukert:   1,
-		Source:    "points from " + filepath.Base(name),
+		Source:    "points from " + guard.Clean(filepath.Base(name)),
 	}
 	if withOhm {
 		end := curve.End()

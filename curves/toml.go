@@ -112,9 +112,11 @@ func (d *CellDef) build() (*Cell, error) {
 	if id == "" {
 		return nil, fe("id", 0, "missing")
 	}
+	// Every text a file gives reaches a terminal: no control characters.
 	c := &Cell{
-		ID: id, Name: d.Name, Chemistry: d.Chemistry, Designation: d.Designation,
-		Rechargeable: d.Rechargeable, CycleLife: d.CycleLife, Source: d.Source,
+		ID: guard.Clean(id), Name: guard.Clean(d.Name), Chemistry: guard.Clean(d.Chemistry),
+		Designation: guard.Clean(d.Designation), Rechargeable: d.Rechargeable, CycleLife: d.CycleLife,
+		Source: guard.Clean(d.Source),
 	}
 	if c.Name == "" {
 		c.Name = id

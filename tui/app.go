@@ -13,6 +13,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 )
 
@@ -283,7 +284,7 @@ func (m Model) header(w int) string {
 	}
 	name := m.scen.Name
 	if m.scen.Path != "" {
-		name += " (" + m.scen.Path + ")"
+		name += " (" + guard.Clean(m.scen.Path) + ")"
 	}
 	left := st.Title.Render("headroom") + " " + st.Scenario.Render(pad(name, max(0, w-rw-10)))
 	return padRight(left, w-rw) + right

@@ -9,6 +9,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/curves"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -70,7 +71,7 @@ func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
 				return m, nil
 			case key.Matches(km, k.Accept):
 				if err := m.sh.setText(m.sel, m.input.Value()); err != nil {
-					m.errText = err.Error()
+					m.errText = guard.Clean(err.Error())
 					return m, nil
 				}
 				m.editing, m.errText = false, ""

@@ -10,6 +10,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 )
@@ -205,7 +206,7 @@ func cellsCheck(c *cli, args []string) error {
 	q0, v0 := cell.Curve.Point(0)
 	q1, v1 := cell.Curve.Point(n - 1)
 	_, err = fmt.Fprintf(c.stdout, "ok: %s: cell %q, %d points from %s to %s mAh, %s V down to %s V; end-point %s V, rated %s mAh, nominal %s V\n",
-		pos[0], cell.ID, n, sig(q0, 4), sig(q1, 4), fixed(v0, 3), fixed(v1, 3), short(cell.EndPoint), sig(cell.RatedMAh, 4), short(cell.NominalV))
+		guard.Clean(pos[0]), cell.ID, n, sig(q0, 4), sig(q1, 4), fixed(v0, 3), fixed(v1, 3), short(cell.EndPoint), sig(cell.RatedMAh, 4), short(cell.NominalV))
 	return err
 }
 

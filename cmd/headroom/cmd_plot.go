@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 )
 
@@ -111,7 +112,7 @@ func chart(s *scenario.Scenario, byCharge bool, ext string) ([]byte, error) {
 	d0 := s.Design
 	title := s.Name
 	if title == "" {
-		title = filepath.Base(s.Path)
+		title = guard.Clean(filepath.Base(s.Path))
 	}
 	p.Title.Text = fmt.Sprintf("%s\n%s; %s", title, packWords(&d0), loadWords(&d0))
 	p.Title.TextStyle.Font.Size = vg.Points(11)

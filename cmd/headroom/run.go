@@ -11,6 +11,7 @@ import (
 
 	"github.com/mattn/go-isatty"
 
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 )
 
@@ -274,4 +275,6 @@ func loadScenario(pos []string) (*scenario.Scenario, error) {
 	return scenario.Load(pos[0])
 }
 
-func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+// oneLine puts a message on one line fit for a terminal: a file name or a
+// value quoted in it may hold control characters.
+func oneLine(s string) string { return strings.Join(strings.Fields(guard.Clean(s)), " ") }

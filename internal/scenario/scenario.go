@@ -286,7 +286,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	at := func(key string, err error) error {
 		return fmt.Errorf("%s:%d: %s: %w", name, lineOf(data, key), key, err)
 	}
-	s := &Scenario{Name: f.Name, Note: f.Note, dir: dir}
+	s := &Scenario{Name: guard.Clean(f.Name), Note: guard.CleanLines(f.Note), dir: dir}
 
 	// Cells defined in the file come first, so a design can name them.
 	for i := range f.Cells {
@@ -382,7 +382,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 			if err != nil {
 				return nil, fmt.Errorf("%s: [[phase]] %d: duration: %w", name, i+1, err)
 			}
-			d.Profile = append(d.Profile, discharge.Phase{Name: p.Name, Load: l, Seconds: sec})
+			d.Profile = append(d.Profile, discharge.Phase{Name: guard.Clean(p.Name), Load: l, Seconds: sec})
 		}
 		s.LoadSpec = discharge.FormatProfile(d.Profile)
 	default:
@@ -402,7 +402,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 			s.Loads, s.LoadSpecs = nil, nil
 		}
 		s.Loads = append(s.Loads, ph)
-		s.LoadSpecs = append(s.LoadSpecs, spec)
+		s.LoadSpecs = append(s.LoadSpecs, guard.Clean(spec))
 	}
 
 	type field struct {
