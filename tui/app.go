@@ -115,8 +115,25 @@ func (m Model) mode() mode {
 	return modeNone
 }
 
-// Update handles a message.
-func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+// Update handles a message. A panic anywhere below it puts the knobs
+// back as they were before the message and says so on the status line:
+// the screen stays open and the design can still be saved.
+func (m Model) Update(msg tea.Msg) (res tea.Model, cmd tea.Cmd) {
+	before := m.vals
+	defer func() {
+		if p := recover(); p != nil {
+			m.vals = before
+			m.evaluate()
+			m.knobs.editing = false
+			m.save.state, m.save.failed = saveIdle, true
+			m.save.status = guard.Clean(fmt.Sprintf("That step failed inside headroom (%v); the design is as it was. Press s to save it.", p))
+			res, cmd = m, nil
+		}
+	}()
+	return m.update(msg)
+}
+
+func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	var cmd tea.Cmd
 	switch msg := msg.(type) {
 	case tea.WindowSizeMsg:
@@ -221,8 +238,18 @@ func (m *Model) show(s screen) {
 	}
 }
 
-// View draws the screen.
-func (m Model) View() string {
+// View draws the screen; if drawing panics it says so in plain text and
+// the keys still work (s saves the design, q quits).
+func (m Model) View() (out string) {
+	defer func() {
+		if p := recover(); p != nil {
+			out = wrap(guard.Clean(fmt.Sprintf("headroom could not draw this screen (%v). The design is kept: press s to save it, esc to go back, q to quit.", p)), max(20, m.width))
+		}
+	}()
+	return m.draw()
+}
+
+func (m Model) draw() string {
 	w, h := m.width, m.height
 	if w == 0 && h == 0 {
 		return "" // no size yet

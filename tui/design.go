@@ -2,12 +2,14 @@ package tui
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"sort"
 	"sync"
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/protect"
 )
@@ -133,9 +135,16 @@ func (sh *shared) evaluate() {
 }
 
 // evaluateFinite is discharge.Evaluate, with a result holding a number that
-// is not finite turned into an error, so the screen never prints NaN.
-func evaluateFinite(d *discharge.Design) (*discharge.Result, error) {
-	r, err := discharge.Evaluate(d)
+// is not finite turned into an error, so the screen never prints NaN, and a
+// panic in the engine turned into an error, so the screen (and the design
+// on it, not yet saved) survives any design the knobs can make.
+func evaluateFinite(d *discharge.Design) (r *discharge.Result, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			r, err = nil, engineFailure(p)
+		}
+	}()
+	r, err = discharge.Evaluate(d)
 	if err != nil {
 		return nil, err
 	}
@@ -161,6 +170,13 @@ func (finiteError) Error() string {
 }
 
 var errNotFinite error = finiteError{}
+
+// engineFailure is the error a panic inside the engine becomes: the
+// design stays on the screen and can still be changed or saved.
+func engineFailure(p any) error {
+	return fmt.Errorf("the engine failed on this design (%s); change a knob, or save the design and report it",
+		guard.Clean(fmt.Sprint(p)))
+}
 
 // lineupRow is one cell of the line-up.
 type lineupRow struct {
@@ -261,6 +277,17 @@ func (sh *shared) reversePack() protect.Pack {
 	return p
 }
 
+// safeReverse is e.Reverse(p), false when it panics: a row the reverse
+// view leaves out rather than a screen that closes.
+func safeReverse(e protect.Element, p protect.Pack) (rev protect.Reversal, ok bool) {
+	defer func() {
+		if recover() != nil {
+			ok = false
+		}
+	}()
+	return e.Reverse(p), true
+}
+
 func (sh *shared) evaluateReverse() []reverseRow {
 	p := sh.reversePack()
 	out := make([]reverseRow, 0, len(sh.kinds))
@@ -273,7 +300,11 @@ func (sh *shared) evaluateReverse() []reverseRow {
 		if e == nil {
 			continue
 		}
-		out = append(out, reverseRow{kind: k, current: cur, rev: e.Reverse(p)})
+		rev, ok := safeReverse(e, p)
+		if !ok {
+			continue
+		}
+		out = append(out, reverseRow{kind: k, current: cur, rev: rev})
 	}
 	return out
 }

@@ -156,3 +156,58 @@ func FuzzTextOutputsClean(f *testing.F) {
 		hostileOutputs(t, name)
 	})
 }
+
+// writeFiles writes name → text files into a new folder and returns it.
+func writeFiles(t *testing.T, files map[string]string) string {
+	t.Helper()
+	dir := t.TempDir()
+	for name, text := range files {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return dir
+}
+
+// A cell may not claim what no cell holds: 1e307 mAh once crashed plot
+// ("index out of range") and the screen, and a price of 1e308 printed as
+// null. Each is refused with the file, line and range; at the caps every
+// figure is a number.
+func TestCellClaimsBounded(t *testing.T) {
+	dir := writeFiles(t, map[string]string{
+		"huge.csv":       "mAh,V\n0,1.5\n5e306,1.2\n1e307,0.9\n",
+		"huge.toml":      "id = \"h\"\nrated_mAh = 1e308\ncurve = [[0, 1.5], [2000, 0.9]]\n",
+		"pricey.toml":    "id = \"p\"\nprice = 1e308\ncurve = [[0, 1.5], [2000, 0.9]]\n",
+		"amps.toml":      "id = \"a\"\nref_current = \"1e9A\"\ncurve = [[0, 1.5], [2000, 0.9]]\n",
+		"cap.toml":       "id = \"cap\"\nprice = 1e6\nrated_mAh = 1e6\ncurve = [[0, 1.5], [1e6, 0.9]]\n",
+		"s-huge.toml":    "cell = \"huge.csv\"\n",
+		"s-pricey.toml":  "cell = \"pricey.toml\"\n",
+		"s-cap.toml":     "cell = \"cap.toml\"\nseries = 48\nparallel = 16\nprice = 1e6\nload = \"1uA\"\n",
+		"s-defined.toml": "cell = \"d\"\n[[define_cell]]\nid = \"d\"\nprice = 1e308\ncurve = [[0, 1.5], [2000, 0.9]]\n",
+	})
+	p := func(n string) string { return filepath.Join(dir, n) }
+	refused := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"plot", p("s-huge.toml"), "-o", p("x.svg")}, "huge.csv line 3: charge 5e+306 mAh is above 1000000 mAh (1000 Ah)"},
+		{[]string{"run", "--cell", p("huge.csv")}, "huge.csv line 3: charge 5e+306 mAh is above 1000000 mAh"},
+		{[]string{"cells", "check", p("huge.toml")}, "huge.toml line 2: rated_mAh: 1e+308 must be above 0 and at most 1000000 mAh"},
+		{[]string{"run", p("s-pricey.toml"), "--format", "json"}, "pricey.toml line 2: price: 1e+308 must be 0 to 1000000 dollars"},
+		{[]string{"run", p("s-defined.toml")}, "[[define_cell]] 1: price: 1e+308 must be 0 to 1000000 dollars"},
+		{[]string{"cells", "check", p("amps.toml")}, "ref_current: 1e+09 A must be 0 to 100 A"},
+	}
+	for _, c := range refused {
+		code, out, errs := runCLI(t, c.args...)
+		if code != 2 || out != "" || !strings.Contains(errs, c.want) || strings.Contains(errs, "internal error") {
+			t.Errorf("%q: status %d, stderr %q; want 2 and %q", c.args, code, errs, c.want)
+		}
+	}
+	for _, f := range []string{"json", "csv", "text"} {
+		code, out, errs := runCLI(t, "run", p("s-cap.toml"), "--format", f)
+		if code != 0 || strings.Contains(out, "null") || strings.Contains(out, "—") {
+			t.Errorf("at the caps (%s): status %d %s\n%s", f, code, errs, out)
+		}
+		checkClean(t, "at the caps", out)
+	}
+}

@@ -254,3 +254,8 @@ func CleanLines(s string) string {
 	}
 	return strings.Join(ls, "\n")
 }
+
+// MaxPrice is the most any price may be, in dollars: a cell's, a pack's,
+// a protection part's, electricity's per kWh or a budget. Past it a cost
+// per hour or a pack price can overflow to infinity and print as nothing.
+const MaxPrice = 1e6

@@ -569,8 +569,8 @@ func CheckStandby(v float64) error {
 }
 
 func CheckPrice(v float64) error {
-	if v < 0 || v > 1e6 {
-		return fmt.Errorf("price %v: must be 0 or more and at most 1000000", v)
+	if !(v >= 0) || v > guard.MaxPrice {
+		return fmt.Errorf("price %v: must be 0 or more and at most %.0f", v, guard.MaxPrice)
 	}
 	return nil
 }
