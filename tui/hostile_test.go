@@ -14,7 +14,9 @@ import (
 // any engine failure a design can provoke (a cell of 1e307 mAh once did).
 type brokenElement struct{ protect.Element }
 
-func (brokenElement) Drop(i, vin, tempC float64) float64 { panic("index out of range [3] with length 3") }
+func (brokenElement) Drop(i, vin, tempC float64) float64 {
+	panic("index out of range [3] with length 3")
+}
 func (brokenElement) Reverse(protect.Pack) protect.Reversal {
 	panic("reverse law failed")
 }
