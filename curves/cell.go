@@ -86,11 +86,18 @@ type Cell struct {
 
 	Price  float64 // typical price of one cell in dollars, at least 0
 	Source string  // where the numbers come from
+
+	// Thinned is set when the readers thinned a long curve (see
+	// MaxCurvePoints); nil otherwise.
+	Thinned *Thinning
 }
 
 // MaxCellCurrent is the most current, in amperes, a cell's curve or
 // rating may be taken at: the most a load may draw.
 const MaxCellCurrent = 100.0
+
+// MaxTempPoints is the most points a cell's temperature table may have.
+const MaxTempPoints = 64
 
 // MaxRC is the most polarisation branches a cell may have.
 const MaxRC = 3
@@ -156,6 +163,9 @@ func (c *Cell) Validate() error {
 		if i > 0 && r.Depth <= c.Resistance[i-1].Depth {
 			return bad("resistance", "point %d: depth %v must be above the previous %v", i+1, r.Depth, c.Resistance[i-1].Depth)
 		}
+	}
+	if len(c.Temperature) > MaxTempPoints {
+		return bad("temperature", "%d points, at most %d", len(c.Temperature), MaxTempPoints)
 	}
 	for i, t := range c.Temperature {
 		if !fin(t.Celsius) || t.Celsius < -60 || t.Celsius > 100 {

@@ -215,6 +215,7 @@ func ReadCSV(r io.Reader, name string) (*Cell, error) {
 	if err := c.Validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
+	thinCell(c, false)
 	return c, nil
 }
 

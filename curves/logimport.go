@@ -118,6 +118,9 @@ func ImportLog(r io.Reader, name string, current float64) (*Cell, error) {
 	if err := c.Validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
+	// A log holds thousands of samples; the engine needs a few dozen
+	// points, and the file written must stay within what the readers take.
+	thinCell(c, true)
 	return c, nil
 }
 

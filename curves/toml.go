@@ -245,6 +245,7 @@ func (d *CellDef) build() (*Cell, error) {
 	if err := c.Validate(); err != nil {
 		return nil, validateFieldError(err)
 	}
+	thinCell(c, false)
 	return c, nil
 }
 

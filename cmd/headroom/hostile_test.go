@@ -211,3 +211,32 @@ func TestCellClaimsBounded(t *testing.T) {
 		checkClean(t, "at the caps", out)
 	}
 }
+
+// What cells import writes, the readers read: a 50,000-sample log once
+// became a 1.3 MB CSV the 1 MB readers refused. The curve is thinned to at
+// most curves.MaxCurvePoints points, and the message states by how much.
+func TestImportedLogReadsBack(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("time_s,volts\n")
+	n := 50000
+	for i := 0; i < n; i++ {
+		x := float64(i) / float64(n)
+		// A falling alkaline-like log with a 2 mV sawtooth of logger noise.
+		v := 1.6 - 0.5*x - 0.3*x*x*x*x*x*x*x*x + 0.002*float64(i%5)/4
+		fmt.Fprintf(&b, "%.1f,%.4f\n", float64(i)*0.6, v)
+	}
+	dir := writeFiles(t, map[string]string{"log.csv": b.String()})
+	out := filepath.Join(dir, "cell.csv")
+	code, stdout, errs := runCLI(t, "cells", "import", filepath.Join(dir, "log.csv"), "--current", "500mA", "-o", out)
+	if code != 0 || !strings.Contains(stdout, "points (thinned from ") {
+		t.Fatalf("import: %d %s %s", code, stdout, errs)
+	}
+	st, _ := os.Stat(out)
+	if st.Size() > 64<<10 {
+		t.Errorf("imported file is %d bytes; a few hundred points need far less", st.Size())
+	}
+	code, stdout, errs = runCLI(t, "cells", "check", out)
+	if code != 0 || !strings.HasPrefix(stdout, "ok: ") {
+		t.Fatalf("check of the imported file: %d %s %s", code, stdout, errs)
+	}
+}
