@@ -47,7 +47,8 @@ type shared struct {
 
 	res         *discharge.Result // nil when err is set
 	err         error
-	lineupRows  []lineupRow
+	lineupCache []lineupRow // see lineupRows
+	lineupStale bool
 	reverseRows []reverseRow
 }
 
@@ -123,15 +124,27 @@ func (sh *shared) design() discharge.Design {
 	return d
 }
 
-// evaluate runs the engine for the design, the line-up and the reverse
-// view. It takes a few milliseconds at most (BenchmarkKnobStep), so it runs
-// inside Update and the screen never shows a stale verdict.
+// evaluate runs the engine for the design and the reverse view, and marks
+// the line-up for evaluation when it is next looked at. It takes a few
+// milliseconds (BenchmarkKnobStep; BenchmarkKnobStepHostile for the
+// heaviest input the readers accept), so it runs inside Update and the
+// screen never shows a stale verdict.
 func (sh *shared) evaluate() {
 	d := sh.design()
 	d.TracePoints = tracePoints
 	sh.res, sh.err = evaluateFinite(&d)
-	sh.lineupRows = sh.evaluateLineup()
+	sh.lineupCache, sh.lineupStale = nil, true
 	sh.reverseRows = sh.evaluateReverse()
+}
+
+// lineupRows is the line-up for the current design, evaluated on first
+// use after a change: a knob turned on the design view evaluates one
+// design, not one per cell.
+func (sh *shared) lineupRows() []lineupRow {
+	if sh.lineupStale {
+		sh.lineupCache, sh.lineupStale = sh.evaluateLineup(), false
+	}
+	return sh.lineupCache
 }
 
 // evaluateFinite is discharge.Evaluate, with a result holding a number that

@@ -36,7 +36,7 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 		return m, nil
 	}
 	k := m.sh.keys
-	n := len(m.sh.lineupRows)
+	n := len(m.sh.lineupRows())
 	switch {
 	case key.Matches(km, k.Up):
 		m.sel = (m.sel + n - 1) % max(n, 1)
@@ -62,7 +62,7 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 	return m, nil
 }
 
-func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineupRows, m.byRuntime) }
+func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineupRows(), m.byRuntime) }
 
 // selectCurrent puts the selection on the current cell.
 func (m *lineupModel) selectCurrent() {

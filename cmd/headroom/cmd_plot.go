@@ -58,6 +58,11 @@ var palette = []color.RGBA{
 	{240, 228, 66, 255},  // yellow
 }
 
+// maxPlotLines is the most protection options one chart draws: each is
+// an evaluation and two lines, and past a dozen or so they cannot be told
+// apart (20,000 options once took 20 s and 2.25 GB).
+const maxPlotLines = 16
+
 // tracePoints is how many points each curve has: smooth at chart size.
 const tracePoints = 200
 
@@ -91,6 +96,9 @@ func runPlot(c *cli, args []string) error {
 	s, err := loadScenario(pos)
 	if err != nil {
 		return err
+	}
+	if n := len(s.Protects); n > maxPlotLines {
+		return fmt.Errorf("plot: %d protection options; a chart draws at most %d (more could not be told apart): list fewer in [options] protect, or use headroom table", n, maxPlotLines)
 	}
 	data, err := chart(s, byCharge, ext)
 	if err != nil {
