@@ -123,8 +123,8 @@ func (c *Cell) Validate() error {
 		return bad("peukert", "%v must be between 1 and 2", c.Peukert)
 	case !fin(c.SelfDischarge) || c.SelfDischarge < 0 || c.SelfDischarge > 1:
 		return bad("self_discharge", "%v per month must be between 0 and 1", c.SelfDischarge)
-	case !fin(c.Price) || c.Price < 0 || c.Price > guard.MaxPrice:
-		return bad("price", "%v must be 0 to %.0f dollars", c.Price, guard.MaxPrice)
+	case !guard.PriceOK(c.Price):
+		return bad("price", "%v must be 0 or %g to %.0f dollars", c.Price, guard.MinPrice, guard.MaxPrice)
 	case !fin(c.NominalV) || c.NominalV < 0 || c.NominalV > 60:
 		return bad("nominal", "%v V must be 0 to 60 V", c.NominalV)
 	}

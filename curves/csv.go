@@ -46,6 +46,11 @@ func readLines(r io.Reader, name string) ([]textLine, error) {
 		return nil, fmt.Errorf("%s: file is empty", name)
 	}
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf")) // a UTF-8 byte-order mark from spreadsheets
+	// Line ends: LF, CR LF, or CR alone (old spreadsheet exports) all end
+	// a line.
+	if bytes.IndexByte(data, '\r') >= 0 {
+		data = bytes.ReplaceAll(bytes.ReplaceAll(data, []byte("\r\n"), []byte("\n")), []byte("\r"), []byte("\n"))
+	}
 	var out []textLine
 	sc := bufio.NewScanner(bytes.NewReader(data))
 	sc.Buffer(make([]byte, 0, 512), maxLineLen+2)

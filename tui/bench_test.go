@@ -55,8 +55,8 @@ func hostileScenario(tb testing.TB) *scenario.Scenario {
 	fmt.Fprintf(&s, "name = \"heavy\"\ncell = \"long.csv\"\nseries = 2\nload = %q\n", strings.Join(load, ","))
 	for i := range scenario.MaxCells - 1 {
 		fmt.Fprintf(&s, "[[define_cell]]\nid = \"c%d\"\ncurve = [", i)
-		for j := 0; j <= curves.MaxCurvePoints; j++ {
-			x := float64(j) / float64(curves.MaxCurvePoints)
+		for j := 0; j < curves.MaxCurvePoints; j++ {
+			x := float64(j) / float64(curves.MaxCurvePoints-1)
 			fmt.Fprintf(&s, "[%.2f, %.5f],", 2000*x, 1.55-0.5*x-0.3*math.Pow(x, 8))
 		}
 		s.WriteString("]\n")

@@ -240,3 +240,49 @@ func TestImportedLogReadsBack(t *testing.T) {
 		t.Fatalf("check of the imported file: %d %s %s", code, stdout, errs)
 	}
 }
+
+// Nonsense prefixes and values past their range are refused with the
+// flag and the range, and a unit split from its value by the shell is
+// named as such. Each of these once ran (at 100 A, 8,333,333 mAh, a row of
+// 300 zeros) or blamed a file called "V".
+func TestNonsenseValuesRefused(t *testing.T) {
+	dir := writeFiles(t, map[string]string{
+		"log.csv": "t,V\n0,1.5\n60,1.4\n120,1.3\n",
+		"cr.csv":  "mAh,V\r0,1.5\r100,1.4\r200,1.0\r",
+		"ph.toml": "[[phase]]\nload = \"1e-300A\"\nduration = \"1s\"\n",
+	})
+	out := filepath.Join(dir, "cell.csv")
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"run", "--load", "0.0001MA"}, `--load: load: "0.0001MA": the prefix M (×1e+06) makes no sense for a current (A): use p, n, u, m or none`},
+		{[]string{"run", "--load", "2kA/1s,1mA/9s"}, "the prefix k"},
+		{[]string{"run", "--load", "1e-300A"}, "--load: current 1e-300 A: must be 0 or at least 1 pA"},
+		{[]string{"run", "--load", "1e-300W"}, "--load: power 1e-300 W: must be 0 or at least 1 pW"},
+		{[]string{"run", filepath.Join(dir, "ph.toml")}, "[[phase]] 1: current 1e-300 A: must be 0 or at least 1 pA"},
+		{[]string{"run", "--load", strings.Repeat("1mA/1s,", 64) + "1mA/1s"}, "--load: 65 phases: a load profile has at most 64"},
+		{[]string{"cells", "import", filepath.Join(dir, "log.csv"), "--current", "1MA", "-o", out}, `--current: "1MA": the prefix M`},
+		{[]string{"cells", "import", filepath.Join(dir, "log.csv"), "--current", "200A", "-o", out}, `--current: "200A": must be above 0 A and at most 100 A`},
+		{[]string{"run", "--standby", "1e-300A"}, "--standby: standby 1e-300 A: must be 0, or 1 pA to 10 A"},
+		{[]string{"run", "--hours-per-day", "1e-300"}, "--hours-per-day: 1e-300 hours a day: must be at least 1 s and at most 24 h"},
+		{[]string{"run", "--price", "1e-300"}, "--price: price 1e-300: must be 0 or more and at most 1000000 (above 0, at least 0.000001)"},
+		{[]string{"run", "--floor", "1.8", "V"}, `--floor 1.8 V: a value and its unit go together: write --floor 1.8V, or quote them: "1.8 V"`},
+		{[]string{"run", "--load", "2", "A"}, "--load 2 A: a value and its unit go together"},
+		{[]string{"run", "--floor=1.8", "V"}, "--floor=1.8 V: a value and its unit go together: write --floor=1.8V"},
+	}
+	for _, c := range cases {
+		code, stdout, errs := runCLI(t, c.args...)
+		if code != 2 || stdout != "" || !strings.Contains(errs, c.want) {
+			t.Errorf("%q: status %d, stderr %q; want 2 and %q", c.args, code, errs, c.want)
+		}
+	}
+	// A quoted value with a space is fine, and so is a CR-only CSV (it
+	// once read as one line of 5 columns).
+	if code, _, errs := runCLI(t, "run", "--floor", "1.8 V"); code != 0 {
+		t.Errorf("--floor \"1.8 V\": %d %s", code, errs)
+	}
+	if code, stdout, errs := runCLI(t, "cells", "check", filepath.Join(dir, "cr.csv")); code != 0 || !strings.Contains(stdout, "3 points") {
+		t.Errorf("CR-only CSV: %d %s %s", code, stdout, errs)
+	}
+}

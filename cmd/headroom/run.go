@@ -13,6 +13,7 @@ import (
 
 	"headroom/internal/guard"
 	"headroom/internal/scenario"
+	"headroom/internal/units"
 )
 
 // command is one subcommand: its name, synopsis, help text and body.
@@ -222,6 +223,20 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 		}
 		if len(rest) == 0 {
 			return pos, nil
+		}
+		// "--floor 1.8 V": the shell made the unit an argument of its own.
+		if units.IsUnit(rest[0]) && used >= 1 {
+			prev := ""
+			switch {
+			case strings.HasPrefix(args[used-1], "-") && strings.Contains(args[used-1], "="):
+				prev = args[used-1] // --floor=1.8
+			case used >= 2 && strings.HasPrefix(args[used-2], "-") && !strings.Contains(args[used-2], "="):
+				prev = args[used-2] + " " + args[used-1]
+			}
+			if prev != "" {
+				return nil, fmt.Errorf("%s %s: a value and its unit go together: write %s%s, or quote them: \"%s %s\"",
+					prev, rest[0], prev, rest[0], strings.TrimLeft(prev[strings.LastIndexAny(prev, " =")+1:], " "), rest[0])
+			}
 		}
 		pos = append(pos, rest[0])
 		args = rest[1:]

@@ -255,7 +255,15 @@ func CleanLines(s string) string {
 	return strings.Join(ls, "\n")
 }
 
-// MaxPrice is the most any price may be, in dollars: a cell's, a pack's,
-// a protection part's, electricity's per kWh or a budget. Past it a cost
-// per hour or a pack price can overflow to infinity and print as nothing.
-const MaxPrice = 1e6
+// MinPrice and MaxPrice bound any price above 0, in dollars: a cell's, a
+// pack's, electricity's per kWh or a budget. Past MaxPrice a cost per hour
+// or a pack price can overflow to infinity and print as nothing; below
+// MinPrice (a ten-thousandth of a cent) a price is noise that prints as a
+// row of zeros.
+const (
+	MinPrice = 1e-6
+	MaxPrice = 1e6
+)
+
+// PriceOK reports whether v is 0 or between MinPrice and MaxPrice.
+func PriceOK(v float64) bool { return v == 0 || v >= MinPrice && v <= MaxPrice }

@@ -390,6 +390,9 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		}
 		for i, p := range f.Phase {
 			l, err := discharge.ParseLoad(p.Load)
+			if err == nil {
+				err = CheckLoad(l)
+			}
 			if err != nil {
 				return nil, fmt.Errorf("%s: [[phase]] %d: %w", name, i+1, err)
 			}
@@ -584,15 +587,46 @@ func CheckTemp(v float64) error {
 }
 
 func CheckStandby(v float64) error {
-	if v < 0 || v > 10 {
-		return fmt.Errorf("standby %v A: must be 0 to 10 A", v)
+	if !(v == 0 || v >= MinCurrent && v <= 10) {
+		return fmt.Errorf("standby %v A: must be 0, or 1 pA to 10 A", v)
+	}
+	return nil
+}
+
+// MinCurrent is the smallest current above 0 a load, a phase or a standby
+// drain may be, in amperes (1 pA: far below any cell's self-discharge;
+// smaller is noise that prints as a row of zeros). MinPower is the same
+// for a constant-power load, in watts, and MaxOhms the largest load
+// resistance.
+const (
+	MinCurrent = 1e-12
+	MinPower   = 1e-12
+	MaxOhms    = 1e12
+)
+
+// CheckLoad checks a load's demand against the bounds above; the engine's
+// own ranges (discharge.Load.Validate) bound it from the other side.
+func CheckLoad(l discharge.Load) error {
+	switch l.Kind {
+	case discharge.ConstantCurrent:
+		if l.Amps > 0 && l.Amps < MinCurrent {
+			return fmt.Errorf("current %v A: must be 0 or at least 1 pA", l.Amps)
+		}
+	case discharge.ConstantPower:
+		if l.Watts > 0 && l.Watts < MinPower {
+			return fmt.Errorf("power %v W: must be 0 or at least 1 pW", l.Watts)
+		}
+	case discharge.ConstantResistance, discharge.LED:
+		if l.Ohms > MaxOhms {
+			return fmt.Errorf("resistance %v Ω: must be at most 1 TΩ", l.Ohms)
+		}
 	}
 	return nil
 }
 
 func CheckPrice(v float64) error {
-	if !(v >= 0) || v > guard.MaxPrice {
-		return fmt.Errorf("price %v: must be 0 or more and at most %.0f", v, guard.MaxPrice)
+	if !guard.PriceOK(v) {
+		return fmt.Errorf("price %v: must be 0 or more and at most %.0f (above 0, at least %.6f)", v, guard.MaxPrice, guard.MinPrice)
 	}
 	return nil
 }
@@ -634,6 +668,11 @@ func ParseProfile(s string) ([]discharge.Phase, error) {
 	if err != nil {
 		return nil, err
 	}
+	for _, ph := range p {
+		if err := CheckLoad(ph.Load); err != nil {
+			return nil, err
+		}
+	}
 	return p, CheckPhases(len(p))
 }
 
@@ -661,8 +700,8 @@ func ParseHoursPerDay(s string) (float64, error) {
 		v *= 3600 // a bare number means hours here
 	}
 	h := v / 3600
-	if !(h > 0) || h > 24 {
-		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most 24", s)
+	if !(h >= 1.0/3600) || h > 24 {
+		return 0, fmt.Errorf("%s hours a day: must be at least 1 s and at most 24 h", s)
 	}
 	return h, nil
 }
