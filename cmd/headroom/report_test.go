@@ -122,7 +122,7 @@ func TestReportHTMLMatchesRun(t *testing.T) {
 					t.Errorf("%s: run --format json has %T %v", key, w, w)
 				}
 			})
-			for _, id := range []string{"job", "design", "verdict", "chart", "lineup", "reverse", "cautions", "reproduce"} {
+			for _, id := range []string{"job", "design", "verdict", "chart", "figures", "lineup", "reverse", "cautions", "reproduce"} {
 				if !ids[id] {
 					t.Errorf("section %q missing", id)
 				}
