@@ -6,7 +6,10 @@ package tui
 
 import (
 	"fmt"
+	"os"
+	"os/signal"
 	"strings"
+	"syscall"
 
 	"github.com/charmbracelet/bubbles/help"
 	"github.com/charmbracelet/bubbles/key"
@@ -85,14 +88,64 @@ func New(s *scenario.Scenario) Model {
 }
 
 // Run opens the screen on scenario s (nil for the demo) in the terminal's
-// alternate screen and returns when the user quits.
+// alternate screen and returns when the user quits. A hangup, quit,
+// terminate or interrupt signal closes the screen, restores the terminal
+// (main screen, cursor, line mode) and returns a *SignalError.
 func Run(s *scenario.Scenario) error {
-	_, err := tea.NewProgram(New(s), tea.WithAltScreen()).Run()
+	return run(s)
+}
+
+// run is Run with the program's options added (tests give it pipes).
+func run(s *scenario.Scenario, opts ...tea.ProgramOption) error {
+	opts = append([]tea.ProgramOption{tea.WithAltScreen(), tea.WithoutSignalHandler()}, opts...)
+	p := tea.NewProgram(New(s), opts...)
+	sigs := make(chan os.Signal, 1)
+	signal.Notify(sigs, closingSignals...)
+	defer signal.Stop(sigs)
+	caught := make(chan os.Signal, 1)
+	done := make(chan struct{})
+	defer close(done)
+	go func() {
+		select {
+		case sig := <-sigs:
+			caught <- sig
+			p.Kill() // Run restores the terminal on its way out
+		case <-done:
+		}
+	}()
+	_, err := p.Run()
+	select {
+	case sig := <-caught:
+		if n, ok := sig.(syscall.Signal); ok {
+			return &SignalError{Signal: n}
+		}
+		return &SignalError{Signal: syscall.SIGTERM}
+	default:
+	}
 	if err != nil {
 		return fmt.Errorf("interactive screen: %w", err)
 	}
 	return nil
 }
+
+// closingSignals are the signals that close the screen.
+var closingSignals = []os.Signal{syscall.SIGHUP, syscall.SIGINT, syscall.SIGQUIT, syscall.SIGTERM}
+
+// SignalError says the screen was closed by a signal; the command exits
+// with ExitCode, 128 + the signal's number, as shells expect.
+type SignalError struct{ Signal syscall.Signal }
+
+func (e *SignalError) Error() string {
+	name := map[syscall.Signal]string{syscall.SIGHUP: "SIGHUP (the terminal hung up)", syscall.SIGINT: "SIGINT (an interrupt)",
+		syscall.SIGQUIT: "SIGQUIT (a quit)", syscall.SIGTERM: "SIGTERM (a request to stop)"}[e.Signal]
+	if name == "" {
+		name = e.Signal.String()
+	}
+	return "the screen was closed by " + name + "; the design was not saved"
+}
+
+// ExitCode is 128 + the signal's number.
+func (e *SignalError) ExitCode() int { return 128 + int(e.Signal) }
 
 // Result is the engine's verdict for the current design; nil with the
 // reason when the design cannot run.

@@ -1,10 +1,18 @@
 package tui
 
 import (
+	"bytes"
+	"errors"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
+	"syscall"
 	"testing"
+	"time"
+
+	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/internal/scenario"
 	"headroom/protect"
@@ -66,5 +74,69 @@ func TestUpdatePanicRecovers(t *testing.T) {
 	}
 	if !strings.Contains(gm.View(), "the design is as it was") {
 		t.Errorf("no word of the failure on the screen:\n%s", gm.View())
+	}
+}
+
+// syncBuffer is an output the program writes while the test reads.
+type syncBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+func (s *syncBuffer) Write(p []byte) (int, error) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.b.Write(p)
+}
+
+func (s *syncBuffer) String() string {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.b.String()
+}
+
+// Each catchable signal closes the screen with the terminal restored
+// (the alternate screen left, the cursor shown) and a SignalError whose
+// exit code is 128 + the signal. Before, SIGHUP left the alternate screen
+// on, SIGQUIT left the terminal raw and SIGTERM exited 0.
+func TestSignalsRestoreTheTerminal(t *testing.T) {
+	for _, sig := range []syscall.Signal{syscall.SIGHUP, syscall.SIGQUIT, syscall.SIGTERM, syscall.SIGINT} {
+		in, inW := io.Pipe()
+		out := &syncBuffer{}
+		errc := make(chan error, 1)
+		go func() { errc <- run(nil, tea.WithInput(in), tea.WithOutput(out)) }()
+		// Wait for the alternate screen: by then the signals are caught.
+		deadline := time.Now().Add(10 * time.Second)
+		for !strings.Contains(out.String(), "\x1b[?1049h") {
+			if time.Now().After(deadline) {
+				t.Fatalf("%v: no frame drawn: %q", sig, out.String())
+			}
+			time.Sleep(10 * time.Millisecond)
+		}
+		if err := syscall.Kill(os.Getpid(), sig); err != nil {
+			t.Fatal(err)
+		}
+		var err error
+		select {
+		case err = <-errc:
+		case <-time.After(10 * time.Second):
+			t.Fatalf("%v: the screen did not close", sig)
+		}
+		inW.Close()
+		var se *SignalError
+		if !errors.As(err, &se) || se.Signal != sig || se.ExitCode() != 128+int(sig) {
+			t.Fatalf("%v: got %v, want a SignalError with exit code %d", sig, err, 128+int(sig))
+		}
+		o := out.String()
+		// The terminal codes of ECMA-48 / xterm: ?1049l leaves the
+		// alternate screen, ?25h shows the cursor.
+		for _, want := range []string{"\x1b[?1049l", "\x1b[?25h"} {
+			if !strings.Contains(o[strings.LastIndex(o, "\x1b[?1049h"):], want) {
+				t.Errorf("%v: the output does not end with %q restoring the terminal", sig, want)
+			}
+		}
+		if strings.ContainsAny(se.Error(), "\n\x1b") {
+			t.Errorf("%v: message %q is not one plain line", sig, se.Error())
+		}
 	}
 }

@@ -2,12 +2,17 @@ package main
 
 import (
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
 	"unicode"
 	"unicode/utf8"
+
+	"headroom/internal/scenario"
+	"headroom/tui"
 )
 
 // tomlString writes s as a TOML basic string, every rune that is not
@@ -284,5 +289,22 @@ func TestNonsenseValuesRefused(t *testing.T) {
 	}
 	if code, stdout, errs := runCLI(t, "cells", "check", filepath.Join(dir, "cr.csv")); code != 0 || !strings.Contains(stdout, "3 points") {
 		t.Errorf("CR-only CSV: %d %s %s", code, stdout, errs)
+	}
+}
+
+// A signal that closes the screen exits 128 + its number with one plain
+// line (SIGTERM once exited 0; SIGINT printed "program was killed: program
+// was interrupted").
+func TestScreenSignalExitCode(t *testing.T) {
+	savedOpen, savedTerm := openScreen, isTerminal
+	defer func() { openScreen, isTerminal = savedOpen, savedTerm }()
+	isTerminal = func(io.Writer) bool { return true }
+	for _, sig := range []syscall.Signal{syscall.SIGHUP, syscall.SIGINT, syscall.SIGQUIT, syscall.SIGTERM} {
+		openScreen = func(*scenario.Scenario, io.Writer) error { return &tui.SignalError{Signal: sig} }
+		code, out, errs := runCLI(t)
+		if code != 128+int(sig) || out != "" || strings.Count(errs, "\n") != 1 ||
+			!strings.Contains(errs, "the screen was closed by SIG") || strings.Contains(errs, "program was") {
+			t.Errorf("%v: status %d, stderr %q; want %d and one plain line", sig, code, errs, 128+int(sig))
+		}
 	}
 }

@@ -14,6 +14,7 @@ import (
 	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
+	"headroom/tui"
 )
 
 // command is one subcommand: its name, synopsis, help text and body.
@@ -70,7 +71,13 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
 		}
 	}()
 	c := &cli{stdin: stdin, stdout: stdout, stderr: stderr, terminal: isTerminal(stdout)}
-	if err := c.dispatch(args); err != nil {
+	err := c.dispatch(args)
+	var se *tui.SignalError
+	if errors.As(err, &se) {
+		fmt.Fprintf(stderr, "headroom: %s\n", se)
+		return se.ExitCode()
+	}
+	if err != nil {
 		fmt.Fprintf(stderr, "headroom: %s\n", oneLine(err.Error()))
 		return 2
 	}
