@@ -199,6 +199,13 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.view = screenDesign
 		m.knobs.sel = knobCell
 		return m, nil
+	case lineupMsg:
+		m.takeLineup(msg)
+		if m.view == screenLineup {
+			m.lineup.selectCurrent()
+			return m, m.lineupCmd() // the design changed meanwhile
+		}
+		return m, nil
 	case tea.KeyMsg:
 		return m.key(msg)
 	}
@@ -248,23 +255,17 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.save, cmd = m.save.Start()
 		return m, cmd
 	case key.Matches(km, k.NextView):
-		m.show((m.view + 1) % screenCount)
-		return m, nil
+		return m, m.show((m.view + 1) % screenCount)
 	case key.Matches(km, k.PrevView):
-		m.show((m.view + screenCount - 1) % screenCount)
-		return m, nil
+		return m, m.show((m.view + screenCount - 1) % screenCount)
 	case key.Matches(km, k.Design):
-		m.show(screenDesign)
-		return m, nil
+		return m, m.show(screenDesign)
 	case key.Matches(km, k.Lineup):
-		m.show(screenLineup)
-		return m, nil
+		return m, m.show(screenLineup)
 	case key.Matches(km, k.Reverse):
-		m.show(screenReverse)
-		return m, nil
+		return m, m.show(screenReverse)
 	case key.Matches(km, k.Back):
-		m.show(screenDesign)
-		return m, nil
+		return m, m.show(screenDesign)
 	}
 	switch m.view {
 	case screenLineup:
@@ -277,18 +278,22 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	return m, cmd
 }
 
-// show switches to view s with its selection on what is in use.
-func (m *Model) show(s screen) {
+// show switches to view s with its selection on what is in use; the
+// command, if any, evaluates the line-up off the key path.
+func (m *Model) show(s screen) tea.Cmd {
 	if s == m.view {
-		return
+		return nil
 	}
 	m.view = s
+	var cmd tea.Cmd
 	switch s {
 	case screenLineup:
+		cmd = m.lineupCmd()
 		m.lineup.selectCurrent()
 	case screenReverse:
 		m.reverse.selectCurrent()
 	}
+	return cmd
 }
 
 // View draws the screen; if drawing panics it says so in plain text and

@@ -4,8 +4,11 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"sync"
+
+	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/curves"
 	"headroom/discharge"
@@ -47,8 +50,10 @@ type shared struct {
 
 	res         *discharge.Result // nil when err is set
 	err         error
-	lineupCache []lineupRow // see lineupRows
-	lineupStale bool
+	lineupCache   []lineupRow // see lineupRows and lineupCmd
+	lineupStale   bool        // the cache is not for the current design
+	lineupGen     int         // counts design changes
+	lineupPending bool        // a line-up is being evaluated off the key path
 	reverseRows []reverseRow
 }
 
@@ -134,17 +139,69 @@ func (sh *shared) evaluate() {
 	d.TracePoints = tracePoints
 	sh.res, sh.err = evaluateFinite(&d)
 	sh.lineupCache, sh.lineupStale = nil, true
+	sh.lineupGen++
 	sh.reverseRows = sh.evaluateReverse()
 }
 
-// lineupRows is the line-up for the current design, evaluated on first
-// use after a change: a knob turned on the design view evaluates one
-// design, not one per cell.
+// lineupRows is the line-up for the current design, evaluated now if it is
+// stale: a knob turned on the design view evaluates one design, not one
+// per cell.
 func (sh *shared) lineupRows() []lineupRow {
 	if sh.lineupStale {
 		sh.lineupCache, sh.lineupStale = sh.evaluateLineup(), false
 	}
 	return sh.lineupCache
+}
+
+// lineupReady is the line-up if it is up to date, nil while it is being
+// evaluated.
+func (sh *shared) lineupReady() []lineupRow {
+	if sh.lineupStale {
+		return nil
+	}
+	return sh.lineupCache
+}
+
+// lineupSyncWork is the most work (curve and resistance points of every
+// cell times load phases) the line-up is evaluated for inside a key press:
+// about 20 ms on the project's 2-core machine. Past it (a scenario with
+// many long cells and a long profile; BenchmarkLineupHostile) it is
+// evaluated off the key path and shown when done, so a key never waits.
+const lineupSyncWork = 20000
+
+// lineupMsg carries a line-up evaluated off the key path for design
+// change gen.
+type lineupMsg struct {
+	gen  int
+	rows []lineupRow
+}
+
+// lineupCmd brings the line-up up to date: now when it is cheap, or as a
+// command whose lineupMsg Update takes in.
+func (sh *shared) lineupCmd() tea.Cmd {
+	if !sh.lineupStale || sh.lineupPending {
+		return nil
+	}
+	work := 0
+	for _, c := range sh.cells {
+		work += c.Curve.Len() + len(c.Resistance)
+	}
+	if work*len(sh.profile()) <= lineupSyncWork {
+		sh.lineupRows()
+		return nil
+	}
+	sh.lineupPending = true
+	base, cells, cur, gen := sh.design(), slices.Clone(sh.cells), sh.vals.cell, sh.lineupGen
+	return func() tea.Msg { return lineupMsg{gen: gen, rows: lineupFor(base, cells, cur)} }
+}
+
+// takeLineup stores a line-up evaluated off the key path, if it is for
+// the current design, and says whether another is needed.
+func (sh *shared) takeLineup(msg lineupMsg) {
+	sh.lineupPending = false
+	if msg.gen == sh.lineupGen {
+		sh.lineupCache, sh.lineupStale = msg.rows, false
+	}
 }
 
 // evaluateFinite is discharge.Evaluate, with a result holding a number that
@@ -206,8 +263,13 @@ var errNoFit = errors.New("no series count fits this product's voltage")
 // evaluateLineup evaluates every cell for the current pack counts, load,
 // protection and floor, on as many goroutines as there are cores to spare.
 func (sh *shared) evaluateLineup() []lineupRow {
-	base := sh.design()
-	rows := make([]lineupRow, len(sh.cells))
+	return lineupFor(sh.design(), sh.cells, sh.vals.cell)
+}
+
+// lineupFor evaluates every cell of cells for design base, whose own cell
+// is cells[cur]. It only reads its arguments, so it may run beside Update.
+func lineupFor(base discharge.Design, cells []*curves.Cell, cur int) []lineupRow {
+	rows := make([]lineupRow, len(cells))
 	var wg sync.WaitGroup
 	const workers = 2
 	for w := range workers {
@@ -216,8 +278,8 @@ func (sh *shared) evaluateLineup() []lineupRow {
 			defer wg.Done()
 			for i := w; i < len(rows); i += workers {
 				d := base
-				d.Cell = sh.cells[i]
-				if i != sh.vals.cell {
+				d.Cell = cells[i]
+				if i != cur {
 					// Another chemistry in the series count that fits this
 					// product's voltage (the rule compare uses), at its own price.
 					d.PackPrice = 0

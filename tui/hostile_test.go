@@ -140,3 +140,31 @@ func TestSignalsRestoreTheTerminal(t *testing.T) {
 		}
 	}
 }
+
+// On the heaviest input the readers accept, the line-up key returns at
+// once with the line-up evaluated off the key path, and the rows arrive
+// as a message; a design change meanwhile makes the late rows stale.
+func TestHeavyLineupOffTheKeyPath(t *testing.T) {
+	var m tea.Model = New(hostileScenario(t))
+	m, _ = m.Update(tea.WindowSizeMsg{Width: 120, Height: 40})
+	m, cmd := m.Update(runes("2"))
+	if cmd == nil {
+		t.Fatal("no command: the heavy line-up was evaluated inside the key press")
+	}
+	if v := m.View(); !strings.Contains(v, "Evaluating") {
+		t.Fatalf("while evaluating, the view says:\n%s", v)
+	}
+	m = press(m, keyDown, runes("o")) // keys while waiting do nothing harmful
+	msg := cmd()
+	m, _ = m.Update(msg)
+	mm := m.(Model)
+	if rows := mm.lineupReady(); len(rows) != len(mm.cells) {
+		t.Fatalf("%d rows after the message, want %d", len(rows), len(mm.cells))
+	}
+	// A result for an older design is not shown.
+	mm.evaluate()
+	m, _ = mm.Update(msg)
+	if m.(Model).lineupReady() != nil {
+		t.Error("a stale line-up was taken")
+	}
+}

@@ -36,7 +36,10 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 		return m, nil
 	}
 	k := m.sh.keys
-	n := len(m.sh.lineupRows())
+	n := len(m.sh.lineupReady())
+	if n == 0 {
+		return m, nil // still being evaluated
+	}
 	switch {
 	case key.Matches(km, k.Up):
 		m.sel = (m.sel + n - 1) % max(n, 1)
@@ -62,7 +65,7 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 	return m, nil
 }
 
-func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineupRows(), m.byRuntime) }
+func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineupReady(), m.byRuntime) }
 
 // selectCurrent puts the selection on the current cell.
 func (m *lineupModel) selectCurrent() {
@@ -90,6 +93,10 @@ func (m lineupModel) View() string {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	rows := m.rows()
+	if rows == nil {
+		b.WriteString("\n" + st.Dim.Render(fmt.Sprintf("Evaluating %d cells for this design…", len(sh.cells))))
+		return b.String()
+	}
 	maxRun := 0.0
 	for _, r := range rows {
 		if r.err == nil {
