@@ -48,13 +48,13 @@ type shared struct {
 	vals    values
 	saveDir string // folder a relative save name is written in; "" is the working folder
 
-	res         *discharge.Result // nil when err is set
-	err         error
+	res           *discharge.Result // nil when err is set
+	err           error
 	lineupCache   []lineupRow // see lineupRows and lineupCmd
 	lineupStale   bool        // the cache is not for the current design
 	lineupGen     int         // counts design changes
 	lineupPending bool        // a line-up is being evaluated off the key path
-	reverseRows []reverseRow
+	reverseRows   []reverseRow
 }
 
 // newShared builds the state for scenario s.
