@@ -51,7 +51,8 @@ func fileSafe(s string) string {
 			s = s[:100]
 		}
 	}
-	if s == "" || s == "." || s == ".." {
+	s = strings.TrimSpace(s) // references to cells are trimmed
+	if s == "" || s == "." || s == ".." || strings.HasPrefix(s, "-") {
 		s = "x"
 	}
 	return s
