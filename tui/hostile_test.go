@@ -168,3 +168,23 @@ func TestHeavyLineupOffTheKeyPath(t *testing.T) {
 		t.Error("a stale line-up was taken")
 	}
 }
+
+// The cell field refuses a deeply nested cell file on its shape (it once
+// froze the screen for 30 s) and keeps the design.
+func TestCellFieldRefusesDeepTOML(t *testing.T) {
+	dir := t.TempDir()
+	p := filepath.Join(dir, "deep.toml")
+	deep := "id = \"x\"\nx = " + strings.Repeat("{a=", 10000) + "1" + strings.Repeat("}", 10000) + "\n"
+	if err := os.WriteFile(p, []byte(deep), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	m := New(nil)
+	before := m.vals
+	err := m.setText(knobCell, p)
+	if err == nil || !strings.Contains(err.Error(), "refuses the file before reading it") {
+		t.Fatalf("cell field: %v", err)
+	}
+	if m.vals != before {
+		t.Error("the refused file changed the design")
+	}
+}

@@ -304,7 +304,10 @@ func (sh *shared) setText(k knob, s string) error {
 	case knobCell:
 		c, err := sh.scen.ResolveCell(s)
 		if err != nil {
-			c, err = sh.scen.ResolveCell(strings.ToLower(s))
+			// "LR6" for lr6; a file's own error stands when that fails too.
+			if lc, lerr := sh.scen.ResolveCell(strings.ToLower(s)); lerr == nil {
+				c, err = lc, nil
+			}
 		}
 		if err != nil {
 			return err
