@@ -11,6 +11,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/curves"
+	"headroom/discharge"
 	"headroom/internal/scenario"
 )
 
@@ -48,7 +49,7 @@ func hostileScenario(tb testing.TB) *scenario.Scenario {
 		tb.Fatal(err)
 	}
 	var load []string
-	for i := range scenario.MaxPhases {
+	for i := range discharge.MaxPhases {
 		load = append(load, fmt.Sprintf("%dmA/%ds", 20+7*(i%13), 1+i%5))
 	}
 	var s strings.Builder
@@ -115,6 +116,6 @@ func BenchmarkLineupHostile(b *testing.B) {
 func BenchmarkLineupBackgroundHostile(b *testing.B) {
 	m := New(hostileScenario(b))
 	for b.Loop() {
-		lineupFor(m.design(), m.cells, m.vals.cell)
+		lineupFor(m.design(), m.cells)
 	}
 }

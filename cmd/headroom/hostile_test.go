@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"os"
@@ -297,13 +298,14 @@ func TestNonsenseValuesRefused(t *testing.T) {
 // line (SIGTERM once exited 0; SIGINT printed "program was killed: program
 // was interrupted").
 func TestScreenSignalExitCode(t *testing.T) {
-	savedOpen, savedTerm := openScreen, isTerminal
-	defer func() { openScreen, isTerminal = savedOpen, savedTerm }()
-	isTerminal = func(io.Writer) bool { return true }
 	for _, sig := range []syscall.Signal{syscall.SIGHUP, syscall.SIGINT, syscall.SIGQUIT, syscall.SIGTERM} {
-		openScreen = func(*scenario.Scenario, io.Writer) error { return &tui.SignalError{Signal: sig} }
-		code, out, errs := runCLI(t)
-		if code != 128+int(sig) || out != "" || strings.Count(errs, "\n") != 1 ||
+		var out, errb bytes.Buffer
+		c := newCLI(strings.NewReader(""), &out, &errb)
+		c.terminal = true
+		c.openScreen = func(*scenario.Scenario, io.Writer) error { return &tui.SignalError{Signal: sig} }
+		code := c.main(nil)
+		errs := errb.String()
+		if code != 128+int(sig) || out.Len() != 0 || strings.Count(errs, "\n") != 1 ||
 			!strings.Contains(errs, "the screen was closed by SIG") || strings.Contains(errs, "program was") {
 			t.Errorf("%v: status %d, stderr %q; want %d and one plain line", sig, code, errs, 128+int(sig))
 		}

@@ -8,9 +8,7 @@ import (
 	_ "embed"
 	"errors"
 	"fmt"
-	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"regexp"
 	"slices"
@@ -21,6 +19,7 @@ import (
 	"headroom/curves"
 	"headroom/discharge"
 	"headroom/internal/guard"
+	"headroom/internal/limited"
 	"headroom/internal/units"
 	"headroom/protect"
 )
@@ -210,28 +209,9 @@ func Demo() *Scenario {
 
 // Load reads a scenario file.
 func Load(path string) (*Scenario, error) {
-	st, err := os.Stat(path)
+	data, err := limited.ReadFile(path, MaxFileSize, "a scenario file (.toml)")
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
-	}
-	if st.IsDir() {
-		return nil, fmt.Errorf("%s: is a directory, expected a scenario file (.toml)", path)
-	}
-	if !st.Mode().IsRegular() {
-		// A FIFO or a device would block the open or the read forever.
-		return nil, fmt.Errorf("%s: not a regular file (%s), expected a scenario file (.toml)", path, st.Mode().Type())
-	}
-	if st.Size() > MaxFileSize {
-		return nil, fmt.Errorf("%s: %d bytes, larger than the %d-byte limit for a scenario file", path, st.Size(), MaxFileSize)
-	}
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
+		return nil, err
 	}
 	s, err := Parse(data, path, filepath.Dir(path))
 	if err != nil {
@@ -242,20 +222,14 @@ func Load(path string) (*Scenario, error) {
 }
 
 // UnwrapPath returns the reason inside an *os.PathError (the path is
-// named in the message already), or err itself.
-func UnwrapPath(err error) error {
-	var pe *os.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
-}
+// named in the message already), or err itself: limited.UnwrapPath.
+func UnwrapPath(err error) error { return limited.UnwrapPath(err) }
 
 // Parse reads a scenario from data; name is used in messages and dir is
 // the folder relative cell paths start from.
 func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if len(data) > MaxFileSize {
-		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file", name, MaxFileSize)
+		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file (.toml)", name, MaxFileSize)
 	}
 	if i := strings.IndexByte(string(data), 0); i >= 0 {
 		return nil, fmt.Errorf("%s: binary data (a NUL byte at offset %d), expected a TOML text file", name, i)
@@ -372,13 +346,13 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	for _, spec := range specs {
 		el, err := protect.Parse(spec)
 		if err != nil {
-			return nil, at("protect", unprefixed(err))
+			return nil, at("protect", protect.Unprefixed(err))
 		}
 		s.Protects = append(s.Protects, el)
 		s.ProtectSpecs = append(s.ProtectSpecs, protect.Short(el))
 	}
 	if d.Protect, err = protect.Parse(s.ProtectSpec); err != nil {
-		return nil, at("protect", unprefixed(err))
+		return nil, at("protect", protect.Unprefixed(err))
 	}
 
 	switch {
@@ -391,7 +365,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		for i, p := range f.Phase {
 			l, err := discharge.ParseLoad(p.Load)
 			if err == nil {
-				err = CheckLoad(l)
+				err = discharge.CheckDemand(l)
 			}
 			if err != nil {
 				return nil, fmt.Errorf("%s: [[phase]] %d: %w", name, i+1, err)
@@ -516,11 +490,9 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	return s, nil
 }
 
-// unprefixed drops the "protect: " that protect's messages start with,
-// which at adds already with the file and line.
-func unprefixed(err error) error {
-	return errors.New(strings.TrimPrefix(err.Error(), "protect: "))
-}
+// FindCell resolves a library id, or a .csv or .toml cell file path
+// relative to the working folder: ResolveCell with no scenario around it.
+func FindCell(ref string) (*curves.Cell, error) { return (&Scenario{}).ResolveCell(ref) }
 
 // ResolveCell finds a cell by library id, by the id of a cell defined in
 // the file, or as a path to a .csv or .toml cell file (relative to the
@@ -556,81 +528,17 @@ func (s *Scenario) ResolveCell(ref string) (*curves.Cell, error) {
 	return c, nil
 }
 
-// Field checks shared by flags, files and screen fields.
+// Field checks shared by flags, files and screen fields. The ranges live
+// in discharge (ranges.go); these name them for the readers here.
 
-func CheckSeries(n int) error {
-	if n < 1 || n > 48 {
-		return fmt.Errorf("%d cells in series: must be 1 to 48", n)
-	}
-	return nil
-}
+func CheckSeries(n int) error      { return discharge.CheckSeries(n) }
+func CheckParallel(n int) error    { return discharge.CheckParallel(n) }
+func CheckFloor(v float64) error   { return discharge.CheckFloor(v) }
+func CheckTemp(v float64) error    { return discharge.CheckTemp(v) }
+func CheckStandby(v float64) error { return discharge.CheckStandby(v) }
+func CheckPrice(v float64) error   { return discharge.CheckPrice(v) }
 
-func CheckParallel(n int) error {
-	if n < 1 || n > 16 {
-		return fmt.Errorf("%d strings in parallel: must be 1 to 16", n)
-	}
-	return nil
-}
-
-func CheckFloor(v float64) error {
-	if v < 0 || v > 1000 {
-		return fmt.Errorf("floor %v V: must be 0 to 1000 V", v)
-	}
-	return nil
-}
-
-func CheckTemp(v float64) error {
-	if v < -40 || v > 85 {
-		return fmt.Errorf("ambient %v °C: must be -40 to 85 °C", v)
-	}
-	return nil
-}
-
-func CheckStandby(v float64) error {
-	if !(v == 0 || v >= MinCurrent && v <= 10) {
-		return fmt.Errorf("standby %v A: must be 0, or 1 pA to 10 A", v)
-	}
-	return nil
-}
-
-// MinCurrent is the smallest current above 0 a load, a phase or a standby
-// drain may be, in amperes (1 pA: far below any cell's self-discharge;
-// smaller is noise that prints as a row of zeros). MinPower is the same
-// for a constant-power load, in watts, and MaxOhms the largest load
-// resistance.
-const (
-	MinCurrent = 1e-12
-	MinPower   = 1e-12
-	MaxOhms    = 1e12
-)
-
-// CheckLoad checks a load's demand against the bounds above; the engine's
-// own ranges (discharge.Load.Validate) bound it from the other side.
-func CheckLoad(l discharge.Load) error {
-	switch l.Kind {
-	case discharge.ConstantCurrent:
-		if l.Amps > 0 && l.Amps < MinCurrent {
-			return fmt.Errorf("current %v A: must be 0 or at least 1 pA", l.Amps)
-		}
-	case discharge.ConstantPower:
-		if l.Watts > 0 && l.Watts < MinPower {
-			return fmt.Errorf("power %v W: must be 0 or at least 1 pW", l.Watts)
-		}
-	case discharge.ConstantResistance, discharge.LED:
-		if l.Ohms > MaxOhms {
-			return fmt.Errorf("resistance %v Ω: must be at most 1 TΩ", l.Ohms)
-		}
-	}
-	return nil
-}
-
-func CheckPrice(v float64) error {
-	if !guard.PriceOK(v) {
-		return fmt.Errorf("price %v: must be 0 or more and at most %.0f (above 0, at least %.6f)", v, guard.MaxPrice, guard.MinPrice)
-	}
-	return nil
-}
-
+// CheckScale checks a load scale (a sweep's factor on every phase).
 func CheckScale(v float64) error {
 	if !(v > 0) || v > 1000 {
 		return fmt.Errorf("load scale %v: must be above 0 and at most 1000 (×)", v)
@@ -646,22 +554,18 @@ const MaxCells = 16
 // MaxOptions is the most entries any other [options] list may have.
 const MaxOptions = 1000
 
-// MaxPhases is the most phases one load profile may have: the engine's
-// work on every evaluation grows with them.
-const MaxPhases = 64
-
 // CheckPhases checks the number of phases in a load profile.
 func CheckPhases(n int) error {
-	if n > MaxPhases {
-		return fmt.Errorf("%d phases: a load profile has at most %d", n, MaxPhases)
+	if n > discharge.MaxPhases {
+		return fmt.Errorf("%d phases: a load profile has at most %d", n, discharge.MaxPhases)
 	}
 	return nil
 }
 
 // ParseProfile reads a load or a profile (discharge.ParseProfile) of at
-// most MaxPhases phases.
+// most discharge.MaxPhases phases.
 func ParseProfile(s string) ([]discharge.Phase, error) {
-	if n := strings.Count(s, "/"); n > MaxPhases {
+	if n := strings.Count(s, "/"); n > discharge.MaxPhases {
 		return nil, CheckPhases(n) // refused before parsing a huge string
 	}
 	p, err := discharge.ParseProfile(s)
@@ -669,7 +573,7 @@ func ParseProfile(s string) ([]discharge.Phase, error) {
 		return nil, err
 	}
 	for _, ph := range p {
-		if err := CheckLoad(ph.Load); err != nil {
+		if err := discharge.CheckDemand(ph.Load); err != nil {
 			return nil, err
 		}
 	}
@@ -700,8 +604,8 @@ func ParseHoursPerDay(s string) (float64, error) {
 		v *= 3600 // a bare number means hours here
 	}
 	h := v / 3600
-	if !(h >= 1.0/3600) || h > 24 {
-		return 0, fmt.Errorf("%s hours a day: must be at least 1 s and at most 24 h", s)
+	if discharge.CheckHoursPerDay(h) != nil {
+		return 0, fmt.Errorf("%s hours a day: must be at least 1 s and at most %g h", s, discharge.MaxHoursPerDay)
 	}
 	return h, nil
 }
