@@ -124,7 +124,7 @@ func (c *Cell) Validate() error {
 	case !fin(c.SelfDischarge) || c.SelfDischarge < 0 || c.SelfDischarge > 1:
 		return bad("self_discharge", "%v per month must be between 0 and 1", c.SelfDischarge)
 	case !guard.PriceOK(c.Price):
-		return bad("price", "%v must be 0 or %g to %.0f dollars", c.Price, guard.MinPrice, guard.MaxPrice)
+		return bad("price", "%v must be 0 to %.0f dollars (above 0, at least %.6f)", c.Price, guard.MaxPrice, guard.MinPrice)
 	case !fin(c.NominalV) || c.NominalV < 0 || c.NominalV > 60:
 		return bad("nominal", "%v V must be 0 to 60 V", c.NominalV)
 	}

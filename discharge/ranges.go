@@ -68,7 +68,7 @@ func CheckTemp(v float64) error {
 // CheckStandby checks a standby current.
 func CheckStandby(v float64) error {
 	if !(v == 0 || v >= MinStandbyA && v <= MaxStandbyA) {
-		return fmt.Errorf("standby %v A: must be 0, or 1 pA to %g A", v, MaxStandbyA)
+		return fmt.Errorf("standby %v A: must be 0 to %g A (above 0, at least 1 pA)", v, MaxStandbyA)
 	}
 	return nil
 }
@@ -85,7 +85,7 @@ func CheckPrice(v float64) error {
 // MaxHoursPerDay (a Design also takes 0 for continuous use).
 func CheckHoursPerDay(h float64) error {
 	if !(h >= MinHoursPerDay && h <= MaxHoursPerDay) {
-		return fmt.Errorf("%v hours a day: must be at least 1 s and at most %g h", h, MaxHoursPerDay)
+		return fmt.Errorf("%v hours a day: must be above 0 and at most %g (at least 1 s)", h, MaxHoursPerDay)
 	}
 	return nil
 }

@@ -605,7 +605,7 @@ func ParseHoursPerDay(s string) (float64, error) {
 	}
 	h := v / 3600
 	if discharge.CheckHoursPerDay(h) != nil {
-		return 0, fmt.Errorf("%s hours a day: must be at least 1 s and at most %g h", s, discharge.MaxHoursPerDay)
+		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most %g (at least 1 s)", s, discharge.MaxHoursPerDay)
 	}
 	return h, nil
 }
