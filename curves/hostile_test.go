@@ -1,6 +1,7 @@
 package curves
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"strings"
@@ -104,5 +105,48 @@ func TestLongCSVThinnedOnLoad(t *testing.T) {
 	short, err := ReadCSV(strings.NewReader("mAh,V\n0,1.5\n1,1.4\n2,1.3\n"), "short.csv")
 	if err != nil || short.Curve.Len() != 3 || short.Thinned != nil {
 		t.Fatalf("short file: %v, %+v", err, short)
+	}
+}
+
+// What headroom writes, headroom reads back: a cell with long curve and
+// resistance tables is thinned so that its CSV (the union of both tables'
+// points) reads back unthinned, to the same voltages.
+func TestThinnedCellRoundTrips(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("curve = [")
+	for i := 0; i < 190; i++ {
+		x := float64(i) / 189
+		fmt.Fprintf(&b, "[%.4f, %.6f],", 2000*x, 1.55-0.5*x-0.3*math.Pow(x, 9))
+	}
+	b.WriteString("]\nref_current = 0.1\nresistance = [")
+	for i := 0; i < 190; i++ {
+		x := float64(i) / 189
+		fmt.Fprintf(&b, "[%.6f, %.5f],", x, 0.1+0.3*x*x)
+	}
+	b.WriteString("]\n")
+	c, err := ReadCellTOML(strings.NewReader(b.String()), "both.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.Curve.Len()+len(c.Resistance) > MaxCurvePoints {
+		t.Fatalf("%d + %d points kept", c.Curve.Len(), len(c.Resistance))
+	}
+	var csv bytes.Buffer
+	if err := WriteCSV(&csv, c); err != nil {
+		t.Fatal(err)
+	}
+	back, err := ReadCSV(&csv, "both.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Thinned != nil {
+		t.Fatalf("the written file was thinned again on reading: %+v", back.Thinned)
+	}
+	for i := 0; i < c.Curve.Len(); i++ {
+		q, _ := c.Curve.Point(i)
+		// 1e-9 V: WriteCSV adds RefCurrent·R and the reader subtracts it.
+		if v0, v1 := c.Terminal(q, c.RefCurrent, RefTempC), back.Terminal(q, c.RefCurrent, RefTempC); math.Abs(v0-v1) > 1e-9 {
+			t.Fatalf("at %v mAh: %v V reads back as %v V", q, v0, v1)
+		}
 	}
 }

@@ -13,8 +13,8 @@ import (
 // ones, and within ThinTolerance volts where that budget allows it (the
 // largest error is stated in Cell.Thinned).
 const (
-	// MaxCurvePoints is the most points a cell's curve or resistance
-	// table keeps after loading.
+	// MaxCurvePoints is the most points a cell's curve and resistance
+	// table keep together after loading.
 	MaxCurvePoints = 200
 	// ThinTolerance is the voltage error, in volts, a thinned curve aims
 	// to stay within: 1 mV, below what a logger resolves on a cell.
@@ -122,26 +122,37 @@ func pick(xs []float64, idx []int) []float64 {
 	return out
 }
 
-// thinCell thins c's curve and resistance table when either is longer
-// than MaxCurvePoints (always, with force, as for an imported log), and
-// records it in c.Thinned. The curve stays valid: a subset of strictly
-// increasing charges and non-rising voltages keeps both properties.
+// thinCell thins c's curve and resistance table when together they hold
+// more than MaxCurvePoints points (the curve always, with force, as for an
+// imported log), and records it in c.Thinned. With a resistance table each
+// gets half the budget, so the CSV WriteCSV makes of the cell (the union of
+// both tables' points) stays within MaxCurvePoints and reads back as it was
+// written. The curve stays valid: a subset of strictly increasing charges
+// and non-rising voltages keeps both properties.
 func thinCell(c *Cell, force bool) {
-	if n := c.Curve.Len(); n > MaxCurvePoints || (force && n > 2) {
-		idx, e := thin(c.Curve.q, c.Curve.v, ThinTolerance, MaxCurvePoints)
+	n, nr := c.Curve.Len(), len(c.Resistance)
+	if n+nr <= MaxCurvePoints && !force {
+		return
+	}
+	budget := MaxCurvePoints
+	if nr > 0 {
+		budget = MaxCurvePoints / 2
+	}
+	if n > budget || (force && n > 2) {
+		idx, e := thin(c.Curve.q, c.Curve.v, ThinTolerance, budget)
 		if len(idx) < n {
 			c.Curve = &Curve{q: pick(c.Curve.q, idx), v: pick(c.Curve.v, idx)}
 			c.Thinned = &Thinning{From: n, ErrV: e}
 		}
 	}
-	if n := len(c.Resistance); n > MaxCurvePoints {
-		d := make([]float64, n)
-		r := make([]float64, n)
+	if nr > MaxCurvePoints/2 {
+		d := make([]float64, nr)
+		r := make([]float64, nr)
 		for i, p := range c.Resistance {
 			d[i], r[i] = p.Depth, p.Ohm
 		}
 		// Resistance to within 1 mΩ where the budget allows.
-		idx, _ := thin(d, r, 0.001, MaxCurvePoints)
+		idx, _ := thin(d, r, 0.001, MaxCurvePoints/2)
 		out := make([]ResistancePoint, len(idx))
 		for i, j := range idx {
 			out[i] = c.Resistance[j]
