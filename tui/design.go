@@ -53,6 +53,7 @@ type shared struct {
 	lineupGen     int         // counts design changes
 	lineupPending bool        // a line-up is being evaluated off the key path
 	reverseRows   []reverseRow
+	spread        spreadState
 }
 
 // newShared builds the state for scenario s.
@@ -136,6 +137,7 @@ func (sh *shared) evaluate() {
 	d := sh.design()
 	d.TracePoints = tracePoints
 	sh.res, sh.err = evaluateFinite(&d)
+	sh.spread.gen++ // the spread shown is now stale; Update starts the next
 	sh.lineupCache, sh.lineupStale = nil, true
 	sh.lineupGen++
 	sh.reverseRows = sh.evaluateReverse()
