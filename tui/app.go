@@ -187,7 +187,10 @@ func (m Model) Update(msg tea.Msg) (res tea.Model, cmd tea.Cmd) {
 	defer func() {
 		if p := recover(); p != nil {
 			m.vals = before
-			m.evaluate()
+			func() {
+				defer func() { _ = recover() }() // the old design's verdict, if it can be had
+				m.evaluate()
+			}()
 			m.knobs.editing = false
 			m.save.state, m.save.failed = saveIdle, true
 			m.save.status = guard.Clean(fmt.Sprintf("That step failed inside headroom (%v); the design is as it was. Press s to save it.", p))

@@ -71,7 +71,7 @@ var prefixes = map[string]float64{
 var sensible = map[Kind][]string{
 	Voltage:    {"n", "u", "m", "k"},
 	Current:    {"p", "n", "u", "m"},
-	Power:      {"n", "u", "m", "k"},
+	Power:      {"p", "n", "u", "m", "k"},
 	Resistance: {"p", "n", "u", "m", "k", "M", "G"},
 	Time:       {"p", "n", "u", "m"},
 	Charge:     {"u", "m"},
