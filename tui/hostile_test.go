@@ -11,8 +11,10 @@ import (
 	"syscall"
 	"testing"
 	"time"
+	"unicode"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 
 	"headroom/internal/scenario"
 	"headroom/protect"
@@ -186,5 +188,42 @@ func TestCellFieldRefusesDeepTOML(t *testing.T) {
 	}
 	if m.vals != before {
 		t.Error("the refused file changed the design")
+	}
+}
+
+// A scenario, a cell and a file named to drive the terminal reach no view
+// with their control characters: once colour is stripped, every view of
+// the screen holds none but line breaks (the header once set the
+// terminal's title).
+func TestScreenShowsNamesClean(t *testing.T) {
+	dir := t.TempDir()
+	bad := "X\x1b]2;pwned\a\u009b2J"
+	path := filepath.Join(dir, "s"+bad+".toml")
+	text := "name = \"X\\u001b]2;pwned\\u0007\\u009b2J\"\nnote = \"n\\u001b[31m\"\ncell = \"own\"\n" +
+		"[[define_cell]]\nid = \"own\"\nname = \"cell\\u001b]0;t\\u0007\"\nchemistry = \"c\\u0007\"\nsource = \"s\\u001b[2K\"\n" +
+		"curve = [[0, 1.5], [1500, 1.1], [2500, 0.9]]\n"
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	s, err := scenario.Load(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m tea.Model = New(s)
+	m, _ = m.Update(tea.WindowSizeMsg{Width: 120, Height: 40})
+	for _, k := range []string{"1", "2", "3", "?"} {
+		m, _ = m.Update(runes(k))
+		v := ansi.Strip(m.View())
+		if k == "1" && !strings.Contains(v, "X]2;pwned2J") {
+			t.Fatalf("the header does not show the cleaned name:\n%s", v)
+		}
+		for i, r := range v {
+			if r != '\n' && unicode.IsControl(r) {
+				t.Fatalf("view %s: control character %U at %d", k, r, i)
+			}
+		}
+		if k == "?" {
+			m, _ = m.Update(runes("?"))
+		}
 	}
 }
