@@ -311,3 +311,41 @@ func TestScreenSignalExitCode(t *testing.T) {
 		}
 	}
 }
+
+// Work stays bounded by what the caps allow: a chart of 20,000 protection
+// options once took 16 s and 1.9 GB, and nothing bounded the cells a
+// scenario could bring to the screen's line-up.
+func TestWorkCaps(t *testing.T) {
+	list := func(n int, s string) string {
+		return "[" + strings.TrimSuffix(strings.Repeat(s+",", n), ",") + "]"
+	}
+	var cells strings.Builder
+	cells.WriteString("cell = \"c0\"\n")
+	for i := range 17 {
+		fmt.Fprintf(&cells, "[[define_cell]]\nid = \"c%d\"\ncurve = [[0, 1.5], [100, 1.0]]\n", i)
+	}
+	dir := writeFiles(t, map[string]string{
+		"plot17.toml":  "[options]\nprotect = " + list(17, `"diode"`) + "\n",
+		"plot16.toml":  "[options]\nprotect = " + list(16, `"diode"`) + "\n",
+		"opts.toml":    "[options]\nprotect = " + list(1001, `"none"`) + "\n",
+		"cells17.toml": cells.String(),
+	})
+	p := func(n string) string { return filepath.Join(dir, n) }
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"plot", p("plot17.toml"), "-o", p("x.svg")}, "plot: 17 protection options; a chart draws at most 16"},
+		{[]string{"table", p("opts.toml")}, "opts.toml:2: options.protect: 1001 entries, at most 1000"},
+		{[]string{"run", p("cells17.toml")}, "cells17.toml: 17 [[define_cell]] tables, at most 16"},
+	}
+	for _, c := range cases {
+		code, out, errs := runCLI(t, c.args...)
+		if code != 2 || out != "" || !strings.Contains(errs, c.want) {
+			t.Errorf("%q: status %d, stderr %q; want 2 and %q", c.args, code, errs, c.want)
+		}
+	}
+	if code, _, errs := runCLI(t, "plot", p("plot16.toml"), "-o", p("y.svg")); code != 0 {
+		t.Errorf("16 options, the most a chart draws: %d %s", code, errs)
+	}
+}
