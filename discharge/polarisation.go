@@ -88,7 +88,8 @@ type polState struct {
 }
 
 func newPolState(n int) *polState {
-	return &polState{worst: make([]float64, n), mean: make([]float64, n), late: make([]float64, n), self: make([]float64, n), cand: make([]float64, 6*n)}
+	f := make([]float64, 10*n)
+	return &polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n:]}
 }
 
 // newPolarisation prepares the branches for phases of durations dur (s,
