@@ -347,7 +347,20 @@ func (c *Cell) SteadyResistance(qs, tempC float64) float64 {
 // (from memory), which headroom leaves out; the cold acts through the
 // resistances and ColdFactor.
 func (c *Cell) OpenCircuit(qs, tempC float64) float64 {
-	return c.Curve.At(qs) + c.RefCurrent*(c.resistanceTable(qs)+c.PolarisationOhms())
+	return c.openCircuit(qs, c.resistanceTable(qs))
+}
+
+// openCircuit is OpenCircuit with the resistance table read at qs given.
+func (c *Cell) openCircuit(qs, table float64) float64 {
+	return c.Curve.At(qs) + c.RefCurrent*(table+c.PolarisationOhms())
+}
+
+// Thevenin is OpenCircuit and ResistanceAt at once, the table read once:
+// the engine asks for both at every charge it solves.
+func (c *Cell) Thevenin(qs, tempC float64) (E, R0 float64) {
+	table := c.resistanceTable(qs)
+	_, fr := c.TempFactors(tempC)
+	return c.openCircuit(qs, table), table * fr
 }
 
 // Terminal is the cell's steady terminal voltage at scaled charge qs,

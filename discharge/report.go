@@ -83,8 +83,9 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 // chemistry's own (curves.Cautions), without the mixing warning for a
 // single cell, and the toy-safety reminder.
 func Cautions(c *curves.Cell, n int) []string {
-	var out []string
-	for _, s := range curves.Cautions(c) {
+	all := curves.Cautions(c)
+	out := make([]string, 0, len(all)+1)
+	for _, s := range all {
 		if n == 1 && strings.HasPrefix(s, "Never mix") {
 			continue
 		}
