@@ -79,6 +79,11 @@ type evaluator struct {
 	// pack's drain: the time since the start that a charge stands for,
 	// for the polarisation of a pack that started rested (0 until known).
 	usePerQ float64
+	// peak0 and peakCut are the element's peak dissipation (rates.peakW)
+	// of the real variant at the fresh pack and at the cut-off, where
+	// the evaluation has already solved them (Known: worked out).
+	peak0, peakCut           float64
+	peak0Known, peakCutKnown bool
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
@@ -115,7 +120,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// a kinder rate factor (a point deeper in the run can fail, or move
 	// with the load).
 	k := d.Cell.Peukert
-	e.solveNode(0, real, nd)
+	r0 := e.rates(0, real, nd) // solves the fresh pack into nd
 	sum := 0.0
 	for j, o := range nd.mean {
 		sum += e.duty * e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
@@ -127,7 +132,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 
 	// The time a charge stands for, from the fresh pack's drain over a
 	// calendar hour and the share of it in use.
-	if rate := e.rates(0, real, nd).calendar; rate > 0 {
+	if rate := r0.calendar; rate > 0 {
 		e.usePerQ = scale / rate * e.duty * 3600
 		// A run that could span twenty sessions or more: the first one's
 		// rested start is a small part of it and is taken as
@@ -135,6 +140,12 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		if e.pol != nil && e.pol.day && e.end*e.usePerQ >= 20*e.pol.hs {
 			e.pol.periodicOnly = true
 		}
+	}
+	// The fresh pack's element peak, for the run's (integrate): the
+	// node above is the same unless the first session is now taken as
+	// day-periodic.
+	if e.pol == nil || !e.pol.periodicOnly {
+		e.peak0, e.peak0Known = r0.peakW, true
 	}
 
 	// The cut-offs, in scaled charge. Each variant
@@ -166,7 +177,12 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	}
 	r.CutoffCause = fail
 	r.CutoffPhase = d.Profile[ph].Label()
-	e.solveNode(math.Min(qsCut, e.end), real, nd)
+	if qsCut < e.end {
+		// (The element's peak there is the run's last: kept for integrate.)
+		e.peakCut, e.peakCutKnown = e.rates(qsCut, real, nd).peakW, true
+	} else {
+		e.solveNode(e.end, real, nd)
+	}
 	o := nd.worst[ph]
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = o.Vload, o.Vin, o.I
 	switch fail {
