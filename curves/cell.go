@@ -297,6 +297,7 @@ type rateGrid struct {
 	cref float64
 	x    float64   // the next grid current
 	raw  []float64 // rawRate at the grid's currents so far
+	src  *SourceTable
 }
 
 // rateInputs are the cell's fields RateFactor reads (the curve's points
@@ -354,7 +355,7 @@ func (gc *rateGridCache) of(c *Cell) *rateGrid {
 	iref := c.rateRef()
 	in := inputsOf(c)
 	in.res, in.rc, in.temp = slices.Clone(in.res), slices.Clone(in.rc), slices.Clone(in.temp)
-	g := &rateGrid{in: in, cref: c.EndCharge(iref, RefTempC), x: iref / LightLoadSpan}
+	g := &rateGrid{in: in, cref: c.EndCharge(iref, RefTempC), x: iref / LightLoadSpan, src: newSourceTable(c)}
 	gc.m[c] = g
 	return g
 }
@@ -435,14 +436,6 @@ func (c *Cell) OpenCircuit(qs, tempC float64) float64 {
 // openCircuit is OpenCircuit with the resistance table read at qs given.
 func (c *Cell) openCircuit(qs, table float64) float64 {
 	return c.Curve.At(qs) + c.RefCurrent*(table+c.PolarisationOhms())
-}
-
-// Thevenin is OpenCircuit and ResistanceAt at once, the table read once:
-// the engine asks for both at every charge it solves.
-func (c *Cell) Thevenin(qs, tempC float64) (E, R0 float64) {
-	table := c.resistanceTable(qs)
-	_, fr := c.TempFactors(tempC)
-	return c.openCircuit(qs, table), table * fr
 }
 
 // Terminal is the cell's steady terminal voltage at scaled charge qs,
