@@ -110,10 +110,17 @@ type Result struct {
 	DeliveredMAh float64 // charge drawn from the pack until cut-off (load, standby, element drain, self-discharge)
 	DeliveredWh  float64 // energy delivered into the load
 
-	ReferenceMAh            float64 // the cells at this load to their end-point, no element, no floor
-	StrandedMAh             float64 // ReferenceMAh − DeliveredMAh
-	StrandedByProtectionMAh float64 // cut-off charge without the element minus with it
-	StrandedByFloorMAh      float64 // the rest of StrandedMAh
+	// ReferenceMAh is what the cells give at this load and ambient to
+	// their end-point with no element and no floor; it depends on nothing
+	// the designer puts between the cells and the load. StrandedMAh is
+	// ReferenceMAh − DeliveredMAh, split between the element and the floor
+	// by the mean of both orders of removing them (stranded.go). Not
+	// clamped: an element that lowers a resistive load's current can let
+	// the cells run longer, and then its share (and the total) is negative.
+	ReferenceMAh            float64
+	StrandedMAh             float64
+	StrandedByProtectionMAh float64
+	StrandedByFloorMAh      float64
 
 	ProtectionLossWh float64 // energy burnt in the element (drop and standing drain)
 	CellLossWh       float64 // energy burnt in the cells' internal resistance
@@ -129,6 +136,7 @@ type Result struct {
 	CostPerHour float64 // dollars per hour of use; 0 when the runtime is 0
 
 	CutoffPhase string  // label of the phase that failed first
+	CutoffIndex int     // index in Design.Profile of that phase (labels can repeat)
 	CutoffCause Cause   // why
 	CutoffLoadV float64 // load voltage of that phase just before cut-off
 	CutoffPackV float64 // pack terminal voltage of that phase just before cut-off

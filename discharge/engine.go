@@ -476,8 +476,6 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	e.self = e.selfDischarge()
 
 	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor}
-	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor}
-	ref := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
 	buf := make([]op, len(e.loads))
 
 	// Rate effect: one effective per-cell current at half depth, the
@@ -497,16 +495,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	r.FreshV = E0
 	r.QuiescentA = el.Quiescent(E0, d.TempC)
 
-	// Each variant asks less of the pack than the one before, so its scan
-	// resumes near the previous cut-off; without an element the bare
-	// variant is the real one.
 	qsCut := e.cutoff(real, buf, 0)
-	qsBare := qsCut
-	if _, none := el.(protect.None); !none {
-		qsBare = e.cutoff(bare, buf, qsCut)
-	}
-	qsRef := e.cutoff(ref, buf, qsBare)
-
 	// Cut-off cause: the first failure just past the cut.
 	past := math.Min(qsCut+1e-9*e.end, e.end)
 	if qsCut == 0 {
@@ -518,6 +507,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	}
 	r.CutoffCause = fail
 	r.CutoffPhase = d.Profile[ph].Label()
+	r.CutoffIndex = ph
 	e.phases(qsCut, real, buf)
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = buf[ph].Vload, buf[ph].Vin, buf[ph].I
 	// A hopeless design can solve to negative volts: report what a meter
@@ -525,15 +515,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	r.CutoffLoadV = math.Max(r.CutoffLoadV, 0)
 	r.CutoffPackV = math.Max(r.CutoffPackV, 0)
 
-	// Charges, in pack mAh; see Result for the reference's definition.
-	qA := qsCut * scale
-	qB := math.Max(qsBare*scale, qA)
-	qC := math.Max(qsRef*scale, qB)
-	r.DeliveredMAh = qA
-	r.StrandedByProtectionMAh = qB - qA
-	r.StrandedByFloorMAh = qC - qB
-	r.StrandedMAh = qC - qA
-	r.ReferenceMAh = qC
+	e.strandedSplit(el, qsCut, scale, r, buf) // stranded.go
 
 	e.integrate(real, qsCut, scale, r, buf)
 	if !finite(r.RuntimeH) || !finite(r.DeliveredWh) || !finite(r.ProtectionLossWh) || !finite(r.CellLossWh) {

@@ -24,8 +24,8 @@ func (d *Design) cutoffText(r *Result) string {
 	what := "the " + r.CutoffPhase + " phase"
 	if ph != nil {
 		heaviest := true
-		for _, q := range d.Profile {
-			if q.Load.Label() != ph.Load.Label() && q.Demand() > ph.Demand() {
+		for j, q := range d.Profile {
+			if j != r.CutoffIndex && q.Demand() > ph.Demand() {
 				heaviest = false
 			}
 		}
@@ -68,12 +68,11 @@ func (d *Design) cutoffText(r *Result) string {
 	return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V) on %s", r.CutoffPackV, what)
 }
 
-// cutoffPhase is the profile phase the result names, or nil.
+// cutoffPhase is the profile phase the result names, or nil. It goes by
+// index: two phases can carry the same label.
 func (d *Design) cutoffPhase(r *Result) *Phase {
-	for i := range d.Profile {
-		if d.Profile[i].Label() == r.CutoffPhase {
-			return &d.Profile[i]
-		}
+	if i := r.CutoffIndex; i >= 0 && i < len(d.Profile) {
+		return &d.Profile[i]
 	}
 	return nil
 }

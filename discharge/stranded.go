@@ -1,0 +1,121 @@
+package discharge
+
+import (
+	"math"
+
+	"headroom/protect"
+)
+
+// Stranded charge and its split between the protection element and the
+// floor.
+//
+// Four runs of the same cells and load are compared, each to its own
+// cut-off, in pack mAh:
+//
+//	qEF  with the element and the floor (the design as built: delivered)
+//	q0F  without the element, with the floor
+//	qE0  with the element, without the floor
+//	q00  with neither: the reference
+//
+// Stranded = q00 − qEF. Removing the element first and then the floor gives
+// (q0F − qEF) to the element and (q00 − q0F) to the floor; removing the
+// floor first gives (qE0 − qEF) to the floor and (q00 − qE0) to the
+// element. The two orders disagree whenever the causes interact (a drop
+// that makes the floor bite sooner), so headroom gives each cause the mean
+// of its two shares (the Shapley value of a two-player game, Shapley 1953):
+//
+//	by protection = ½·[(q0F − qEF) + (q00 − qE0)]
+//	by the floor  = ½·[(qE0 − qEF) + (q00 − q0F)]
+//
+// which add up to q00 − qEF exactly and do not depend on an order. Nothing
+// is clamped: an element that lowers a resistive load's current can let
+// the cells run longer, and then its share is negative (it recovers
+// charge), as can the stranded total.
+//
+// Each run's charge is its cut-off on the curve times its own capacity
+// scale (parallel strings times the rate and temperature factor at the
+// currents that run draws), so the reference depends on the cells, the
+// load, the ambient and nothing the designer puts between them.
+
+// strandedSplit computes the three cut-offs other than the design's own
+// (qsCut, scaled charge; scale, pack mAh per scaled mAh) and fills the
+// delivered, reference and stranded charges of r.
+func (e *evaluator) strandedSplit(el protect.Element, qsCut, scale float64, r *Result, buf []op) {
+	d := e.d
+	_, none := el.(protect.None)
+	noEl := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor}
+	noFloor := &variant{el: el, lim: el.Limit(d.TempC), floor: 0}
+	neither := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
+
+	// Each scan resumes near a cut-off already found; cutoff starts over
+	// from zero when the run it is given does not work there (removing
+	// the element can shorten a run).
+	qs0F, qsE0 := qsCut, e.cutoff(noFloor, buf, qsCut)
+	if !none {
+		qs0F = e.cutoff(noEl, buf, qsCut)
+	}
+	qs00 := qsE0
+	if !none {
+		qs00 = e.cutoff(neither, buf, qs0F)
+	}
+
+	scale0 := scale
+	if !none {
+		scale0 = e.capacityScale(neither, buf)
+	}
+	qEF, qE0 := qsCut*scale, qsE0*scale
+	q0F, q00 := qs0F*scale0, qs00*scale0
+
+	// Differences of cut-offs that agree to the search's resolution (1e-12
+	// of the curve, times a few roundings) are no charge anyone stranded:
+	// they are set to zero, and the reference is then delivered + stranded
+	// exactly (it moves by at most 2e-9 of the curve).
+	tiny := 1e-9 * math.Max(q00, e.end*scale)
+	snap := func(x float64) float64 {
+		if math.Abs(x) <= tiny {
+			return 0
+		}
+		return x
+	}
+	byEl := snap(0.5 * ((q0F - qEF) + (q00 - qE0)))
+	byFloor := snap(q00 - qEF - byEl)
+	r.DeliveredMAh = qEF
+	r.StrandedByProtectionMAh = byEl
+	r.StrandedByFloorMAh = byFloor
+	r.StrandedMAh = byEl + byFloor
+	r.ReferenceMAh = qEF + r.StrandedMAh
+}
+
+// capacityScale is pack mAh per scaled cell mAh for variant v: parallel
+// strings times the cell's capacity factor at the Peukert-weighted mean of
+// the phases' per-cell currents at half depth (see doc.go).
+func (e *evaluator) capacityScale(v *variant, buf []op) float64 {
+	ieff := e.effectiveCurrent(v, buf)
+	return e.P * e.cell.CapacityFactor(ieff, e.T)
+}
+
+// effectiveCurrent is the Peukert-weighted mean per-cell current of v's
+// phases at half depth, (Σ wⱼ·Iⱼᵏ)^(1/k).
+func (e *evaluator) effectiveCurrent(v *variant, buf []op) float64 {
+	k := e.cell.Peukert
+	e.phases(0.5*e.end, v, buf)
+	sum := 0.0
+	for j, o := range buf {
+		sum += e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
+	}
+	return math.Pow(sum, 1/k)
+}
+
+// Started reports whether the design ran at all: false when it fails on
+// the fresh pack, and then a stranded share means nothing.
+func (r *Result) Started() bool { return r.RuntimeH > 0 && r.DeliveredMAh > 0 }
+
+// StrandedShare is the stranded charge as a fraction of the reference, and
+// false when it has no meaning: the design never starts (CutoffText says
+// why) or the reference is empty.
+func (r *Result) StrandedShare() (float64, bool) {
+	if !r.Started() || !(r.ReferenceMAh > 0) {
+		return 0, false
+	}
+	return r.StrandedMAh / r.ReferenceMAh, true
+}
