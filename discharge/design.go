@@ -29,6 +29,9 @@ type Design struct {
 	// ElectricityPrice is the price of charging energy in dollars per kWh;
 	// 0 means DefaultElectricityPrice.
 	ElectricityPrice float64
+	// ChargerPrice is the price of the charger a rechargeable pack needs,
+	// dollars, at least 0 (0: none to buy); paid for by one pack's life.
+	ChargerPrice float64
 	// TracePoints is how many points of the voltage trace to return for
 	// charts; 0 for none (sweeps).
 	TracePoints int
@@ -64,6 +67,8 @@ func (d *Design) Validate() error {
 		return fmt.Errorf("price: %v must be 0 or more", d.PackPrice)
 	case !fin(d.ElectricityPrice) || d.ElectricityPrice < 0:
 		return fmt.Errorf("electricity price: %v must be 0 or more", d.ElectricityPrice)
+	case !fin(d.ChargerPrice) || d.ChargerPrice < 0:
+		return fmt.Errorf("charger price: %v must be 0 or more", d.ChargerPrice)
 	case d.TracePoints < 0 || d.TracePoints > 100000:
 		return fmt.Errorf("trace points: %d must be between 0 and 100000", d.TracePoints)
 	}
@@ -133,7 +138,7 @@ type Result struct {
 	StandbyShare     float64 // (standby + self-discharge) ÷ delivered, 0 to 1
 
 	PackPrice   float64 // dollars for one pack
-	CostPerHour float64 // dollars per hour of use; 0 when the runtime is 0
+	CostPerHour float64 // dollars per hour of use (cost.go); 0 when the runtime is 0
 
 	CutoffPhase string  // label of the phase that failed first
 	CutoffIndex int     // index in Design.Profile of that phase (labels can repeat)

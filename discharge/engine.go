@@ -840,24 +840,17 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 	if r.PackPrice == 0 {
 		r.PackPrice = c.Price * e.S * e.P
 	}
-	if r.RuntimeH > 0 {
-		if c.Rechargeable {
-			elec := d.ElectricityPrice
-			if elec == 0 {
-				elec = DefaultElectricityPrice
-			}
-			// Charging energy per cycle: the charge put back at the pack's
-			// nominal voltage, divided by the charge efficiency.
-			nominal := c.NominalV
-			if nominal == 0 {
-				nominal = c.Curve.At(0.5 * e.end)
-			}
-			chargeKWh := r.DeliveredMAh / 1000 * nominal * e.S / c.ChargeEfficiency / 1000
-			r.CostPerHour = (r.PackPrice/float64(c.CycleLife) + chargeKWh*elec) / r.RuntimeH
-		} else {
-			r.CostPerHour = r.PackPrice / r.RuntimeH
+	chargeKWh := 0.0
+	if c.Rechargeable {
+		// Charging energy per cycle: the charge put back at the pack's
+		// nominal voltage, divided by the charge efficiency.
+		nominal := c.NominalV
+		if nominal == 0 {
+			nominal = c.Curve.At(0.5 * e.end)
 		}
+		chargeKWh = r.DeliveredMAh / 1000 * nominal * e.S / c.ChargeEfficiency / 1000
 	}
+	r.CostPerHour = costPerHour(d, r, chargeKWh) // cost.go
 	th := el.Thermal()
 	r.JunctionC = th.Junction(r.ProtectionPeakW, d.TempC)
 

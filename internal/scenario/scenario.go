@@ -97,6 +97,7 @@ type fileDef struct {
 	Standby     units.Raw        `toml:"standby"`
 	Price       units.Raw        `toml:"price"`
 	Electricity units.Raw        `toml:"electricity_price"`
+	Charger     units.Raw        `toml:"charger_price"`
 	Budget      units.Raw        `toml:"budget"`
 	Options     optionsDef       `toml:"options"`
 	Sweep       sweepDef         `toml:"sweep"`
@@ -416,6 +417,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		{"standby", f.Standby, units.Current, true, &d.Standby, 0, CheckStandby},
 		{"price", f.Price, units.Money, true, &d.PackPrice, 0, CheckPrice},
 		{"electricity_price", f.Electricity, units.Money, true, &d.ElectricityPrice, 0, CheckPrice},
+		{"charger_price", f.Charger, units.Money, true, &d.ChargerPrice, 0, CheckPrice},
 		{"budget", f.Budget, units.Money, true, &s.Budget, 0, CheckPrice},
 	}
 	for _, fl := range fields {

@@ -173,3 +173,25 @@ func TestWriteFileNeverClobbers(t *testing.T) {
 		t.Fatal("writing over a directory succeeded")
 	}
 }
+
+// A scenario can name a charger's price; it reaches the design and survives
+// a save.
+func TestChargerPrice(t *testing.T) {
+	s, err := Parse([]byte("cell = \"hr6\"\ncharger_price = 12.5\n"), "c.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Design.ChargerPrice != 12.5 {
+		t.Fatalf("charger price %v, want 12.5", s.Design.ChargerPrice)
+	}
+	back, err := Parse(Format(Saved{Name: "x", Design: s.Design, ProtectSpec: "none"}), "saved.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Design.ChargerPrice != 12.5 {
+		t.Errorf("saved and read back: charger price %v, want 12.5", back.Design.ChargerPrice)
+	}
+	if _, err := Parse([]byte("charger_price = -1\n"), "c.toml", ""); err == nil {
+		t.Error("a negative charger price parses")
+	}
+}

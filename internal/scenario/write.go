@@ -59,6 +59,9 @@ func Format(s Saved) []byte {
 	if d.ElectricityPrice > 0 {
 		fmt.Fprintf(&b, "electricity_price = %s\n", g(d.ElectricityPrice))
 	}
+	if d.ChargerPrice > 0 {
+		fmt.Fprintf(&b, "charger_price = %s\n", g(d.ChargerPrice))
+	}
 	if s.Budget > 0 {
 		fmt.Fprintf(&b, "budget = %s\n", g(s.Budget))
 	}
