@@ -57,14 +57,14 @@ func (l Load) String() string {
 	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 	switch l.Kind {
 	case ConstantCurrent:
-		return g(l.Amps) + "A"
+		return units.Format(l.Amps, units.Current)
 	case ConstantPower:
 		if l.Efficiency == 1 {
-			return g(l.Watts) + "W"
+			return units.Format(l.Watts, units.Power)
 		}
-		return g(l.Watts) + "W@" + units.Format(l.Efficiency, units.Fraction) // exact, unlike g(e·100)
+		return units.Format(l.Watts, units.Power) + "@" + units.Format(l.Efficiency, units.Fraction) // exact, unlike g(e·100)
 	case ConstantResistance:
-		return g(l.Ohms) + "ohm"
+		return units.Format(l.Ohms, units.Resistance)
 	case LED:
 		return "led:vf=" + g(l.Vf) + ",r=" + g(l.Ohms)
 	}

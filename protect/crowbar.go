@@ -64,7 +64,9 @@ func deriveCrowbar(s settable, given func(string) bool) {
 		return
 	}
 	if !given("rfuse") {
-		c.RFuse = fuseOhmAmps / c.Fuse
+		// Three digits, as a datasheet states it: the spec that writes it
+		// back then reads rfuse=14.3mohm, not 0.014285714285714287ohm.
+		c.RFuse = units.RoundSig(fuseOhmAmps/c.Fuse, 3)
 	}
 	if !given("i2t") {
 		c.I2t = fuseI2tRatio * c.Fuse * c.Fuse

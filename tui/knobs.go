@@ -289,7 +289,7 @@ func (sh *shared) editText(k knob) string {
 	return ""
 }
 
-func trimFloat(x float64) string { return fmt.Sprintf("%.4g", x) }
+func trimFloat(x float64) string { return units.Short(x, 4) }
 
 // setText sets knob k from typed text with the parsers the command line's
 // flags use, and re-evaluates. The error says what was wrong.

@@ -118,18 +118,13 @@ func (m reverseModel) outcome(c protect.Case, w int) string {
 	return st.Bad.Render(s)
 }
 
-// amps writes a current with a prefix down to picoamperes.
-func amps(a float64) string {
-	if a > 0 && a < 1e-9 {
-		return fmt.Sprintf("%.2g pA", a*1e12)
-	}
-	return units.Human(a, units.Current, 2)
-}
+// amps writes a current for the reverse table (units.Eng, two digits).
+func amps(a float64) string { return units.Eng(a, units.Current, 2) }
 
-// seconds writes a time in ms below a second.
+// seconds writes a time for the reverse table: ms below a second.
 func seconds(s float64) string {
 	if s < 1 {
-		return fmt.Sprintf("%.2g ms", s*1e3)
+		return units.Prefixed(s, 2, "s")
 	}
-	return units.Human(s, units.Time, 2)
+	return units.Eng(s, units.Time, 2)
 }

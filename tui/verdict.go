@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"math"
 	"strings"
 
 	"headroom/discharge"
@@ -46,16 +45,20 @@ func (m verdictModel) View() string {
 	line("Runtime", hours(r.RuntimeH), "of use")
 	line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
 	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
-	line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
+	if _, ok := r.StrandedShare(); ok {
+		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
+	} else {
+		line("Stranded", "—", "(the product never starts: nothing is drawn, so no share is stranded)")
+	}
 	line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")
 	line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
 	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
 	line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
-	line("Standby share", fmt.Sprintf("%.1f %%", 100*r.StandbyShare), "of all charge drawn")
-	if r.CostPerHour > 0 {
+	line("Standby share", units.Eng(r.StandbyShare, units.Fraction, 2), "of all charge drawn")
+	if r.RuntimeH > 0 {
 		line("Cost per hour", money(r.CostPerHour), "(pack "+money(r.PackPrice)+")")
 	} else {
-		line("Cost per hour", "—", "(no runtime; pack "+money(r.PackPrice)+")")
+		line("Cost per hour", "—", "(the product does not run; pack "+money(r.PackPrice)+")")
 	}
 	return strings.TrimRight(b.String(), "\n")
 }
@@ -134,50 +137,19 @@ func profileLabel(prof []discharge.Phase) string {
 	return strings.Join(parts, ", ")
 }
 
-func hours(h float64) string {
-	switch {
-	case h <= 0:
-		return "0 h"
-	case h < 1:
-		return fmt.Sprintf("%.0f min", h*60)
-	case h < 100:
-		return fmt.Sprintf("%.1f h", h)
-	}
-	return fmt.Sprintf("%.0f h", h)
-}
+// hours, days, mah, pct and money are the screen's names for the one
+// formatter (internal/units, eng.go).
+func hours(h float64) string { return units.Duration(h, 3) }
 
-func days(d float64) string {
-	switch {
-	case d < 10:
-		return fmt.Sprintf("%.1f days", d)
-	case d < 1000:
-		return fmt.Sprintf("%.0f days", d)
-	}
-	return fmt.Sprintf("%.1f years", d/365.25)
-}
+func days(d float64) string { return units.Duration(d*24, 3) }
 
-func mah(q float64) string {
-	if math.Abs(q) >= 10000 {
-		return fmt.Sprintf("%.1f Ah", q/1000)
-	}
-	return fmt.Sprintf("%.0f mAh", q)
-}
+func mah(q float64) string { return units.MAh(q, 3) }
 
 func pct(part, whole float64) string {
 	if !(whole > 0) {
 		return "— %"
 	}
-	return fmt.Sprintf("%.0f %%", 100*part/whole)
+	return units.Num(100*part/whole, 2) + " %"
 }
 
-func money(x float64) string {
-	switch {
-	case x == 0:
-		return "$0"
-	case x < 0.01:
-		return fmt.Sprintf("$%.4f", x)
-	case x < 1:
-		return fmt.Sprintf("$%.3f", x)
-	}
-	return fmt.Sprintf("$%.2f", x)
-}
+func money(x float64) string { return units.Dollars(x) }

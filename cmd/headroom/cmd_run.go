@@ -88,11 +88,14 @@ func hoursPerDay(d *discharge.Design) float64 {
 	return d.HoursPerDay
 }
 
+// strandedPct is the stranded share in percent; NaN (written "—", null or
+// empty) when the design never starts and the share means nothing.
 func strandedPct(r *discharge.Result) float64 {
-	if r.ReferenceMAh <= 0 {
-		return 0
+	f, ok := r.StrandedShare()
+	if !ok {
+		return math.NaN()
 	}
-	return 100 * r.StrandedMAh / r.ReferenceMAh
+	return 100 * f
 }
 
 // dedupe drops repeated lines, keeping the first.
@@ -190,7 +193,7 @@ func noise(x, scale float64) float64 {
 	return x
 }
 
-func mAh(x float64) string { return sig(x, 3) + " mAh" }
+func mAh(x float64) string { return units.MAh(x, 3) }
 
 // runText is the result for people: a short block to read or paste.
 func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []byte {
@@ -209,20 +212,22 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	line("conditions", "floor %s V, %s, %s, standby %s", fixed(d.Floor, 2), human(d.TempC, units.Temperature), use, human(d.Standby, units.Current))
 	b.WriteByte('\n')
 
-	days := sig(r.RuntimeDays, 3) + " days"
 	if d.HoursPerDay > 0 {
-		days += " at " + short(d.HoursPerDay) + " h a day"
+		line("runtime", "%s of use = %s at %s h a day", units.Duration(r.RuntimeH, 3), units.Duration(24*r.RuntimeDays, 3), short(d.HoursPerDay))
 	} else {
-		days += " of continuous use"
+		line("runtime", "%s of continuous use", units.Duration(r.RuntimeH, 3))
 	}
-	line("runtime", "%s h of use = %s", sig(r.RuntimeH, 3), days)
 	line("delivered", "%s from the pack, %s Wh into the load", mAh(r.DeliveredMAh), sig(r.DeliveredWh, 3))
 	line("reference", "%s: the cells at this load to their %s V end-point, no element, no floor", mAh(r.ReferenceMAh), short(d.Cell.EndPoint))
-	line("stranded", "%s = %s %% of the reference: %s by the protection drop, %s by the floor",
-		mAh(r.StrandedMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
+	if _, ok := r.StrandedShare(); ok {
+		line("stranded", "%s = %s %% of the reference: %s by the protection drop, %s by the floor",
+			mAh(r.StrandedMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
+	} else {
+		line("stranded", "— (the product never starts, so no share of the charge is stranded: it %s)", d.CutoffText(r))
+	}
 	line("element", "%s Wh burnt in it; peak %s W, junction %s °C", sig(r.ProtectionLossWh, 3), sig(r.ProtectionPeakW, 3), fixed(r.JunctionC, 0))
 	line("cells", "%s Wh burnt in their internal resistance", sig(r.CellLossWh, 3))
-	line("standby", "%s %% of the charge goes to standby drain and self-discharge", fixed(100*r.StandbyShare, 1))
+	line("standby", "%s of the charge goes to standby drain and self-discharge", units.Eng(r.StandbyShare, units.Fraction, 2))
 	if r.RuntimeH > 0 {
 		line("cost", "%s per hour of use", money(r.CostPerHour))
 	} else {

@@ -12,6 +12,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/units"
 	"headroom/protect"
 )
 
@@ -47,12 +48,12 @@ func Format(s Saved) []byte {
 		spec = "none"
 	}
 	fmt.Fprintf(&b, "protect = %q\n", spec)
-	fmt.Fprintf(&b, "floor = \"%sV\"\n", g(d.Floor))
+	fmt.Fprintf(&b, "floor = %q\n", units.Format(d.Floor, units.Voltage))
 	fmt.Fprintf(&b, "temp = \"%sC\"\n", g(d.TempC))
 	if d.HoursPerDay > 0 {
 		fmt.Fprintf(&b, "hours_per_day = %s\n", g(d.HoursPerDay))
 	}
-	fmt.Fprintf(&b, "standby = \"%sA\"\n", g(d.Standby))
+	fmt.Fprintf(&b, "standby = %q\n", units.Format(d.Standby, units.Current))
 	if d.PackPrice > 0 {
 		fmt.Fprintf(&b, "price = %s\n", g(d.PackPrice))
 	}
