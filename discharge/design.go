@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"headroom/curves"
+	"headroom/internal/units"
 	"headroom/protect"
 )
 
@@ -56,19 +57,19 @@ func (d *Design) Validate() error {
 	case len(d.Profile) > 64:
 		return fmt.Errorf("load: %d phases, at most 64", len(d.Profile))
 	case !fin(d.Floor) || d.Floor < 0 || d.Floor > 1000:
-		return fmt.Errorf("floor: %v V must be between 0 and 1000 V", d.Floor)
+		return fmt.Errorf("floor: %s must be between 0 and 1000 V", units.Eng(d.Floor, units.Voltage, 3))
 	case !fin(d.TempC) || d.TempC < -40 || d.TempC > 85:
-		return fmt.Errorf("temperature: %v °C must be between -40 and 85 °C", d.TempC)
+		return fmt.Errorf("temperature: %s must be between -40 and 85 °C", units.Eng(d.TempC, units.Temperature, 3))
 	case !fin(d.HoursPerDay) || d.HoursPerDay < 0 || d.HoursPerDay > 24:
 		return fmt.Errorf("hours per day: %v must be between 0 (continuous use) and 24", d.HoursPerDay)
 	case !fin(d.Standby) || d.Standby < 0 || d.Standby > 10:
-		return fmt.Errorf("standby: %v A must be between 0 and 10 A", d.Standby)
+		return fmt.Errorf("standby: %s must be between 0 and 10 A", units.Eng(d.Standby, units.Current, 3))
 	case !fin(d.PackPrice) || d.PackPrice < 0:
-		return fmt.Errorf("price: %v must be 0 or more", d.PackPrice)
+		return fmt.Errorf("price: %s must be 0 or more", units.Dollars(d.PackPrice))
 	case !fin(d.ElectricityPrice) || d.ElectricityPrice < 0:
-		return fmt.Errorf("electricity price: %v must be 0 or more", d.ElectricityPrice)
+		return fmt.Errorf("electricity price: %s per kWh must be 0 or more", units.Dollars(d.ElectricityPrice))
 	case !fin(d.ChargerPrice) || d.ChargerPrice < 0:
-		return fmt.Errorf("charger price: %v must be 0 or more", d.ChargerPrice)
+		return fmt.Errorf("charger price: %s must be 0 or more", units.Dollars(d.ChargerPrice))
 	case d.TracePoints < 0 || d.TracePoints > 100000:
 		return fmt.Errorf("trace points: %d must be between 0 and 100000", d.TracePoints)
 	}

@@ -217,7 +217,7 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	} else {
 		line("runtime", "%s of continuous use", units.Duration(r.RuntimeH, 3))
 	}
-	line("delivered", "%s from the pack, %s Wh into the load", mAh(r.DeliveredMAh), sig(r.DeliveredWh, 3))
+	line("delivered", "%s from the pack, %s into the load", mAh(r.DeliveredMAh), units.Prefixed(r.DeliveredWh, 3, "Wh"))
 	line("reference", "%s: the cells at this load to their %s V end-point, no element, no floor", mAh(r.ReferenceMAh), short(d.Cell.EndPoint))
 	if _, ok := r.StrandedShare(); ok {
 		line("stranded", "%s = %s %% of the reference: %s by the protection drop, %s by the floor",
@@ -225,8 +225,8 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	} else {
 		line("stranded", "— (the product never starts, so no share of the charge is stranded: it %s)", d.CutoffText(r))
 	}
-	line("element", "%s Wh burnt in it; peak %s W, junction %s °C", sig(r.ProtectionLossWh, 3), sig(r.ProtectionPeakW, 3), fixed(r.JunctionC, 0))
-	line("cells", "%s Wh burnt in their internal resistance", sig(r.CellLossWh, 3))
+	line("element", "%s burnt in it; peak %s, junction %s °C", units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0))
+	line("cells", "%s burnt in their internal resistance", units.Prefixed(r.CellLossWh, 3, "Wh"))
 	line("standby", "%s of the charge goes to standby drain and self-discharge", units.Eng(r.StandbyShare, units.Fraction, 2))
 	if r.RuntimeH > 0 {
 		line("cost", "%s per hour of use", money(r.CostPerHour))

@@ -161,7 +161,9 @@ func tableColumns(s *scenario.Scenario) []column[tableRow] {
 		num("stranded_pct", "stranded %", 1, func(r tableRow) float64 { return r.stranded }),
 		num("protection_loss_Wh", "loss Wh", 3, func(r tableRow) float64 { return r.lossWh }),
 		num("protection_peak_W", "heat W", 3, func(r tableRow) float64 { return r.peakW }),
-		column[tableRow]{key: "cost_per_hour", head: "$/h", right: true, human: true, machine: true, width: 8,
+		// Eleven columns hold every units.Dollars text below $1000 an
+		// hour ("$0.0000010", "< $0.000001"), so a streamed table fits.
+		column[tableRow]{key: "cost_per_hour", head: "$/h", right: true, human: true, machine: true, width: 11,
 			text: func(r tableRow) string { return money(r.cost) }, val: func(r tableRow) any { return r.cost }},
 		column[tableRow]{key: "cutoff_cause", machine: true, val: func(r tableRow) any { return r.cause }},
 		column[tableRow]{key: "cutoff_phase", machine: true, val: func(r tableRow) any { return r.phase }},

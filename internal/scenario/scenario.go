@@ -546,28 +546,28 @@ func CheckParallel(n int) error {
 
 func CheckFloor(v float64) error {
 	if v < 0 || v > 1000 {
-		return fmt.Errorf("floor %v V: must be 0 to 1000 V", v)
+		return fmt.Errorf("floor %s: must be 0 to 1000 V", units.Eng(v, units.Voltage, 3))
 	}
 	return nil
 }
 
 func CheckTemp(v float64) error {
 	if v < -40 || v > 85 {
-		return fmt.Errorf("ambient %v °C: must be -40 to 85 °C", v)
+		return fmt.Errorf("ambient %s: must be -40 to 85 °C", units.Eng(v, units.Temperature, 3))
 	}
 	return nil
 }
 
 func CheckStandby(v float64) error {
 	if v < 0 || v > 10 {
-		return fmt.Errorf("standby %v A: must be 0 to 10 A", v)
+		return fmt.Errorf("standby %s: must be 0 to 10 A", units.Eng(v, units.Current, 3))
 	}
 	return nil
 }
 
 func CheckPrice(v float64) error {
 	if v < 0 || v > 1e6 {
-		return fmt.Errorf("price %v: must be 0 or more and at most 1000000", v)
+		return fmt.Errorf("price %s: must be 0 or more and at most 1000000", units.Dollars(v))
 	}
 	return nil
 }

@@ -127,18 +127,19 @@ func Dollars(v float64) string {
 		return "—"
 	}
 	a := math.Abs(v)
+	sign := ""
+	if v < 0 && a >= 5e-7 {
+		sign = "-"
+	}
 	switch {
 	case a == 0:
 		return "$0"
 	case a < 5e-7:
-		if v < 0 {
-			return "> −$0.000001"
-		}
 		return "< $0.000001"
 	case a < 0.1:
-		return "$" + Num(v, 2)
+		return sign + "$" + Num(a, 2)
 	}
-	return "$" + Fixed(v, 2)
+	return sign + "$" + Fixed(a, 2)
 }
 
 // Mean calendar lengths in hours (365.25-day year).

@@ -78,6 +78,8 @@ func TestNumMAhDollarsDuration(t *testing.T) {
 		{Dollars(0.00014), "$0.00014"},
 		{Dollars(1e-9), "< $0.000001"},
 		{Dollars(negZero), "$0"},
+		{Dollars(-1), "-$1.00"},
+		{Dollars(-0.05), "-$0.050"},
 		{Dollars(1e9), "$1000000000.00"},
 		{Duration(6.2009, 3), "6.20 h"},
 		{Duration(0.75, 2), "45 min"},
