@@ -30,6 +30,22 @@ type Design struct {
 	// ElectricityPrice is the price of charging energy in dollars per kWh;
 	// 0 means DefaultElectricityPrice.
 	ElectricityPrice float64
+	// PriceGiven makes PackPrice the pack's price even when it is 0 (a
+	// pack that costs nothing); otherwise 0 means the cell's price.
+	PriceGiven bool
+	// Toy says the product is a toy: its cautions then include the
+	// toy-safety standards.
+	Toy bool
+	// MaxInputV is the highest voltage the product's input takes, volts
+	// (0: not stated); a fresh pack above it gets a warning.
+	MaxInputV float64
+	// MinLEDAmps is the least LED current at which the product still
+	// counts as working, amperes (0: none): an LED phase whose current
+	// falls below it stops the run as the floor does. Above 0 only.
+	MinLEDAmps float64
+	// MaxLEDAmps is the LED's maximum rated current, amperes (0: not
+	// stated); an LED phase driven above it gets a warning.
+	MaxLEDAmps float64
 	// ChargerPrice is the price of the charger a rechargeable pack needs,
 	// dollars, at least 0 (0: none to buy); paid for by one pack's life.
 	ChargerPrice float64
@@ -68,6 +84,12 @@ func (d *Design) Validate() error {
 		return fmt.Errorf("price: %s must be 0 or more", units.Dollars(d.PackPrice))
 	case !fin(d.ElectricityPrice) || d.ElectricityPrice < 0:
 		return fmt.Errorf("electricity price: %s per kWh must be 0 or more", units.Dollars(d.ElectricityPrice))
+	case !fin(d.MaxInputV) || d.MaxInputV < 0 || d.MaxInputV > 1000:
+		return fmt.Errorf("maximum input voltage: %s must be between 0 (not stated) and 1000 V", units.Eng(d.MaxInputV, units.Voltage, 3))
+	case !fin(d.MinLEDAmps) || d.MinLEDAmps < 0 || d.MinLEDAmps > 100:
+		return fmt.Errorf("minimum LED current: %s must be between 0 (none) and 100 A", units.Eng(d.MinLEDAmps, units.Current, 3))
+	case !fin(d.MaxLEDAmps) || d.MaxLEDAmps < 0 || d.MaxLEDAmps > 100:
+		return fmt.Errorf("maximum LED current: %s must be between 0 (not stated) and 100 A", units.Eng(d.MaxLEDAmps, units.Current, 3))
 	case !fin(d.ChargerPrice) || d.ChargerPrice < 0:
 		return fmt.Errorf("charger price: %s must be 0 or more", units.Dollars(d.ChargerPrice))
 	case d.TracePoints < 0 || d.TracePoints > 100000:

@@ -44,9 +44,10 @@ type op struct {
 // variant is the design seen with a given element and floor: the real one,
 // the same without the element, and the reference (no element, no floor).
 type variant struct {
-	el    protect.Element
-	lim   protect.Limit
-	floor float64
+	el     protect.Element
+	lim    protect.Limit
+	floor  float64
+	minLED float64 // least LED current that counts as working, A (limits.go); 0: none
 }
 
 type evaluator struct {
@@ -165,6 +166,8 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 		o.Fail = CauseCollapse
 	case o.Vload < v.floor:
 		o.Fail = CauseFloor
+	case dim(l, i, v): // limits.go
+		o.Fail = CauseDim
 	}
 	return o
 }
@@ -336,7 +339,7 @@ func rank(c Cause) int {
 		return 1
 	case CauseCollapse:
 		return 2
-	case CauseFloor:
+	case CauseFloor, CauseDim:
 		return 3
 	}
 	return 4
@@ -475,7 +478,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	}
 	e.self = e.selfDischarge()
 
-	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor}
+	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, minLED: d.MinLEDAmps}
 	buf := make([]op, len(e.loads))
 
 	// Rate effect: one effective per-cell current at half depth, the
@@ -837,7 +840,7 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 	d := e.d
 	c := d.Cell
 	r.PackPrice = d.PackPrice
-	if r.PackPrice == 0 {
+	if r.PackPrice == 0 && !d.PriceGiven {
 		r.PackPrice = c.Price * e.S * e.P
 	}
 	chargeKWh := 0.0
@@ -874,6 +877,7 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("the LED of %s never lights: the voltage it gets stays below its %.2f V forward voltage (set the floor above it to count that as a stop)", p.Label(), p.Load.Vf))
 		}
 	}
+	r.Warnings = append(r.Warnings, limitWarnings(d, r, cur)...) // limits.go
 	if r.StandbyShare > 0.2 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("standby drain and self-discharge take %.0f %% of the charge: the pack goes flat on the shelf", r.StandbyShare*100))
 	}
@@ -881,11 +885,14 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 		r.Warnings = append(r.Warnings, "the product "+d.CutoffText(r))
 	}
 	r.Cautions = append(r.Cautions, Cautions(c, d.Series*d.Parallel)...)
+	if d.Toy {
+		r.Cautions = append(r.Cautions, ToyCaution)
+	}
 }
 
 // Cautions are the usual cautions for a pack of n cells of cell c: the
 // chemistry's own (curves.Cautions), without the mixing warning for a
-// single cell, and the toy-safety reminder.
+// single cell. A toy's result adds ToyCaution.
 func Cautions(c *curves.Cell, n int) []string {
 	var out []string
 	for _, s := range curves.Cautions(c) {
@@ -894,5 +901,9 @@ func Cautions(c *curves.Cell, n int) []string {
 		}
 		out = append(out, s)
 	}
-	return append(out, "Electric toys fall under toy-safety standards (IEC 62115 and local equivalents); defer to them and to licensed practice.")
+	return out
 }
+
+// ToyCaution is the toy-safety reminder for a product that is a toy
+// (Design.Toy).
+const ToyCaution = "Electric toys fall under toy-safety standards (IEC 62115 and local equivalents); defer to them and to licensed practice."

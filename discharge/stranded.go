@@ -43,7 +43,8 @@ import (
 func (e *evaluator) strandedSplit(el protect.Element, qsCut, scale float64, r *Result, buf []op) {
 	d := e.d
 	_, none := el.(protect.None)
-	noEl := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor}
+	// The least LED current is the product's own stop, like the floor.
+	noEl := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, minLED: d.MinLEDAmps}
 	noFloor := &variant{el: el, lim: el.Limit(d.TempC), floor: 0}
 	neither := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
 

@@ -64,6 +64,8 @@ func (d *Design) cutoffText(r *Result) string {
 		return "the protection's current limit cuts " + what + " (it wants " + amps + ")"
 	case CauseFuse:
 		return "the fuse opens on " + what + " (" + amps + ")"
+	case CauseDim:
+		return "the LED dims below the " + units.Eng(d.MinLEDAmps, units.Current, 3) + " that counts as lit, on " + what
 	}
 	return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V) on %s", r.CutoffPackV, what)
 }

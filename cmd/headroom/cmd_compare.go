@@ -40,6 +40,8 @@ flags:
                     (longest first)
   --format FORMAT   text, json, csv or md (default text)
 
+design flags (as in headroom run; compare then ranks every cell for it):
+` + designFlagHelp() + `
 examples:
   headroom compare
   headroom compare testdata/scenarios/example.toml --budget 2.50 --within-budget
@@ -99,6 +101,7 @@ func shortCaution(c *curves.Cell) string {
 
 func runCompare(c *cli, args []string) error {
 	fs := newFlags("compare")
+	addDesignFlags(fs)
 	budgetFlag := fs.String("budget", "", "")
 	within := fs.Bool("within-budget", false, "")
 	sortFlag := fs.String("sort", "cost", "")
@@ -122,6 +125,10 @@ func runCompare(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := applyDesignFlags(fs, s); err != nil {
+		return err
+	}
+	fromFlags(fs, s, pos)
 	budget := s.Budget
 	if *budgetFlag != "" {
 		if budget, err = scenario.ParsePrice(*budgetFlag); err != nil {

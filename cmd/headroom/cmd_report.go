@@ -81,6 +81,7 @@ func runReport(c *cli, args []string) error {
 	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
+	fromFlags(fs, s, pos)
 	rep, err := buildReport(s, "headroom "+shellJoin(append([]string{"report"}, args...)))
 	if err != nil {
 		return err

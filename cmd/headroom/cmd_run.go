@@ -59,13 +59,14 @@ func runRun(c *cli, args []string) error {
 	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
+	fromFlags(fs, s, pos)
 	var changed []string
 	fs.Visit(func(fl *flag.Flag) {
 		if fl.Name != "format" {
 			changed = append(changed, "--"+fl.Name)
 		}
 	})
-	if len(changed) > 0 && s.Name != "" {
+	if len(changed) > 0 && s.Name != "" && len(pos) > 0 {
 		s.Name += " with " + strings.Join(changed, ", ")
 	}
 	d := s.Design
@@ -212,7 +213,7 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	line("conditions", "floor %s V, %s, %s, standby %s", fixed(d.Floor, 2), human(d.TempC, units.Temperature), use, human(d.Standby, units.Current))
 	b.WriteByte('\n')
 
-	if d.HoursPerDay > 0 {
+	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
 		line("runtime", "%s of use = %s at %s h a day", units.Duration(r.RuntimeH, 3), units.Duration(24*r.RuntimeDays, 3), short(d.HoursPerDay))
 	} else {
 		line("runtime", "%s of continuous use", units.Duration(r.RuntimeH, 3))

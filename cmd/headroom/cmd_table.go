@@ -32,6 +32,8 @@ flags:
   --desc           sort descending
   --format FORMAT  text, json, csv or md (default text)
 
+design flags (each sets that value for every row, as in headroom run):
+` + designFlagHelp() + `
 examples:
   headroom table testdata/scenarios/example.toml
   headroom table --sort runtime --desc --format md
@@ -175,6 +177,7 @@ func tableColumns(s *scenario.Scenario) []column[tableRow] {
 
 func runTable(c *cli, args []string) error {
 	fs := newFlags("table")
+	addDesignFlags(fs)
 	sortFlag := fs.String("sort", "", "")
 	desc := fs.Bool("desc", false, "")
 	formatFlag := fs.String("format", "text", "")
@@ -200,6 +203,10 @@ func runTable(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := applyDesignFlags(fs, s); err != nil {
+		return err
+	}
+	fromFlags(fs, s, pos)
 	n := s.Count()
 	if key != "" && n > maxSortedRows {
 		return fmt.Errorf("--sort: %d rows, more than the %d a sorted table holds; sort fewer combinations or leave out --sort to stream them", n, maxSortedRows)
@@ -219,7 +226,13 @@ func runTable(c *cli, args []string) error {
 		return t.end()
 	}
 	rows := make([]tableRow, 0, n)
-	s.Sweep(func(row scenario.Row) bool { rows = append(rows, rowOf(row)); return true })
+	bar := newMeter(c.stderr, isTerminal(c.stderr), "rows", n)
+	s.Sweep(func(row scenario.Row) bool {
+		rows = append(rows, rowOf(row))
+		bar.step(len(rows))
+		return true
+	})
+	bar.end()
 	get := sortKeys[key]
 	sort.SliceStable(rows, func(i, j int) bool {
 		a, as := get(rows[i])

@@ -12,6 +12,7 @@ import (
 	"github.com/mattn/go-isatty"
 
 	"headroom/internal/scenario"
+	"headroom/internal/units"
 )
 
 // command is one subcommand: its name, synopsis, help text and body.
@@ -97,6 +98,9 @@ func (c *cli) dispatch(args []string) error {
 	case "-h", "-help", "--help":
 		c.usage(c.stdout)
 		return nil
+	case "-version", "--version":
+		fmt.Fprintln(c.stdout, version())
+		return nil
 	}
 	if cmd := lookupCommand(first); cmd != nil {
 		err := cmd.run(c, args[1:])
@@ -154,6 +158,7 @@ commands:
 	fmt.Fprint(w, `
 "headroom COMMAND -h" shows a command's flags and examples. Flags may be written
 -flag or --flag, before or after the file. Errors exit with status 2.
+"headroom --version" prints the version.
 `)
 }
 
@@ -222,9 +227,29 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 		if len(rest) == 0 {
 			return pos, nil
 		}
+		if used >= 2 && strings.HasPrefix(args[used-2], "-") && !strings.Contains(args[used-2], "=") && isUnit(rest[0]) && !fileExists(rest[0]) {
+			// "--load 2 A": the unit came apart from its value.
+			return nil, fmt.Errorf("%s %s %s: a value and its unit go together, with no space: %s %s%s",
+				args[used-2], args[used-1], rest[0], args[used-2], args[used-1], rest[0])
+		}
 		pos = append(pos, rest[0])
 		args = rest[1:]
 	}
+}
+
+// isUnit reports whether s is a unit symbol on its own, with or without an
+// SI prefix ("A", "mA", "V", "ohm", "s", "%"), that is: what a number
+// followed by it would parse as.
+func isUnit(s string) bool {
+	if s == "" || s[0] >= '0' && s[0] <= '9' || s[0] == '-' || s[0] == '.' {
+		return false
+	}
+	for k := units.Voltage; k <= units.Money; k++ {
+		if _, err := units.Parse("1"+s, k, false); err == nil {
+			return true
+		}
+	}
+	return false
 }
 
 // flagError rewrites the flag package's messages in our one-line style.

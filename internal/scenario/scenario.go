@@ -98,6 +98,10 @@ type fileDef struct {
 	Price       units.Raw        `toml:"price"`
 	Electricity units.Raw        `toml:"electricity_price"`
 	Charger     units.Raw        `toml:"charger_price"`
+	Toy         bool             `toml:"toy"`
+	MaxInput    units.Raw        `toml:"max_input"`
+	LEDMin      units.Raw        `toml:"led_min_current"`
+	LEDMax      units.Raw        `toml:"led_max_current"`
 	Budget      units.Raw        `toml:"budget"`
 	Options     optionsDef       `toml:"options"`
 	Sweep       sweepDef         `toml:"sweep"`
@@ -418,6 +422,9 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		{"price", f.Price, units.Money, true, &d.PackPrice, 0, CheckPrice},
 		{"electricity_price", f.Electricity, units.Money, true, &d.ElectricityPrice, 0, CheckPrice},
 		{"charger_price", f.Charger, units.Money, true, &d.ChargerPrice, 0, CheckPrice},
+		{"max_input", f.MaxInput, units.Voltage, true, &d.MaxInputV, 0, CheckMaxInput},
+		{"led_min_current", f.LEDMin, units.Current, false, &d.MinLEDAmps, 0, CheckLEDCurrent},
+		{"led_max_current", f.LEDMax, units.Current, false, &d.MaxLEDAmps, 0, CheckLEDCurrent},
 		{"budget", f.Budget, units.Money, true, &s.Budget, 0, CheckPrice},
 	}
 	for _, fl := range fields {
@@ -442,6 +449,9 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		}
 		*fl.dst = v
 	}
+
+	d.PriceGiven = f.Price.Set()
+	d.Toy = f.Toy
 
 	sweep := func(key string, sv sweepValues, kind units.Kind, def float64, chk func(float64) error) ([]float64, error) {
 		if !sv.set {
@@ -584,6 +594,23 @@ func ParseFloor(s string) (float64, error) { return parseChecked(s, units.Voltag
 
 // ParseTemp reads an ambient temperature ("20C", "-10°C" or "20").
 func ParseTemp(s string) (float64, error) { return parseChecked(s, units.Temperature, CheckTemp) }
+
+// CheckMaxInput checks a product's maximum input voltage: 0 (not stated)
+// to 1000 V.
+func CheckMaxInput(v float64) error {
+	if !(v >= 0 && v <= 1000) {
+		return fmt.Errorf("maximum input %s: must be 0 (not stated) to 1000 V", units.Eng(v, units.Voltage, 3))
+	}
+	return nil
+}
+
+// CheckLEDCurrent checks an LED current limit: 0 (none) to 100 A.
+func CheckLEDCurrent(v float64) error {
+	if !(v >= 0 && v <= 100) {
+		return fmt.Errorf("LED current %s: must be 0 (none) to 100 A", units.Eng(v, units.Current, 3))
+	}
+	return nil
+}
 
 // ParseStandby reads a standby current ("30uA"; a bare number is amperes).
 func ParseStandby(s string) (float64, error) { return parseChecked(s, units.Current, CheckStandby) }

@@ -195,3 +195,24 @@ func TestChargerPrice(t *testing.T) {
 		t.Error("a negative charger price parses")
 	}
 }
+
+// A saved file writes quantities as an engineer types them (30uA, not
+// 3e-05A) and reads them back exactly.
+func TestSavedQuantitiesInEngineeringUnits(t *testing.T) {
+	s := Demo()
+	s.Design.Standby = 3e-5
+	s.Design.Floor = 0.0018
+	data := string(Format(Saved{Name: "x", Design: s.Design, ProtectSpec: "none"}))
+	for _, want := range []string{`standby = "30uA"`, `floor = "1.8mV"`} {
+		if !strings.Contains(data, want) {
+			t.Errorf("saved file lacks %s:\n%s", want, data)
+		}
+	}
+	back, err := Parse([]byte(data), "saved.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Design.Standby != 3e-5 || back.Design.Floor != 0.0018 {
+		t.Errorf("read back standby %v, floor %v", back.Design.Standby, back.Design.Floor)
+	}
+}

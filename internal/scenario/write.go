@@ -54,11 +54,23 @@ func Format(s Saved) []byte {
 		fmt.Fprintf(&b, "hours_per_day = %s\n", g(d.HoursPerDay))
 	}
 	fmt.Fprintf(&b, "standby = %q\n", units.Format(d.Standby, units.Current))
-	if d.PackPrice > 0 {
+	if d.PackPrice > 0 || d.PriceGiven {
 		fmt.Fprintf(&b, "price = %s\n", g(d.PackPrice))
 	}
 	if d.ElectricityPrice > 0 {
 		fmt.Fprintf(&b, "electricity_price = %s\n", g(d.ElectricityPrice))
+	}
+	if d.Toy {
+		fmt.Fprintf(&b, "toy = true\n")
+	}
+	if d.MaxInputV > 0 {
+		fmt.Fprintf(&b, "max_input = %q\n", units.Format(d.MaxInputV, units.Voltage))
+	}
+	if d.MinLEDAmps > 0 {
+		fmt.Fprintf(&b, "led_min_current = %q\n", units.Format(d.MinLEDAmps, units.Current))
+	}
+	if d.MaxLEDAmps > 0 {
+		fmt.Fprintf(&b, "led_max_current = %q\n", units.Format(d.MaxLEDAmps, units.Current))
 	}
 	if d.ChargerPrice > 0 {
 		fmt.Fprintf(&b, "charger_price = %s\n", g(d.ChargerPrice))
