@@ -79,6 +79,26 @@ type Pack struct {
 	Parallel int     // strings in parallel, at least 1
 	LoadR    float64 // the load's resistance seen at its input, ohms (+Inf if unknown)
 	TempC    float64 // ambient, °C
+	// Chemistry is the cells' chemistry as the cell library names it
+	// ("alkaline", "nimh", …); it only picks the words for what a cell
+	// driven backwards does. "" for unknown.
+	Chemistry string
+}
+
+// backwardHarm says what a cell of chemistry chem does when the rest of a
+// series pack drives it backwards (common practice; makers' safety notes).
+func backwardHarm(chem string) string {
+	switch chem {
+	case "alkaline", "zinc-carbon":
+		return "alkaline and zinc-carbon cells may leak"
+	case "nimh":
+		return "a NiMH cell driven backwards heats and can vent gas"
+	case "li-ion", "lifepo4":
+		return "a lithium-ion cell driven backwards can be damaged for good; its pack protection should stop it"
+	case "lithium-mno2", "lithium-fes2":
+		return "a lithium primary cell driven backwards can heat and vent"
+	}
+	return "the flipped cell may leak or heat"
 }
 
 // Outcome is the class of what happens on a wrong insertion.
@@ -171,5 +191,5 @@ func FlippedCell(p Pack, drop float64) Case {
 		i = v / p.LoadR
 	}
 	return Case{Outcome: Unseen, Current: i, Volts: v,
-		Note: "no input element sees it: the pack gives two cell voltages less and the flipped cell is charged backwards (alkaline cells may leak)"}
+		Note: "no input element sees it: the pack gives two cell voltages less and the flipped cell is charged backwards (" + backwardHarm(p.Chemistry) + ")"}
 }

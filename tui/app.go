@@ -53,13 +53,15 @@ const (
 	modeSaveName         // typing a file name
 	modeSaveConfirm      // answering overwrite y/n
 	modeHelp             // the full help is open
+	modeNotes            // every warning and caution is open
 )
 
 // Model is the root of the screen.
 type Model struct {
 	*shared
-	view     screen
-	showHelp bool
+	view      screen
+	showHelp  bool
+	showNotes bool
 
 	knobs   knobsModel
 	chart   chartModel
@@ -110,6 +112,8 @@ func (m Model) mode() mode {
 		return modeEdit
 	case m.showHelp:
 		return modeHelp
+	case m.showNotes:
+		return modeNotes
 	}
 	return modeNone
 }
@@ -162,6 +166,14 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 			m.showHelp = false
 		}
 		return m, nil
+	case modeNotes:
+		switch {
+		case key.Matches(km, k.Quit):
+			return m, tea.Quit
+		case key.Matches(km, k.Notes), key.Matches(km, k.Back):
+			m.showNotes = false
+		}
+		return m, nil
 	}
 	if m.save.state == saveWriting {
 		return m, nil // a write is running: wait for it
@@ -172,6 +184,9 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		return m, tea.Quit
 	case key.Matches(km, k.Help):
 		m.showHelp = true
+		return m, nil
+	case key.Matches(km, k.Notes):
+		m.showNotes = true
 		return m, nil
 	case key.Matches(km, k.Save):
 		m.save, cmd = m.save.Start()
@@ -234,6 +249,8 @@ func (m Model) View() string {
 	switch {
 	case m.showHelp:
 		body = fitLines(m.helpOverlay(w, bodyH), w, bodyH)
+	case m.showNotes:
+		body = fitLines(m.notesOverlay(w, bodyH), w, bodyH)
 	case m.view == screenLineup:
 		m.lineup.SetSize(w, bodyH)
 		body = fitLines(m.lineup.View(), w, bodyH)
@@ -297,18 +314,34 @@ func (m Model) designView(w, h int) []string {
 		leftW = 48
 	}
 	rightW := w - leftW - 3
+	// A short terminal (80×24) gets the compact layout: the verdict one
+	// line a figure, so that every row shows; the selected knob's
+	// explanation and a count of the warnings beside the chart.
+	compact := h < 27
 	m.knobs.SetWidth(leftW)
+	m.knobs.compact = compact
 	m.verdict.SetWidth(leftW)
+	m.verdict.compact = compact
 	left := fitLines(m.knobs.View()+"\n\n"+m.verdict.View(), leftW, h)
 
 	m.notes.SetWidth(rightW)
+	m.notes.compact = compact
 	notes := strings.Split(m.notes.View(), "\n")
 	if len(notes) == 1 && notes[0] == "" {
 		notes = nil
 	}
+
 	// The chart keeps at least 3/5 of the height; notes that do not fit
 	// below it end in a line saying how many more there are.
 	chartH := min(h, max(h*3/5, h-len(notes)-1))
+	if compact && !m.knobs.editing {
+		// The selected knob's explanation, where the knobs panel has no
+		// room for it, when it fits under the notes.
+		detail := strings.Split(m.styles.Dim.Render(wrap(m.detail(m.knobs.sel), rightW)), "\n")
+		if h-chartH-1-len(notes) >= len(detail)+1 {
+			notes = append(append(notes, ""), detail...)
+		}
+	}
 	m.chart.SetSize(rightW, chartH)
 	chart := m.chart.View()
 	chartH = min(chartH, strings.Count(chart, "\n")+1)
@@ -318,7 +351,7 @@ func (m Model) designView(w, h int) []string {
 		right = append(right, "")
 		if len(notes) > room {
 			more := len(notes) - room + 1
-			notes = append(notes[:room-1:room-1], m.styles.Dim.Render(fmt.Sprintf("… %d more lines in a taller window", more)))
+			notes = append(notes[:room-1:room-1], m.styles.Dim.Render(fmt.Sprintf("… %d more lines: press w to read them", more)))
 		}
 		right = append(right, fitLines(strings.Join(notes, "\n"), rightW, room)...)
 	}

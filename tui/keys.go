@@ -20,6 +20,7 @@ type KeyMap struct {
 	Reverse    key.Binding
 	Save       key.Binding
 	Help       key.Binding
+	Notes      key.Binding // every warning and caution
 	Back       key.Binding
 	Quit       key.Binding
 
@@ -49,6 +50,7 @@ func DefaultKeyMap() KeyMap {
 		Reverse:    key.NewBinding(key.WithKeys("3"), key.WithHelp("3", "reversed cells")),
 		Save:       key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save")),
 		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "help")),
+		Notes:      key.NewBinding(key.WithKeys("w"), key.WithHelp("w", "all warnings and cautions")),
 		Back:       key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "back")),
 		Quit:       key.NewBinding(key.WithKeys("q", "ctrl+c"), key.WithHelp("q", "quit")),
 		Accept:     key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "accept")),
@@ -76,7 +78,7 @@ func (k KeyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type},
 		{k.Pick, k.Rank, k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse},
-		{k.Save, k.Help, k.Back, k.Quit},
+		{k.Save, k.Notes, k.Help, k.Back, k.Quit},
 	}
 }
 
@@ -97,6 +99,8 @@ func (v viewKeys) ShortHelp() []key.Binding {
 		return []key.Binding{k.Yes, k.No}
 	case modeHelp:
 		return []key.Binding{hint("?/esc", "close")}
+	case modeNotes:
+		return []key.Binding{hint("w/esc", "close")}
 	}
 	switch v.view {
 	case screenLineup:
@@ -104,13 +108,13 @@ func (v viewKeys) ShortHelp() []key.Binding {
 	case screenReverse:
 		return []key.Binding{hint("↑/↓", "choose protection"), hint("tab", "views"), k.Save}
 	}
-	return k.ShortHelp()
+	return append(k.ShortHelp(), hint("w", "warnings"))
 }
 
 func (v viewKeys) FullHelp() [][]key.Binding {
 	k := v.k
 	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse}
-	general := []key.Binding{k.Save, k.Help, k.Back, k.Quit}
+	general := []key.Binding{k.Save, k.Notes, k.Help, k.Back, k.Quit}
 	switch v.view {
 	case screenLineup:
 		return [][]key.Binding{{k.Up, k.Down, k.Pick, k.Rank}, views, general}

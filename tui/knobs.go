@@ -9,6 +9,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/curves"
+	"headroom/discharge"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -50,6 +51,7 @@ type knobsModel struct {
 	input   fieldModel
 	errText string // why the typed value was refused
 	width   int
+	compact bool // no explanation line (a short terminal shows it beside)
 }
 
 func newKnobs(sh *shared) knobsModel {
@@ -426,8 +428,11 @@ func (sh *shared) row(k knob) row {
 		r.name, r.value = "Protection", v.elem.Kind()
 		r.frac, r.steps = float64(v.kind)/math.Max(1, float64(len(sh.kinds)-1)), len(sh.kinds)
 	case knobPart:
+		// The part in plain words first (the drop it gives at the load's
+		// peak), the model's key beside it.
 		if kn, ok := protect.Main(v.elem); ok {
-			r.name, r.value = " └ its "+partName(kn.Key), units.Human(kn.Value, kn.Kind, 3)
+			drop, _ := sh.peakDrop()
+			r.name, r.value = " └ its drop", units.Eng(drop, units.Voltage, 2)+" ("+partName(kn.Key)+" "+units.Eng(kn.Value, kn.Kind, 2)+")"
 		} else {
 			r.name, r.value = " └ its part", "nothing to set"
 		}
@@ -490,7 +495,9 @@ func (sh *shared) detail(k knob) string {
 		return protect.Describe(v.elem.Kind()) + "."
 	case knobPart:
 		if kn, ok := protect.Main(v.elem); ok {
-			return kn.Detail
+			drop, at := sh.peakDrop()
+			return fmt.Sprintf("On the fresh pack at the %s peak the %s drops %s. The value you set is its model's %s: %s, now %s.",
+				units.Eng(at, units.Current, 3), v.elem.Kind(), units.Eng(drop, units.Voltage, 3), partName(kn.Key), kn.Detail, units.Eng(kn.Value, kn.Kind, 3))
 		}
 		return "This element has no part value to set; pick another protection."
 	case knobLoad:
@@ -503,6 +510,37 @@ func (sh *shared) detail(k knob) string {
 		return "Hours of use a day; the rest of the day the product draws its standby current."
 	}
 	return ""
+}
+
+// peakDrop is the element's drop at the heaviest phase's current on the
+// fresh pack at the ambient, and that current: the part value in words a
+// designer reads (a resistive or LED load's current is taken at the pack's
+// open-circuit voltage, an estimate for a label).
+func (sh *shared) peakDrop() (drop, amps float64) {
+	v := sh.vals
+	vin := sh.cell().OpenCircuit(0, v.tempC) * float64(v.series)
+	if sh.res != nil {
+		vin = sh.res.FreshV
+	}
+	best := -1.0
+	for _, p := range sh.profile() {
+		if p.Demand() <= best {
+			continue
+		}
+		best = p.Demand()
+		switch l := p.Load; l.Kind {
+		case discharge.ConstantCurrent:
+			amps = l.Amps
+		case discharge.ConstantPower:
+			amps = l.InputPower() / math.Max(vin, 1e-3)
+		case discharge.ConstantResistance:
+			amps = vin / l.Ohms
+		case discharge.LED:
+			amps = math.Max(0, vin-l.Vf) / l.Ohms
+		}
+	}
+	el := protect.Fixed(v.elem, v.tempC)
+	return el.Drop(amps, vin, v.tempC), amps
 }
 
 // cellLabel names a cell in a few words: its designation and name.
@@ -573,13 +611,18 @@ func (m knobsModel) View() string {
 		b.WriteString(mark + name + st.Value.Render(pad(r.value, valW)) + " " + m.slider(r, barW) + "\n")
 	}
 	if m.editing {
-		b.WriteString(st.Prompt.Render("Type "+strings.TrimSpace(strings.TrimPrefix(sh.row(m.sel).name, " └"))) + st.Dim.Render(": "+sh.typingHint(m.sel)) + "\n")
+		head := "Type " + strings.TrimSpace(strings.TrimPrefix(sh.row(m.sel).name, " └"))
+		hint := strings.SplitN(wrap(head+": "+sh.typingHint(m.sel), w), "\n", 2)
+		b.WriteString(st.Prompt.Render(hint[0][:len(head)]) + st.Dim.Render(hint[0][len(head):]) + "\n")
+		if len(hint) > 1 {
+			b.WriteString(st.Dim.Render(hint[1]) + "\n")
+		}
 		m.input.Width = max(5, w-len(m.input.Prompt)-2)
 		b.WriteString(m.input.View() + "\n")
 		if m.errText != "" {
 			b.WriteString(st.Bad.Render(wrap(m.errText, w)) + "\n")
 		}
-	} else {
+	} else if !m.compact {
 		b.WriteString(st.Dim.Render(wrap(sh.detail(m.sel), w)) + "\n")
 	}
 	return strings.TrimRight(b.String(), "\n")

@@ -11,8 +11,9 @@ import (
 // verdictModel is the verdict panel: what the engine made of the design,
 // every number with its unit and a label.
 type verdictModel struct {
-	sh    *shared
-	width int
+	sh      *shared
+	width   int
+	compact bool // one line per figure, for a short terminal (80×24)
 }
 
 // SetWidth sets the panel's width in columns.
@@ -42,31 +43,41 @@ func (m verdictModel) View() string {
 		}
 		b.WriteString(s + "\n")
 	}
-	line("Runtime", hours(r.RuntimeH), "of use")
-	line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
-	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
-	if _, ok := r.StrandedShare(); ok {
-		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
+	_, started := r.StrandedShare()
+	if m.compact {
+		line("Runtime", hours(r.RuntimeH), "of use ("+days(r.RuntimeDays)+")")
 	} else {
-		line("Stranded", "—", "(the product never starts: nothing is drawn, so no share is stranded)")
+		line("Runtime", hours(r.RuntimeH), "of use")
+		line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
 	}
-	line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")
-	line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
+	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
+	switch {
+	case !started:
+		line("Stranded", "—", "(never starts: no share is stranded)")
+	case m.compact:
+		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
+		line(" split", mah(r.StrandedByProtectionMAh)+" drop", "+ "+mah(r.StrandedByFloorMAh)+" floor")
+	default:
+		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
+		line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")
+		line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
+	}
 	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
 	line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
 	line("Standby share", units.Eng(r.StandbyShare, units.Fraction, 2), "of all charge drawn")
 	if r.RuntimeH > 0 {
 		line("Cost per hour", money(r.CostPerHour), "(pack "+money(r.PackPrice)+")")
 	} else {
-		line("Cost per hour", "—", "(the product does not run; pack "+money(r.PackPrice)+")")
+		line("Cost per hour", "—", "(does not run; pack "+money(r.PackPrice)+")")
 	}
 	return strings.TrimRight(b.String(), "\n")
 }
 
 // notesModel is the cut-off sentence, the warnings and the cautions.
 type notesModel struct {
-	sh    *shared
-	width int
+	sh      *shared
+	width   int
+	compact bool // the warnings and cautions counted, not listed
 }
 
 // SetWidth sets the panel's width in columns.
@@ -82,6 +93,17 @@ func (m notesModel) View() string {
 	r := sh.res
 	var b strings.Builder
 	b.WriteString(st.Label.Render("Stops because ") + st.Value.Render(wrapAfter(cutoffWords(r, sh.profile(), sh.vals.floor), w, 14)) + "\n")
+	if m.compact {
+		n := len(dedupeStrings(r.Cautions))
+		s := plural(n, "caution", "cautions") + ": press w to read them"
+		if len(r.Warnings) > 0 {
+			s = "⚠ " + plural(len(r.Warnings), "warning", "warnings") + " and " + s
+			b.WriteString(st.Warn.Render(wrap(s, w)))
+		} else {
+			b.WriteString(st.Caution.Render(wrap(s, w)))
+		}
+		return b.String()
+	}
 	for _, x := range r.Warnings {
 		b.WriteString(st.Warn.Render(wrap("⚠ "+x, w)) + "\n")
 	}
@@ -94,6 +116,19 @@ func (m notesModel) View() string {
 		b.WriteString(st.Caution.Render(wrap("· "+x, w)) + "\n")
 	}
 	return strings.TrimRight(b.String(), "\n")
+}
+
+// dedupeStrings drops repeated strings, keeping the first.
+func dedupeStrings(xs []string) []string {
+	seen := map[string]bool{}
+	var out []string
+	for _, x := range xs {
+		if !seen[x] {
+			seen[x] = true
+			out = append(out, x)
+		}
+	}
+	return out
 }
 
 // wrapAfter wraps s for a line that already has used columns taken.

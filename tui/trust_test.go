@@ -1,0 +1,111 @@
+package tui
+
+import (
+	"strings"
+	"testing"
+
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
+
+	"headroom/discharge"
+	"headroom/internal/scenario"
+)
+
+// Typing on a knob replaces the pre-filled value (it is selected); an
+// arrow keeps it to edit. Driven through teatest as a user types.
+func TestTypingReplacesTheValue(t *testing.T) {
+	tm := startTest(t, New(nil), 80, 24)
+	waitText(t, tm, "Runtime")
+	for range int(knobProtect) {
+		tm.Send(keyDown)
+	}
+	tm.Send(keyEnter)
+	tm.Send(runes("pmos:vth=1.2"))
+	tm.Send(keyEnter)
+	waitText(t, tm, "pmos")
+	m := finish(t, tm)
+	if m.knobs.errText != "" || m.vals.elem.Kind() != "pmos" {
+		t.Fatalf("typed pmos:vth=1.2: element %s, error %q", m.vals.elem.Spec(), m.knobs.errText)
+	}
+	if !strings.Contains(m.vals.elem.Spec(), "vth=1.2V") {
+		t.Errorf("spec %s: want vth=1.2V", m.vals.elem.Spec())
+	}
+
+	// An arrow first keeps the value: typing then appends to it.
+	var mm tea.Model = New(nil)
+	mm, _ = mm.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	for _, k := range []tea.Msg{keyUp, keyUp, keyUp, keyEnter, keyLeft, tea.KeyMsg{Type: tea.KeyEnd}, runes("5")} {
+		mm, _ = mm.Update(k)
+	}
+	if v := mm.(Model).knobs.input.Value(); v != "1.8 V5" {
+		t.Errorf("after an arrow and typing 5: field %q, want the value kept and 5 appended", v)
+	}
+}
+
+// The typing hint is whole, wrapped, never cut.
+func TestTypingHintWhole(t *testing.T) {
+	v := ansi.Strip(sized(80, 24, keyDown, keyDown, keyDown, keyEnter).View())
+	flat := strings.Join(strings.Fields(v), " ")
+	if !strings.Contains(flat, "or a spec such as pmos:vth=1.2") {
+		t.Errorf("hint cut at 80×24:\n%s", v)
+	}
+}
+
+// At 80×24 every verdict row shows, and the notes are counted with a key
+// to read them all.
+func TestEveryVerdictRowAt80x24(t *testing.T) {
+	v := ansi.Strip(sized(80, 24).View())
+	for _, label := range []string{"Runtime", "Delivered", "Stranded", "split", "Protection heat", "Junction", "Standby share", "Cost per hour", "press w"} {
+		if !strings.Contains(v, label) {
+			t.Errorf("80×24: no %q:\n%s", label, v)
+		}
+	}
+	if strings.Contains(v, "taller wind") {
+		t.Errorf("80×24: a note cut mid-word:\n%s", v)
+	}
+	w := ansi.Strip(sized(80, 24, runes("w")).View())
+	if !strings.Contains(w, "Do not recharge primary cells") || !strings.Contains(w, "Never mix old and new cells") {
+		t.Errorf("w: the notes view lacks the cautions:\n%s", w)
+	}
+}
+
+// The part knob reads in plain words: the drop the part gives at the
+// load's peak, with the model's key beside it.
+func TestPartKnobInPlainWords(t *testing.T) {
+	m := New(nil)
+	r := m.row(knobPart)
+	if !strings.Contains(r.name, "drop") || !strings.Contains(r.value, "V (") || !strings.Contains(r.value, "Is") {
+		t.Errorf("part row %q %q: want the drop in volts and the key", r.name, r.value)
+	}
+	drop, at := m.peakDrop()
+	// A silicon diode at 450 mA drops roughly 0.7–1 V (common practice).
+	if at != 0.45 || drop < 0.6 || drop > 1.1 {
+		t.Errorf("drop %v V at %v A: want a silicon diode's at the 450 mA peak", drop, at)
+	}
+}
+
+// The voltage axis fits the curves: with the floor at 0 V the bottom of
+// the chart sits near the lowest curve, not at 0 V.
+func TestChartAxisFitsCurves(t *testing.T) {
+	tr := []discharge.TracePoint{{PackV: 3.1, LoadV: 2.9}, {PackV: 2.6, LoadV: 2.4}}
+	lo, hi, off := chartRange(tr, 0)
+	// Curves from 2.4 to 3.1 V, 6 % margins: 2.358 to 3.142 V.
+	if !off || lo < 2.3 || hi > 3.2 {
+		t.Errorf("floor 0: axis %v–%v V (floor off %v), want about 2.36–3.14 V with the floor named off the chart", lo, hi, off)
+	}
+	lo, _, off = chartRange(tr, 2.3)
+	if off || lo > 2.3 {
+		t.Errorf("floor 2.3 V near the curves: axis from %v V (off %v), want it drawn", lo, off)
+	}
+}
+
+// A pack that costs nothing still has a runtime: the cost line says $0,
+// not "no runtime".
+func TestFreePackCostLine(t *testing.T) {
+	s := scenario.Demo()
+	s.Design.PackPrice, s.Design.PriceGiven = 0, true
+	v := ansi.Strip(func() string { m := New(s); m.width, m.height = 100, 30; return m.View() }())
+	if strings.Contains(v, "no runtime") || !strings.Contains(v, "Cost per hour   $0") {
+		t.Errorf("free pack:\n%s", v)
+	}
+}
