@@ -5,15 +5,14 @@ import (
 	"math"
 
 	"headroom/curves"
-	"headroom/internal/units"
 	"headroom/protect"
 )
 
 // Design is one product to evaluate: its pack, protection, load and floor.
 type Design struct {
 	Cell     *curves.Cell    // the cell type; read-only
-	Series   int             // cells in series, 1 to 48
-	Parallel int             // strings in parallel, 1 to 16
+	Series   int             // cells in series, 1 to MaxSeries
+	Parallel int             // strings in parallel, 1 to MaxParallel
 	Protect  protect.Element // input protection; nil means none
 	Profile  []Phase         // the repeating load; at least one phase
 	Floor    float64         // minimum voltage at the load, volts, at least 0
@@ -58,42 +57,44 @@ type Design struct {
 // (from memory; set Design.ElectricityPrice for your own).
 const DefaultElectricityPrice = 0.30
 
-// Validate checks the design and says which value is wrong.
+// Validate checks the design and says which value is wrong. The ranges are
+// those of ranges.go, shared with every reader of a design.
 func (d *Design) Validate() error {
 	fin := func(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+	type check struct {
+		what string
+		err  error
+	}
+	checks := []check{
+		{"series", CheckSeries(d.Series)},
+		{"parallel", CheckParallel(d.Parallel)},
+		{"floor", CheckFloor(d.Floor)},
+		{"temperature", CheckTemp(d.TempC)},
+		{"standby", CheckStandby(d.Standby)},
+		{"price", CheckPrice(d.PackPrice)},
+		{"electricity price", CheckPrice(d.ElectricityPrice)},
+		{"charger price", CheckPrice(d.ChargerPrice)},
+		{"maximum input voltage", CheckMaxInput(d.MaxInputV)},
+		{"minimum LED current", CheckLEDCurrent(d.MinLEDAmps)},
+		{"maximum LED current", CheckLEDCurrent(d.MaxLEDAmps)},
+	}
+	if d.HoursPerDay != 0 {
+		checks = append(checks, check{"hours per day", CheckHoursPerDay(d.HoursPerDay)})
+	}
 	switch {
 	case d.Cell == nil:
 		return fmt.Errorf("cell: none given")
-	case d.Series < 1 || d.Series > 48:
-		return fmt.Errorf("series: %d cells must be between 1 and 48", d.Series)
-	case d.Parallel < 1 || d.Parallel > 16:
-		return fmt.Errorf("parallel: %d strings must be between 1 and 16", d.Parallel)
 	case len(d.Profile) == 0:
 		return fmt.Errorf("load: no phases")
-	case len(d.Profile) > 64:
-		return fmt.Errorf("load: %d phases, at most 64", len(d.Profile))
-	case !fin(d.Floor) || d.Floor < 0 || d.Floor > 1000:
-		return fmt.Errorf("floor: %s must be between 0 and 1000 V", units.Eng(d.Floor, units.Voltage, 3))
-	case !fin(d.TempC) || d.TempC < -40 || d.TempC > 85:
-		return fmt.Errorf("temperature: %s must be between -40 and 85 °C", units.Eng(d.TempC, units.Temperature, 3))
-	case !fin(d.HoursPerDay) || d.HoursPerDay < 0 || d.HoursPerDay > 24:
-		return fmt.Errorf("hours per day: %v must be between 0 (continuous use) and 24", d.HoursPerDay)
-	case !fin(d.Standby) || d.Standby < 0 || d.Standby > 10:
-		return fmt.Errorf("standby: %s must be between 0 and 10 A", units.Eng(d.Standby, units.Current, 3))
-	case !fin(d.PackPrice) || d.PackPrice < 0:
-		return fmt.Errorf("price: %s must be 0 or more", units.Dollars(d.PackPrice))
-	case !fin(d.ElectricityPrice) || d.ElectricityPrice < 0:
-		return fmt.Errorf("electricity price: %s per kWh must be 0 or more", units.Dollars(d.ElectricityPrice))
-	case !fin(d.MaxInputV) || d.MaxInputV < 0 || d.MaxInputV > 1000:
-		return fmt.Errorf("maximum input voltage: %s must be between 0 (not stated) and 1000 V", units.Eng(d.MaxInputV, units.Voltage, 3))
-	case !fin(d.MinLEDAmps) || d.MinLEDAmps < 0 || d.MinLEDAmps > 100:
-		return fmt.Errorf("minimum LED current: %s must be between 0 (none) and 100 A", units.Eng(d.MinLEDAmps, units.Current, 3))
-	case !fin(d.MaxLEDAmps) || d.MaxLEDAmps < 0 || d.MaxLEDAmps > 100:
-		return fmt.Errorf("maximum LED current: %s must be between 0 (not stated) and 100 A", units.Eng(d.MaxLEDAmps, units.Current, 3))
-	case !fin(d.ChargerPrice) || d.ChargerPrice < 0:
-		return fmt.Errorf("charger price: %s must be 0 or more", units.Dollars(d.ChargerPrice))
+	case len(d.Profile) > MaxPhases:
+		return fmt.Errorf("load: %d phases, at most %d", len(d.Profile), MaxPhases)
 	case d.TracePoints < 0 || d.TracePoints > 100000:
 		return fmt.Errorf("trace points: %d must be between 0 and 100000", d.TracePoints)
+	}
+	for _, c := range checks {
+		if c.err != nil {
+			return fmt.Errorf("%s: %w", c.what, c.err)
+		}
 	}
 	if err := d.Cell.Validate(); err != nil {
 		return fmt.Errorf("cell %s: %w", d.Cell.ID, err)
@@ -129,7 +130,7 @@ type TracePoint struct {
 	IdleV float64 // load voltage during the lightest phase (the highest of all phases)
 }
 
-// Result is what Evaluate computes (DESIGN §6). Charges are in mAh of the
+// Result is what Evaluate computes (docs/engine.md §What a result holds). Charges are in mAh of the
 // pack, energies in Wh, times in hours of use unless named otherwise.
 type Result struct {
 	RuntimeH    float64 // hours of use until cut-off

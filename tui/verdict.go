@@ -50,6 +50,7 @@ func (m verdictModel) View() string {
 		line("Runtime", hours(r.RuntimeH), "of use")
 		line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
 	}
+	sh.spreadVerdict(line)
 	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
 	switch {
 	case !started:

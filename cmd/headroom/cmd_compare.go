@@ -1,6 +1,8 @@
 package main
 
 import (
+	"errors"
+	"flag"
 	"fmt"
 	"math"
 	"sort"
@@ -13,6 +15,7 @@ import (
 
 var compareCmd = &command{
 	name:  "compare",
+	run:   runCompare,
 	args:  "[scenario.toml] [--budget DOLLARS] [--within-budget] [--sort cost|runtime] [--format text|json|csv|md]",
 	short: "every chemistry that fits the product, ranked by cost per hour of use",
 	help: `
@@ -22,7 +25,7 @@ count as the file's design. With no file the built-in demo is used.
 
 Series count, per chemistry: the count whose nominal pack voltage is closest
 to the design's (ties go to fewer cells), among the counts whose fresh
-open-circuit pack voltage is at most 1.5 × the design's and above the floor.
+open-circuit pack voltage is at most ` + fmt.Sprint(scenario.FreshLimit) + ` × the design's and above the floor.
 A chemistry with no such count does not fit and is listed as such.
 
 Columns: runtime in hours of use, packs bought (primary) or charges
@@ -36,8 +39,12 @@ flags:
   --budget DOLLARS  most a pack + protection part may cost (default: the
                     file's budget key); dearer rows are marked OVER
   --within-budget   leave out the rows over budget instead of marking them
-  --sort KEY        cost (cheapest per hour first, the default) or runtime
-                    (longest first)
+  --sort KEY        cost (cheapest per hour first, the default), runtime
+                    (longest first), worst or p10 (the longest worst-corner
+                    or p10 runtime over the tolerances first; see headroom
+                    spread)
+  --samples N, --seed S, --tol NAME=SPREAD
+                    the spread's samples, seed and tolerances
   --format FORMAT   text, json, csv or md (default text)
 
 design flags (as in headroom run; compare then ranks every cell for it):
@@ -49,12 +56,6 @@ examples:
 `,
 }
 
-func init() { compareCmd.run = runCompare }
-
-// freshLimit is how far above the design's fresh pack voltage a candidate
-// pack may start (see the help text).
-const freshLimit = scenario.FreshLimit
-
 type compareRow struct {
 	cell         *curves.Cell
 	series, par  int
@@ -64,39 +65,7 @@ type compareRow struct {
 	partCost     float64 // pack + protection element
 	overBudget   bool
 	budgetActive bool
-}
-
-func (c compareRow) runtime() float64 { return c.r.RuntimeH }
-
-// seriesFor picks the series count of cell for design d, or 0 when none
-// fits: scenario.FitSeries, the rule the screen's line-up uses too.
-func seriesFor(cell *curves.Cell, d *discharge.Design) int { return scenario.FitSeries(cell, d) }
-
-// shortCaution is one chemistry's main caution in a few words.
-func shortCaution(c *curves.Cell) string {
-	var s string
-	switch c.Chemistry {
-	case "li-ion":
-		s = "needs a protection circuit and a Li-ion charger"
-	case "lifepo4":
-		s = "needs a protection circuit and a LiFePO4 charger"
-	case "nimh":
-		s = "NiMH charger only; stop at the end-point"
-	case "alkaline", "zinc-carbon":
-		s = "may leak when flat or flipped; do not recharge"
-	case "lithium-fes2", "lithium-mno2":
-		s = "do not recharge; may vent if shorted"
-	default:
-		s = "check the maker's data"
-	}
-	d := strings.ToUpper(c.Designation)
-	for _, p := range []string{"CR", "BR", "SR", "LR4", "LR5"} {
-		if strings.HasPrefix(d, p) {
-			s = "swallowing hazard: screw the compartment shut; " + s
-			break
-		}
-	}
-	return s
+	rank         float64 // worst-corner or p10 runtime, for --sort worst|p10
 }
 
 func runCompare(c *cli, args []string) error {
@@ -106,6 +75,7 @@ func runCompare(c *cli, args []string) error {
 	within := fs.Bool("within-budget", false, "")
 	sortFlag := fs.String("sort", "cost", "")
 	formatFlag := fs.String("format", "text", "")
+	sf := addSpreadFlags(fs)
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -118,8 +88,9 @@ func runCompare(c *cli, args []string) error {
 		return err
 	}
 	key := strings.ToLower(strings.TrimSpace(*sortFlag))
-	if key != "cost" && key != "runtime" {
-		return fmt.Errorf("--sort: %q is not a compare column: expected cost or runtime", *sortFlag)
+	_, ranked := rankKeys[key]
+	if key != "cost" && key != "runtime" && !ranked {
+		return fmt.Errorf("--sort: %q is not a compare column: expected cost, runtime, worst or p10", *sortFlag)
 	}
 	s, err := loadScenario(pos)
 	if err != nil {
@@ -129,6 +100,20 @@ func runCompare(c *cli, args []string) error {
 		return err
 	}
 	fromFlags(fs, s, pos)
+	if err := sf.apply(s); err != nil {
+		return err
+	}
+	if !ranked {
+		given := ""
+		fs.Visit(func(fl *flag.Flag) {
+			if sf.given(fl.Name) && given == "" {
+				given = fl.Name
+			}
+		})
+		if given != "" {
+			return fmt.Errorf("--%s: sets the spread, so it needs --sort worst or --sort p10", given)
+		}
+	}
 	budget := s.Budget
 	if *budgetFlag != "" {
 		if budget, err = scenario.ParsePrice(*budgetFlag); err != nil {
@@ -140,9 +125,18 @@ func runCompare(c *cli, args []string) error {
 	}
 
 	d := s.Design
-	rows, misfits, err := lineupRows(s, &d, budget, *within, key)
+	lineKey := key
+	if ranked {
+		lineKey = "runtime"
+	}
+	rows, misfits, err := lineupRows(s, &d, budget, *within, lineKey)
 	if err != nil {
 		return err
+	}
+	if ranked {
+		if err := rankRows(s, &d, rows, key); err != nil {
+			return err
+		}
 	}
 
 	if f == formatText {
@@ -150,7 +144,11 @@ func runCompare(c *cli, args []string) error {
 			return err
 		}
 	}
-	t := newTable(c.stdout, f, compareColumns(budget > 0))
+	cols := compareColumns(budget > 0)
+	if ranked {
+		cols = append(cols[:len(cols)-1:len(cols)-1], rankColumn(key, func(r compareRow) float64 { return r.rank }), cols[len(cols)-1])
+	}
+	t := newTable(c.stdout, f, cols)
 	t.fit(rows)
 	t.header()
 	for _, r := range rows {
@@ -176,8 +174,8 @@ func compareContext(c *cli, s *scenario.Scenario, d *discharge.Design, budget fl
 	freshD := float64(d.Series) * d.Cell.OpenCircuit(0, d.TempC)
 	b := fmt.Sprintf("%s: chemistries for load %s; protect %s; floor %s V; %s h of use a day\n",
 		name, loadWords(d), s.ProtectSpec, fixed(d.Floor, 2), short(hoursPerDay(d)))
-	b += fmt.Sprintf("series count: nominal pack voltage closest to %s V (%d × %s), fresh at most %s V (1.5 × %s V)\n",
-		short(float64(d.Series)*d.Cell.NominalV), d.Series, d.Cell.ID, fixed(freshLimit*freshD, 2), fixed(freshD, 2))
+	b += fmt.Sprintf("series count: nominal pack voltage closest to %s V (%d × %s), fresh at most %s V (%g × %s V)\n",
+		short(float64(d.Series)*d.Cell.NominalV), d.Series, d.Cell.ID, fixed(scenario.FreshLimit*freshD, 2), scenario.FreshLimit, fixed(freshD, 2))
 	if budget > 0 {
 		b += fmt.Sprintf("budget for pack + protection part: %s\n", money(budget))
 	}
@@ -244,7 +242,7 @@ func compareColumns(withBudget bool) []column[compareRow] {
 	cols = append(cols,
 		column[compareRow]{key: "cutoff_cause", machine: true, val: func(r compareRow) any { return string(r.r.CutoffCause) }},
 		column[compareRow]{key: "caution", head: "caution", human: true, machine: true,
-			text: func(r compareRow) string { return shortCaution(r.cell) }, val: func(r compareRow) any { return shortCaution(r.cell) }},
+			text: func(r compareRow) string { return curves.ShortCaution(r.cell) }, val: func(r compareRow) any { return curves.ShortCaution(r.cell) }},
 	)
 	return cols
 }
@@ -259,7 +257,7 @@ func orNaN(runtimeH, v float64) float64 {
 }
 
 // lineupRows evaluates every library cell and the scenario's own in design
-// d's place (series count by seriesFor), marks rows over budget (leaving
+// d's place (scenario.Lineup: series count by scenario.FitSeries), marks rows over budget (leaving
 // them out when within), and ranks them by key ("cost" or "runtime");
 // misfits are the cells no series count fits. compare and the report
 // share it.
@@ -280,22 +278,17 @@ func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, with
 			}
 		}
 	}
-	for _, cell := range cells {
-		n := seriesFor(cell, &d)
-		if n == 0 {
-			misfits = append(misfits, cell.ID)
+	// The screen's line-up is the same function (scenario.Lineup).
+	for _, lr := range scenario.RankLineup(scenario.Lineup(&d, cells, nil), key == "runtime") {
+		if errors.Is(lr.Err, scenario.ErrNoFit) {
+			misfits = append(misfits, lr.Cell.ID)
 			continue
 		}
-		cd := d
-		cd.Cell, cd.Series, cd.TracePoints = cell, n, 0
-		if !(cell == d.Cell && n == d.Series) {
-			cd.PackPrice = 0 // the file's price is for its own pack
+		if lr.Err != nil {
+			return nil, nil, fmt.Errorf("compare %s: %w", lr.Cell.ID, lr.Err)
 		}
-		r, err := discharge.Evaluate(&cd)
-		if err != nil {
-			return nil, nil, fmt.Errorf("compare %s: %w", cell.ID, err)
-		}
-		row := compareRow{cell: cell, series: n, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
+		r := lr.Result
+		row := compareRow{cell: lr.Cell, series: lr.Series, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
 		if r.RuntimeDays > 0 {
 			row.perYear = 365 / r.RuntimeDays
 		}
@@ -306,16 +299,30 @@ func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, with
 		}
 		rows = append(rows, row)
 	}
+	return rows, misfits, nil
+}
+
+// rankRows sets each row's worst-corner or p10 runtime (key) and ranks
+// the rows by it, longest first; designs that never start go last.
+func rankRows(s *scenario.Scenario, d *discharge.Design, rows []compareRow, key string) error {
+	for i := range rows {
+		cd := *d
+		cd.Cell, cd.Series, cd.TracePoints = rows[i].cell, rows[i].series, 0
+		if !(rows[i].cell == d.Cell && rows[i].series == d.Series) {
+			cd.PackPrice = 0
+		}
+		v, err := rankFigure(s, &cd, key)
+		if err != nil {
+			return fmt.Errorf("--sort %s: %s: %w", key, rows[i].cell.ID, err)
+		}
+		rows[i].rank = v
+	}
 	sort.SliceStable(rows, func(i, j int) bool {
 		a, b := rows[i], rows[j]
-		if (a.runtime() > 0) != (b.runtime() > 0) {
-			return a.runtime() > 0
+		if (a.r.RuntimeH > 0) != (b.r.RuntimeH > 0) {
+			return a.r.RuntimeH > 0
 		}
-		if key == "runtime" {
-			return a.runtime() > b.runtime()
-		}
-		return a.r.CostPerHour < b.r.CostPerHour
+		return a.rank > b.rank
 	})
-
-	return rows, misfits, nil
+	return nil
 }

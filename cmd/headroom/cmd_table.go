@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"math"
 	"sort"
@@ -12,6 +13,7 @@ import (
 
 var tableCmd = &command{
 	name:  "table",
+	run:   runTable,
 	args:  "[scenario.toml] [--sort COLUMN] [--desc] [--format text|json|csv|md]",
 	short: "a runtime table over every option and swept value in a scenario file",
 	help: `
@@ -28,8 +30,13 @@ row first (at most 1,000,000); ties keep the file's order.
 
 flags:
   --sort COLUMN    runtime, days, delivered, stranded, loss, heat, cost, cell,
-                   protect, floor, temp, load or scale (ascending)
+                   protect, floor, temp, load, scale, worst or p10 (ascending);
+                   worst and p10 are each row's worst-corner and p10 runtime
+                   over the tolerances (see headroom spread), in a column
   --desc           sort descending
+  --samples N, --seed S, --tol NAME=SPREAD
+                   the spread's samples, seed and tolerances, for --sort p10
+                   and worst
   --format FORMAT  text, json, csv or md (default text)
 
 design flags (each sets that value for every row, as in headroom run):
@@ -40,8 +47,6 @@ examples:
   headroom table testdata/scenarios/example.toml --sort cost --format csv > runtimes.csv
 `,
 }
-
-func init() { tableCmd.run = runTable }
 
 // tableRow is one evaluated combination, kept small so a sorted table of
 // many rows stays light.
@@ -56,6 +61,7 @@ type tableRow struct {
 	lossWh, peakW, cost                 float64
 	cause, phase                        string
 	err                                 string
+	rank                                float64 // worst-corner or p10 runtime, for --sort worst|p10
 }
 
 func (r tableRow) cutoff() string {
@@ -111,9 +117,11 @@ var sortKeys = map[string]func(tableRow) (float64, string){
 	"cell":      func(r tableRow) (float64, string) { return 0, r.cell },
 	"protect":   func(r tableRow) (float64, string) { return 0, r.protect },
 	"load":      func(r tableRow) (float64, string) { return 0, r.load },
+	"worst":     func(r tableRow) (float64, string) { return r.rank, "" },
+	"p10":       func(r tableRow) (float64, string) { return r.rank, "" },
 }
 
-var sortOrder = []string{"runtime", "days", "delivered", "stranded", "loss", "heat", "cost", "cell", "protect", "floor", "temp", "load", "scale"}
+var sortOrder = []string{"runtime", "days", "delivered", "stranded", "loss", "heat", "cost", "cell", "protect", "floor", "temp", "load", "scale", "worst", "p10"}
 
 // maxSortedRows bounds the rows held for --sort (about 200 bytes each).
 const maxSortedRows = 1_000_000
@@ -181,6 +189,7 @@ func runTable(c *cli, args []string) error {
 	sortFlag := fs.String("sort", "", "")
 	desc := fs.Bool("desc", false, "")
 	formatFlag := fs.String("format", "text", "")
+	sf := addSpreadFlags(fs)
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -207,6 +216,21 @@ func runTable(c *cli, args []string) error {
 		return err
 	}
 	fromFlags(fs, s, pos)
+	if err := sf.apply(s); err != nil {
+		return err
+	}
+	_, ranked := rankKeys[key]
+	if !ranked {
+		given := ""
+		fs.Visit(func(fl *flag.Flag) {
+			if sf.given(fl.Name) && given == "" {
+				given = fl.Name
+			}
+		})
+		if given != "" {
+			return fmt.Errorf("--%s: sets the spread, so it needs --sort worst or --sort p10", given)
+		}
+	}
 	n := s.Count()
 	if key != "" && n > maxSortedRows {
 		return fmt.Errorf("--sort: %d rows, more than the %d a sorted table holds; sort fewer combinations or leave out --sort to stream them", n, maxSortedRows)
@@ -216,7 +240,11 @@ func runTable(c *cli, args []string) error {
 			return err
 		}
 	}
-	t := newTable(c.stdout, f, tableColumns(s))
+	cols := tableColumns(s)
+	if ranked {
+		cols = append(cols, rankColumn(key, func(r tableRow) float64 { return r.rank }))
+	}
+	t := newTable(c.stdout, f, cols)
 	if key == "" {
 		t.header()
 		s.Sweep(func(row scenario.Row) bool {
@@ -226,13 +254,26 @@ func runTable(c *cli, args []string) error {
 		return t.end()
 	}
 	rows := make([]tableRow, 0, n)
+	var rankErr error
 	bar := newMeter(c.stderr, isTerminal(c.stderr), "rows", n)
 	s.Sweep(func(row scenario.Row) bool {
-		rows = append(rows, rowOf(row))
+		r := rowOf(row)
+		r.rank = math.NaN()
+		if ranked && row.Err == nil {
+			d := row.Combo.Design
+			if r.rank, rankErr = rankFigure(s, &d, key); rankErr != nil {
+				rankErr = fmt.Errorf("--sort %s: row %d: %w", key, row.Combo.Index+1, rankErr)
+				return false
+			}
+		}
+		rows = append(rows, r)
 		bar.step(len(rows))
 		return true
 	})
 	bar.end()
+	if rankErr != nil {
+		return rankErr
+	}
 	get := sortKeys[key]
 	sort.SliceStable(rows, func(i, j int) bool {
 		a, as := get(rows[i])

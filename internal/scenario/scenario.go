@@ -8,19 +8,21 @@ import (
 	_ "embed"
 	"errors"
 	"fmt"
-	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"regexp"
+	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/limited"
 	"headroom/internal/units"
 	"headroom/protect"
+	"headroom/tolerance"
 )
 
 //go:embed demo.toml
@@ -59,8 +61,38 @@ type Scenario struct {
 	LoadScales   []float64
 
 	Budget float64 // dollars for cells + protection; 0 for none
-	dir    string
+
+	// Tolerances are the spreads of parts and conditions (the [tolerance]
+	// table over tolerance.Defaults), with the spread's sample count and
+	// seed.
+	Tolerances []tolerance.Tol
+	Samples    int
+	Seed       uint64
+
+	// OptionKeys are the keys written in the file's [options] table
+	// ("cells", "protect", ...), so that a search can tell a list the
+	// user narrowed from the design's own single value.
+	OptionKeys []string
+	// Pick holds the [pick] table's settings as written, in file order,
+	// for the pick command to read with the same parsers as its flags.
+	Pick []Setting
+
+	dir string
 }
+
+// Setting is one key of a table read as text: its key, its value as
+// written (numbers and booleans in Go's shortest form) and its line.
+type Setting struct {
+	Key, Value string
+	Line       int
+}
+
+// DefaultSamples and DefaultSeed are the spread's sample count and seed
+// when the [tolerance] table does not give them.
+const (
+	DefaultSamples = 2000
+	DefaultSeed    = 1
+)
 
 type phaseDef struct {
 	Name     string    `toml:"name"`
@@ -74,6 +106,22 @@ type optionsDef struct {
 	Parallel []int    `toml:"parallel"`
 	Protect  []string `toml:"protect"`
 	Loads    []string `toml:"loads"`
+}
+
+// pickDef is the [pick] table: the search's target and limits, checked
+// by the pick command's parsers (the same as its flags).
+type pickDef struct {
+	Need          units.Raw `toml:"need"`
+	At            string    `toml:"at"`
+	Budget        units.Raw `toml:"budget"`
+	MaxCells      int       `toml:"max_cells"`
+	MaxParallel   int       `toml:"max_parallel"`
+	MaxStranded   units.Raw `toml:"max_stranded"`
+	MaxJunction   units.Raw `toml:"max_junction"`
+	BlockReversed bool      `toml:"block_reversed"`
+	MaxInput      units.Raw `toml:"max_input"`
+	By            string    `toml:"by"`
+	Top           int       `toml:"top"`
 }
 
 type sweepDef struct {
@@ -105,7 +153,9 @@ type fileDef struct {
 	Budget      units.Raw        `toml:"budget"`
 	Options     optionsDef       `toml:"options"`
 	Sweep       sweepDef         `toml:"sweep"`
+	Pick        pickDef          `toml:"pick"`
 	Cells       []curves.CellDef `toml:"define_cell"`
+	Tolerance   map[string]any   `toml:"tolerance"`
 }
 
 // sweepValues is a list of values or a {from, to, step} range, decoded
@@ -213,28 +263,9 @@ func Demo() *Scenario {
 
 // Load reads a scenario file.
 func Load(path string) (*Scenario, error) {
-	st, err := os.Stat(path)
+	data, err := limited.ReadFile(path, MaxFileSize, "a scenario file (.toml)")
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
-	}
-	if st.IsDir() {
-		return nil, fmt.Errorf("%s: is a directory, expected a scenario file (.toml)", path)
-	}
-	if !st.Mode().IsRegular() {
-		// A FIFO or a device would block the open or the read forever.
-		return nil, fmt.Errorf("%s: not a regular file (%s), expected a scenario file (.toml)", path, st.Mode().Type())
-	}
-	if st.Size() > MaxFileSize {
-		return nil, fmt.Errorf("%s: %d bytes, larger than the %d-byte limit for a scenario file", path, st.Size(), MaxFileSize)
-	}
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
+		return nil, err
 	}
 	s, err := Parse(data, path, filepath.Dir(path))
 	if err != nil {
@@ -245,20 +276,14 @@ func Load(path string) (*Scenario, error) {
 }
 
 // UnwrapPath returns the reason inside an *os.PathError (the path is
-// named in the message already), or err itself.
-func UnwrapPath(err error) error {
-	var pe *os.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
-}
+// named in the message already), or err itself: limited.UnwrapPath.
+func UnwrapPath(err error) error { return limited.UnwrapPath(err) }
 
 // Parse reads a scenario from data; name is used in messages and dir is
 // the folder relative cell paths start from.
 func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if len(data) > MaxFileSize {
-		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file", name, MaxFileSize)
+		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file (.toml)", name, MaxFileSize)
 	}
 	if i := strings.IndexByte(string(data), 0); i >= 0 {
 		return nil, fmt.Errorf("%s: binary data (a NUL byte at offset %d), expected a TOML text file", name, i)
@@ -279,7 +304,16 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if len(md.Keys()) == 0 {
 		return nil, fmt.Errorf("%s: no settings in the file: expected keys such as cell, load and floor", name)
 	}
-	if und := md.Undecoded(); len(und) > 0 {
+	var und []toml.Key
+	for _, k := range md.Undecoded() {
+		// Inline tables inside [tolerance] are decoded into map[string]any
+		// and read by readTolerances, which names its own unknown keys.
+		if len(k) > 2 && k[0] == "tolerance" {
+			continue
+		}
+		und = append(und, k)
+	}
+	if len(und) > 0 {
 		k := und[0].String()
 		return nil, fmt.Errorf("%s:%d: unknown key %q", name, lineOf(data, und[0][len(und[0])-1]), k)
 	}
@@ -287,6 +321,12 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		return fmt.Errorf("%s:%d: %s: %w", name, lineOf(data, key), key, err)
 	}
 	s := &Scenario{Name: f.Name, Note: f.Note, dir: dir}
+	for _, k := range []string{"cells", "series", "parallel", "protect", "loads"} {
+		if md.IsDefined("options", k) {
+			s.OptionKeys = append(s.OptionKeys, k)
+		}
+	}
+	s.Pick = pickSettings(f.Pick, md, data)
 
 	// Cells defined in the file come first, so a design can name them.
 	for i := range f.Cells {
@@ -354,13 +394,13 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	for _, spec := range specs {
 		el, err := protect.Parse(spec)
 		if err != nil {
-			return nil, at("protect", unprefixed(err))
+			return nil, at("protect", protect.Unprefixed(err))
 		}
 		s.Protects = append(s.Protects, el)
 		s.ProtectSpecs = append(s.ProtectSpecs, protect.Short(el))
 	}
 	if d.Protect, err = protect.Parse(s.ProtectSpec); err != nil {
-		return nil, at("protect", unprefixed(err))
+		return nil, at("protect", protect.Unprefixed(err))
 	}
 
 	switch {
@@ -495,14 +535,77 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if err := d.Validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
+	if err := s.readTolerances(f.Tolerance, func(key string, err error) error {
+		return fmt.Errorf("%s:%d: [tolerance] %w", name, lineInTable(data, "tolerance", key), err)
+	}); err != nil {
+		return nil, err
+	}
 	return s, nil
 }
 
-// unprefixed drops the "protect: " that protect's messages start with,
-// which at adds already with the file and line.
-func unprefixed(err error) error {
-	return errors.New(strings.TrimPrefix(err.Error(), "protect: "))
+// pickSettings lists the [pick] keys the file sets, in the order of
+// pickDef, with their values as text and their lines.
+func pickSettings(p pickDef, md toml.MetaData, data []byte) []Setting {
+	vals := []struct {
+		key string
+		val string
+	}{
+		{"need", p.Need.String()}, {"at", p.At}, {"budget", p.Budget.String()},
+		{"max_cells", strconv.Itoa(p.MaxCells)}, {"max_parallel", strconv.Itoa(p.MaxParallel)},
+		{"max_stranded", p.MaxStranded.String()}, {"max_junction", p.MaxJunction.String()},
+		{"block_reversed", strconv.FormatBool(p.BlockReversed)}, {"max_input", p.MaxInput.String()},
+		{"by", p.By}, {"top", strconv.Itoa(p.Top)},
+	}
+	var out []Setting
+	for _, v := range vals {
+		if md.IsDefined("pick", v.key) {
+			out = append(out, Setting{Key: v.key, Value: v.val, Line: lineInTable(data, "pick", v.key)})
+		}
+	}
+	return out
 }
+
+// readTolerances sets s.Tolerances, Samples and Seed from the [tolerance]
+// table (nil: the defaults). at names the key and its line.
+func (s *Scenario) readTolerances(tab map[string]any, at func(key string, err error) error) error {
+	s.Tolerances, s.Samples, s.Seed = tolerance.Defaults(), DefaultSamples, DefaultSeed
+	keys := make([]string, 0, len(tab))
+	for k := range tab {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	for _, k := range keys {
+		v := tab[k]
+		switch k {
+		case "samples":
+			n, ok := v.(int64)
+			if !ok || n < 1 || n > tolerance.MaxSamples {
+				return at(k, fmt.Errorf("samples: %v must be a whole number from 1 to %d", v, tolerance.MaxSamples))
+			}
+			s.Samples = int(n)
+		case "seed":
+			n, ok := v.(int64)
+			if !ok || n < 0 {
+				return at(k, fmt.Errorf("seed: %v must be a whole number, 0 or more", v))
+			}
+			s.Seed = uint64(n)
+		default:
+			if _, ok := tolerance.Default(k); !ok {
+				return at(k, fmt.Errorf("unknown key %q: expected samples, seed or a tolerance (%s)", k, strings.Join(tolerance.Names(), ", ")))
+			}
+			t, err := tolerance.Parse(k, v)
+			if err != nil {
+				return at(k, err)
+			}
+			s.Tolerances = tolerance.With(s.Tolerances, t)
+		}
+	}
+	return nil
+}
+
+// FindCell resolves a library id, or a .csv or .toml cell file path
+// relative to the working folder: ResolveCell with no scenario around it.
+func FindCell(ref string) (*curves.Cell, error) { return (&Scenario{}).ResolveCell(ref) }
 
 // ResolveCell finds a cell by library id, by the id of a cell defined in
 // the file, or as a path to a .csv or .toml cell file (relative to the
@@ -538,50 +641,17 @@ func (s *Scenario) ResolveCell(ref string) (*curves.Cell, error) {
 	return c, nil
 }
 
-// Field checks shared by flags, files and screen fields.
+// Field checks shared by flags, files and screen fields. The ranges live
+// in discharge (ranges.go); these name them for the readers here.
 
-func CheckSeries(n int) error {
-	if n < 1 || n > 48 {
-		return fmt.Errorf("%d cells in series: must be 1 to 48", n)
-	}
-	return nil
-}
+func CheckSeries(n int) error      { return discharge.CheckSeries(n) }
+func CheckParallel(n int) error    { return discharge.CheckParallel(n) }
+func CheckFloor(v float64) error   { return discharge.CheckFloor(v) }
+func CheckTemp(v float64) error    { return discharge.CheckTemp(v) }
+func CheckStandby(v float64) error { return discharge.CheckStandby(v) }
+func CheckPrice(v float64) error   { return discharge.CheckPrice(v) }
 
-func CheckParallel(n int) error {
-	if n < 1 || n > 16 {
-		return fmt.Errorf("%d strings in parallel: must be 1 to 16", n)
-	}
-	return nil
-}
-
-func CheckFloor(v float64) error {
-	if v < 0 || v > 1000 {
-		return fmt.Errorf("floor %s: must be 0 to 1000 V", units.Eng(v, units.Voltage, 3))
-	}
-	return nil
-}
-
-func CheckTemp(v float64) error {
-	if v < -40 || v > 85 {
-		return fmt.Errorf("ambient %s: must be -40 to 85 °C", units.Eng(v, units.Temperature, 3))
-	}
-	return nil
-}
-
-func CheckStandby(v float64) error {
-	if v < 0 || v > 10 {
-		return fmt.Errorf("standby %s: must be 0 to 10 A", units.Eng(v, units.Current, 3))
-	}
-	return nil
-}
-
-func CheckPrice(v float64) error {
-	if v < 0 || v > 1e6 {
-		return fmt.Errorf("price %s: must be 0 or more and at most 1000000", units.Dollars(v))
-	}
-	return nil
-}
-
+// CheckScale checks a load scale (a sweep's factor on every phase).
 func CheckScale(v float64) error {
 	if !(v > 0) || v > 1000 {
 		return fmt.Errorf("load scale %v: must be above 0 and at most 1000 (×)", v)
@@ -595,22 +665,8 @@ func ParseFloor(s string) (float64, error) { return parseChecked(s, units.Voltag
 // ParseTemp reads an ambient temperature ("20C", "-10°C" or "20").
 func ParseTemp(s string) (float64, error) { return parseChecked(s, units.Temperature, CheckTemp) }
 
-// CheckMaxInput checks a product's maximum input voltage: 0 (not stated)
-// to 1000 V.
-func CheckMaxInput(v float64) error {
-	if !(v >= 0 && v <= 1000) {
-		return fmt.Errorf("maximum input %s: must be 0 (not stated) to 1000 V", units.Eng(v, units.Voltage, 3))
-	}
-	return nil
-}
-
-// CheckLEDCurrent checks an LED current limit: 0 (none) to 100 A.
-func CheckLEDCurrent(v float64) error {
-	if !(v >= 0 && v <= 100) {
-		return fmt.Errorf("LED current %s: must be 0 (none) to 100 A", units.Eng(v, units.Current, 3))
-	}
-	return nil
-}
+func CheckMaxInput(v float64) error   { return discharge.CheckMaxInput(v) }
+func CheckLEDCurrent(v float64) error { return discharge.CheckLEDCurrent(v) }
 
 // ParseStandby reads a standby current ("30uA"; a bare number is amperes).
 func ParseStandby(s string) (float64, error) { return parseChecked(s, units.Current, CheckStandby) }
@@ -630,8 +686,8 @@ func ParseHoursPerDay(s string) (float64, error) {
 		v *= 3600 // a bare number means hours here
 	}
 	h := v / 3600
-	if !(h > 0) || h > 24 {
-		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most 24", s)
+	if discharge.CheckHoursPerDay(h) != nil {
+		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most %g", s, discharge.MaxHoursPerDay)
 	}
 	return h, nil
 }
@@ -679,4 +735,16 @@ func lineOf(data []byte, key string) int {
 		return 1
 	}
 	return 1 + strings.Count(string(data[:loc[0]]), "\n")
+}
+
+// lineInTable finds the first line that sets key after the [table]
+// header, for messages; the header's line if none, 1 if no header.
+func lineInTable(data []byte, table, key string) int {
+	re := regexp.MustCompile(`(?m)^[ \t]*\[[ \t]*` + regexp.QuoteMeta(table) + `[ \t]*\][ \t]*(#.*)?$`)
+	loc := re.FindIndex(data)
+	if loc == nil {
+		return 1
+	}
+	head := 1 + strings.Count(string(data[:loc[0]]), "\n")
+	return head - 1 + lineOf(data[loc[0]:], key)
 }

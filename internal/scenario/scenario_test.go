@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"headroom/protect"
 )
 
 func TestDemoParses(t *testing.T) {
@@ -214,5 +216,21 @@ func TestSavedQuantitiesInEngineeringUnits(t *testing.T) {
 	}
 	if back.Design.Standby != 3e-5 || back.Design.Floor != 0.0018 {
 		t.Errorf("read back standby %v, floor %v", back.Design.Standby, back.Design.Floor)
+	}
+}
+
+// A bad element spec in a file names the file, line and key once, and the
+// error still unwraps to protect's *SpecError (no prefix cut off the text).
+func TestProtectErrorKeepsItsType(t *testing.T) {
+	for _, text := range []string{"protect = \"diode:is=0\"\n", "[options]\nprotect = [\"diode:zz=1\"]\n"} {
+		_, err := Parse([]byte(text), "p.toml", "")
+		var se *protect.SpecError
+		if !errors.As(err, &se) || se.Kind != "diode" {
+			t.Errorf("%q: %v, want a *protect.SpecError for diode", text, err)
+			continue
+		}
+		if strings.Count(err.Error(), "protect:") != 1 {
+			t.Errorf("%q: %q names protect more than once", text, err)
+		}
 	}
 }
