@@ -150,7 +150,7 @@ func (m lineupModel) View() string {
 	if len(rows) > room {
 		b.WriteString(st.Dim.Render(fmt.Sprintf("  rows %d–%d of %d; ↑/↓ scroll", off+1, min(len(rows), off+room), len(rows))) + "\n")
 	}
-	for _, l := range wrapLines("Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price ÷ its cycle life, plus charging energy.", w) {
+	for _, l := range wrapLines("Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price (and charger) ÷ the hours of its cycle life, cycles counted by the charge used, capacity fading to 80 %, plus charging energy.", w) {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	if m.sel < len(rows) {

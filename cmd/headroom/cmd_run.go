@@ -77,7 +77,7 @@ func runDesign(c *cli, args []string) error {
 			changed = append(changed, "--"+fl.Name)
 		}
 	})
-	if len(changed) > 0 && s.Name != "" && len(pos) > 0 {
+	if len(changed) > 0 && s.Name != "" && s.Name != flagsDesignName {
 		s.Name += " with " + strings.Join(changed, ", ")
 	}
 	if spreadOnly != "" && !*spreadFlag {
@@ -255,7 +255,7 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 		line("stranded", "%s = %s %% of the reference: %s by the protection drop, %s by the floor",
 			mAh(r.StrandedMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
 	} else {
-		line("stranded", "— (the product never starts, so no share of the charge is stranded: it %s)", d.CutoffText(r))
+		line("stranded", "— (the product never starts, so no share of the charge is stranded; see the cut-off)")
 	}
 	line("element", "%s burnt in it; peak %s, junction %s °C", units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0))
 	line("cells", "%s burnt in their internal resistance", units.Prefixed(r.CellLossWh, 3, "Wh"))

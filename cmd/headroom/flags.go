@@ -174,26 +174,26 @@ func pin(s *scenario.Scenario, name string) {
 	}
 }
 
+// flagsDesignName is the title of a design given by flags alone.
+const flagsDesignName = "Design from the command line (other values from the built-in demo)"
+
 // fromFlags renames a design built from flags over the built-in demo
-// (no scenario file): it is the user's design, not the demo toy, and it
-// is not taken to be a toy unless --toy says so.
+// (no scenario file) once --load gives it a load of its own: it is then
+// the user's product, not the demo toy with a part changed, and it is not
+// taken to be a toy unless --toy says so.
 func fromFlags(fs *flag.FlagSet, s *scenario.Scenario, pos []string) {
 	if len(pos) > 0 {
 		return
 	}
-	n, toy := 0, false
+	own, toy := false, false
 	fs.Visit(func(fl *flag.Flag) {
-		for _, df := range designFlags {
-			if df.name == fl.Name {
-				n++
-				toy = toy || fl.Name == "toy"
-			}
-		}
+		own = own || fl.Name == "load"
+		toy = toy || fl.Name == "toy"
 	})
-	if n == 0 {
+	if !own {
 		return
 	}
-	s.Name = "Design from the command line (other values from the built-in demo)"
+	s.Name = flagsDesignName
 	if !toy {
 		s.Design.Toy = false
 	}
