@@ -2,6 +2,7 @@ package tui
 
 import (
 	"errors"
+	"os"
 	"path/filepath"
 	"strings"
 
@@ -53,7 +54,11 @@ func (m saveModel) active() bool { return m.state != saveIdle }
 // Start asks for a file name.
 func (m saveModel) Start() (saveModel, tea.Cmd) {
 	m.state, m.status, m.failed = saveName, "", false
-	m.input.SetValue(defaultSaveName)
+	name := defaultSaveName
+	if p := m.sh.scen.Path; p != "" {
+		name = p // saving over the source keeps what the screen did not change
+	}
+	m.input.SetValue(name)
 	m.input.Focus()
 	return m, nil
 }
@@ -103,7 +108,12 @@ func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
 				if !filepath.IsAbs(name) && m.sh.saveDir != "" {
 					name = filepath.Join(m.sh.saveDir, name)
 				}
-				m.path, m.data = name, m.sh.saved()
+				data, err := m.sh.savedFor(name)
+				if err != nil {
+					m.status, m.failed = "Not saved: "+err.Error(), true
+					return m, nil
+				}
+				m.path, m.data = name, data
 				m.state, m.status = saveWriting, ""
 				m.input.Blur()
 				return m, write(m.path, m.data, false)
@@ -142,6 +152,35 @@ func (m saveModel) View() string {
 		return st.Bad.Render(m.status)
 	}
 	return st.Status.Render(m.status)
+}
+
+// savedFor is the text to save at path: the scenario file the design came
+// from with the design's values rewritten in place (scenario.Update) when
+// path is that file, else the design on its own.
+func (sh *shared) savedFor(path string) ([]byte, error) {
+	src := sh.scen.Path
+	if src == "" || !samePath(path, src) {
+		return sh.saved(), nil
+	}
+	orig, err := os.ReadFile(src)
+	if err != nil {
+		return nil, err
+	}
+	d := sh.design()
+	return scenario.Update(orig, &sh.scen.Design, scenario.Saved{Name: sh.scen.Name, Note: sh.scen.Note, Design: d,
+		ProtectSpec: sh.vals.elem.Spec()}), nil
+}
+
+// samePath reports whether a and b name the same file.
+func samePath(a, b string) bool {
+	sa, errA := os.Stat(a)
+	sb, errB := os.Stat(b)
+	if errA == nil && errB == nil {
+		return os.SameFile(sa, sb)
+	}
+	x, e1 := filepath.Abs(a)
+	y, e2 := filepath.Abs(b)
+	return e1 == nil && e2 == nil && x == y
 }
 
 // saved is the current design as scenario file text.

@@ -1,6 +1,8 @@
 package tui
 
 import (
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -107,5 +109,53 @@ func TestFreePackCostLine(t *testing.T) {
 	v := ansi.Strip(func() string { m := New(s); m.width, m.height = 100, 30; return m.View() }())
 	if strings.Contains(v, "no runtime") || !strings.Contains(v, "Cost per hour   $0") {
 		t.Errorf("free pack:\n%s", v)
+	}
+}
+
+// Saving over the scenario file the screen opened keeps its options,
+// sweeps, comments and note, and writes the design's new values.
+func TestSaveOverSourceKeepsTheRest(t *testing.T) {
+	dir := t.TempDir()
+	orig, err := os.ReadFile("../testdata/scenarios/example.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := filepath.Join(dir, "example.toml")
+	if err := os.WriteFile(src, orig, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	s, err := scenario.Load(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var tm tea.Model = New(s)
+	press := func(msgs ...tea.Msg) {
+		for _, msg := range msgs {
+			var cmd tea.Cmd
+			tm, cmd = tm.Update(msg)
+			for cmd != nil {
+				var next tea.Cmd
+				tm, next = tm.Update(cmd())
+				cmd = next
+			}
+		}
+	}
+	press(tea.WindowSizeMsg{Width: 100, Height: 30}, keyDown, keyRight, runes("s"), keyEnter, runes("y"))
+	if st := tm.(Model).save.status; !strings.Contains(st, "Saved the design to") {
+		t.Fatalf("status %q", st)
+	}
+	back, err := scenario.Load(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Design.Series != s.Design.Series+1 {
+		t.Errorf("series %d, want %d", back.Design.Series, s.Design.Series+1)
+	}
+	if back.Note != s.Note || back.Count() != s.Count() {
+		t.Errorf("note %q (was %q), %d combinations (was %d)", back.Note, s.Note, back.Count(), s.Count())
+	}
+	data, _ := os.ReadFile(src)
+	if !strings.Contains(string(data), "[sweep]") || !strings.Contains(string(data), "[options]") {
+		t.Errorf("saved file lost its tables:\n%s", data)
 	}
 }
