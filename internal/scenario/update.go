@@ -63,7 +63,7 @@ func Update(orig []byte, was *discharge.Design, s Saved) []byte {
 	lines := strings.Split(string(orig), "\n")
 	done := map[string]bool{}
 	var out []string
-	top := true     // before the first table header
+	top := true      // before the first table header
 	inPhase := false // inside a [[phase]] table being dropped
 	firstTable := -1
 	for _, l := range lines {
