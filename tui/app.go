@@ -60,6 +60,8 @@ const (
 	modeSaveConfirm      // answering overwrite y/n
 	modeHelp             // the full help is open
 	modeNotes            // every warning and caution is open
+	modeProduct          // the product form is open
+	modeProductEdit      // typing a value in the product form
 )
 
 // Model is the root of the screen.
@@ -78,6 +80,7 @@ type Model struct {
 	spread  spreadModel
 	pick    pickModel
 	save    saveModel
+	product productModel
 	help    help.Model
 }
 
@@ -89,7 +92,7 @@ func New(s *scenario.Scenario) Model {
 	sh := newShared(s)
 	m := Model{shared: sh,
 		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
-		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, pick: newPick(sh), save: newSave(sh), help: newHelp(sh.styles)}
+		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, pick: newPick(sh), save: newSave(sh), product: newProduct(sh), help: newHelp(sh.styles)}
 	return m
 }
 
@@ -123,6 +126,10 @@ func (m Model) mode() mode {
 		return modeHelp
 	case m.showNotes:
 		return modeNotes
+	case m.product.editing:
+		return modeProductEdit
+	case m.product.open:
+		return modeProduct
 	}
 	return modeNone
 }
@@ -202,6 +209,12 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 			m.showHelp = false
 		}
 		return m, nil
+	case modeProduct, modeProductEdit:
+		if m.mode() == modeProduct && key.Matches(km, k.Quit) {
+			return m, tea.Quit
+		}
+		m.product, cmd = m.product.Update(m.shared, km)
+		return m, cmd
 	case modeNotes:
 		switch {
 		case key.Matches(km, k.Quit):
@@ -223,6 +236,9 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		return m, nil
 	case key.Matches(km, k.Notes):
 		m.showNotes = true
+		return m, nil
+	case key.Matches(km, k.Product):
+		m.product.open = true
 		return m, nil
 	case key.Matches(km, k.Save):
 		m.save, cmd = m.save.Start()
@@ -294,6 +310,8 @@ func (m Model) View() string {
 		body = fitLines(m.helpOverlay(w, bodyH), w, bodyH)
 	case m.showNotes:
 		body = fitLines(m.notesOverlay(w, bodyH), w, bodyH)
+	case m.product.open:
+		body = fitLines(m.product.View(m.shared, w, bodyH), w, bodyH)
 	case m.view == screenLineup:
 		m.lineup.SetSize(w, bodyH)
 		body = fitLines(m.lineup.View(), w, bodyH)
@@ -347,7 +365,7 @@ func (m Model) header(w int) string {
 	for s := range screenCount {
 		rw += len(fmt.Sprintf(" %d %s ", int(s)+1, s))
 	}
-	name := m.scen.Name
+	name := m.vals.name
 	if m.scen.Path != "" {
 		name += " (" + m.scen.Path + ")"
 	}

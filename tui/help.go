@@ -33,7 +33,7 @@ func (m Model) hintLine() string {
 	switch m.mode() {
 	case modeNone:
 		tail = []string{one(m.keys.Help), one(m.keys.Quit)}
-	case modeHelp, modeNotes:
+	case modeHelp, modeNotes, modeProduct:
 		tail = []string{one(m.keys.Quit)}
 	}
 	const sep = "  "
@@ -79,6 +79,8 @@ func (m Model) helpOverlay(w, h int) string {
 			"Each knob row: name, value with its unit, and a slider.",
 			"← → move a knob in small steps, shift+← → or [ ] in big ones;",
 			"enter lets you type a value with its unit (1.8V, 10nA, 150%).",
+			"w lists every warning and caution; e edits the product itself:",
+			"its name, load phases, standby drain and pack price.",
 		}
 	}
 	about = append(about, "Press ? or esc to close this.")

@@ -167,7 +167,7 @@ func (sh *shared) savedFor(path string) ([]byte, error) {
 		return nil, err
 	}
 	d := sh.design()
-	return scenario.Update(orig, &sh.scen.Design, scenario.Saved{Name: sh.scen.Name, Note: sh.scen.Note, Design: d,
+	return scenario.Update(orig, &sh.scen.Design, scenario.Saved{Name: sh.vals.name, Note: sh.scen.Note, Design: d,
 		ProtectSpec: sh.vals.elem.Spec()}), nil
 }
 
@@ -186,7 +186,7 @@ func samePath(a, b string) bool {
 // saved is the current design as scenario file text.
 func (sh *shared) saved() []byte {
 	d := sh.design()
-	name := sh.scen.Name
+	name := sh.vals.name
 	if name == "" {
 		name = "headroom design"
 	}

@@ -159,3 +159,52 @@ func TestSaveOverSourceKeepsTheRest(t *testing.T) {
 		t.Errorf("saved file lost its tables:\n%s", data)
 	}
 }
+
+// The product's own load, standby, pack price and name are entered on the
+// screen through the file's parsers, and they reach the engine and a save.
+func TestProductFormEditsTheLoad(t *testing.T) {
+	var tm tea.Model = New(nil)
+	press := func(msgs ...tea.Msg) {
+		for _, msg := range msgs {
+			tm, _ = tm.Update(msg)
+		}
+	}
+	before := tm.(Model).res.RuntimeH
+	press(tea.WindowSizeMsg{Width: 80, Height: 24}, runes("e"))
+	if !strings.Contains(ansi.Strip(tm.(Model).View()), "Load phases") {
+		t.Fatalf("e: no product form:\n%s", ansi.Strip(tm.(Model).View()))
+	}
+	// Name, then the phases: type over the selected values.
+	press(keyEnter, runes("Night owl lamp"), keyEnter, keyDown, keyEnter, runes("glow 20mA/10s; flash 300mA/1s"), keyEnter)
+	press(keyDown, keyEnter, runes("5uA"), keyEnter, keyDown, keyEnter, runes("0"), keyEnter)
+	m := tm.(Model)
+	if m.product.errText != "" {
+		t.Fatalf("form error: %s", m.product.errText)
+	}
+	p := m.profile()
+	if len(p) != 2 || p[0].Name != "glow" || p[1].Name != "flash" || p[1].Load.Amps != 0.3 || p[1].Seconds != 1 {
+		t.Fatalf("profile %+v", p)
+	}
+	d := m.design()
+	if d.Standby != 5e-6 || d.PackPrice != 0 || !d.PriceGiven {
+		t.Errorf("standby %v, price %v given %v", d.Standby, d.PackPrice, d.PriceGiven)
+	}
+	if m.res.RuntimeH == before || m.res.CostPerHour != 0 {
+		t.Errorf("runtime %v h (was %v), cost %v: the new load and free pack did not reach the engine", m.res.RuntimeH, before, m.res.CostPerHour)
+	}
+	if !strings.Contains(ansi.Strip(m.View()), "Night owl lamp") {
+		t.Error("the new name is not in the header")
+	}
+	back, err := scenario.Parse(m.saved(), "x.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Name != "Night owl lamp" || len(back.Design.Profile) != 2 || back.Design.Standby != 5e-6 {
+		t.Errorf("saved: %q, %d phases, standby %v", back.Name, len(back.Design.Profile), back.Design.Standby)
+	}
+	// A bad phase says which, through the load parser.
+	press(keyUp, keyUp, keyEnter, runes("glow 20mA/10s; flash 3 amps/1s"), keyEnter)
+	if e := tm.(Model).product.errText; !strings.Contains(e, "phase") {
+		t.Errorf("bad phase: error %q", e)
+	}
+}

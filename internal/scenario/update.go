@@ -29,8 +29,8 @@ func tomlString(s string) string {
 
 // Update rewrites the design's top-level values in orig, the scenario
 // file the design came from, and keeps everything else as it was: the
-// comments, [options], [sweep], [tolerance], [[define_cell]] tables, the
-// note and the name. A value is replaced where its key stands (a comment
+// comments, [options], [sweep], [tolerance], [[define_cell]] tables and
+// the note. A value is replaced where its key stands (a comment
 // after it stays); a key the file lacks is added before its first table.
 // The load is rewritten only when it changed (was, the design as read from
 // orig, tells). The result reads back to s's design (Parse).
@@ -51,6 +51,9 @@ func Update(orig []byte, was *discharge.Design, s Saved) []byte {
 		{"floor", tomlString(units.Format(d.Floor, units.Voltage))},
 		{"temp", tomlString(g(d.TempC) + "C")},
 		{"standby", tomlString(units.Format(d.Standby, units.Current))},
+	}
+	if s.Name != "" {
+		set = append(set, struct{ key, val string }{"name", tomlString(s.Name)})
 	}
 	if d.HoursPerDay > 0 {
 		set = append(set, struct{ key, val string }{"hours_per_day", g(d.HoursPerDay)})
