@@ -143,12 +143,21 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		return m, m.gotSpread(sm)
 	case spreadTickMsg:
 		return m, m.gotTick(sm)
+	case tablesMsg:
+		if cmd := m.gotTables(sm); cmd != nil {
+			return m, cmd
+		}
+		return m, m.spreadCmd()
 	}
 	next, cmd := m.update(msg)
 	if cmd != nil {
 		// The message cmd brings back passes here again and starts the
-		// spread then; a command stays a single one for its callers.
+		// tables and the spread then; a command stays a single one for
+		// its callers.
 		return next, cmd
+	}
+	if cmd := m.tablesCmd(); cmd != nil {
+		return next, cmd // the line-up first: the spread follows it
 	}
 	return next, m.spreadCmd()
 }

@@ -53,6 +53,7 @@ type shared struct {
 	err         error
 	lineupRows  []lineupRow
 	reverseRows []reverseRow
+	tables      tablesState // whose design lineupRows and reverseRows are (tables.go)
 	spread      spreadState
 }
 
@@ -80,6 +81,9 @@ func newShared(s *scenario.Scenario) *shared {
 	}
 	sh.vals = v
 	sh.evaluate()
+	// The first frame has its tables; later ones come from a command.
+	sh.lineupRows, sh.reverseRows = sh.tablesNow()()
+	sh.tables.doneGen = sh.tables.gen
 	return sh
 }
 
@@ -141,8 +145,7 @@ func (sh *shared) evaluate() {
 	d.TracePoints = tracePoints
 	sh.res, sh.err = evaluateFinite(&d)
 	sh.spread.gen++ // the spread shown is now stale; Update starts the next
-	sh.lineupRows = sh.evaluateLineup()
-	sh.reverseRows = sh.evaluateReverse()
+	sh.tables.gen++ // the line-up and reverse tables are now stale; Update starts them
 }
 
 // evaluateFinite is discharge.Evaluate, with a result holding a number that
@@ -184,11 +187,11 @@ type lineupRow struct {
 	err    error
 }
 
-// evaluateLineup tries every cell in the product (scenario.Lineup, the
-// rule compare uses too).
-func (sh *shared) evaluateLineup() []lineupRow {
-	base := sh.design()
-	rows := scenario.Lineup(&base, sh.cells, evaluateFinite)
+// lineupFor tries every cell of cells in design base (scenario.Lineup,
+// the rule compare uses too). It reads only its arguments, so it runs in a
+// command.
+func lineupFor(base discharge.Design, cells []*curves.Cell) []lineupRow {
+	rows := scenario.Lineup(&base, cells, evaluateFinite)
 	out := make([]lineupRow, len(rows))
 	for i, r := range rows {
 		out[i] = lineupRow{cell: r.Cell, idx: i, series: r.Series, res: r.Result, err: r.Err}
@@ -214,21 +217,18 @@ type reverseRow struct {
 	rev     protect.Reversal
 }
 
-// reversePack describes the current pack for protect's Reverse
-// (discharge.ReversePack, the rule the report and the search use too).
-func (sh *shared) reversePack() protect.Pack {
-	d := sh.design()
-	return discharge.ReversePack(&d)
-}
 
-func (sh *shared) evaluateReverse() []reverseRow {
-	p := sh.reversePack()
-	out := make([]reverseRow, 0, len(sh.kinds))
-	for i, k := range sh.kinds {
+// reverseFor is the reverse table for design d: every kind's default
+// element, and elem for the kind in use (index kind). It reads only its
+// arguments, so it runs in a command.
+func reverseFor(d discharge.Design, kinds []string, kind int, elem protect.Element) []reverseRow {
+	p := discharge.ReversePack(&d)
+	out := make([]reverseRow, 0, len(kinds))
+	for i, k := range kinds {
 		e := protect.Default(k)
-		cur := i == sh.vals.kind
+		cur := i == kind
 		if cur {
-			e = sh.vals.elem
+			e = elem
 		}
 		if e == nil {
 			continue

@@ -83,7 +83,11 @@ func (m lineupModel) View() string {
 	if m.byRuntime {
 		order, other = "runtime (longest first)", "cost per hour"
 	}
-	b.WriteString(st.Heading.Render("Cell line-up") + "\n")
+	b.WriteString(st.Heading.Render("Cell line-up"))
+	if sh.tablesStale() {
+		b.WriteString(st.Dim.Render("  updating for the design's last change…"))
+	}
+	b.WriteString("\n")
 	intro := fmt.Sprintf("Every cell, %d string(s) in parallel, in the series count (S) whose nominal voltage is closest to this pack's without starting above %.1f× its fresh voltage; same load (%s), protection (%s), floor (%.2f V) and ambient (%s). Ranked by %s; press o to rank by %s.",
 		v.parallel, scenario.FreshLimit, profileLabel(sh.profile()), v.elem.Kind(), v.floor, trimFloat(v.tempC)+" °C", order, other)
 	for _, l := range wrapLines(intro, w) {

@@ -51,7 +51,7 @@ func TestLineupOneHome(t *testing.T) {
 	sh := newShared(scenario.Demo())
 	base := sh.design()
 	want := scenario.Lineup(&base, sh.cells, nil)
-	rows := sh.evaluateLineup()
+	rows, _ := sh.tablesNow()()
 	if len(rows) != len(want) {
 		t.Fatalf("%d rows, scenario.Lineup gives %d", len(rows), len(want))
 	}
