@@ -217,7 +217,6 @@ type reverseRow struct {
 	rev     protect.Reversal
 }
 
-
 // reverseFor is the reverse table for design d: every kind's default
 // element, and elem for the kind in use (index kind). It reads only its
 // arguments, so it runs in a command.
