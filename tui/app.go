@@ -81,7 +81,9 @@ type Model struct {
 	pick    pickModel
 	save    saveModel
 	product productModel
-	help    help.Model
+	// laidW and laidH are the size layout last sized the parts for.
+	laidW, laidH int
+	help         help.Model
 }
 
 // New builds the screen for scenario s; nil means the built-in demo.
@@ -150,6 +152,10 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		return m, m.spreadCmd()
 	}
 	next, cmd := m.update(msg)
+	if nm, ok := next.(Model); ok {
+		nm.layout()
+		next = nm
+	}
 	if cmd != nil {
 		// The message cmd brings back passes here again and starts the
 		// tables and the spread then; a command stays a single one for
@@ -312,6 +318,9 @@ func (m Model) View() string {
 	if w < MinWidth || h < MinHeight {
 		return m.tooSmall()
 	}
+	if m.laidW != w || m.laidH != h {
+		m.layout() // a size set without a window-size message (tests)
+	}
 	bodyH := h - 3
 	var body []string
 	switch {
@@ -322,16 +331,12 @@ func (m Model) View() string {
 	case m.product.open:
 		body = fitLines(m.product.View(m.shared, w, bodyH), w, bodyH)
 	case m.view == screenLineup:
-		m.lineup.SetSize(w, bodyH)
 		body = fitLines(m.lineup.View(), w, bodyH)
 	case m.view == screenReverse:
-		m.reverse.SetSize(w, bodyH)
 		body = fitLines(m.reverse.View(), w, bodyH)
 	case m.view == screenSpread:
-		m.spread.SetSize(w, bodyH)
 		body = fitLines(m.spread.View(), w, bodyH)
 	case m.view == screenPick:
-		m.pick.SetSize(w, bodyH)
 		body = fitLines(m.pick.View(), w, bodyH)
 	default:
 		body = m.designView(w, bodyH)
@@ -385,40 +390,9 @@ func (m Model) header(w int) string {
 // designView lays out knobs and verdict on the left, chart and notes on
 // the right.
 func (m Model) designView(w, h int) []string {
-	leftW := 45
-	if w >= 110 {
-		leftW = 48
-	}
-	rightW := w - leftW - 3
-	// A short terminal (80×24) gets the compact layout: the verdict one
-	// line a figure, so that every row shows; the selected knob's
-	// explanation and a count of the warnings beside the chart.
-	compact := h < 27
-	m.knobs.SetWidth(leftW)
-	m.knobs.compact = compact
-	m.verdict.SetWidth(leftW)
-	m.verdict.compact = compact
+	leftW, rightW, chartH := m.knobs.width, m.notes.width, m.chart.height
 	left := fitLines(m.knobs.View()+"\n\n"+m.verdict.View(), leftW, h)
-
-	m.notes.SetWidth(rightW)
-	m.notes.compact = compact
-	notes := strings.Split(m.notes.View(), "\n")
-	if len(notes) == 1 && notes[0] == "" {
-		notes = nil
-	}
-
-	// The chart keeps at least 3/5 of the height; notes that do not fit
-	// below it end in a line saying how many more there are.
-	chartH := min(h, max(h*3/5, h-len(notes)-1))
-	if compact && !m.knobs.editing {
-		// The selected knob's explanation, where the knobs panel has no
-		// room for it, when it fits under the notes.
-		detail := strings.Split(m.styles.Dim.Render(wrap(m.detail(m.knobs.sel), rightW)), "\n")
-		if h-chartH-1-len(notes) >= len(detail)+1 {
-			notes = append(append(notes, ""), detail...)
-		}
-	}
-	m.chart.SetSize(rightW, chartH)
+	notes := m.noteLines()
 	chart := m.chart.View()
 	chartH = min(chartH, strings.Count(chart, "\n")+1)
 	right := fitLines(chart, rightW, chartH)
@@ -432,6 +406,61 @@ func (m Model) designView(w, h int) []string {
 		right = append(right, fitLines(strings.Join(notes, "\n"), rightW, room)...)
 	}
 	return besides(left, leftW, right, 3)
+}
+
+// layout sizes every part of the screen for the terminal's size and the
+// current design: it runs in Update (on the window-size message and after
+// every change), so that View only draws.
+func (m *Model) layout() {
+	w, h := m.width, m.height
+	m.laidW, m.laidH = w, h
+	bodyH := max(h-3, 1)
+	m.lineup.SetSize(w, bodyH)
+	m.reverse.SetSize(w, bodyH)
+	m.spread.SetSize(w, bodyH)
+	m.pick.SetSize(w, bodyH)
+	leftW := 45
+	if w >= 110 {
+		leftW = 48
+	}
+	rightW := max(w-leftW-3, 1)
+	// A short terminal (80×24) gets the compact layout: the verdict one
+	// line a figure, so that every row shows; the selected knob's
+	// explanation and a count of the warnings beside the chart.
+	compact := bodyH < 27
+	m.knobs.SetWidth(leftW)
+	m.knobs.compact = compact
+	m.verdict.SetWidth(leftW)
+	m.verdict.compact = compact
+	m.notes.SetWidth(rightW)
+	m.notes.compact = compact
+	// The chart keeps at least 3/5 of the height; notes that do not fit
+	// below it end in a line saying how many more there are.
+	n := len(m.notesOnly())
+	m.chart.SetSize(rightW, min(bodyH, max(bodyH*3/5, bodyH-n-1)))
+}
+
+// notesOnly is the notes panel's lines (none when it is empty).
+func (m Model) notesOnly() []string {
+	notes := strings.Split(m.notes.View(), "\n")
+	if len(notes) == 1 && notes[0] == "" {
+		return nil
+	}
+	return notes
+}
+
+// noteLines is what goes under the chart: the notes, and in the compact
+// layout the selected knob's explanation when it fits.
+func (m Model) noteLines() []string {
+	notes := m.notesOnly()
+	h := max(m.height-3, 1)
+	if m.knobs.compact && !m.knobs.editing {
+		detail := strings.Split(m.styles.Dim.Render(wrap(m.detail(m.knobs.sel), m.notes.width)), "\n")
+		if h-m.chart.height-1-len(notes) >= len(detail)+1 {
+			notes = append(append(notes, ""), detail...)
+		}
+	}
+	return notes
 }
 
 // viewKeys feeds bubbles' help.

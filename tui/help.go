@@ -94,6 +94,7 @@ func (m Model) helpOverlay(w, h int) string {
 // width, in the w × h body; what does not fit says how many lines are left.
 func (m Model) notesOverlay(w, h int) string {
 	m.notes.SetWidth(w - 2)
+	m.notes.compact = false // the overlay lists them all
 	lines := strings.Split(m.styles.Heading.Render("Warnings and cautions")+"\n\n"+m.notes.View(), "\n")
 	if len(lines) > h {
 		more := len(lines) - h + 1
