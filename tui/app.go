@@ -66,7 +66,7 @@ const (
 
 // Model is the root of the screen.
 type Model struct {
-	*shared
+	shared    // the state, held by value: a copy of the Model is a copy of it
 	view      screen
 	showHelp  bool
 	showNotes bool
@@ -92,9 +92,9 @@ func New(s *scenario.Scenario) Model {
 		s = scenario.Demo()
 	}
 	sh := newShared(s)
-	m := Model{shared: sh,
-		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
-		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, pick: newPick(sh), save: newSave(sh), product: newProduct(sh), help: newHelp(sh.styles)}
+	m := Model{shared: *sh,
+		knobs: newKnobs(sh), chart: chartModel{}, verdict: verdictModel{}, notes: notesModel{},
+		lineup: lineupModel{}, reverse: reverseModel{}, spread: spreadModel{}, pick: newPick(sh), save: newSave(sh), product: newProduct(sh), help: newHelp(sh.styles)}
 	return m
 }
 
@@ -140,32 +140,37 @@ func (m Model) mode() mode {
 // has changed (off the key path, after a short pause: it fills in when
 // ready).
 func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	// The state is a value: each step below changes m (or next) and then
+	// returns it, never a copy taken before the change.
+	var cmd tea.Cmd
 	switch sm := msg.(type) {
 	case spreadMsg:
-		return m, m.gotSpread(sm)
+		cmd = m.gotSpread(sm)
+		return m, cmd
 	case spreadTickMsg:
-		return m, m.gotTick(sm)
+		cmd = m.gotTick(sm)
+		return m, cmd
 	case tablesMsg:
-		if cmd := m.gotTables(sm); cmd != nil {
-			return m, cmd
+		if cmd = m.gotTables(sm); cmd == nil {
+			cmd = m.spreadCmd()
 		}
-		return m, m.spreadCmd()
+		return m, cmd
 	}
 	next, cmd := m.update(msg)
-	if nm, ok := next.(Model); ok {
-		nm.layout()
-		next = nm
-	}
-	if cmd != nil {
-		// The message cmd brings back passes here again and starts the
-		// tables and the spread then; a command stays a single one for
-		// its callers.
+	nm, ok := next.(Model)
+	if !ok {
 		return next, cmd
 	}
-	if cmd := m.tablesCmd(); cmd != nil {
-		return next, cmd // the line-up first: the spread follows it
+	nm.layout()
+	// The message cmd brings back passes here again and starts the tables
+	// and the spread then; a command stays a single one for its callers.
+	if cmd == nil {
+		cmd = nm.tablesCmd() // the line-up first: the spread follows it
 	}
-	return next, m.spreadCmd()
+	if cmd == nil {
+		cmd = nm.spreadCmd()
+	}
+	return nm, cmd
 }
 
 func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
@@ -175,20 +180,20 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.width, m.height = max(0, msg.Width), max(0, msg.Height)
 		return m, nil
 	case savedMsg:
-		m.save, cmd = m.save.Update(msg)
+		m.save, cmd = m.save.Update(&m.shared, msg)
 		return m, cmd
 	case pickedMsg:
 		m.view = screenDesign
 		m.knobs.sel = knobCell
 		return m, nil
 	case pickDoneMsg:
-		m.pick, cmd = m.pick.Update(msg)
+		m.pick, cmd = m.pick.Update(&m.shared, msg)
 		return m, cmd
 	case tea.KeyMsg:
 		nm, cmd := m.key(msg)
 		if next, ok := nm.(Model); ok && next.view == screenPick && next.mode() == modeNone {
 			// Off the key path: the search runs in a command.
-			cmd = tea.Batch(cmd, next.pick.search())
+			cmd = tea.Batch(cmd, next.pick.search(&next.shared))
 			return next, cmd
 		}
 		return nm, cmd
@@ -196,9 +201,9 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	// Anything else (a cursor blink) goes to the text field in use.
 	switch {
 	case m.save.active():
-		m.save, cmd = m.save.Update(msg)
+		m.save, cmd = m.save.Update(&m.shared, msg)
 	case m.knobs.editing:
-		m.knobs, cmd = m.knobs.Update(msg)
+		m.knobs, cmd = m.knobs.Update(&m.shared, msg)
 	}
 	return m, cmd
 }
@@ -211,10 +216,10 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	}
 	switch m.mode() {
 	case modeSaveName, modeSaveConfirm:
-		m.save, cmd = m.save.Update(km)
+		m.save, cmd = m.save.Update(&m.shared, km)
 		return m, cmd
 	case modeEdit:
-		m.knobs, cmd = m.knobs.Update(km)
+		m.knobs, cmd = m.knobs.Update(&m.shared, km)
 		return m, cmd
 	case modeHelp:
 		switch {
@@ -228,7 +233,7 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		if m.mode() == modeProduct && key.Matches(km, k.Quit) {
 			return m, tea.Quit
 		}
-		m.product, cmd = m.product.Update(m.shared, km)
+		m.product, cmd = m.product.Update(&m.shared, km)
 		return m, cmd
 	case modeNotes:
 		switch {
@@ -256,7 +261,7 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.product.open = true
 		return m, nil
 	case key.Matches(km, k.Save):
-		m.save, cmd = m.save.Start()
+		m.save, cmd = m.save.Start(&m.shared)
 		return m, cmd
 	case key.Matches(km, k.NextView):
 		m.show((m.view + 1) % screenCount)
@@ -284,13 +289,13 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	}
 	switch m.view {
 	case screenLineup:
-		m.lineup, cmd = m.lineup.Update(km)
+		m.lineup, cmd = m.lineup.Update(&m.shared, km)
 	case screenReverse:
-		m.reverse, cmd = m.reverse.Update(km)
+		m.reverse, cmd = m.reverse.Update(&m.shared, km)
 	case screenPick:
-		m.pick, cmd = m.pick.Update(km)
+		m.pick, cmd = m.pick.Update(&m.shared, km)
 	default:
-		m.knobs, cmd = m.knobs.Update(km)
+		m.knobs, cmd = m.knobs.Update(&m.shared, km)
 	}
 	return m, cmd
 }
@@ -303,9 +308,9 @@ func (m *Model) show(s screen) {
 	m.view = s
 	switch s {
 	case screenLineup:
-		m.lineup.selectCurrent()
+		m.lineup.selectCurrent(&m.shared)
 	case screenReverse:
-		m.reverse.selectCurrent()
+		m.reverse.selectCurrent(&m.shared)
 	}
 }
 
@@ -329,22 +334,22 @@ func (m Model) View() string {
 	case m.showNotes:
 		body = fitLines(m.notesOverlay(w, bodyH), w, bodyH)
 	case m.product.open:
-		body = fitLines(m.product.View(m.shared, w, bodyH), w, bodyH)
+		body = fitLines(m.product.View(&m.shared, w, bodyH), w, bodyH)
 	case m.view == screenLineup:
-		body = fitLines(m.lineup.View(), w, bodyH)
+		body = fitLines(m.lineup.View(&m.shared), w, bodyH)
 	case m.view == screenReverse:
-		body = fitLines(m.reverse.View(), w, bodyH)
+		body = fitLines(m.reverse.View(&m.shared), w, bodyH)
 	case m.view == screenSpread:
-		body = fitLines(m.spread.View(), w, bodyH)
+		body = fitLines(m.spread.View(&m.shared), w, bodyH)
 	case m.view == screenPick:
-		body = fitLines(m.pick.View(), w, bodyH)
+		body = fitLines(m.pick.View(&m.shared), w, bodyH)
 	default:
 		body = m.designView(w, bodyH)
 	}
 	out := make([]string, 0, h)
 	out = append(out, m.header(w))
 	out = append(out, body...)
-	status := m.save.View()
+	status := m.save.View(&m.shared)
 	if status == "" && m.err != nil && m.view == screenDesign {
 		status = m.styles.Bad.Render("This design cannot run; see the verdict.")
 	}
@@ -391,9 +396,9 @@ func (m Model) header(w int) string {
 // the right.
 func (m Model) designView(w, h int) []string {
 	leftW, rightW, chartH := m.knobs.width, m.notes.width, m.chart.height
-	left := fitLines(m.knobs.View()+"\n\n"+m.verdict.View(), leftW, h)
+	left := fitLines(m.knobs.View(&m.shared)+"\n\n"+m.verdict.View(&m.shared), leftW, h)
 	notes := m.noteLines()
-	chart := m.chart.View()
+	chart := m.chart.View(&m.shared)
 	chartH = min(chartH, strings.Count(chart, "\n")+1)
 	right := fitLines(chart, rightW, chartH)
 	room := h - chartH - 1
@@ -442,7 +447,7 @@ func (m *Model) layout() {
 
 // notesOnly is the notes panel's lines (none when it is empty).
 func (m Model) notesOnly() []string {
-	notes := strings.Split(m.notes.View(), "\n")
+	notes := strings.Split(m.notes.View(&m.shared), "\n")
 	if len(notes) == 1 && notes[0] == "" {
 		return nil
 	}

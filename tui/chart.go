@@ -15,7 +15,6 @@ import (
 // use, drawn with braille dots (2 × 4 per character cell), with the floor
 // as a line and the cut-off marked.
 type chartModel struct {
-	sh            *shared
 	width, height int
 }
 
@@ -134,8 +133,8 @@ func (d *dots) render(r int, styles [6]lipgloss.Style) string {
 
 // View draws the chart: a heading with the legend, the plot with a volt
 // scale on the left and an hour scale below.
-func (m chartModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m chartModel) View(sh *shared) string {
+	st := &sh.styles
 	w, h := max(m.width, 20), max(m.height, 6)
 	var b strings.Builder
 	b.WriteString(st.Heading.Render("Voltage over hours of use") + "\n")

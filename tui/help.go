@@ -95,7 +95,7 @@ func (m Model) helpOverlay(w, h int) string {
 func (m Model) notesOverlay(w, h int) string {
 	m.notes.SetWidth(w - 2)
 	m.notes.compact = false // the overlay lists them all
-	lines := strings.Split(m.styles.Heading.Render("Warnings and cautions")+"\n\n"+m.notes.View(), "\n")
+	lines := strings.Split(m.styles.Heading.Render("Warnings and cautions")+"\n\n"+m.notes.View(&m.shared), "\n")
 	if len(lines) > h {
 		more := len(lines) - h + 1
 		lines = append(lines[:h-1:h-1], m.styles.Dim.Render(fmt.Sprintf("… %d more lines: make the window taller to read them", more)))

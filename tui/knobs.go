@@ -45,7 +45,6 @@ const (
 // knobsModel is the knobs panel: one row per value, a selection, and a
 // text field for typing a value.
 type knobsModel struct {
-	sh      *shared
 	sel     knob
 	editing bool
 	input   fieldModel
@@ -55,13 +54,13 @@ type knobsModel struct {
 }
 
 func newKnobs(sh *shared) knobsModel {
-	return knobsModel{sh: sh, input: newField("new value: ", 200, sh.styles.Cursor)}
+	return knobsModel{input: newField("new value: ", 200, sh.styles.Cursor)}
 }
 
 // Update handles keys while the design view is active; a knob that moves
 // re-evaluates the design at once.
-func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
-	k := m.sh.keys
+func (m knobsModel) Update(sh *shared, msg tea.Msg) (knobsModel, tea.Cmd) {
+	k := sh.keys
 	km, isKey := msg.(tea.KeyMsg)
 	if m.editing {
 		if isKey {
@@ -71,7 +70,7 @@ func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
 				m.input.Blur()
 				return m, nil
 			case key.Matches(km, k.Accept):
-				if err := m.sh.setText(m.sel, m.input.Value()); err != nil {
+				if err := sh.setText(m.sel, m.input.Value()); err != nil {
 					m.errText = err.Error()
 					return m, nil
 				}
@@ -93,16 +92,16 @@ func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
 	case key.Matches(km, k.Down):
 		m.sel = (m.sel + 1) % knobCount
 	case key.Matches(km, k.Less):
-		m.sh.adjust(m.sel, -1, false)
+		sh.adjust(m.sel, -1, false)
 	case key.Matches(km, k.More):
-		m.sh.adjust(m.sel, +1, false)
+		sh.adjust(m.sel, +1, false)
 	case key.Matches(km, k.LessCoarse):
-		m.sh.adjust(m.sel, -1, true)
+		sh.adjust(m.sel, -1, true)
 	case key.Matches(km, k.MoreCoarse):
-		m.sh.adjust(m.sel, +1, true)
+		sh.adjust(m.sel, +1, true)
 	case key.Matches(km, k.Type):
 		m.editing, m.errText = true, ""
-		m.input.SetValue(m.sh.editText(m.sel))
+		m.input.SetValue(sh.editText(m.sel))
 		m.input.Focus()
 		return m, nil
 	}
@@ -272,8 +271,8 @@ func (m *knobsModel) SetWidth(w int) { m.width = w }
 
 // View draws the rows, then the selected knob's explanation or its text
 // field.
-func (m knobsModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m knobsModel) View(sh *shared) string {
+	st := &sh.styles
 	w := max(m.width, 20)
 	nameW := 13
 	barW := max(4, min(14, w/4))
@@ -288,7 +287,7 @@ func (m knobsModel) View() string {
 			mark = st.Selected.Render("▸ ")
 			name = st.Selected.Render(pad(r.name, nameW))
 		}
-		b.WriteString(mark + name + st.Value.Render(pad(r.value, valW)) + " " + m.slider(r, barW) + "\n")
+		b.WriteString(mark + name + st.Value.Render(pad(r.value, valW)) + " " + m.slider(sh, r, barW) + "\n")
 	}
 	if m.editing {
 		head := "Type " + strings.TrimSpace(strings.TrimPrefix(sh.row(m.sel).name, " └"))
@@ -310,8 +309,8 @@ func (m knobsModel) View() string {
 
 // slider draws a bar of width w with a marker where the value sits; a
 // cycling knob gets the marker on a dotted track.
-func (m knobsModel) slider(r row, w int) string {
-	st := &m.sh.styles
+func (m knobsModel) slider(sh *shared, r row, w int) string {
+	st := &sh.styles
 	if r.frac < 0 {
 		return st.SliderRest.Render(strings.Repeat("·", w))
 	}

@@ -28,7 +28,6 @@ const (
 // saveModel is the save flow: a file name, a yes/no question when the file
 // exists, and a line saying what happened.
 type saveModel struct {
-	sh     *shared
 	state  saveState
 	input  fieldModel
 	path   string
@@ -45,17 +44,17 @@ type savedMsg struct {
 }
 
 func newSave(sh *shared) saveModel {
-	return saveModel{sh: sh, input: newField("Save the design as: ", 4096, sh.styles.Cursor)}
+	return saveModel{input: newField("Save the design as: ", 4096, sh.styles.Cursor)}
 }
 
 // active reports whether the flow is waiting for the user or a write.
 func (m saveModel) active() bool { return m.state != saveIdle }
 
 // Start asks for a file name.
-func (m saveModel) Start() (saveModel, tea.Cmd) {
+func (m saveModel) Start(sh *shared) (saveModel, tea.Cmd) {
 	m.state, m.status, m.failed = saveName, "", false
 	name := defaultSaveName
-	if p := m.sh.scen.Path; p != "" {
+	if p := sh.scen.Path; p != "" {
 		name = p // saving over the source keeps what the screen did not change
 	}
 	m.input.SetValue(name)
@@ -71,8 +70,8 @@ func write(path string, data []byte, overwrite bool) tea.Cmd {
 }
 
 // Update takes the keys of the flow and the result of a write.
-func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
-	k := m.sh.keys
+func (m saveModel) Update(sh *shared, msg tea.Msg) (saveModel, tea.Cmd) {
+	k := sh.keys
 	if sm, ok := msg.(savedMsg); ok {
 		switch {
 		case sm.err == nil:
@@ -105,10 +104,10 @@ func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
 					m.status, m.failed = "Type a file name, or press esc.", true
 					return m, nil
 				}
-				if !filepath.IsAbs(name) && m.sh.saveDir != "" {
-					name = filepath.Join(m.sh.saveDir, name)
+				if !filepath.IsAbs(name) && sh.saveDir != "" {
+					name = filepath.Join(sh.saveDir, name)
 				}
-				data, err := m.sh.savedFor(name)
+				data, err := sh.savedFor(name)
 				if err != nil {
 					m.status, m.failed = "Not saved: "+err.Error(), true
 					return m, nil
@@ -138,8 +137,8 @@ func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
 }
 
 // View is the flow's one status line.
-func (m saveModel) View() string {
-	st := &m.sh.styles
+func (m saveModel) View(sh *shared) string {
+	st := &sh.styles
 	switch m.state {
 	case saveName:
 		return m.input.View()

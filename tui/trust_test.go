@@ -218,7 +218,7 @@ func TestTablesOffTheKeyPathDropStale(t *testing.T) {
 	// Two steps on the series knob: two generations.
 	tm, cmd1 := tm.Update(keyDown)
 	tm, cmd1 = tm.Update(keyRight) // 3 cells in series
-	if cmd1 == nil || !tm.(Model).tablesStale() {
+	if cmd1 == nil || !tm.(Model).sh().tablesStale() {
 		t.Fatal("a design change left no command for the tables")
 	}
 	msg1 := cmd1() // computed for 3 in series
@@ -227,7 +227,7 @@ func TestTablesOffTheKeyPathDropStale(t *testing.T) {
 	}
 	tm, _ = tm.Update(keyRight) // 4 in series: msg1 is stale now
 	tm, cmd2 := tm.Update(msg1)
-	if cmd2 == nil || !tm.(Model).tablesStale() {
+	if cmd2 == nil || !tm.(Model).sh().tablesStale() {
 		t.Fatal("a stale table result was taken, or the current one not started")
 	}
 	msg2 := cmd2()
@@ -243,5 +243,22 @@ func TestTablesOffTheKeyPathDropStale(t *testing.T) {
 		if r.idx == m.vals.cell && r.series != 4 {
 			t.Errorf("line-up row of the cell in use: %d in series, want the current 4", r.series)
 		}
+	}
+}
+
+// The screen's state is a value: a copy of the model taken before a key
+// does not change when the key changes the design (it used to, through a
+// shared pointer).
+func TestModelCopiesDoNotAlias(t *testing.T) {
+	var before tea.Model = New(nil)
+	before, _ = before.Update(tea.WindowSizeMsg{Width: 100, Height: 30})
+	after, _ := before.Update(keyDown)
+	after, _ = after.Update(keyRight)
+	b, a := before.(Model), after.(Model)
+	if a.vals.series != b.vals.series+1 {
+		t.Fatalf("series after → %d, want %d", a.vals.series, b.vals.series+1)
+	}
+	if b.vals.series != 2 || b.res == a.res {
+		t.Errorf("the earlier copy changed with the later one: series %d, same result %v", b.vals.series, b.res == a.res)
 	}
 }

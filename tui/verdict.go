@@ -11,7 +11,6 @@ import (
 // verdictModel is the verdict panel: what the engine made of the design,
 // every number with its unit and a label.
 type verdictModel struct {
-	sh      *shared
 	width   int
 	compact bool // one line per figure, for a short terminal (80×24)
 }
@@ -20,8 +19,8 @@ type verdictModel struct {
 func (m *verdictModel) SetWidth(w int) { m.width = w }
 
 // View draws the verdict's numbers.
-func (m verdictModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m verdictModel) View(sh *shared) string {
+	st := &sh.styles
 	w := max(m.width, 20)
 	var b strings.Builder
 	b.WriteString(st.Heading.Render("Verdict") + "\n")
@@ -76,7 +75,6 @@ func (m verdictModel) View() string {
 
 // notesModel is the cut-off sentence, the warnings and the cautions.
 type notesModel struct {
-	sh      *shared
 	width   int
 	compact bool // the warnings and cautions counted, not listed
 }
@@ -85,8 +83,8 @@ type notesModel struct {
 func (m *notesModel) SetWidth(w int) { m.width = w }
 
 // View draws the notes, wrapped at word boundaries.
-func (m notesModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m notesModel) View(sh *shared) string {
+	st := &sh.styles
 	w := max(m.width, 20)
 	if sh.err != nil {
 		return ""
