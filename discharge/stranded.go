@@ -84,7 +84,10 @@ func (e *evaluator) strandedSplit(el protect.Element, qsCut, scale float64, r *R
 	r.StrandedByProtectionMAh = byEl
 	r.StrandedByFloorMAh = byFloor
 	r.StrandedMAh = byEl + byFloor
-	r.ReferenceMAh = qEF + r.StrandedMAh
+	// Never below zero: the reference can be nothing (the bare cells cannot
+	// run the load at all) while the element lets the design run, and then
+	// the sum above cancels to rounding.
+	r.ReferenceMAh = math.Max(0, qEF+r.StrandedMAh)
 }
 
 // capacityScale is pack mAh per scaled cell mAh for variant v: parallel
