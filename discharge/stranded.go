@@ -51,12 +51,22 @@ func (e *evaluator) strandedSplit(el protect.Element, qsCut, scale float64, r *R
 	// Each scan resumes near a cut-off already found; cutoff starts over
 	// from zero when the run it is given does not work there (removing
 	// the element can shorten a run).
-	qs0F, qsE0 := qsCut, e.cutoff(noFloor, buf, qsCut)
+	// With no floor to remove (nor a least LED current) the runs without
+	// the floor are the runs with it; with no element, the runs without
+	// the element are the runs with it.
+	noStop := d.Floor == 0 && d.MinLEDAmps == 0
+	qs0F, qsE0 := qsCut, qsCut
+	if !noStop {
+		qsE0 = e.cutoff(noFloor, buf, qsCut)
+	}
 	if !none {
 		qs0F = e.cutoff(noEl, buf, qsCut)
 	}
 	qs00 := qsE0
-	if !none {
+	switch {
+	case noStop:
+		qs00 = qs0F
+	case !none:
 		qs00 = e.cutoff(neither, buf, qs0F)
 	}
 
