@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"headroom/curves"
+	"headroom/internal/units"
 	"headroom/protect"
 )
 
@@ -104,7 +105,7 @@ func (d *Design) Validate() error {
 			return fmt.Errorf("load phase %d: %w", i+1, err)
 		}
 		if !fin(p.Seconds) || p.Seconds <= 0 {
-			return fmt.Errorf("load phase %d: duration %v s must be above 0", i+1, p.Seconds)
+			return fmt.Errorf("load phase %d: duration %s must be above 0", i+1, units.Eng(p.Seconds, units.Time, 3))
 		}
 	}
 	return nil

@@ -27,7 +27,7 @@ func ExampleParse() {
 	// pmos from 3.2 V:   7.4 mV at 100 mA
 	// pmos from 1.9 V:  21.5 mV at 100 mA
 	// pmos from 1.1 V: 663.7 mV at 100 mA
-	// protect: limiter: key "rsh": 0 is out of range: expected the sense resistance above 0 Ω and at most 10000 Ω
+	// protect: limiter: key "rsh": 0 Ω is out of range: expected the sense resistance above 0 Ω and at most 10000 Ω
 }
 
 func ExampleElement_Reverse() {

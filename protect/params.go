@@ -97,13 +97,35 @@ func (f field) rangeText() string {
 func (f field) validate(kind string) error {
 	if !f.inRange(*f.p) {
 		return specErrorf(kind, f.key, "%s is out of range: expected %s %s",
-			strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, f.rangeText())
+			f.human(*f.p), f.what, f.rangeText())
 	}
 	if f.least > 0 && *f.p < f.least {
 		return specErrorf(kind, f.key, "%s is too small: expected %s of at least %s",
-			strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, units.Format(f.least, f.kind))
+			f.human(*f.p), f.what, f.bound(f.least))
 	}
 	return nil
+}
+
+// bound writes a limit of the field: as human does, or for a limit far
+// below the smallest prefix, in plain scientific notation.
+func (f field) bound(v float64) string {
+	if s := f.human(v); !strings.HasPrefix(s, "a value under") {
+		return s
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64) + " " + strings.TrimPrefix(units.Eng(1, f.kind, 1), "1 ")
+}
+
+// human writes a value of the field for people (the one formatter,
+// internal/units).
+func (f field) human(v float64) string {
+	if f.kind == plain {
+		return units.Num(v, 4)
+	}
+	s := units.Eng(v, f.kind, 4)
+	if v != 0 && strings.HasPrefix(s, "0 ") { // too small to write: say so
+		return "a value under " + units.Eng(math.Copysign(1e-15, 1), f.kind, 1)
+	}
+	return s
 }
 
 // specOf writes kind:key=value,... with every field, in the field order.
