@@ -262,3 +262,24 @@ func TestModelCopiesDoNotAlias(t *testing.T) {
 		t.Errorf("the earlier copy changed with the later one: series %d, same result %v", b.vals.series, b.res == a.res)
 	}
 }
+
+// The same as a user sees it, through teatest at 80×24: every verdict row,
+// the notes behind w, the product form behind e.
+func TestStrangerAt80x24(t *testing.T) {
+	tm := startTest(t, New(nil), 80, 24)
+	waitText(t, tm, "Runtime", "Junction", "Standby share", "Cost per hour", "press w")
+	tm.Send(runes("w"))
+	waitText(t, tm, "Warnings and cautions", "Never mix old and new cells")
+	tm.Send(keyEsc)
+	tm.Send(runes("e"))
+	waitText(t, tm, "The product", "Load phases", "Pack price")
+	tm.Send(keyDown)
+	tm.Send(keyEnter)
+	tm.Send(runes("hum 40mA"))
+	tm.Send(keyEnter)
+	waitText(t, tm, "hum 40.0 mA")
+	m := finish(t, tm)
+	if p := m.profile(); len(p) != 1 || p[0].Name != "hum" || p[0].Load.Amps != 0.04 {
+		t.Errorf("profile after typing one steady phase: %+v", p)
+	}
+}
