@@ -3,6 +3,7 @@ package discharge
 import (
 	"math"
 
+	"headroom/internal/units"
 	"headroom/protect"
 )
 
@@ -132,4 +133,16 @@ func (r *Result) StrandedShare() (float64, bool) {
 		return 0, false
 	}
 	return r.StrandedMAh / r.ReferenceMAh, true
+}
+
+// ProtectionShareText is the element's share of the stranded charge in
+// words, for reports and the screen: "924 mAh by the protection drop", or
+// when the element lengthens the run, "−300 mAh by the protection (it
+// lowers the load's current, so the cells run longer)".
+func (r *Result) ProtectionShareText() string {
+	x := r.StrandedByProtectionMAh
+	if x < 0 {
+		return units.MAh(x, 3) + " by the protection (it lowers the load's current, so the cells run longer)"
+	}
+	return units.MAh(x, 3) + " by the protection drop"
 }

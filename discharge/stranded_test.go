@@ -150,3 +150,15 @@ func TestNeverStartsHasNoShare(t *testing.T) {
 		t.Errorf("cut-off text %q: want it to say it does not start", s)
 	}
 }
+
+// A negative share is said in words, not as a bare "-300 mAh by the drop".
+func TestProtectionShareWords(t *testing.T) {
+	r := &Result{StrandedByProtectionMAh: -300}
+	if s := r.ProtectionShareText(); !strings.Contains(s, "-300 mAh") || !strings.Contains(s, "run longer") {
+		t.Errorf("%q", s)
+	}
+	r.StrandedByProtectionMAh = 924
+	if s := r.ProtectionShareText(); s != "924 mAh by the protection drop" {
+		t.Errorf("%q", s)
+	}
+}

@@ -59,7 +59,11 @@ func (m verdictModel) View(sh *shared) string {
 		line(" split", mah(r.StrandedByProtectionMAh)+" drop", "+ "+mah(r.StrandedByFloorMAh)+" floor")
 	default:
 		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
-		line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")
+		if r.StrandedByProtectionMAh < 0 {
+			line(" by protection", mah(r.StrandedByProtectionMAh), "(it lowers the current: the cells run longer)")
+		} else {
+			line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")
+		}
 		line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
 	}
 	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")

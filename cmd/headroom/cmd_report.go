@@ -277,8 +277,8 @@ func summaryText(d *discharge.Design, r *discharge.Result) string {
 	}
 	fmt.Fprintf(&b, "Runtime %s of use (%s).\n", units.Duration(r.RuntimeH, 3), days)
 	if _, ok := r.StrandedShare(); ok {
-		fmt.Fprintf(&b, "Stranded %s of a %s reference (%s %%): %s by the protection drop, %s by the floor.\n",
-			mAh(r.StrandedMAh), mAh(r.ReferenceMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
+		fmt.Fprintf(&b, "Stranded %s of a %s reference (%s %%): %s, %s by the floor.\n",
+			mAh(r.StrandedMAh), mAh(r.ReferenceMAh), fixed(strandedPct(r), 1), r.ProtectionShareText(), mAh(r.StrandedByFloorMAh))
 	} else {
 		fmt.Fprintf(&b, "Stranded: — (the product never starts, so no share of the charge is stranded).\n")
 	}

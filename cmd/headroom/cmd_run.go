@@ -252,8 +252,8 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	line("delivered", "%s from the pack, %s into the load", mAh(r.DeliveredMAh), units.Prefixed(r.DeliveredWh, 3, "Wh"))
 	line("reference", "%s: the cells at this load to their %s V end-point, no element, no floor", mAh(r.ReferenceMAh), short(d.Cell.EndPoint))
 	if _, ok := r.StrandedShare(); ok {
-		line("stranded", "%s = %s %% of the reference: %s by the protection drop, %s by the floor",
-			mAh(r.StrandedMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
+		line("stranded", "%s = %s %% of the reference: %s, %s by the floor",
+			mAh(r.StrandedMAh), fixed(strandedPct(r), 1), r.ProtectionShareText(), mAh(r.StrandedByFloorMAh))
 	} else {
 		line("stranded", "— (the product never starts, so no share of the charge is stranded; see the cut-off)")
 	}
