@@ -10,6 +10,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -71,7 +72,7 @@ func (m knobsModel) Update(sh *shared, msg tea.Msg) (knobsModel, tea.Cmd) {
 				return m, nil
 			case key.Matches(km, k.Accept):
 				if err := sh.setText(m.sel, m.input.Value()); err != nil {
-					m.errText = err.Error()
+					m.errText = guard.Clean(err.Error())
 					return m, nil
 				}
 				m.editing, m.errText = false, ""

@@ -109,7 +109,10 @@ var knobTable = [knobCount]knobSpec{
 		parse: func(sh *shared, s string) (func(*values), error) {
 			c, err := sh.scen.ResolveCell(s)
 			if err != nil {
-				c, err = sh.scen.ResolveCell(strings.ToLower(s))
+				// "LR6" for lr6; a file's own error stands when that fails too.
+				if lc, lerr := sh.scen.ResolveCell(strings.ToLower(s)); lerr == nil {
+					c, err = lc, nil
+				}
 			}
 			if err != nil {
 				return nil, err
@@ -349,11 +352,30 @@ func (sh *shared) row(k knob) row {
 	return r
 }
 
-// detail explains knob k in a sentence or two.
-func (sh *shared) detail(k knob) string { return knobTable[k].about(sh) }
+// detail explains knob k in a sentence or two ("" for no knob: the view
+// draws whatever the selection holds).
+func (sh *shared) detail(k knob) string {
+	if !k.valid() {
+		return ""
+	}
+	return knobTable[k].about(sh)
+}
 
 // typingHint says what a knob's text field accepts.
-func (sh *shared) typingHint(k knob) string { return knobTable[k].hint(sh) }
+func (sh *shared) typingHint(k knob) string {
+	if !k.valid() {
+		return ""
+	}
+	return knobTable[k].hint(sh)
+}
 
 // name is the knob's name, for messages.
-func (k knob) name() string { return knobTable[k].name }
+func (k knob) name() string {
+	if !k.valid() {
+		return "?"
+	}
+	return knobTable[k].name
+}
+
+// valid reports whether k is one of the knobs.
+func (k knob) valid() bool { return k >= 0 && k < knobCount }

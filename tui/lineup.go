@@ -35,7 +35,10 @@ func (m lineupModel) Update(sh *shared, msg tea.Msg) (lineupModel, tea.Cmd) {
 		return m, nil
 	}
 	k := sh.keys
-	n := len(sh.lineupRows)
+	n := len(sh.lineupReady())
+	if n == 0 {
+		return m, nil // still being evaluated
+	}
 	switch {
 	case key.Matches(km, k.Up):
 		m.sel = (m.sel + n - 1) % max(n, 1)
@@ -61,7 +64,7 @@ func (m lineupModel) Update(sh *shared, msg tea.Msg) (lineupModel, tea.Cmd) {
 	return m, nil
 }
 
-func (m lineupModel) rows(sh *shared) []lineupRow { return ranked(sh.lineupRows, m.byRuntime) }
+func (m lineupModel) rows(sh *shared) []lineupRow { return ranked(sh.lineupReady(), m.byRuntime) }
 
 // selectCurrent puts the selection on the current cell.
 func (m *lineupModel) selectCurrent(sh *shared) {
@@ -82,17 +85,21 @@ func (m lineupModel) View(sh *shared) string {
 	if m.byRuntime {
 		order, other = "runtime (longest first)", "cost per hour"
 	}
-	b.WriteString(st.Heading.Render("Cell line-up"))
-	if sh.tablesStale() {
-		b.WriteString(st.Dim.Render("  updating for the design's last change…"))
-	}
-	b.WriteString("\n")
+	b.WriteString(st.Heading.Render("Cell line-up") + "\n")
 	intro := fmt.Sprintf("Every cell, %d string(s) in parallel, in the series count (S) whose nominal voltage is closest to this pack's without starting above %.1f× its fresh voltage; same load (%s), protection (%s), floor (%.2f V) and ambient (%s). Ranked by %s; press o to rank by %s.",
 		v.parallel, scenario.FreshLimit, profileLabel(sh.profile()), v.elem.Kind(), v.floor, trimFloat(v.tempC)+" °C", order, other)
-	for _, l := range wrapLines(intro, w) {
+	intro2 := wrapLines(intro, w)
+	if len(intro2) > 4 { // a long profile must not push the table off the screen
+		intro2 = append(intro2[:3:3], "… ranked by "+order+"; press o to rank by "+other+".")
+	}
+	for _, l := range intro2 {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	rows := m.rows(sh)
+	if rows == nil {
+		b.WriteString("\n" + st.Dim.Render(fmt.Sprintf("Evaluating %d cells for this design…", len(sh.cells))))
+		return b.String()
+	}
 	maxRun := 0.0
 	for _, r := range rows {
 		if r.err == nil {

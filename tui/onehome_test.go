@@ -51,7 +51,7 @@ func TestLineupOneHome(t *testing.T) {
 	sh := newShared(scenario.Demo())
 	base := sh.design()
 	want := scenario.Lineup(&base, sh.cells, nil)
-	rows, _ := sh.tablesNow()()
+	rows := sh.evaluateLineup()
 	if len(rows) != len(want) {
 		t.Fatalf("%d rows, scenario.Lineup gives %d", len(rows), len(want))
 	}

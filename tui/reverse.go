@@ -67,11 +67,7 @@ func (m reverseModel) View(sh *shared) string {
 	v := sh.vals
 	c := sh.cell()
 	var b strings.Builder
-	b.WriteString(st.Heading.Render("Cells put in wrong"))
-	if sh.tablesStale() {
-		b.WriteString(st.Dim.Render("  updating for the design's last change…"))
-	}
-	b.WriteString("\n")
+	b.WriteString(st.Heading.Render("Cells put in wrong") + "\n")
 	intro := fmt.Sprintf("For this pack (%d × %s in series, %d in parallel, load %s) and every protection kind: the whole pack reversed, and one cell of it flipped.",
 		v.series, cellLabel(c), v.parallel, peakLabel(sh.profile()))
 	for _, l := range wrapLines(intro, w) {

@@ -9,6 +9,7 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
 
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 )
 
@@ -85,7 +86,7 @@ func (m saveModel) Update(sh *shared, msg tea.Msg) (saveModel, tea.Cmd) {
 			m.state = saveConfirm
 		default:
 			m.state, m.failed = saveIdle, true
-			m.status = "Not saved: " + sm.err.Error()
+			m.status = "Not saved: " + guard.Clean(sm.err.Error())
 		}
 		return m, nil
 	}

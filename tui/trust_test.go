@@ -209,43 +209,6 @@ func TestProductFormEditsTheLoad(t *testing.T) {
 	}
 }
 
-// The line-up and reverse tables are computed in a command, not in
-// Update; a result for a design already left behind is dropped and the
-// current design's started instead.
-func TestTablesOffTheKeyPathDropStale(t *testing.T) {
-	var tm tea.Model = New(nil)
-	tm, _ = tm.Update(tea.WindowSizeMsg{Width: 100, Height: 30})
-	// Two steps on the series knob: two generations.
-	tm, cmd1 := tm.Update(keyDown)
-	tm, cmd1 = tm.Update(keyRight) // 3 cells in series
-	if cmd1 == nil || !tm.(Model).sh().tablesStale() {
-		t.Fatal("a design change left no command for the tables")
-	}
-	msg1 := cmd1() // computed for 3 in series
-	if _, ok := msg1.(tablesMsg); !ok {
-		t.Fatalf("first command after a change brought %T, want the tables", msg1)
-	}
-	tm, _ = tm.Update(keyRight) // 4 in series: msg1 is stale now
-	tm, cmd2 := tm.Update(msg1)
-	if cmd2 == nil || !tm.(Model).sh().tablesStale() {
-		t.Fatal("a stale table result was taken, or the current one not started")
-	}
-	msg2 := cmd2()
-	if _, ok := msg2.(tablesMsg); !ok {
-		t.Fatalf("command after a stale result brought %T, want the tables", msg2)
-	}
-	tm, _ = tm.Update(msg2)
-	m := tm.(Model)
-	if m.tablesStale() {
-		t.Fatal("the current tables did not arrive")
-	}
-	for _, r := range m.lineupRows {
-		if r.idx == m.vals.cell && r.series != 4 {
-			t.Errorf("line-up row of the cell in use: %d in series, want the current 4", r.series)
-		}
-	}
-}
-
 // The screen's state is a value: a copy of the model taken before a key
 // does not change when the key changes the design (it used to, through a
 // shared pointer).

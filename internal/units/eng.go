@@ -65,6 +65,17 @@ func Prefixed(v float64, sig int, sym string) string {
 	return place(neg, digs, exp-e3) + " " + engPrefixes[e3/3+5] + sym
 }
 
+// Said is Eng for error messages: a value too small to show at the
+// smallest prefix is written as it is ("1e-300 A"), not as "0 A", so that
+// a refusal says what was given.
+func Said(v float64, k Kind) string {
+	s := Eng(v, k, 3)
+	if v != 0 && !math.IsNaN(v) && !math.IsInf(v, 0) && (strings.HasPrefix(s, "0 ") || strings.HasPrefix(s, "< ")) {
+		return strconv.FormatFloat(v, 'g', -1, 64) + " " + humanSymbol[k]
+	}
+	return s
+}
+
 // Num writes a plain number with about sig significant digits, every
 // whole digit kept (2768, not 2.77e+03), at most 6 decimals; "0" for what
 // rounds to nothing (never "-0" or "0.000000"), "—" when not finite.
