@@ -135,7 +135,10 @@ func runCompare(c *cli, args []string) error {
 		return err
 	}
 	if ranked {
-		if err := rankRows(s, &d, rows, key); err != nil {
+		bar := newMeter(c.stderr, isTerminal(c.stderr), "cells through the spread", len(rows))
+		err := rankRows(s, &d, rows, key, bar)
+		bar.end()
+		if err != nil {
 			return err
 		}
 	}
@@ -305,7 +308,7 @@ func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, with
 
 // rankRows sets each row's worst-corner or p10 runtime (key) and ranks
 // the rows by it, longest first; designs that never start go last.
-func rankRows(s *scenario.Scenario, d *discharge.Design, rows []compareRow, key string) error {
+func rankRows(s *scenario.Scenario, d *discharge.Design, rows []compareRow, key string, bar *meter) error {
 	for i := range rows {
 		cd := *d
 		cd.Cell, cd.Series, cd.TracePoints = rows[i].cell, rows[i].series, 0
@@ -317,6 +320,7 @@ func rankRows(s *scenario.Scenario, d *discharge.Design, rows []compareRow, key 
 			return fmt.Errorf("--sort %s: %s: %w", key, rows[i].cell.ID, err)
 		}
 		rows[i].rank = v
+		bar.step(i + 1)
 	}
 	sort.SliceStable(rows, func(i, j int) bool {
 		a, b := rows[i], rows[j]
