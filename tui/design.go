@@ -35,6 +35,7 @@ type values struct {
 	// The product form's values (product.go). base is the load profile
 	// before the load level; it is replaced whole, never changed in place.
 	name       string
+	note       string
 	base       []discharge.Phase
 	standby    float64 // amperes
 	price      float64 // dollars for one pack
@@ -76,7 +77,7 @@ func newShared(s *scenario.Scenario) *shared {
 	}
 	d := s.Design
 	v := values{series: d.Series, parallel: d.Parallel, scale: 1, floor: d.Floor, tempC: d.TempC, hours: d.HoursPerDay,
-		name: s.Name, base: d.Profile, standby: d.Standby, price: d.PackPrice}
+		name: s.Name, note: s.Note, base: d.Profile, standby: d.Standby, price: d.PackPrice}
 	v.cell = sh.addCell(d.Cell)
 	v.elem = d.Protect
 	if v.elem == nil {

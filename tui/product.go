@@ -9,6 +9,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 )
@@ -23,6 +24,7 @@ type productField int
 
 const (
 	fieldName productField = iota
+	fieldNote
 	fieldPhases
 	fieldStandby
 	fieldPrice
@@ -30,12 +32,13 @@ const (
 )
 
 func (f productField) label() string {
-	return [...]string{"Name", "Load phases", "Standby", "Pack price"}[f]
+	return [...]string{"Name", "Note", "Load phases", "Standby", "Pack price"}[f]
 }
 
 func (f productField) hint() string {
 	return [...]string{
 		"any text: the product's name in the header and in a saved file",
+		"any text: a line about the product, kept in a saved file",
 		"phases separated by ; each a name (may be empty) then LOAD/DURATION: motor 450mA/3s; idle 15mA/27s (loads as in a file: 120mA, 0.8W@85%, 33ohm, led:vf=2,r=47)",
 		"the drain when not in use, such as 30uA",
 		"dollars for one pack, such as 1.10; 0 for a free pack; empty for the cells' price",
@@ -61,6 +64,8 @@ func (sh *shared) productText(f productField) string {
 	switch f {
 	case fieldName:
 		return v.name
+	case fieldNote:
+		return v.note
 	case fieldPhases:
 		return phasesText(v.base)
 	case fieldStandby:
@@ -97,12 +102,9 @@ func (sh *shared) setProduct(f productField, s string) error {
 	t := strings.TrimSpace(s)
 	switch f {
 	case fieldName:
-		v.name = strings.Map(func(r rune) rune {
-			if r < ' ' || r == 0x7f {
-				return -1
-			}
-			return r
-		}, t)
+		v.name = guard.Clean(t)
+	case fieldNote:
+		v.note = guard.Clean(t)
 	case fieldPhases:
 		p, err := parsePhases(t)
 		if err != nil {

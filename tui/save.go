@@ -167,7 +167,7 @@ func (sh *shared) savedFor(path string) ([]byte, error) {
 		return nil, err
 	}
 	d := sh.design()
-	return scenario.Update(orig, &sh.scen.Design, scenario.Saved{Name: sh.vals.name, Note: sh.scen.Note, Design: d,
+	return scenario.Update(orig, &sh.scen.Design, scenario.Saved{Name: sh.vals.name, Note: sh.vals.note, Design: d,
 		ProtectSpec: sh.vals.elem.Spec()}), nil
 }
 
@@ -190,7 +190,7 @@ func (sh *shared) saved() []byte {
 	if name == "" {
 		name = "headroom design"
 	}
-	return scenario.Format(scenario.Saved{Name: name, Note: sh.scen.Note, Design: d,
+	return scenario.Format(scenario.Saved{Name: name, Note: sh.vals.note, Design: d,
 		ProtectSpec: sh.vals.elem.Spec(), Budget: sh.scen.Budget,
 		Tolerances: sh.scen.Tolerances, Samples: sh.scen.Samples, Seed: sh.scen.Seed})
 }

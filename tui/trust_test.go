@@ -175,7 +175,8 @@ func TestProductFormEditsTheLoad(t *testing.T) {
 		t.Fatalf("e: no product form:\n%s", ansi.Strip(tm.(Model).View()))
 	}
 	// Name, then the phases: type over the selected values.
-	press(keyEnter, runes("Night owl lamp"), keyEnter, keyDown, keyEnter, runes("glow 20mA/10s; flash 300mA/1s"), keyEnter)
+	press(keyEnter, runes("Night owl lamp"), keyEnter, keyDown, keyEnter, runes("bedside, 3xAAA"), keyEnter,
+		keyDown, keyEnter, runes("glow 20mA/10s; flash 300mA/1s"), keyEnter)
 	press(keyDown, keyEnter, runes("5uA"), keyEnter, keyDown, keyEnter, runes("0"), keyEnter)
 	m := tm.(Model)
 	if m.product.errText != "" {
@@ -199,8 +200,8 @@ func TestProductFormEditsTheLoad(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if back.Name != "Night owl lamp" || len(back.Design.Profile) != 2 || back.Design.Standby != 5e-6 {
-		t.Errorf("saved: %q, %d phases, standby %v", back.Name, len(back.Design.Profile), back.Design.Standby)
+	if back.Name != "Night owl lamp" || back.Note != "bedside, 3xAAA" || len(back.Design.Profile) != 2 || back.Design.Standby != 5e-6 {
+		t.Errorf("saved: %q %q, %d phases, standby %v", back.Name, back.Note, len(back.Design.Profile), back.Design.Standby)
 	}
 	// A bad phase says which, through the load parser.
 	press(keyUp, keyUp, keyEnter, runes("glow 20mA/10s; flash 3 amps/1s"), keyEnter)
@@ -236,6 +237,7 @@ func TestStrangerAt80x24(t *testing.T) {
 	tm.Send(keyEsc)
 	tm.Send(runes("e"))
 	waitText(t, tm, "The product", "Load phases", "Pack price")
+	tm.Send(keyDown)
 	tm.Send(keyDown)
 	tm.Send(keyEnter)
 	tm.Send(runes("hum 40mA"))

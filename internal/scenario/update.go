@@ -9,6 +9,7 @@ import (
 	"github.com/BurntSushi/toml"
 
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/units"
 	"headroom/protect"
 )
@@ -54,6 +55,14 @@ func Update(orig []byte, was *discharge.Design, s Saved) []byte {
 	}
 	if s.Name != "" {
 		set = append(set, struct{ key, val string }{"name", tomlString(s.Name)})
+	}
+	// The note is written only when it was edited: a file's own note (a
+	// multi-line string, say) stays as the file wrote it.
+	var old struct {
+		Note string `toml:"note"`
+	}
+	if _, err := toml.Decode(string(orig), &old); err != nil || guard.CleanLines(old.Note) != s.Note {
+		set = append(set, struct{ key, val string }{"note", tomlString(s.Note)})
 	}
 	if d.HoursPerDay > 0 {
 		set = append(set, struct{ key, val string }{"hours_per_day", g(d.HoursPerDay)})

@@ -47,6 +47,11 @@ func TestUpdateKeepsTheRest(t *testing.T) {
 	if len(back.Design.Profile) != len(s.Design.Profile) {
 		t.Errorf("profile %d phases, was %d", len(back.Design.Profile), len(s.Design.Profile))
 	}
+	// An edited note is written; the rest still stays.
+	out = Update(orig, &s.Design, Saved{Name: s.Name, Note: "a new note", Design: d, ProtectSpec: "schottky"})
+	if back, err = Parse(out, "saved.toml", "../../testdata/scenarios"); err != nil || back.Note != "a new note" || back.Count() != s.Count() {
+		t.Errorf("edited note: %v, note %q, %d combinations", err, back.Note, back.Count())
+	}
 }
 
 // What headroom writes, headroom reads back: any name and note (control
