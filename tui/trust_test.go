@@ -57,7 +57,7 @@ func TestTypingHintWhole(t *testing.T) {
 // to read them all.
 func TestEveryVerdictRowAt80x24(t *testing.T) {
 	v := ansi.Strip(sized(80, 24).View())
-	for _, label := range []string{"Runtime", "Delivered", "Stranded", "split", "Protection heat", "Junction", "Standby share", "Cost per hour", "press w"} {
+	for _, label := range []string{"Runtime", "Delivered", "Stranded", "drop / floor", "Protection heat", "Junction", "Standby share", "Cost per hour", "press w"} {
 		if !strings.Contains(v, label) {
 			t.Errorf("80×24: no %q:\n%s", label, v)
 		}
@@ -246,5 +246,20 @@ func TestStrangerAt80x24(t *testing.T) {
 	m := finish(t, tm)
 	if p := m.profile(); len(p) != 1 || p[0].Name != "hum" || p[0].Load.Amps != 0.04 {
 		t.Errorf("profile after typing one steady phase: %+v", p)
+	}
+}
+
+// Big figures do not push a verdict row off an 80×24 screen: a note that
+// does not fit is cut, not wrapped.
+func TestCompactVerdictBigFigures(t *testing.T) {
+	s := scenario.Demo()
+	s.Design.Parallel = 8 // eight strings: five-digit charges
+	m := New(s)
+	m.width, m.height = 80, 24
+	v := ansi.Strip(m.View())
+	for _, label := range []string{"Stranded", "drop / floor", "Junction", "Standby share", "Cost per hour"} {
+		if !strings.Contains(v, label) {
+			t.Errorf("no %q at 80×24 with big figures:\n%s", label, v)
+		}
 	}
 }

@@ -34,9 +34,13 @@ func (m verdictModel) View(sh *shared) string {
 		s := st.Label.Render(pad(label, lw)) + st.Value.Render(value)
 		if note != "" {
 			used := lw + len([]rune(value)) + 1
-			if used+len([]rune(note)) > w {
+			switch {
+			case used+len([]rune(note)) > w && m.compact:
+				// One line a figure, whatever the figures: the note is cut.
+				s += " " + st.Dim.Render(pad(note, max(1, w-used)))
+			case used+len([]rune(note)) > w:
 				s += "\n" + strings.Repeat(" ", lw) + st.Dim.Render(wrapAfter(note, w, lw))
-			} else {
+			default:
 				s += " " + st.Dim.Render(note)
 			}
 		}
@@ -56,7 +60,8 @@ func (m verdictModel) View(sh *shared) string {
 		line("Stranded", "—", "(never starts: no share is stranded)")
 	case m.compact:
 		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
-		line(" split", mah(r.StrandedByProtectionMAh)+" drop", "+ "+mah(r.StrandedByFloorMAh)+" floor")
+		// One short line whatever the figures: "1032 / 1187 mAh".
+		line(" drop / floor", units.Num(r.StrandedByProtectionMAh, 3)+" / "+mah(r.StrandedByFloorMAh), "")
 	default:
 		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
 		if r.StrandedByProtectionMAh < 0 {
