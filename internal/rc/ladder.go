@@ -50,7 +50,7 @@ type Train struct {
 	decay, meanf []float64
 	// per stage: 1/(1 − e^(−T/τ)) for the whole period T, or 0 when the
 	// stage does not decay over a period at all (the average is used).
-	gain []float64
+	gain  []float64
 	v, v0 []float64 // scratch: per-stage values now and at a segment's start
 }
 
