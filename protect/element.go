@@ -30,8 +30,8 @@ type Element interface {
 	Limit(tempC float64) Limit
 	// Cost is the element's unit cost in dollars, parts only.
 	Cost() float64
-	// Thermal gives the junction-to-ambient thermal resistance and the
-	// maximum junction temperature.
+	// Thermal gives the element's thermal network (steady θja and its
+	// Foster ladder) and the maximum junction temperature.
 	Thermal() Thermal
 	// Warnings lists what goes wrong in normal use at the operating
 	// conditions given, in plain words; nil when nothing does.
@@ -52,23 +52,19 @@ type Limit struct {
 // NoLimit is a Limit with neither a clamp nor a trip.
 var NoLimit = Limit{Clamp: math.Inf(1), Trip: math.Inf(1)}
 
-// Thermal holds ThetaJA, junction-to-ambient thermal resistance in °C/W
-// (above 0), and TjMax, the highest allowed junction temperature in °C.
-type Thermal struct {
-	ThetaJA float64
-	TjMax   float64
-}
-
-// Junction returns the junction temperature in °C at dissipation p (W) and
-// ambient tambC: Tj = Tamb + θja·P.
-func (t Thermal) Junction(p, tambC float64) float64 { return tambC + t.ThetaJA*p }
-
 // Operating describes normal use for Warnings.
 type Operating struct {
 	VFresh   float64   // open-circuit pack voltage when fresh, volts
 	Currents []float64 // the highest current of each load phase, amperes
 	PeakW    float64   // highest dissipation in the element, watts
 	TempC    float64   // ambient, °C
+	// PeakC is the junction's highest temperature over the profile from
+	// its thermal network (Heating), °C; 0 means not worked out, and
+	// the steady Tamb + θja·PeakW is used instead.
+	PeakC float64
+	// Seconds is each phase's duration in seconds, beside Currents; nil
+	// when unknown (a polyfuse then judges each current as if held).
+	Seconds []float64
 }
 
 // Pack describes the pack for Reverse.
@@ -139,7 +135,7 @@ func (None) Drop(i, vin, tempC float64) float64   { return 0 }
 func (None) Quiescent(vin, tempC float64) float64 { return 0 }
 func (None) Limit(tempC float64) Limit            { return NoLimit }
 func (None) Cost() float64                        { return 0 }
-func (None) Thermal() Thermal                     { return Thermal{ThetaJA: 1, TjMax: math.Inf(1)} }
+func (None) Thermal() Thermal                     { return Thermal{TjMax: math.Inf(1), TauFast: 1, Tau: 1} }
 func (None) Warnings(op Operating) []string       { return nil }
 func (None) Reverse(p Pack) Reversal {
 	v := float64(p.Series) * p.CellV

@@ -23,17 +23,15 @@ type IC struct {
 	Irev float64
 	// Price is the unit cost in dollars, at least 0.
 	Price float64
-	// ThetaJA is junction-to-ambient thermal resistance in °C/W, above 0.
-	ThetaJA float64
-	// TjMax is the highest junction temperature in °C.
-	TjMax float64
+	// Heat is the thermal network from junction to ambient.
+	Heat Thermal
 }
 
 // DefaultIC is a generic small protector (typical, from memory): 100 mΩ,
 // 20 µA, 0.5 A limit, 5.8 V over-voltage threshold, 1 µA reverse leakage,
 // SOT-23-5, $0.45.
 func DefaultIC() IC {
-	return IC{Ron: 0.1, Iq: 20e-6, Ilim: 0.5, Vovp: 5.8, Irev: 1e-6, Price: 0.45, ThetaJA: 200, TjMax: 125}
+	return IC{Ron: 0.1, Iq: 20e-6, Ilim: 0.5, Vovp: 5.8, Irev: 1e-6, Price: 0.45, Heat: sot23IC}
 }
 
 func (c IC) Kind() string { return "ic" }
@@ -59,7 +57,8 @@ func (c IC) Limit(tempC float64) Limit {
 }
 
 func (c IC) Cost() float64    { return c.Price }
-func (c IC) Thermal() Thermal { return Thermal{ThetaJA: c.ThetaJA, TjMax: c.TjMax} }
+func (c IC) Thermal() Thermal { return c.Heat }
+func (c *IC) heat() *Thermal { return &c.Heat }
 
 func (c IC) Warnings(op Operating) []string {
 	var w []string
@@ -90,7 +89,7 @@ func (c *IC) fields() []field {
 		{key: "irev", kind: units.Current, p: &c.Irev, lo: 0, hi: 1, what: "the reverse leakage"},
 		costField(&c.Price),
 	}
-	return append(fs, thermalFields(&c.ThetaJA, &c.TjMax)...)
+	return append(fs, thermalFields(&c.Heat)...)
 }
-func (c *IC) check() error   { return nil }
+func (c *IC) check() error   { return c.Heat.check(c.Kind()) }
 func (c *IC) value() Element { return *c }

@@ -50,11 +50,9 @@ type Limiter struct {
 	// Price is the unit cost of all seven parts (two FETs, the PNP, three
 	// resistors) in dollars, at least 0.
 	Price float64
-	// ThetaJA is the pass FET's junction-to-ambient thermal resistance in
-	// °C/W, above 0.
-	ThetaJA float64
-	// TjMax is the pass FET's highest junction temperature in °C.
-	TjMax float64
+	// Heat is the pass FET's thermal network (it is the part that heats
+	// when limiting).
+	Heat Thermal
 }
 
 // DefaultLimiter is a 1 Ω sense resistor (0.65 A limit), a small-signal
@@ -63,7 +61,7 @@ type Limiter struct {
 // $0.08 a FET as DefaultPMOS, the rest for the PNP and resistors.
 func DefaultLimiter() Limiter {
 	return Limiter{FET: defaultFET(), Rsh: 1, Vbe: 0.65, TcVbe: -0.002,
-		R1: 1e6, R2: 100e3, Price: 0.28, ThetaJA: 250, TjMax: 150}
+		R1: 1e6, R2: 100e3, Price: 0.28, Heat: sot23}
 }
 
 func (l Limiter) Kind() string { return "limiter" }
@@ -126,7 +124,8 @@ func (l Limiter) Limit(tempC float64) Limit {
 }
 
 func (l Limiter) Cost() float64    { return l.Price }
-func (l Limiter) Thermal() Thermal { return Thermal{ThetaJA: l.ThetaJA, TjMax: l.TjMax} }
+func (l Limiter) Thermal() Thermal { return l.Heat }
+func (l *Limiter) heat() *Thermal { return &l.Heat }
 
 // ShortCircuit returns the pass FET's dissipation (W) and junction
 // temperature (°C) with the output shorted: the FET holds the limit current
@@ -139,10 +138,10 @@ func (l Limiter) ShortCircuit(vpack, tempC float64) (watts, tjC float64) {
 func (l Limiter) Warnings(op Operating) []string {
 	var w []string
 	lim := l.Limit(op.TempC).Clamp
-	if p, tj := l.ShortCircuit(op.VFresh, op.TempC); tj > l.TjMax {
+	if p, tj := l.ShortCircuit(op.VFresh, op.TempC); tj > l.Heat.TjMax {
 		w = append(w, "in a short the pass FET holds "+units.Human(lim, units.Current, 3)+" with "+
 			units.Human(op.VFresh, units.Voltage, 3)+" across it: "+units.Human(p, units.Power, 3)+
-			", junction "+units.Human(tj, units.Temperature, 3)+", above its "+units.Human(l.TjMax, units.Temperature, 3)+
+			", junction "+units.Human(tj, units.Temperature, 3)+", above its "+units.Human(l.Heat.TjMax, units.Temperature, 3)+
 			" limit: it overheats unless heat-sunk")
 	}
 	if g := l.drive() * op.VFresh; g > l.VgsMax {
@@ -181,10 +180,13 @@ func (l *Limiter) fields() []field {
 	}
 	fs = append(fs, fetFields(&l.FET)...)
 	fs = append(fs, costField(&l.Price))
-	return append(fs, thermalFields(&l.ThetaJA, &l.TjMax)...)
+	return append(fs, thermalFields(&l.Heat)...)
 }
 
 func (l *Limiter) check() error {
-	return l.FET.check(l.Kind())
+	if err := l.FET.check(l.Kind()); err != nil {
+		return err
+	}
+	return l.Heat.check(l.Kind())
 }
 func (l *Limiter) value() Element { return *l }

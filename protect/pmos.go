@@ -126,16 +126,14 @@ type PMOS struct {
 	FET
 	// Price is the unit cost in dollars, at least 0.
 	Price float64
-	// ThetaJA is junction-to-ambient thermal resistance in °C/W, above 0.
-	ThetaJA float64
-	// TjMax is the highest allowed junction temperature in °C.
-	TjMax float64
+	// Heat is the thermal network from junction to ambient.
+	Heat Thermal
 }
 
 // DefaultPMOS is the generic FET of defaultFET (from memory) in SOT-23:
 // θja 250 °C/W, Tj max 150 °C, $0.08.
 func DefaultPMOS() PMOS {
-	return PMOS{FET: defaultFET(), Price: 0.08, ThetaJA: 250, TjMax: 150}
+	return PMOS{FET: defaultFET(), Price: 0.08, Heat: sot23}
 }
 
 func (m PMOS) Kind() string { return "pmos" }
@@ -155,7 +153,8 @@ func (m PMOS) Drop(i, vin, tempC float64) float64 {
 func (m PMOS) Quiescent(vin, tempC float64) float64 { return 0 }
 func (m PMOS) Limit(tempC float64) Limit            { return NoLimit }
 func (m PMOS) Cost() float64                        { return m.Price }
-func (m PMOS) Thermal() Thermal                     { return Thermal{ThetaJA: m.ThetaJA, TjMax: m.TjMax} }
+func (m PMOS) Thermal() Thermal                     { return m.Heat }
+func (m *PMOS) heat() *Thermal                        { return &m.Heat }
 
 func (m PMOS) Warnings(op Operating) []string {
 	var w []string
@@ -173,9 +172,14 @@ func (m PMOS) Reverse(p Pack) Reversal {
 
 func (m *PMOS) fields() []field {
 	fs := append(fetFields(&m.FET), costField(&m.Price))
-	return append(fs, thermalFields(&m.ThetaJA, &m.TjMax)...)
+	return append(fs, thermalFields(&m.Heat)...)
 }
-func (m *PMOS) check() error   { return m.FET.check(m.Kind()) }
+func (m *PMOS) check() error {
+	if err := m.FET.check(m.Kind()); err != nil {
+		return err
+	}
+	return m.Heat.check(m.Kind())
+}
 func (m *PMOS) value() Element { return *m }
 
 // PMOSClamp is a PMOS with a Zener diode from source to gate and a gate
@@ -251,7 +255,7 @@ func (m *PMOSClamp) fields() []field {
 		field{key: "vz", kind: units.Voltage, p: &m.Vz, lo: 0, hi: 100, loOpen: true, what: "the Zener clamp voltage"},
 		field{key: "rg", kind: units.Resistance, p: &m.Rg, lo: 0, hi: 1e9, loOpen: true, what: "the gate resistor"},
 		costField(&m.Price))
-	return append(fs, thermalFields(&m.ThetaJA, &m.TjMax)...)
+	return append(fs, thermalFields(&m.Heat)...)
 }
 
 func (m *PMOSClamp) check() error {
@@ -262,7 +266,7 @@ func (m *PMOSClamp) check() error {
 		return fmt.Errorf("protect: pmos-clamp: key \"vz\": %s must be above vth %s, or the clamp holds the channel off",
 			units.Format(m.Vz, units.Voltage), units.Format(m.Vth, units.Voltage))
 	}
-	return nil
+	return m.Heat.check(m.Kind())
 }
 func (m *PMOSClamp) value() Element { return *m }
 

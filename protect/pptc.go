@@ -28,16 +28,15 @@ type PPTC struct {
 	Derate float64
 	// Price is the unit cost in dollars, at least 0.
 	Price float64
-	// ThetaJA is the body-to-ambient thermal resistance in °C/W, above 0.
-	ThetaJA float64
-	// TjMax is the highest body temperature in °C; it trips near it.
-	TjMax float64
+	// Heat is the body's thermal network to ambient; TjMax is the highest
+	// body temperature, near which it trips.
+	Heat Thermal
 }
 
 // DefaultPPTC is a 0.3 A-hold surface-mount polyfuse (typical, from
 // memory): 0.5 Ω, trips at 0.6 A, half the hold left at 85 °C, $0.10.
 func DefaultPPTC() PPTC {
-	return PPTC{R: 0.5, Hold: 0.3, Trip: 0.6, Derate: 0.5, Price: 0.10, ThetaJA: 150, TjMax: 125}
+	return PPTC{R: 0.5, Hold: 0.3, Trip: 0.6, Derate: 0.5, Price: 0.10, Heat: body1206}
 }
 
 // derivePPTC sets Trip to twice Hold when a spec gives hold but not trip
@@ -74,7 +73,8 @@ func (f PPTC) Limit(tempC float64) Limit {
 }
 
 func (f PPTC) Cost() float64    { return f.Price }
-func (f PPTC) Thermal() Thermal { return Thermal{ThetaJA: f.ThetaJA, TjMax: f.TjMax} }
+func (f PPTC) Thermal() Thermal { return f.Heat }
+func (f *PPTC) heat() *Thermal { return &f.Heat }
 
 func (f PPTC) Warnings(op Operating) []string {
 	var w []string
@@ -122,7 +122,7 @@ func (f *PPTC) fields() []field {
 		{key: "derate", kind: units.Fraction, p: &f.Derate, lo: 0, hi: 1, loOpen: true, what: "the fraction of hold left at 85 °C"},
 		costField(&f.Price),
 	}
-	return append(fs, thermalFields(&f.ThetaJA, &f.TjMax)...)
+	return append(fs, thermalFields(&f.Heat)...)
 }
 
 func (f *PPTC) check() error {
@@ -130,6 +130,6 @@ func (f *PPTC) check() error {
 		return fmt.Errorf("protect: pptc: key \"trip\": %s must be above the hold current %s",
 			units.Format(f.Trip, units.Current), units.Format(f.Hold, units.Current))
 	}
-	return nil
+	return f.Heat.check(f.Kind())
 }
 func (f *PPTC) value() Element { return *f }
