@@ -96,7 +96,7 @@ func (c Crowbar) Limit(tempC float64) Limit {
 
 func (c Crowbar) Cost() float64    { return c.Price }
 func (c Crowbar) Thermal() Thermal { return c.Heat }
-func (c *Crowbar) heat() *Thermal { return &c.Heat }
+func (c *Crowbar) heat() *Thermal  { return &c.Heat }
 
 // OpenTime returns the seconds the fuse takes to open at current i, or
 // +Inf when i is at or below the minimum fusing current (twice the rating).

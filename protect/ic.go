@@ -58,7 +58,7 @@ func (c IC) Limit(tempC float64) Limit {
 
 func (c IC) Cost() float64    { return c.Price }
 func (c IC) Thermal() Thermal { return c.Heat }
-func (c *IC) heat() *Thermal { return &c.Heat }
+func (c *IC) heat() *Thermal  { return &c.Heat }
 
 func (c IC) Warnings(op Operating) []string {
 	var w []string

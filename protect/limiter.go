@@ -125,7 +125,7 @@ func (l Limiter) Limit(tempC float64) Limit {
 
 func (l Limiter) Cost() float64    { return l.Price }
 func (l Limiter) Thermal() Thermal { return l.Heat }
-func (l *Limiter) heat() *Thermal { return &l.Heat }
+func (l *Limiter) heat() *Thermal  { return &l.Heat }
 
 // ShortCircuit returns the pass FET's dissipation (W) and junction
 // temperature (°C) with the output shorted: the FET holds the limit current

@@ -154,7 +154,7 @@ func (m PMOS) Quiescent(vin, tempC float64) float64 { return 0 }
 func (m PMOS) Limit(tempC float64) Limit            { return NoLimit }
 func (m PMOS) Cost() float64                        { return m.Price }
 func (m PMOS) Thermal() Thermal                     { return m.Heat }
-func (m *PMOS) heat() *Thermal                        { return &m.Heat }
+func (m *PMOS) heat() *Thermal                      { return &m.Heat }
 
 func (m PMOS) Warnings(op Operating) []string {
 	var w []string

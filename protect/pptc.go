@@ -74,7 +74,7 @@ func (f PPTC) Limit(tempC float64) Limit {
 
 func (f PPTC) Cost() float64    { return f.Price }
 func (f PPTC) Thermal() Thermal { return f.Heat }
-func (f *PPTC) heat() *Thermal { return &f.Heat }
+func (f *PPTC) heat() *Thermal  { return &f.Heat }
 
 func (f PPTC) Warnings(op Operating) []string {
 	var w []string

@@ -36,11 +36,11 @@ func TestThetaZeroIsIdealHeatSink(t *testing.T) {
 // mean is θ·P exactly. Checked to 1e-6 °C; the solve stops at 1e-9 °C.
 func TestSettleLinearDiodeClosedForm(t *testing.T) {
 	for _, c := range []struct{ v0, a, i, theta, tamb float64 }{
-		{0.865, 0.002, 0.45, 100, 20},  // the demo's diode, steady
-		{0.47, 0.0015, 1, 150, 25},     // a Schottky at 1 A
-		{0.9, 0.002, 3, 100, -10},      // heavy: loop gain θ·I·a = 0.6
-		{0.7, 0.002, 0.1, 0, 40},       // theta=0: no rise at all
-		{0.3, -0.004, 1, 100, 25},      // a drop that rises when hot: gain 0.4
+		{0.865, 0.002, 0.45, 100, 20}, // the demo's diode, steady
+		{0.47, 0.0015, 1, 150, 25},    // a Schottky at 1 A
+		{0.9, 0.002, 3, 100, -10},     // heavy: loop gain θ·I·a = 0.6
+		{0.7, 0.002, 0.1, 0, 40},      // theta=0: no rise at all
+		{0.3, -0.004, 1, 100, 25},     // a drop that rises when hot: gain 0.4
 	} {
 		th := Thermal{ThetaJA: c.theta, TjMax: 150, Fast: 0.3 * c.theta, TauFast: 1, Tau: 30}
 		h := NewHeating(th, []float64{10})
