@@ -198,5 +198,7 @@ func (m PMOSClamp) AtTemp(tempC float64) Element {
 
 func (l Limiter) AtTemp(tempC float64) Element {
 	l.Body = l.Body.At(tempC)
+	q := l.PNP()
+	l.pnp = &junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
 	return l
 }

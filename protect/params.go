@@ -384,6 +384,7 @@ func WithMain(e Element, v float64) (Element, error) {
 	switch t := s.(type) {
 	case *PPTC:
 		t.Trip *= v / old
+		t.R *= math.Pow(old/v, 1.2) // the scaling of pptcOhms
 	case *Crowbar:
 		t.RFuse *= old / v
 		t.I2t *= (v / old) * (v / old)

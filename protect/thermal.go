@@ -70,6 +70,46 @@ func (t Thermal) Junction(p, tambC float64) float64 { return tambC + t.ThetaJA*p
 // pulse of p watts lasting s seconds from ambient: Tamb + Zth(s)·P.
 func (t Thermal) Pulse(p, s, tambC float64) float64 { return tambC + t.Ladder().Z(s)*p }
 
+// TimeTo returns the seconds a constant dissipation p (W) takes to bring
+// the junction from ambient tambC to limitC, or +Inf when it never does
+// (θja·P at or below the rise). Zth(t) rises monotonically: bisection.
+func (t Thermal) TimeTo(p, tambC, limitC float64) float64 {
+	rise := limitC - tambC
+	if rise <= 0 {
+		return 0
+	}
+	l := t.Ladder()
+	if !(l.R()*p > rise) {
+		return math.Inf(1)
+	}
+	lo, hi := 0.0, math.Max(t.TauFast, t.Tau)
+	for l.Z(hi)*p < rise {
+		hi *= 2
+	}
+	for range 200 {
+		m := 0.5 * (lo + hi)
+		if l.Z(m)*p < rise {
+			lo = m
+		} else {
+			hi = m
+		}
+		if hi-lo <= 1e-9*hi {
+			break
+		}
+	}
+	return hi
+}
+
+// reachText says, for a warning, how soon a constant p (W) brings the
+// junction to TjMax from tambC: " after about 2.3 s", or "" when never.
+func (t Thermal) reachText(p, tambC float64) string {
+	s := t.TimeTo(p, tambC, t.TjMax)
+	if math.IsInf(s, 1) {
+		return ""
+	}
+	return " after about " + units.Human(s, units.Time, 2)
+}
+
 // thermalFields lists the network's keys: theta (θja), tjmax, thetaf (the
 // package stage), tauf and tau.
 func thermalFields(t *Thermal) []field {
