@@ -118,7 +118,8 @@ type Result struct {
 	ProtectionLossWh float64 // energy burnt in the element (drop and standing drain)
 	CellLossWh       float64 // energy burnt in the cells' internal resistance
 	ProtectionPeakW  float64 // highest dissipation in the element
-	JunctionC        float64 // element junction temperature at ProtectionPeakW
+	JunctionC        float64 // element junction at the peak of the hottest pulse, °C (its thermal network, periodic steady state)
+	JunctionMeanC    float64 // element junction averaged over a profile cycle at the same point, °C
 
 	StandbyMAh       float64 // charge drawn outside the hours of use
 	SelfDischargeMAh float64 // charge lost inside the cells

@@ -47,6 +47,12 @@ type variant struct {
 	el    protect.Element
 	lim   protect.Limit
 	floor float64
+	// heat is the element's per-phase junction state (heat.go); nil
+	// when the element is taken at ambient.
+	heat *heat
+	// over is the element when it opens on the profile as a whole (a
+	// polyfuse; lim.Trip is then +Inf); nil otherwise.
+	over protect.Overloader
 }
 
 type evaluator struct {
@@ -73,6 +79,11 @@ type evaluator struct {
 	// continuous use); self is the pack's self-discharge drain, mA. Both
 	// are fixed for the run and read at every quadrature node.
 	duty, self float64
+	// secs are the phases' durations and cur the currents of the last
+	// phases call; overMargin is 1 − a polyfuse's overload there (+Inf
+	// without one).
+	secs, cur  []float64
+	overMargin float64
 }
 
 // pack gives the pack's Thevenin source at scaled charge qs: E is the
@@ -89,12 +100,12 @@ func (e *evaluator) pack(qs float64) (E, Rp, Rcell float64) {
 // solve finds the operating point of load l with the pack source (E, Rp)
 // behind element v.
 func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
-	T := e.T
-	iq := v.el.Quiescent(E, T)
+	el, T := e.phaseElement(v, k)
+	iq := el.Quiescent(E, T)
 	vin := func(i float64) float64 { return E - (i+iq)*Rp }
 	vload := func(i float64) float64 {
 		x := vin(i)
-		return x - v.el.Drop(i, x, T)
+		return x - el.Drop(i, x, T)
 	}
 	var i float64
 	switch l.Kind {
@@ -123,7 +134,7 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 			// twice; a warm start from the upper branch would find the
 			// upper root. Only the element-free source is always concave.
 			hint := e.hint[k]
-			_, none := v.el.(protect.None)
+			_, none := el.(protect.None)
 			if !none {
 				hint = 0
 			}
@@ -140,7 +151,7 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 	}
 	o := op{I: i, Ipack: i + iq}
 	o.Vin = vin(i)
-	o.Vdrop = v.el.Drop(i, o.Vin, T)
+	o.Vdrop = el.Drop(i, o.Vin, T)
 	o.Vload = o.Vin - o.Vdrop
 	// A resistive or LED load sets its own voltage, i·R (+ Vf). Where the
 	// element's drop jumps (a FET out of gate drive hands over to its
@@ -165,6 +176,14 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 		o.Fail = CauseCollapse
 	case o.Vload < v.floor:
 		o.Fail = CauseFloor
+	}
+	// A limiter whose clamp depends on the pack (protect.Clamper) has no
+	// operating point above it: its drop takes the whole input. That is
+	// its current limit, not a collapse of the source.
+	if o.Fail == CauseCollapse || o.Fail == CauseFloor {
+		if _, ok := el.(protect.Clamper); ok && i > 0 && el.Drop(i, o.Vin, T) >= o.Vin {
+			o.Fail = CauseLimit
+		}
 	}
 	return o
 }
@@ -320,8 +339,17 @@ func (e *evaluator) phases(qs float64, v *variant, out []op) (fail Cause, phase 
 		if out != nil {
 			out[k] = o
 		}
+		e.cur[k] = o.I
 		if o.Fail != "" && (fail == "" || rank(o.Fail) < rank(fail)) {
 			fail, phase = o.Fail, k
+		}
+	}
+	e.overMargin = math.Inf(1)
+	if v.over != nil {
+		load, k := v.over.Overload(e.cur, e.secs, e.T)
+		e.overMargin = 1 - load
+		if load >= 1 && (fail == "" || rank(CauseFuse) < rank(fail)) {
+			fail, phase = CauseFuse, k
 		}
 	}
 	return fail, phase
@@ -360,6 +388,7 @@ func (e *evaluator) margin(qs float64, v *variant, buf []op) (bool, float64) {
 		}
 		m = min(m, o.Vload-v.floor, o.CellV-e.cell.EndPoint, v.lim.Clamp-o.I, v.lim.Trip-o.I)
 	}
+	m = min(m, e.overMargin) // a polyfuse's heating short of a trip
 	if fail != "" && m > 0 || fail == "" && m < 0 { // a rule the margin does not see
 		m = math.NaN()
 	}
@@ -463,7 +492,9 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	}
 	n := len(d.Profile)
 	e.w, e.loads, e.hint = make([]float64, 0, n), make([]Load, 0, n), make([]float64, n)
+	e.secs, e.cur = make([]float64, 0, n), make([]float64, n)
 	for _, p := range d.Profile {
+		e.secs = append(e.secs, p.Seconds)
 		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED
 		e.w = append(e.w, p.Seconds/total)
 		e.loads = append(e.loads, p.Load)
@@ -476,6 +507,10 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	e.self = e.selfDischarge()
 
 	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor}
+	if o, ok := el.(protect.Overloader); ok {
+		real.over, real.lim.Trip = o, math.Inf(1)
+	}
+	real.heat = e.newHeat(el)
 	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor}
 	ref := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
 	buf := make([]op, len(e.loads))
@@ -483,6 +518,9 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// Rate effect: one effective per-cell current at half depth, the
 	// Peukert-weighted average of the phases (see doc.go).
 	k := d.Cell.Peukert
+	if real.heat != nil {
+		e.settle(real, 0.5*e.end)
+	}
 	e.phases(0.5*e.end, real, buf)
 	sum := 0.0
 	for j, o := range buf {
@@ -500,7 +538,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// Each variant asks less of the pack than the one before, so its scan
 	// resumes near the previous cut-off; without an element the bare
 	// variant is the real one.
-	qsCut := e.cutoff(real, buf, 0)
+	qsCut := e.heatCutoff(real, buf)
 	qsBare := qsCut
 	if _, none := el.(protect.None); !none {
 		qsBare = e.cutoff(bare, buf, qsCut)
@@ -543,7 +581,10 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		// than print an infinite runtime.
 		return nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
 	}
-	e.priceAndNotes(el, r, buf)
+	if real.heat != nil {
+		e.reportHeat(real, qsCut)
+	}
+	e.priceAndNotes(el, real, r, buf)
 	return r, nil
 }
 
@@ -851,7 +892,7 @@ func (e *evaluator) trace(v *variant, qsCut, scale, f float64, r *Result, buf []
 }
 
 // priceAndNotes fills cost, heat, warnings and cautions.
-func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
+func (e *evaluator) priceAndNotes(el protect.Element, real *variant, r *Result, buf []op) {
 	d := e.d
 	c := d.Cell
 	r.PackPrice = d.PackPrice
@@ -876,8 +917,13 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 			r.CostPerHour = r.PackPrice / r.RuntimeH
 		}
 	}
-	th := el.Thermal()
-	r.JunctionC = th.Junction(r.ProtectionPeakW, d.TempC)
+	// The junction at the peak of the hottest pulse and over the cycle,
+	// from the element's thermal network (heat.go); ambient with an ideal
+	// heat sink.
+	r.JunctionC, r.JunctionMeanC = d.TempC, d.TempC
+	if s := real.heat; s != nil {
+		r.JunctionC, r.JunctionMeanC = s.peakC, s.meanC
+	}
 
 	// The highest current of each phase over the run, for the element's
 	// warnings (at the fresh pack and at cut-off; currents are monotone in
@@ -887,13 +933,17 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, buf []op) {
 		if q >= e.end {
 			continue
 		}
-		v := &variant{el: el, lim: protect.NoLimit, floor: 0}
+		v := &variant{el: el, lim: protect.NoLimit, floor: 0, heat: real.heat}
 		e.phases(q, v, buf)
 		for j, o := range buf {
 			cur[j] = math.Max(cur[j], o.I)
 		}
 	}
-	r.Warnings = append(r.Warnings, el.Warnings(protect.Operating{VFresh: r.FreshV, Currents: cur, PeakW: r.ProtectionPeakW, TempC: d.TempC})...)
+	r.Warnings = append(r.Warnings, el.Warnings(protect.Operating{VFresh: r.FreshV, Currents: cur, PeakW: r.ProtectionPeakW,
+		TempC: d.TempC, PeakC: r.JunctionC, Seconds: e.secs})...)
+	if w := heatWarning(real.heat); w != "" {
+		r.Warnings = append(r.Warnings, w)
+	}
 	for j, p := range d.Profile {
 		if p.Load.Kind == LED && cur[j] == 0 {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("the LED of %s never lights: the voltage it gets stays below its %.2f V forward voltage (set the floor above it to count that as a stop)", p.Label(), p.Load.Vf))

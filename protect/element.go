@@ -169,3 +169,22 @@ func FlippedCell(p Pack, drop float64) Case {
 	return Case{Outcome: Unseen, Current: i, Volts: v,
 		Note: "no input element sees it: the pack gives two cell voltages less and the flipped cell is charged backwards (alkaline cells may leak)"}
 }
+
+// Overloader is an element that opens after a time set by the current
+// profile as a whole, not at once above a current (a polyfuse). Overload
+// returns the peak over one cycle of its normalised heating in the
+// periodic steady state of the profile repeating currents[k] for secs[k]
+// seconds at ambient tempC, and the phase where it peaks: at 1 or more it
+// opens. Its Limit().Trip is then the current it opens at if held.
+type Overloader interface {
+	Overload(currents, secs []float64, tempC float64) (peak float64, phase int)
+}
+
+// Clamper is an element whose current limit depends on the voltage at its
+// input (the limiter: more pack, more gate drive for the PNP to pull
+// down). ClampAt is the current it holds the load to with vin at its
+// input at tempC; Limit().Clamp is an upper bound of it over the inputs
+// the element takes. Its Drop is the whole input above the clamp.
+type Clamper interface {
+	ClampAt(vin, tempC float64) float64
+}
