@@ -388,7 +388,7 @@ func (e *evaluator) margin(qs float64, v *variant, buf []op) (bool, float64) {
 		}
 		m = min(m, o.Vload-v.floor, o.CellV-e.cell.EndPoint, v.lim.Clamp-o.I, v.lim.Trip-o.I)
 	}
-	m = min(m, e.overMargin) // a polyfuse's heating short of a trip
+	m = min(m, e.overMargin)                        // a polyfuse's heating short of a trip
 	if fail != "" && m > 0 || fail == "" && m < 0 { // a rule the margin does not see
 		m = math.NaN()
 	}
