@@ -582,7 +582,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		return nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
 	}
 	if real.heat != nil {
-		e.reportHeat(real, qsCut)
+		e.reportHeat(real)
 	}
 	e.priceAndNotes(el, real, r, buf)
 	return r, nil
