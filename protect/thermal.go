@@ -154,11 +154,11 @@ func deriveHeat(s settable, given func(string) bool) {
 // dissipations cost only multiplications. Make one with NewHeating; it is
 // not safe for concurrent use.
 type Heating struct {
-	th    Thermal
-	train *rc.Train
-	secs  []float64
-	total float64
-	self  []float64 // per phase: its mean rise per watt in that phase alone
+	th           Thermal
+	train        *rc.Train
+	secs         []float64
+	total        float64
+	self         []float64 // per phase: its mean rise per watt in that phase alone
 	seg          []rc.Segment
 	p, dp, lastT []float64
 }
