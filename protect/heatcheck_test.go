@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 )
 
 // settlePhases runs the electro-thermal solve for element e on a profile
@@ -42,7 +43,7 @@ func settlePhases(t *testing.T, e Element, amps, vin, secs []float64, tambC floa
 // temperature law itself is checked against common practice
 // (TestMOSFETRonTempco). Measured: 1e-10 relative; we hold the 2 %.
 func TestSettledDropsAgainstNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	type phase struct {
 		name       string
 		e          Element
@@ -146,7 +147,7 @@ func limiterNet(b *strings.Builder, j int, l Limiter, vin, tempC float64) {
 // what ours leaves out: the PNP's base current (Ic/β) and the divider's
 // few µA through the sense resistor.
 func TestLimiterAgainstNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	l := DefaultLimiter()
 	type run struct {
 		vin, tempC, frac float64 // frac 0: the output shorted

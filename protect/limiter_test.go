@@ -6,7 +6,7 @@ import (
 	"testing"
 )
 
-// Common practice (no published source; DESIGN §3 and §7): the limiter
+// Common practice (no published source; docs/protection.md and docs/references.md): the limiter
 // starts limiting when the sense voltage reaches Vbe ≈ 0.7 V, so the limit
 // is about Vbe/Rsh, and halving Rsh doubles it. The Ebers–Moll knee sits
 // lower than the rule of thumb: the PNP needs only the tens of µA that pull
@@ -62,7 +62,7 @@ func TestLimiterTemperature(t *testing.T) {
 	t.Logf("limit from 3 V: %.3f A at −20 °C, %.3f A at 25 °C, %.3f A at 60 °C", cold, l.ClampAt(3, 25), hot)
 }
 
-// Below the limit the drop is I·Rsh plus the two channels' drops (DESIGN §3
+// Below the limit the drop is I·Rsh plus the two channels' drops (docs/protection.md
 // names I·(Rsh + Rch) for the one-FET sketch; the circuit has two FETs in
 // the rail). At small current each channel is its rated law at the gate
 // drive it sees: the blocking FET's |Vgs| is the pack's vin (gate to
@@ -147,7 +147,7 @@ func TestLimiterPassSaturates(t *testing.T) {
 }
 
 // In a short the pass FET holds the limit with the pack across it:
-// P = Vpack·Ilim, Tj = Tamb + θja·P when settled (DESIGN §3). 4×AA fresh
+// P = Vpack·Ilim, Tj = Tamb + θja·P when settled (docs/protection.md). 4×AA fresh
 // (6 V) with the default limit near 0.6 A: about 3.5 W; in SOT-23 at
 // 250 °C/W far above 150 °C, reached within a second or so. Exact
 // arithmetic, 1e-9.

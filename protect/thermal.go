@@ -1,7 +1,6 @@
 package protect
 
 import (
-	"fmt"
 	"math"
 
 	"headroom/internal/rc"
@@ -125,8 +124,8 @@ func thermalFields(t *Thermal) []field {
 // check refuses a package stage larger than the whole θja.
 func (t Thermal) check(kind string) error {
 	if t.Fast > t.ThetaJA {
-		return fmt.Errorf("protect: %s: key \"thetaf\": %g °C/W must be at most theta, %g °C/W (the package stage is part of θja)",
-			kind, t.Fast, t.ThetaJA)
+		return specErrorf(kind, "thetaf", "%g °C/W must be at most theta, %g °C/W (the package stage is part of θja)",
+			t.Fast, t.ThetaJA)
 	}
 	return nil
 }

@@ -10,6 +10,7 @@ import (
 	"runtime/debug"
 	"strings"
 
+	"headroom/curves"
 	"headroom/discharge"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
@@ -18,6 +19,7 @@ import (
 
 var reportCmd = &command{
 	name:  "report",
+	run:   runReport,
 	args:  "[scenario.toml] [flags] -o REPORT.html [--format html|md] [--force]",
 	short: "write a one-file report of the design: verdict, chart, line-up, reversed cells",
 	help: `
@@ -47,8 +49,6 @@ examples:
   headroom report --format md -o design.md
 `,
 }
-
-func init() { reportCmd.run = runReport }
 
 func runReport(c *cli, args []string) error {
 	fs := newFlags("report")
@@ -197,7 +197,7 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 		}
 		rep.Lineup = append(rep.Lineup, lineupLine{Cell: row.cell.ID, Pack: fmt.Sprintf("%d×%d", row.series, row.par),
 			Runtime: sig(row.r.RuntimeH, 3) + " h", PerHour: ph, Stranded: fixed(strandedPct(row.r), 1) + " %",
-			Cost: money(row.partCost), Caution: shortCaution(row.cell),
+			Cost: money(row.partCost), Caution: curves.ShortCaution(row.cell),
 			Current: row.cell == d.Cell && row.series == d.Series})
 	}
 	rep.Misfits = strings.Join(misfits, ", ")
@@ -381,7 +381,7 @@ h1 { font-size: 1.5rem; margin-bottom: .2rem; }
 h2 { font-size: 1.15rem; border-bottom: 1px solid #bbb; margin-top: 1.6rem; }
 table { border-collapse: collapse; width: 100%; margin: .4rem 0; }
 th, td { text-align: left; padding: .2rem .5rem; border-bottom: 1px solid #e2e2e2; vertical-align: top; }
-td.num { text-align: right; font-variant-numeric: tabular-nums; }
+td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
 tr.this { background: #eef4fa; font-weight: 600; }
 .job { color: #444; }
 .key { color: #777; font-family: ui-monospace, monospace; font-size: .85em; }
@@ -409,14 +409,18 @@ pre { background: #f4f4f4; padding: .5rem; white-space: pre-wrap; word-break: br
 <section id="verdict">
 <h2>Verdict</h2>
 {{range .Summary}}<p>{{.}}</p>
-{{end}}<table>
-<tr><th>quantity</th><th>key</th><th>value</th></tr>
-{{range .Verdict}}<tr><td>{{.Label}}</td><td class="key">{{.Key}}</td><td class="num" data-key="{{.Key}}">{{.Value}}</td></tr>
-{{end}}</table>
-</section>
+{{end}}</section>
 <section id="chart" class="chart">
 <h2>Discharge</h2>
 {{.Chart}}
+</section>
+<section id="figures">
+<h2>All figures</h2>
+<p>The same figures, under the same keys, as <code>headroom run --format json</code> gives for this design.</p>
+<table>
+<tr><th>quantity</th><th>key</th><th class="num">value</th></tr>
+{{range .Verdict}}<tr><td>{{.Label}}</td><td class="key">{{.Key}}</td><td class="num" data-key="{{.Key}}">{{.Value}}</td></tr>
+{{end}}</table>
 </section>
 <section id="lineup">
 <h2>Chemistry line-up</h2>

@@ -11,6 +11,7 @@ import (
 	"golang.org/x/net/html"
 
 	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 )
 
 // parseHTML parses a report with the HTML5 parser of golang.org/x/net/html
@@ -122,7 +123,7 @@ func TestReportHTMLMatchesRun(t *testing.T) {
 					t.Errorf("%s: run --format json has %T %v", key, w, w)
 				}
 			})
-			for _, id := range []string{"job", "design", "verdict", "chart", "lineup", "reverse", "cautions", "reproduce"} {
+			for _, id := range []string{"job", "design", "verdict", "chart", "figures", "lineup", "reverse", "cautions", "reproduce"} {
 				if !ids[id] {
 					t.Errorf("section %q missing", id)
 				}
@@ -241,14 +242,14 @@ func TestReportAndNetlistBadOutput(t *testing.T) {
 
 // The exported netlist runs in ngspice (Debian's package) with no edits,
 // and its measured time to the floor agrees with headroom's runtime within
-// 1 % (the bound) — one design per load law, a pulsed profile, and
+// 1 % (the acceptance bound) — one design per load law, a pulsed profile, and
 // one behind the current limiter. The demo's netlist is also kept as a
 // golden file.
 // The elements sit on an ideal heat sink (theta=0): the circuit has no
 // self-heating, so like is compared with like (the thermal network has its
 // own checks in protect).
 func TestNetlistRunsInNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	dir := t.TempDir()
 	for _, c := range []struct {
 		name string
