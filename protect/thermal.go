@@ -116,8 +116,8 @@ func thermalFields(t *Thermal) []field {
 		{key: "theta", kind: plain, p: &t.ThetaJA, lo: 0, hi: 10000, what: "θja in °C/W (0: an ideal heat sink)"},
 		{key: "tjmax", kind: units.Temperature, p: &t.TjMax, lo: 25, hi: 400, loOpen: true, what: "the highest junction temperature"},
 		{key: "thetaf", kind: plain, p: &t.Fast, lo: 0, hi: 10000, what: "the package stage of θja in °C/W"},
-		{key: "tauf", kind: plain, p: &t.TauFast, lo: 0, hi: 1e5, loOpen: true, what: "the package stage's time constant in seconds"},
-		{key: "tau", kind: plain, p: &t.Tau, lo: 0, hi: 1e5, loOpen: true, what: "the board stage's time constant in seconds"},
+		{key: "tauf", kind: units.Time, p: &t.TauFast, lo: 0, hi: 1e5, loOpen: true, what: "the package stage's time constant"},
+		{key: "tau", kind: units.Time, p: &t.Tau, lo: 0, hi: 1e5, loOpen: true, what: "the board stage's time constant"},
 	}
 }
 
