@@ -136,7 +136,8 @@ func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) [
 		{"protection_loss_Wh", "burnt in the protection element (Wh)", r.ProtectionLossWh},
 		{"cell_loss_Wh", "burnt in the cells' resistance (Wh)", r.CellLossWh},
 		{"protection_peak_W", "element peak dissipation (W)", r.ProtectionPeakW},
-		{"junction_C", "element junction at peak (°C)", r.JunctionC},
+		{"junction_C", "element junction at the peak of the hottest pulse (°C)", r.JunctionC},
+		{"junction_mean_C", "element junction over a profile cycle (°C)", r.JunctionMeanC},
 		{"quiescent_A", "element standing drain (A)", r.QuiescentA},
 		{"standby_mAh", "standby drain (mAh)", r.StandbyMAh},
 		{"self_discharge_mAh", "self-discharge (mAh)", r.SelfDischargeMAh},
@@ -219,7 +220,8 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	line("reference", "%s: the cells at this load to their %s V end-point, no element, no floor", mAh(r.ReferenceMAh), short(d.Cell.EndPoint))
 	line("stranded", "%s = %s %% of the reference: %s by the protection drop, %s by the floor",
 		mAh(r.StrandedMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
-	line("element", "%s Wh burnt in it; peak %s W, junction %s °C", sig(r.ProtectionLossWh, 3), sig(r.ProtectionPeakW, 3), fixed(r.JunctionC, 0))
+	line("element", "%s Wh burnt in it; peak %s W, junction %s °C at the hottest pulse (%s °C over a cycle)",
+		sig(r.ProtectionLossWh, 3), sig(r.ProtectionPeakW, 3), fixed(r.JunctionC, 0), fixed(r.JunctionMeanC, 0))
 	line("cells", "%s Wh burnt in their internal resistance", sig(r.CellLossWh, 3))
 	line("standby", "%s %% of the charge goes to standby drain and self-discharge", fixed(100*r.StandbyShare, 1))
 	if r.RuntimeH > 0 {
