@@ -260,7 +260,7 @@ func TestNetlistRunsInNgspice(t *testing.T) {
 		{"resistance", []string{"--load", "8.2ohm", "--protect", "pmos:theta=0", "--floor", "2.0", "--hours-per-day", "24", "--standby", "0"}},
 		{"led", []string{"--load", "led:vf=1.9,r=10", "--protect", "none", "--floor", "2.1", "--hours-per-day", "24", "--standby", "0"}},
 		{"pulsed demo", []string{"--protect", "diode:theta=0"}},
-		{"limiter", []string{"--load", "250mA/2s,20mA/8s", "--protect", "limiter:theta=0", "--floor", "1.9"}},
+		{"limiter", []string{"--load", "400mA/20s,100mA/40s", "--protect", "limiter:theta=0", "--floor", "2.0"}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			out := filepath.Join(dir, strings.ReplaceAll(c.name, " ", "-")+".cir")
