@@ -164,14 +164,26 @@ func (c Crowbar) ShortCurrent(v, r, tempC float64) (i, vd float64) {
 func (c Crowbar) Reverse(p Pack) Reversal {
 	i, vd := c.ShortCurrent(packVolts(p), packOhms(p), p.TempC)
 	ca := Case{Outcome: FuseOpens, Current: i, Volts: -vd}
+	// The diode heats through its network while the short lasts: to the
+	// single pulse's Zth(t)·P by the time the fuse opens, or to the
+	// steady θja·P when it never does.
 	if t := c.OpenTime(i); !math.IsInf(t, 1) {
 		ca.Seconds = t
+		ca.JunctionC = c.Heat.Pulse(i*vd, t, p.TempC)
 		ca.Note = "the crowbar diode shorts the reversed pack: " + units.Human(i, units.Current, 3) +
 			" opens the fuse in about " + units.Human(t, units.Time, 2) + "; replace the fuse"
+		if ca.JunctionC > c.Heat.TjMax {
+			ca.Note += "; the diode reaches " + units.Human(ca.JunctionC, units.Temperature, 3) + " first, above its " +
+				units.Human(c.Heat.TjMax, units.Temperature, 3) + " limit: use a bigger diode or a faster fuse"
+		}
 	} else {
 		ca.Outcome = ShortsCells
+		ca.JunctionC = c.Heat.Junction(i*vd, p.TempC)
 		ca.Note = "the crowbar diode shorts the reversed pack at " + units.Human(i, units.Current, 3) +
 			", too little to open the fuse: the cells discharge until flat or the diode fails"
+		if ca.JunctionC > c.Heat.TjMax {
+			ca.Note += " (it passes its " + units.Human(c.Heat.TjMax, units.Temperature, 3) + " limit" + c.Heat.reachText(i*vd, p.TempC) + ")"
+		}
 	}
 	return Reversal{WholePack: ca, OneCell: flipped(c, p)}
 }

@@ -1,6 +1,10 @@
 package protect
 
-import "math"
+import (
+	"math"
+
+	"headroom/internal/units"
+)
 
 // The SI defining constants (SI Brochure, 9th edition, 2019), exact.
 const (
@@ -155,9 +159,26 @@ func (s Schottky) Spec() string     { return specOf(s.Kind(), s.fields()) }
 func (s *Schottky) fields() []field { return diodeFields(&s.Diode) }
 func (s *Schottky) value() Element  { return *s }
 func (s *Schottky) check() error    { return s.Heat.check(s.Kind()) }
+// Reverse: the reversed pack leaks through the Schottky diode, and the
+// leakage heats it: the junction settles where V·Is(Tj) through the
+// thermal network gives back Tj (Heating.Settle). A leakage that grows
+// with heat faster than the package sheds it runs away — Schottky
+// barriers are known for it — and the note says so.
 func (s Schottky) Reverse(p Pack) Reversal {
-	return blockedReverse(s, p, s.Junction.Saturation(p.TempC),
-		"the Schottky diode is reverse-biased (its leakage grows about a hundredfold from 25 to 85 °C)")
+	v := packVolts(p)
+	tj := []float64{p.TempC}
+	h := NewHeating(s.Heat, []float64{1})
+	st := h.Settle(p.TempC, func(_ int, t float64) float64 { return v * s.Junction.Saturation(t) }, tj)
+	why := "the Schottky diode is reverse-biased (its leakage grows about a hundredfold from 25 to 85 °C)"
+	r := blockedReverse(s, p, s.Junction.Saturation(tj[0]), why)
+	r.WholePack.JunctionC = tj[0]
+	if !st.OK {
+		r.WholePack.JunctionC = s.Heat.TjMax
+		r.WholePack.Current = s.Junction.Saturation(s.Heat.TjMax)
+		r.WholePack.Note = "the Schottky diode is reverse-biased, but its leakage heats it faster than its package sheds the heat: it runs away past " +
+			units.Human(s.Heat.TjMax, units.Temperature, 3) + " (" + units.Human(r.WholePack.Current, units.Current, 2) + " there and rising) and may fail"
+	}
+	return r
 }
 
 // AtTemp is an element whose temperature terms can be worked out once for

@@ -117,6 +117,10 @@ type Case struct {
 	Volts   float64 // voltage at the load, volts (negative when reversed)
 	Seconds float64 // time until a fuse opens, seconds; 0 when not applicable
 	Note    string  // one sentence for people
+	// JunctionC is the hottest the element's junction gets in this case,
+	// °C, from its thermal network: by the time a fuse opens, or settled
+	// when nothing opens; 0 when it does not heat worth the name.
+	JunctionC float64
 }
 
 // Reversal holds the two wrong insertions: the whole pack reversed, and one
