@@ -159,6 +159,7 @@ func (s Schottky) Spec() string     { return specOf(s.Kind(), s.fields()) }
 func (s *Schottky) fields() []field { return diodeFields(&s.Diode) }
 func (s *Schottky) value() Element  { return *s }
 func (s *Schottky) check() error    { return s.Heat.check(s.Kind()) }
+
 // Reverse: the reversed pack leaks through the Schottky diode, and the
 // leakage heats it: the junction settles where V·Is(Tj) through the
 // thermal network gives back Tj (Heating.Settle). A leakage that grows
