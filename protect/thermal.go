@@ -174,7 +174,7 @@ func NewHeating(t Thermal, secs []float64) *Heating {
 	unit := make([]float64, n)
 	for k := range secs {
 		unit[k] = 1
-		h.train.Periodic(unit, h.seg)
+		h.train.Means(unit, h.seg)
 		h.self[k] = h.seg[k].Mean
 		unit[k] = 0
 	}
@@ -283,7 +283,7 @@ func (h *Heating) Settle(tambC float64, power func(k int, tjC float64) float64, 
 			}
 			h.p[k], h.lastT[k] = p, tj[k]
 		}
-		h.train.Periodic(h.p, h.seg)
+		h.train.Means(h.p, h.seg)
 		worst := 0.0
 		for k := 0; k < n; k++ {
 			g := tambC + h.seg[k].Mean - tj[k]

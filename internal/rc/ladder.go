@@ -91,7 +91,14 @@ func NewTrain(l Ladder, dur []float64) *Train {
 // inside a segment: the peak is then found where the sum's slope is zero
 // (bisection; the slope of a sum of two exponentials changes sign at most
 // once).
-func (t *Train) Periodic(x []float64, out []Segment) {
+func (t *Train) Periodic(x []float64, out []Segment) { t.periodic(x, out, true) }
+
+// Means is Periodic without the search for a peak inside a segment: each
+// Peak is only the larger of its segment's ends. For callers that need
+// the means and ends alone (an iteration), at a fraction of the cost.
+func (t *Train) Means(x []float64, out []Segment) { t.periodic(x, out, false) }
+
+func (t *Train) periodic(x []float64, out []Segment, inside bool) {
 	n := len(t.dur)
 	if n == 0 {
 		return
@@ -133,7 +140,7 @@ func (t *Train) Periodic(x []float64, out []Segment) {
 			t.v[j] = v1
 		}
 		s.Peak = math.Max(s.Start, s.End)
-		if len(t.l) > 1 {
+		if inside && len(t.l) > 1 {
 			s.Peak = math.Max(s.Peak, t.inner(k, x[k]))
 		}
 	}

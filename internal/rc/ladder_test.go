@@ -133,4 +133,12 @@ func TestTrainMatchesStagePeriodic(t *testing.T) {
 			t.Errorf("segment %d: %.15g, stages summed %.15g", k, out[k].End, sum[k])
 		}
 	}
+	// Means gives the same starts, ends and means, bit for bit.
+	m := make([]Segment, 3)
+	tr.Means(x, m)
+	for k := range m {
+		if m[k].Start != out[k].Start || m[k].End != out[k].End || m[k].Mean != out[k].Mean {
+			t.Errorf("segment %d: Means %+v, Periodic %+v", k, m[k], out[k])
+		}
+	}
 }
