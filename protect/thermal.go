@@ -252,7 +252,8 @@ const settleCapC = 1000
 // per phase. It converges in a few steps when the loop gain is small (a
 // diode: θ·I·2 mV/°C, well under 1), and still converges where plain
 // substitution would oscillate. It stops when no phase moves by more than
-// 1e-7 °C, or after 50 steps, or when a phase's own loop gain reaches 1 or
+// 1e-4 °C (Newton's next step would be of order its square: a drop then
+// errs by well under a microvolt), or after 50 steps, or when a phase's own loop gain reaches 1 or
 // a temperature passes 1000 °C (runaway: OK false, temperatures left at
 // the last finite step).
 func (h *Heating) Settle(tambC float64, power func(k int, tjC float64) float64, tj []float64) Settled {
@@ -305,13 +306,13 @@ func (h *Heating) Settle(tambC float64, power func(k int, tjC float64) float64, 
 				return st
 			}
 		}
-		if worst <= 1e-7 {
+		if worst <= 1e-4 {
 			st.OK = true
 			break
 		}
 	}
-	// The cycle from the last powers, taken at temperatures within 1e-7 °C
-	// of the answer: a difference of dP/dT·1e-7 °C, nothing to report.
+	// The cycle from the last powers, taken at temperatures within 1e-4 °C
+	// of the answer: a difference of dP/dT·1e-4 °C, nothing to report.
 	st.Cycle = h.Junction(tambC, h.p, nil)
 	return st
 }
