@@ -166,12 +166,15 @@ type Heating struct {
 // (each above 0).
 func NewHeating(t Thermal, secs []float64) *Heating {
 	n := len(secs)
-	h := &Heating{th: t, train: rc.NewTrain(t.Ladder(), secs), secs: append([]float64(nil), secs...),
-		self: make([]float64, n), seg: make([]rc.Segment, n), p: make([]float64, n), dp: make([]float64, n), lastT: make([]float64, n)}
+	buf := make([]float64, 6*n) // one backing array (made once per evaluation)
+	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
+	h := &Heating{th: t, train: rc.NewTrain(t.Ladder(), secs), secs: cut(),
+		self: cut(), seg: make([]rc.Segment, n), p: cut(), dp: cut(), lastT: cut()}
+	copy(h.secs, secs)
+	unit := cut()
 	for _, s := range secs {
 		h.total += s
 	}
-	unit := make([]float64, n)
 	for k := range secs {
 		unit[k] = 1
 		h.train.Means(unit, h.seg)

@@ -57,10 +57,14 @@ type Train struct {
 // NewTrain prepares ladder l for a train of segments with durations dur
 // (seconds, each above 0). It copies both.
 func NewTrain(l Ladder, dur []float64) *Train {
-	n := len(dur)
-	t := &Train{l: append(Ladder(nil), l...), dur: append([]float64(nil), dur...),
-		decay: make([]float64, len(l)*n), meanf: make([]float64, len(l)*n),
-		gain: make([]float64, len(l)), v: make([]float64, len(l)), v0: make([]float64, len(l))}
+	n, m := len(dur), len(l)
+	// One backing array for every slice: a train is made once per
+	// evaluation, and allocations cost more than the arithmetic here.
+	buf := make([]float64, n+2*m*n+3*m)
+	cut := func(k int) []float64 { s := buf[:k:k]; buf = buf[k:]; return s }
+	t := &Train{l: append(Ladder(nil), l...), dur: cut(n),
+		decay: cut(m * n), meanf: cut(m * n), gain: cut(m), v: cut(m), v0: cut(m)}
+	copy(t.dur, dur)
 	total := 0.0
 	for _, d := range dur {
 		total += d
