@@ -471,7 +471,7 @@ func (out *Outcome) candidates(sp *Space, lim Limits) (cands, over []Candidate) 
 				if d := sp.design(c0); d.PackPrice > 0 {
 					c0.packPrice = d.PackPrice
 				}
-				rp := scenario.ReversePack(sp.design(c0))
+				rp := discharge.ReversePack(sp.design(c0))
 				for _, e := range sp.Elements {
 					order++
 					c := c0
@@ -511,7 +511,7 @@ func reverseOK(r protect.Reversal, lim Limits) bool {
 
 // judge checks an evaluated candidate against every constraint.
 func (sp *Space) judge(c *Candidate, r *discharge.Result, lim Limits) *Design {
-	d := &Design{Candidate: *c, Result: r, Reverse: c.Element.Reverse(scenario.ReversePack(sp.design(*c)))}
+	d := &Design{Candidate: *c, Result: r, Reverse: c.Element.Reverse(discharge.ReversePack(sp.design(*c)))}
 	if r.RuntimeH < lim.Need {
 		d.Misses = append(d.Misses, Miss{Runtime, (lim.Need - r.RuntimeH) / lim.Need,
 			fmt.Sprintf("runs %.3g h, below the %.3g h target", r.RuntimeH, lim.Need)})

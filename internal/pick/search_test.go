@@ -61,7 +61,7 @@ func brute(t *testing.T, sp *Space, lim Limits, st Statistic) []bruteDesign {
 						continue
 					}
 					cost := cell.Price*float64(s*p) + e.Cost()
-					rev := e.Reverse(scenario.ReversePack(&d))
+					rev := e.Reverse(discharge.ReversePack(&d))
 					stranded := 0.0
 					if r.ReferenceMAh > 0 {
 						stranded = r.StrandedMAh / r.ReferenceMAh
@@ -322,7 +322,7 @@ func TestReturnedMeetEveryConstraint(t *testing.T) {
 			t.Fatal(err)
 		}
 		cost := d.Cell.Price*float64(d.Series*d.Parallel) + el.Cost()
-		rev := el.Reverse(scenario.ReversePack(&fresh))
+		rev := el.Reverse(discharge.ReversePack(&fresh))
 		fv := float64(d.Series) * d.Cell.OpenCircuit(0, fresh.TempC)
 		switch {
 		case r.RuntimeH < lim.Need:
