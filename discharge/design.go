@@ -93,7 +93,8 @@ type Cause string
 const (
 	CauseFloor    Cause = "floor"         // the load voltage fell below the floor
 	CauseCollapse Cause = "collapse"      // a constant-power load found no operating point
-	CauseEndPoint Cause = "end-point"     // a cell reached its end-point voltage or the end of its curve
+	CauseEndPoint Cause = "end-point"     // the cells' voltage over a cycle reached their end-point, or the curve ran out
+	CauseCutoff   Cause = "pack cut-off"  // a rechargeable pack's under-voltage cut-off tripped (a dip longer than its delay)
 	CauseLimit    Cause = "current limit" // the protection element clamped the load's current
 	CauseFuse     Cause = "fuse"          // a fuse or polyfuse opened
 )

@@ -35,8 +35,26 @@ type heat struct {
 	ok    bool              // every solve settled
 	// solved is set once a solve has run; p holds each phase's
 	// dissipation at its temperature then, W.
-	solved     bool
-	p, scratch []float64
+	solved             bool
+	p, scratch         []float64
+	scratch2, scratch3 []float64
+	// fresh is each phase's heat with the fresh pack, W (freshHeat).
+	fresh []float64
+	// still is set when the temperatures cannot move with charge:
+	// every phase a constant current behind an element whose drop and
+	// drain ignore the pack's voltage (evaluator.linear). One solve, with
+	// the fresh pack, is then exact for the whole run.
+	still bool
+}
+
+// freshHeat keeps each phase's heat with the fresh pack, nd solved there
+// for variant v: reportHeat solves the fresh pack again only when some
+// phase heats more there than at the cut-off.
+func (s *heat) freshHeat(e *evaluator, v *variant, nd *node) {
+	s.fresh = s.fresh[:0]
+	for k, o := range nd.mean {
+		s.fresh = append(s.fresh, e.heatOf(o, v, s.tj[k]))
+	}
 }
 
 // newHeat prepares the electro-thermal state of element el for the
@@ -48,12 +66,10 @@ func (e *evaluator) newHeat(el protect.Element) *heat {
 		return nil
 	}
 	n := len(e.loads)
-	secs := make([]float64, n)
-	for k, p := range e.d.Profile {
-		secs[k] = p.Seconds
-	}
-	s := &heat{h: protect.NewHeating(th, secs), base: el, tj: make([]float64, n), els: make([]protect.Element, n), ok: true,
-		p: make([]float64, n), scratch: make([]float64, n)}
+	buf := make([]float64, 6*n) // one backing array, made once per evaluation
+	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
+	s := &heat{h: protect.NewHeating(th, e.secs), base: el, tj: cut(), els: make([]protect.Element, n), ok: true,
+		p: cut(), scratch: cut(), scratch2: cut(), scratch3: cut(), fresh: cut()[:0]}
 	fixed := protect.Fixed(el, e.T)
 	for k := range s.tj {
 		s.tj[k], s.els[k] = e.T, fixed
@@ -74,44 +90,27 @@ func (e *evaluator) phaseElement(v *variant, k int) (protect.Element, float64) {
 // settle solves the electro-thermal operating point of variant v at
 // scaled charge qs: every phase's junction temperature such that the
 // phases' dissipations — drop times current, plus the standing drain's
-// heat — produce those temperatures through the network. It leaves the
-// temperatures and fixed elements in v.heat and returns the largest change
-// of a phase's temperature, °C. When every phase dissipates what it did at
-// the last solve (to 1e-12), the temperatures cannot have moved and no
-// solve is run: behind constant currents and a drop that ignores the pack
-// voltage that is every solve after the first.
-func (e *evaluator) settle(v *variant, qs float64) float64 {
+// heat — produce those temperatures through the network. Each phase is
+// solved against the source its mean operating point sees at qs (the
+// pack and, with polarisation, the other phases' share of it held), so
+// a solve costs a few single-phase solves. It leaves the temperatures
+// and fixed elements in v.heat (nd solved at qs before they moved) and returns
+// the largest change of a phase's temperature, °C. When every phase
+// dissipates what it did at the last solve (to 1e-12) the temperatures
+// cannot have moved and nothing is solved: behind constant currents and a
+// drop that ignores the pack voltage that is every solve after the first.
+func (e *evaluator) settle(v *variant, qs float64, nd *node) float64 {
+	e.solveNode(math.Min(qs, e.end*(1-1e-12)), v, nd)
+	return e.settleAt(v, qs, nd)
+}
+
+// settleAt is settle with nd already solved at qs for v.
+func (e *evaluator) settleAt(v *variant, qs float64, nd *node) float64 {
 	s := v.heat
-	E, Rp, _ := e.pack(math.Min(qs, e.end))
-	power := func(k int, t float64) float64 {
-		el0, t0 := s.els[k], s.tj[k]
-		if t != t0 {
-			s.els[k], s.tj[k] = s.base, t // the element's own law at t
-		}
-		o := e.solve(e.loads[k], k, v, E, Rp)
-		s.els[k], s.tj[k] = el0, t0
-		p := o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
-		switch o.Fail {
-		case CauseLimit:
-			// Held at its clamp with the load collapsed: the element takes
-			// the whole input at the clamped current.
-			clamp := v.lim.Clamp
-			if c, ok := s.base.(protect.Clamper); ok {
-				clamp = c.ClampAt(o.Vin, t)
-			}
-			p = o.Vin * math.Min(clamp, o.I)
-		case CauseCollapse: // no operating point: no heat worth the name
-			p = 0
-		}
-		if !(p >= 0) {
-			p = 0
-		}
-		return p
-	}
 	if s.solved {
 		same := true
-		for k := range s.tj {
-			p := power(k, s.tj[k])
+		for k, o := range nd.mean {
+			p := e.heatOf(o, v, s.tj[k])
 			if math.Abs(p-s.p[k]) > 1e-12*math.Max(p, 1e-9) {
 				same = false
 				break
@@ -120,6 +119,26 @@ func (e *evaluator) settle(v *variant, qs float64) float64 {
 		if same {
 			return 0
 		}
+	}
+	n := len(e.loads)
+	src, res := s.scratch2[:n], s.scratch3[:n]
+	for k := range e.loads {
+		src[k], res[k] = nd.Epack, nd.Rp
+		if e.pol != nil {
+			self := nd.pol.self[k]
+			other := nd.pol.mean[k] - self*nd.icell[k]
+			src[k], res[k] = e.S*(nd.E-other), nd.Rp+e.S*self/e.P
+		}
+	}
+	power := func(k int, t float64) float64 {
+		el0, t0 := s.els[k], s.tj[k]
+		if t == t0 {
+			return e.heatOf(nd.mean[k], v, t)
+		}
+		s.els[k], s.tj[k] = s.base, t // the element's own law at t
+		o := e.solve(e.loads[k], k, v, src[k], res[k])
+		s.els[k], s.tj[k] = el0, t0
+		return e.heatOf(o, v, t)
 	}
 	tj := append(s.scratch[:0], s.tj...)
 	s.st = s.h.Settle(e.T, power, tj)
@@ -130,10 +149,40 @@ func (e *evaluator) settle(v *variant, qs float64) float64 {
 		moved = math.Max(moved, math.Abs(t-s.tj[k]))
 		s.tj[k], s.els[k] = t, protect.Fixed(s.base, t)
 	}
-	for k := range s.tj {
-		s.p[k] = power(k, s.tj[k])
+	// The heat at the settled temperatures, against the same sources: the
+	// next call compares its phases with these (a constant current behind
+	// a drop that ignores the pack matches exactly, whatever the sources).
+	// A still state has no next call.
+	for k := range e.loads {
+		if s.still {
+			break
+		}
+		o := e.solve(e.loads[k], k, v, src[k], res[k])
+		s.p[k] = e.heatOf(o, v, s.tj[k])
 	}
 	return moved
+}
+
+// heatOf is the heat an operating point puts into the element at junction
+// temperature t, W: drop times current and the standing drain across the
+// pack; at a current limit the clamped current across the whole input
+// (the load collapsed), and nothing at a collapse (no operating point).
+func (e *evaluator) heatOf(o op, v *variant, t float64) float64 {
+	p := o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
+	switch o.Fail {
+	case CauseLimit:
+		clamp := v.lim.Clamp
+		if c, ok := v.heat.base.(protect.Clamper); ok {
+			clamp = c.ClampAt(o.Vin, t)
+		}
+		p = o.Vin * math.Min(clamp, o.I)
+	case CauseCollapse:
+		p = 0
+	}
+	if !(p >= 0) {
+		p = 0
+	}
+	return p
 }
 
 // heatCutoff finds the cut-off of the real variant with its junctions at
@@ -141,19 +190,19 @@ func (e *evaluator) settle(v *variant, qs float64) float64 {
 // temperatures, then the temperatures at that cut-off, until they move by
 // less than 0.05 °C (a drop's temperature slope of 2 mV/°C makes that
 // 0.1 mV; each round takes the change down some thirtyfold on a constant-
-// power load, the hardest case), at most four rounds. The temperatures move a little between
-// rounds, and the cut-off with them: each new search starts at the last
-// cut-off and brackets the new one nearby (recut).
-func (e *evaluator) heatCutoff(v *variant, buf []op) float64 {
-	q := e.cutoff(v, buf, 0)
-	if v.heat == nil {
+// power load, the hardest case), at most four rounds. The temperatures
+// move a little between rounds, and the cut-off with them: each new search
+// starts at the last cut-off and brackets the new one nearby (recut).
+func (e *evaluator) heatCutoff(v *variant, nd *node) float64 {
+	q := e.cutoff(v, nd, 0)
+	if v.heat == nil || v.heat.still {
 		return q
 	}
 	for range 4 {
-		if e.settle(v, q) < 0.05 {
+		if e.settle(v, q, nd) < 0.05 {
 			break
 		}
-		q = e.recut(v, buf, q)
+		q = e.recut(v, nd, q)
 	}
 	return q
 }
@@ -163,21 +212,21 @@ func (e *evaluator) heatCutoff(v *variant, buf []op) float64 {
 // fourfold, away from q until the margin changes sign, then narrow. A
 // bracket that runs to either end of the curve, or a margin without a
 // sign (a collapse), falls back to the full search.
-func (e *evaluator) recut(v *variant, buf []op, q float64) float64 {
-	f, m := e.margin(q, v, buf)
+func (e *evaluator) recut(v *variant, nd *node, q float64) float64 {
+	f, m := e.margin(q, v, nd)
 	if math.IsNaN(m) {
-		return e.cutoff(v, buf, 0)
+		return e.cutoff(v, nd, 0)
 	}
 	d := 1e-4 * e.end
 	for range 12 {
 		if !f { // still works at q: the cut-off lies later
 			hi := math.Min(q+d, e.end)
-			f2, m2 := e.margin(hi, v, buf)
+			f2, m2 := e.margin(hi, v, nd)
 			if f2 {
 				if math.IsNaN(m2) {
-					return e.cutoff(v, buf, q)
+					return e.cutoff(v, nd, q)
 				}
-				return e.narrow(v, buf, q, m, hi, m2)
+				return e.narrow(v, nd, q, m, hi, m2)
 			}
 			if hi >= e.end {
 				break
@@ -185,9 +234,9 @@ func (e *evaluator) recut(v *variant, buf []op, q float64) float64 {
 			q, m = hi, m2
 		} else { // fails at q: the cut-off lies earlier
 			lo := math.Max(q-d, 0)
-			f2, m2 := e.margin(lo, v, buf)
+			f2, m2 := e.margin(lo, v, nd)
 			if !f2 {
-				return e.narrow(v, buf, lo, m2, q, m)
+				return e.narrow(v, nd, lo, m2, q, m)
 			}
 			if lo <= 0 || math.IsNaN(m2) {
 				break
@@ -196,7 +245,7 @@ func (e *evaluator) recut(v *variant, buf []op, q float64) float64 {
 		}
 		d *= 4
 	}
-	return e.cutoff(v, buf, 0)
+	return e.cutoff(v, nd, 0)
 }
 
 // reportHeat works out the junction's peak and cycle mean for the result:
@@ -205,16 +254,17 @@ func (e *evaluator) recut(v *variant, buf []op, q float64) float64 {
 // profile's periodic steady state. The fresh pack is solved only when some
 // phase dissipates more there than at the cut-off. The run's temperatures
 // (those at the cut-off) are left in place.
-func (e *evaluator) reportHeat(v *variant) {
+func (e *evaluator) reportHeat(v *variant, nd *node) {
 	s := v.heat
 	cut := s.st.Cycle
 	s.peakC, s.meanC = cut.PeakC, cut.MeanC
+	if s.still {
+		return
+	}
 	keepP := append([]float64(nil), s.p...)
-	E, Rp, _ := e.pack(0)
 	hotter := false
-	for k := range s.tj {
-		o := e.solve(e.loads[k], k, v, E, Rp)
-		if o.Vdrop*o.I+o.Vin*(o.Ipack-o.I) > keepP[k]*(1+1e-9) {
+	for k, p := range s.fresh {
+		if p > keepP[k]*(1+1e-9) {
 			hotter = true
 			break
 		}
@@ -224,8 +274,8 @@ func (e *evaluator) reportHeat(v *variant) {
 	}
 	keep := append([]float64(nil), s.tj...)
 	keepEls := append([]protect.Element(nil), s.els...)
-	keepSt := s.st
-	e.settle(v, 0)
+	keepSt, keepOK := s.st, s.ok
+	e.settle(v, 0, nd)
 	if fresh := s.st.Cycle; fresh.PeakC > cut.PeakC {
 		s.peakC, s.meanC = fresh.PeakC, fresh.MeanC
 	}
@@ -233,6 +283,7 @@ func (e *evaluator) reportHeat(v *variant) {
 	copy(s.els, keepEls)
 	copy(s.p, keepP)
 	s.st = keepSt
+	s.ok = keepOK && s.st.OK
 }
 
 // heatWarning is the warning for a junction whose temperature did not

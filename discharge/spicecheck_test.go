@@ -35,6 +35,15 @@ import (
 // floor, which can be up to one cycle after the charge at which the
 // engine's quasi-static phases fail, so those cases get one period on
 // top (30 s of 6.3 h, 1.3e-3; measured 3.5e-4).
+//
+// The cells' RC branches (curves.Cell.RC) are in the circuit as real
+// filters, starting discharged; the engine holds each at the periodic
+// state of the currents at that charge, built up from a rested start.
+// Where the current drifts over the run (a resistive or a constant-power
+// load) a branch lags it by about its time constant τ, which shifts the
+// cut-off by a fraction of τ/runtime: those cases get 0.1·τ/runtime on
+// top (measured: 0.04·τ/runtime for the constant-power case, 1.9e-3).
+// Every case stays within the 1 %.
 func TestRuntimeAgainstNgspice(t *testing.T) {
 	spicetest.Require(t)
 	cases, err := spicenet.Cases()
@@ -69,9 +78,12 @@ func TestRuntimeAgainstNgspice(t *testing.T) {
 			}
 			rel := r.RuntimeH/s.CutoffH - 1
 			tol := 1e-4 + spicenet.Period(&d)/r.RuntimeH
+			if drifts(&d) {
+				tol += 0.1 * slowestTau(&d) / 3600 / r.RuntimeH
+			}
 			t.Logf("headroom %.5f h (%s on %s, load %.3f V from pack %.3f V), ngspice %.5f h (%s), diff %+.1e, tolerance %.1e",
 				r.RuntimeH, r.CutoffCause, r.CutoffPhase, r.CutoffLoadV, r.CutoffPackV, s.CutoffH, s.Cause, rel, tol)
-			if math.Abs(rel) > tol {
+			if math.Abs(rel) > tol || math.Abs(rel) > 0.01 {
 				t.Errorf("runtime %.5f h, ngspice %.5f h: %+.2e relative, beyond %.1e", r.RuntimeH, s.CutoffH, rel, tol)
 			}
 			if string(s.Cause) != string(r.CutoffCause) {
@@ -79,6 +91,25 @@ func TestRuntimeAgainstNgspice(t *testing.T) {
 			}
 		})
 	}
+}
+
+// drifts reports whether a phase's current moves with the pack's voltage.
+func drifts(d *discharge.Design) bool {
+	for _, p := range d.Profile {
+		if p.Load.Kind != discharge.ConstantCurrent {
+			return true
+		}
+	}
+	return false
+}
+
+// slowestTau is the longest time constant of d's cell's branches, s.
+func slowestTau(d *discharge.Design) float64 {
+	t := 0.0
+	for _, b := range d.Cell.RC {
+		t = math.Max(t, b.Tau)
+	}
+	return t
 }
 
 // limiterPulse checks a design the engine says never starts: a current

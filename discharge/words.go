@@ -64,6 +64,13 @@ func (d *Design) cutoffText(r *Result) string {
 		return "the protection's current limit cuts " + what + " (it wants " + amps + ")"
 	case CauseFuse:
 		return "the fuse opens on " + what + " (" + amps + ")"
+	case CauseCutoff:
+		return fmt.Sprintf("the pack's under-voltage cut-off trips on %s (pack %.2f V for longer than its delay)", what, r.CutoffPackV)
+	}
+	if len(d.Profile) > 1 {
+		// The end-point applies to the voltage averaged over a cycle
+		// while current flows, not to one phase's dip.
+		return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V averaged over a cycle while it draws current)", r.CutoffPackV)
 	}
 	return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V) on %s", r.CutoffPackV, what)
 }

@@ -103,14 +103,38 @@ func Build(d *discharge.Design, o Options) (string, error) {
 	selfA := c.SelfDischarge * c.RatedMAh * P / 730.5 * math.Pow(2, (T-curves.RefTempC)/10) / 1000
 	fmt.Fprintf(&b, "Fq 0 qs Vsense 1\nCq qs 0 %s\nIself 0 qs DC %s\n.ic v(qs)=0\n", g(1e-3*P*o.CapacityFactor), g(selfA))
 
-	// The pack: E = S·(Vcurve + Iref·R), Rp = S·R/P, both pwl() of v(qs).
-	// ngspice extends pwl() linearly beyond its end points, so each table
-	// gets flat extensions to hold its end values, as the cell does.
+	// The pack: E = S·(Vcurve + Iref·(R0 + ΣRᵢ)) with the resistances at
+	// the reference temperature (curves.Cell.OpenCircuit), R0 at the
+	// ambient in series, R0p = S·R0/P, both pwl() of v(qs). ngspice
+	// extends pwl() linearly beyond its end points, so each table gets
+	// flat extensions to hold its end values, as the cell does.
 	vq, vv := curveTable(c)
 	rq, rv := resistanceTable(c, T)
+	r20q, r20v := resistanceTable(c, curves.RefTempC)
+	if _, fr := c.TempFactors(curves.RefTempC); fr != 1 {
+		for i := range r20v { // the table's own ohms, not scaled by a factor at 20 °C
+			r20v[i] /= fr
+		}
+	}
 	vpwl := pwl("v(qs)", vq, vv, end)
 	rpwl := pwl("v(qs)", rq, rv, end)
-	fmt.Fprintf(&b, "Bpack pk 0 V = %s*(%s + %s*%s) - i(Vsense)*%s*%s\n", g(S), vpwl, g(c.RefCurrent), rpwl, g(S/P), rpwl)
+	r20pwl := pwl("v(qs)", r20q, r20v, end)
+	// The polarisation branches, each its own state: a current-controlled
+	// source copies the pack current into 1 kΩ ∥ τᵢ/(3600·1 kΩ), so the
+	// node's voltage is 1000 × the pack current filtered by the branch
+	// (time scaled as above), and the pack subtracts S·Rᵢ/P (ohms at the
+	// ambient) times that current. Kept apart from the pack's current
+	// loop because farad-sized capacitors there leave ngspice's absolute
+	// current tolerance out of reach. They start discharged (the load
+	// ramps up from zero).
+	_, fr := c.TempFactors(T)
+	var pol strings.Builder
+	for i, st := range c.RC {
+		rb := S * st.R * fr / P
+		fmt.Fprintf(&b, "Frc%d 0 x%d Vsense 1\nRrc%d x%d 0 1000\nCrc%d x%d 0 %s\n", i+1, i+1, i+1, i+1, i+1, i+1, g(st.Tau/3600/1000))
+		fmt.Fprintf(&pol, " - v(x%d)*%s", i+1, g(rb/1000))
+	}
+	fmt.Fprintf(&b, "Bpack pk 0 V = %s*(%s + %s*(%s + %s)) - i(Vsense)*%s*%s%s\n", g(S), vpwl, g(c.RefCurrent), r20pwl, g(c.PolarisationOhms()), g(S/P), rpwl, pol.String())
 	b.WriteString("Vsense pk a DC 0\n")
 
 	// The protection element from a (pack terminal) to ld (load).
