@@ -117,7 +117,8 @@ type Cause string
 const (
 	CauseFloor    Cause = "floor"         // the load voltage fell below the floor
 	CauseCollapse Cause = "collapse"      // a constant-power load found no operating point
-	CauseEndPoint Cause = "end-point"     // a cell reached its end-point voltage or the end of its curve
+	CauseEndPoint Cause = "end-point"     // the cells' voltage over a cycle reached their end-point, or the curve ran out
+	CauseCutoff   Cause = "pack cut-off"  // a rechargeable pack's under-voltage cut-off tripped (a dip longer than its delay)
 	CauseLimit    Cause = "current limit" // the protection element clamped the load's current
 	CauseFuse     Cause = "fuse"          // a fuse or polyfuse opened
 )
@@ -155,7 +156,8 @@ type Result struct {
 	ProtectionLossWh float64 // energy burnt in the element (drop and standing drain)
 	CellLossWh       float64 // energy burnt in the cells' internal resistance
 	ProtectionPeakW  float64 // highest dissipation in the element
-	JunctionC        float64 // element junction temperature at ProtectionPeakW
+	JunctionC        float64 // element junction at the peak of the hottest pulse, °C (its thermal network, periodic steady state)
+	JunctionMeanC    float64 // element junction averaged over a profile cycle at the same point, °C
 
 	StandbyMAh       float64 // charge drawn outside the hours of use
 	SelfDischargeMAh float64 // charge lost inside the cells

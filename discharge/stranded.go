@@ -39,41 +39,48 @@ import (
 // load, the ambient and nothing the designer puts between them.
 
 // strandedSplit computes the three cut-offs other than the design's own
-// (qsCut, scaled charge; scale, pack mAh per scaled mAh) and fills the
-// delivered, reference and stranded charges of r.
-func (e *evaluator) strandedSplit(el protect.Element, qsCut, scale float64, r *Result, buf []op) {
+// (real, cut off at qsCut, scaled charge; scale, pack mAh per scaled mAh)
+// and fills the delivered, reference and stranded charges of r.
+func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result, nd *node) {
 	d := e.d
-	_, none := el.(protect.None)
-	// The least LED current is the product's own stop, like the floor.
-	noEl := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, minLED: d.MinLEDAmps}
-	noFloor := &variant{el: el, lim: el.Limit(d.TempC), floor: 0}
-	neither := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0}
+	_, none := real.el.(protect.None)
+	// The floor, the least LED current and the pack's own under-voltage
+	// cut-off are the product's stops: the reference leaves them all out,
+	// so they go together as "the floor".
+	noEl := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
+	noFloor := *real
+	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
+	noFloor.heat = e.heatCopy(real.heat) // its own junctions: the design's stay as they were
+	neither := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0, steady: true}
 
 	// Each scan resumes near a cut-off already found; cutoff starts over
 	// from zero when the run it is given does not work there (removing
-	// the element can shorten a run).
-	// With no floor to remove (nor a least LED current) the runs without
-	// the floor are the runs with it; with no element, the runs without
-	// the element are the runs with it.
-	noStop := d.Floor == 0 && d.MinLEDAmps == 0
+	// the element can shorten a run). With no stop to remove the runs
+	// without the floor are the runs with it; with no element, the runs
+	// without the element are the runs with it.
+	noStop := d.Floor == 0 && d.MinLEDAmps == 0 && d.Cell.CutoffV == 0
 	qs0F, qsE0 := qsCut, qsCut
 	if !noStop {
-		qsE0 = e.cutoff(noFloor, buf, qsCut)
+		if noFloor.heat != nil && !noFloor.heat.still {
+			qsE0 = e.heatCutoff(&noFloor, nd)
+		} else {
+			qsE0 = e.cutoff(&noFloor, nd, qsCut)
+		}
 	}
 	if !none {
-		qs0F = e.cutoff(noEl, buf, qsCut)
+		qs0F = e.cutoff(noEl, nd, qsCut)
 	}
 	qs00 := qsE0
 	switch {
 	case noStop:
 		qs00 = qs0F
 	case !none:
-		qs00 = e.cutoff(neither, buf, qs0F)
+		qs00 = e.cutoff(neither, nd, qs0F)
 	}
 
 	scale0 := scale
 	if !none {
-		scale0 = e.capacityScale(neither, buf)
+		scale0 = e.capacityScale(neither, nd)
 	}
 	qEF, qE0 := qsCut*scale, qsE0*scale
 	q0F, q00 := qs0F*scale0, qs00*scale0
@@ -102,23 +109,36 @@ func (e *evaluator) strandedSplit(el protect.Element, qsCut, scale float64, r *R
 }
 
 // capacityScale is pack mAh per scaled cell mAh for variant v: parallel
-// strings times the cell's capacity factor at the Peukert-weighted mean of
-// the phases' per-cell currents at half depth (see doc.go).
-func (e *evaluator) capacityScale(v *variant, buf []op) float64 {
-	ieff := e.effectiveCurrent(v, buf)
-	return e.P * e.cell.CapacityFactor(ieff, e.T)
+// strings times the cell's capacity factor at the Peukert-weighted mean
+// per-cell current over the day, the fresh pack's phases for the hours of
+// use and the standby drain for the rest (the rule evaluate uses).
+func (e *evaluator) capacityScale(v *variant, nd *node) float64 {
+	d := e.d
+	k := d.Cell.Peukert
+	e.solveNode(0, v, nd)
+	sum := 0.0
+	for j, o := range nd.mean {
+		sum += e.duty * e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
+	}
+	sum += (1 - e.duty) * math.Pow((d.Standby+v.el.Quiescent(nd.Epack, d.TempC))/e.P, k)
+	return e.P * d.Cell.CapacityFactor(math.Pow(sum, 1/k), d.TempC)
 }
 
-// effectiveCurrent is the Peukert-weighted mean per-cell current of v's
-// phases at half depth, (Σ wⱼ·Iⱼᵏ)^(1/k).
-func (e *evaluator) effectiveCurrent(v *variant, buf []op) float64 {
-	k := e.cell.Peukert
-	e.phases(0.5*e.end, v, buf)
-	sum := 0.0
-	for j, o := range buf {
-		sum += e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
+// heatCopy is a junction state of its own for a variant of the same
+// element, starting where h stands; nil for none.
+func (e *evaluator) heatCopy(h *heat) *heat {
+	if h == nil {
+		return nil
 	}
-	return math.Pow(sum, 1/k)
+	c := e.newHeat(h.base)
+	if c == nil {
+		return nil
+	}
+	copy(c.tj, h.tj)
+	copy(c.els, h.els)
+	c.still = h.still
+	c.fresh = append(c.fresh, h.fresh...)
+	return c
 }
 
 // Started reports whether the design ran at all: false when it fails on

@@ -66,6 +66,13 @@ func (d *Design) cutoffText(r *Result) string {
 		return "the fuse opens on " + what + " (" + amps + ")"
 	case CauseDim:
 		return "the LED dims below the " + units.Eng(d.MinLEDAmps, units.Current, 3) + " that counts as lit, on " + what
+	case CauseCutoff:
+		return fmt.Sprintf("the pack's under-voltage cut-off trips on %s (pack %.2f V for longer than its delay)", what, r.CutoffPackV)
+	}
+	if len(d.Profile) > 1 {
+		// The end-point applies to the voltage averaged over a cycle
+		// while current flows, not to one phase's dip.
+		return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V averaged over a cycle while it draws current)", r.CutoffPackV)
 	}
 	return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V) on %s", r.CutoffPackV, what)
 }

@@ -281,6 +281,7 @@ func parse(spec string) (settable, error) {
 	if info.derive != nil {
 		info.derive(s, func(k string) bool { return given[k] })
 	}
+	deriveHeat(s, func(k string) bool { return given[k] })
 	if err := validate(s); err != nil {
 		return nil, err
 	}
@@ -405,6 +406,7 @@ func WithMain(e Element, v float64) (Element, error) {
 	switch t := s.(type) {
 	case *PPTC:
 		t.Trip *= v / old
+		t.R *= math.Pow(old/v, 1.2) // the scaling of pptcOhms
 	case *Crowbar:
 		t.RFuse *= old / v
 		t.I2t *= (v / old) * (v / old)
@@ -419,13 +421,6 @@ func WithMain(e Element, v float64) (Element, error) {
 // the same way.
 func costField(p *float64) field {
 	return field{key: "cost", kind: units.Money, p: p, lo: 0, hi: 1000, what: "the unit cost in dollars"}
-}
-
-func thermalFields(theta, tjmax *float64) []field {
-	return []field{
-		{key: "theta", kind: plain, p: theta, lo: 0, hi: 10000, loOpen: true, what: "θja in °C/W"},
-		{key: "tjmax", kind: units.Temperature, p: tjmax, lo: 25, hi: 400, loOpen: true, what: "the highest junction temperature"},
-	}
 }
 
 // shockleyFields lists a junction's parameters under keys with the given

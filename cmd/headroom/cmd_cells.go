@@ -155,6 +155,16 @@ func cellsShow(c *cli, args []string) error {
 		}
 		line("resistance", "%s (depth of discharge → ohms)", strings.Join(rs, ", "))
 	}
+	if len(cell.RC) > 0 {
+		var ps []string
+		for _, b := range cell.RC {
+			ps = append(ps, fmt.Sprintf("%s for %s", human(b.R, units.Resistance), human(b.Tau, units.Time)))
+		}
+		line("polarisation", "%s (RC branches: ohms, time constant)", strings.Join(ps, ", "))
+	}
+	if cell.CutoffV > 0 {
+		line("pack cut-off", "%s a cell, after %s below it", human(cell.CutoffV, units.Voltage), human(cell.CutoffDelay, units.Time))
+	}
 	if len(cell.Temperature) > 0 {
 		var ts []string
 		for _, t := range cell.Temperature {

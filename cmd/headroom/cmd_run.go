@@ -172,7 +172,8 @@ func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) [
 		{"protection_loss_Wh", "burnt in the protection element (Wh)", r.ProtectionLossWh},
 		{"cell_loss_Wh", "burnt in the cells' resistance (Wh)", r.CellLossWh},
 		{"protection_peak_W", "element peak dissipation (W)", r.ProtectionPeakW},
-		{"junction_C", "element junction at peak (°C)", r.JunctionC},
+		{"junction_C", "element junction at the peak of the hottest pulse (°C)", r.JunctionC},
+		{"junction_mean_C", "element junction over a profile cycle (°C)", r.JunctionMeanC},
 		{"quiescent_A", "element standing drain (A)", r.QuiescentA},
 		{"standby_mAh", "standby drain (mAh)", r.StandbyMAh},
 		{"self_discharge_mAh", "self-discharge (mAh)", r.SelfDischargeMAh},
@@ -257,7 +258,8 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	} else {
 		line("stranded", "— (the product never starts, so no share of the charge is stranded; see the cut-off)")
 	}
-	line("element", "%s burnt in it; peak %s, junction %s °C", units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0))
+	line("element", "%s burnt in it; peak %s, junction %s °C at the hottest pulse (%s °C over a cycle)",
+		units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0), fixed(r.JunctionMeanC, 0))
 	line("cells", "%s burnt in their internal resistance", units.Prefixed(r.CellLossWh, 3, "Wh"))
 	line("standby", "%s of the charge goes to standby drain and self-discharge", units.Eng(r.StandbyShare, units.Fraction, 2))
 	if r.RuntimeH > 0 {
