@@ -61,10 +61,17 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	noStop := d.Floor == 0 && d.MinLEDAmps == 0 && d.Cell.CutoffV == 0
 	qs0F, qsE0 := qsCut, qsCut
 	if !noStop {
-		if noFloor.heat != nil && !noFloor.heat.still {
-			qsE0 = e.heatCutoff(&noFloor, nd)
-		} else {
-			qsE0 = e.cutoff(&noFloor, nd, qsCut)
+		// From the design's own cut-off, with its junctions as they stand
+		// there, then settled where this run ends (as heatCutoff does,
+		// from a nearer start).
+		qsE0 = e.cutoff(&noFloor, nd, qsCut)
+		if h := noFloor.heat; h != nil && !h.still {
+			for range 4 {
+				if e.settle(&noFloor, qsE0, nd) < 0.05 {
+					break
+				}
+				qsE0 = e.recut(&noFloor, nd, qsE0)
+			}
 		}
 	}
 	if !none {
