@@ -85,6 +85,13 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 		qs00 = e.cutoff(neither, nd, qs0F)
 	}
 
+	// Removing a stop can never end a run sooner: it only takes a way to
+	// fail away. Where a search says otherwise (the junctions settled at a
+	// different point, the cell's rested start) the run without the stop
+	// is taken to end where the run with it does. The element, unlike the
+	// stops, may shorten or lengthen a run, and is never held so.
+	qsE0, qs00 = math.Max(qsE0, qsCut), math.Max(qs00, qs0F)
+
 	scale0 := scale
 	if !none {
 		scale0 = e.capacityScale(neither, nd)
