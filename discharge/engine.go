@@ -34,12 +34,19 @@ type variant struct {
 	el     protect.Element
 	lim    protect.Limit
 	floor  float64
-	cutoff bool // the pack's own under-voltage cut-off applies
+	cutoff bool    // the pack's own under-voltage cut-off applies
+	minLED float64 // least LED current that counts as working, A (limits.go); 0: none
 	// steady marks an element whose drop and standing drain do not move
 	// with the pack's voltage (none, a diode, a resistance): behind it a
 	// constant-power load's i·vload(i) is concave, so a warm start from
 	// the last solve is safe (see powerPoint).
 	steady bool
+	// heat is the element's per-phase junction state (heat.go); nil
+	// when the element is taken at ambient.
+	heat *heat
+	// over is the element when it opens on the profile as a whole (a
+	// polyfuse; lim.Trip is then +Inf); nil otherwise.
+	over protect.Overloader
 }
 
 // evaluator holds what one evaluation works out once: the design's
@@ -83,14 +90,15 @@ type evaluator struct {
 	// pack's drain: the time since the start that a charge stands for,
 	// for the polarisation of a pack that started rested (0 until known).
 	usePerQ float64
-	// peak0 and peakCut are the element's peak dissipation (rates.peakW)
-	// of the real variant at the fresh pack and at the cut-off, where
-	// the evaluation has already solved them (Known: worked out).
-	peak0, peakCut           float64
-	peak0Known, peakCutKnown bool
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
+	// secs are the phases' durations, s; cur is scratch for their
+	// currents (a polyfuse's overload).
+	secs, cur []float64
+	// heat is the real variant's junction state, for the report (nil
+	// with an ideal heat sink).
+	heat *heat
 }
 
 // Evaluate computes runtime, capacity and losses for design d.
@@ -110,9 +118,12 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	el = protect.Fixed(el, d.TempC)
 	e := newEvaluator(d, gx, gw)
 
-	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el)}
-	bare := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, cutoff: true, steady: true}
-	ref := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0, steady: true}
+	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps}
+	if o, ok := el.(protect.Overloader); ok {
+		real.over, real.lim.Trip = o, math.Inf(1)
+	}
+	real.heat = e.newHeat(el)
+	e.heat = real.heat
 	nd := e.newNode()
 
 	// Rate and cold (curves.Cell.CapacityFactor): one effective per-cell
@@ -124,7 +135,23 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// a kinder rate factor (a point deeper in the run can fail, or move
 	// with the load).
 	k := d.Cell.Peukert
-	r0 := e.rates(0, real, nd) // solves the fresh pack into nd
+	if real.heat != nil {
+		// The junctions with the fresh pack: exact for the whole run
+		// behind constant currents and a drop that ignores the pack
+		// (still), whose currents do not move with temperature either,
+		// so the node solved at ambient serves as it is.
+		real.heat.still = e.linear(real)
+		if !real.heat.still {
+			e.settle(real, 0, nd)
+		}
+	}
+	e.solveNode(0, real, nd)
+	if real.heat != nil {
+		if real.heat.still {
+			e.settleAt(real, 0, nd)
+		}
+		real.heat.freshHeat(e, real, nd)
+	}
 	sum := 0.0
 	for j, o := range nd.mean {
 		sum += e.duty * e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
@@ -136,7 +163,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 
 	// The time a charge stands for, from the fresh pack's drain over a
 	// calendar hour and the share of it in use.
-	if rate := r0.calendar; rate > 0 {
+	if rate := e.rates(0, real, nd).calendar; rate > 0 {
 		e.usePerQ = scale / rate * e.duty * 3600
 		// A run that could span twenty sessions or more: the first one's
 		// rested start is a small part of it and is taken as
@@ -145,23 +172,12 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 			e.pol.periodicOnly = true
 		}
 	}
-	// The fresh pack's element peak, for the run's (integrate): the
-	// node above is the same unless the first session is now taken as
-	// day-periodic.
-	if e.pol == nil || !e.pol.periodicOnly {
-		e.peak0, e.peak0Known = r0.peakW, true
-	}
 
 	// The cut-offs, in scaled charge. Each variant
 	// asks less of the pack than the one before, so its scan resumes near
 	// the previous cut-off; without an element the bare variant is the
 	// real one.
-	qsCut := e.cutoff(real, nd, 0)
-	qsBare := qsCut
-	if _, none := el.(protect.None); !none {
-		qsBare = e.cutoff(bare, nd, qsCut)
-	}
-	qsRef := e.cutoff(ref, nd, qsBare)
+	qsCut := e.heatCutoff(real, nd)
 
 	r := &Result{EffectiveA: ieff, CapacityFac: F}
 	r.FreshV = e.S * d.Cell.OpenCircuit(0, d.TempC)
@@ -181,12 +197,8 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	}
 	r.CutoffCause = fail
 	r.CutoffPhase = d.Profile[ph].Label()
-	if qsCut < e.end {
-		// (The element's peak there is the run's last: kept for integrate.)
-		e.peakCut, e.peakCutKnown = e.rates(qsCut, real, nd).peakW, true
-	} else {
-		e.solveNode(e.end, real, nd)
-	}
+	r.CutoffIndex = ph
+	e.solveNode(math.Min(qsCut, e.end), real, nd)
 	o := nd.worst[ph]
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = o.Vload, o.Vin, o.I
 	switch fail {
@@ -202,15 +214,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	r.CutoffLoadV = math.Max(r.CutoffLoadV, 0)
 	r.CutoffPackV = math.Max(r.CutoffPackV, 0)
 
-	// Charges, in pack mAh; see Result for the reference's definition.
-	qA := qsCut * scale
-	qB := math.Max(qsBare*scale, qA)
-	qC := math.Max(qsRef*scale, qB)
-	r.DeliveredMAh = qA
-	r.StrandedByProtectionMAh = qB - qA
-	r.StrandedByFloorMAh = qC - qB
-	r.StrandedMAh = qC - qA
-	r.ReferenceMAh = qC
+	e.strandedSplit(real, qsCut, scale, r, nd) // stranded.go
 
 	e.integrate(real, qsCut, scale, r, nd)
 	if !finite(r.RuntimeH) || !finite(r.DeliveredWh) || !finite(r.ProtectionLossWh) || !finite(r.CellLossWh) {
@@ -219,6 +223,9 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		// no self-discharge. Time to empty is unbounded; say so rather
 		// than print an infinite runtime.
 		return nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
+	}
+	if real.heat != nil {
+		e.reportHeat(real, nd)
 	}
 	e.priceAndNotes(el, r, nd)
 	return r, nil
@@ -278,6 +285,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		e.loads = append(e.loads, p.Load)
 		dur = append(dur, p.Seconds)
 	}
+	e.secs, e.cur = dur, make([]float64, n)
 	e.breaks = breakpoints(c)
 	e.src = c.SourceTable()
 	_, e.fr = c.TempFactors(d.TempC)

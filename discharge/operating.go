@@ -12,12 +12,12 @@ import (
 // solve finds the operating point of load l with the pack source (E, Rp)
 // behind element v.
 func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
-	T := e.T
-	iq := v.el.Quiescent(E, T)
+	el, T := e.phaseElement(v, k)
+	iq := el.Quiescent(E, T)
 	vin := func(i float64) float64 { return E - (i+iq)*Rp }
 	vload := func(i float64) float64 {
 		x := vin(i)
-		return x - v.el.Drop(i, x, T)
+		return x - el.Drop(i, x, T)
 	}
 	var i float64
 	switch l.Kind {
@@ -64,7 +64,7 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 	}
 	o := op{I: i, Ipack: i + iq}
 	o.Vin = vin(i)
-	o.Vdrop = v.el.Drop(i, o.Vin, T)
+	o.Vdrop = el.Drop(i, o.Vin, T)
 	o.Vload = o.Vin - o.Vdrop
 	// A resistive or LED load sets its own voltage, i·R (+ Vf). Where the
 	// element's drop jumps (a FET out of gate drive hands over to its
@@ -89,6 +89,16 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 		o.Fail = CauseCollapse
 	case o.Vload < v.floor:
 		o.Fail = CauseFloor
+	case dim(l, i, v): // limits.go
+		o.Fail = CauseDim
+	}
+	// A limiter whose clamp depends on the pack (protect.Clamper) has no
+	// operating point above it: its drop takes the whole input. That is
+	// its current limit, not a collapse of the source.
+	if o.Fail == CauseCollapse || o.Fail == CauseFloor {
+		if _, ok := el.(protect.Clamper); ok && i > 0 && el.Drop(i, o.Vin, T) >= o.Vin {
+			o.Fail = CauseLimit
+		}
 	}
 	return o
 }
@@ -405,6 +415,20 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 			}
 		}
 	}
+	if v.over != nil {
+		// A polyfuse opens on the profile as a whole: its heating over
+		// the cycle, each phase at its mean current.
+		for k, o := range nd.mean {
+			e.cur[k] = o.I
+		}
+		load, k := v.over.Overload(e.cur, e.secs, e.T)
+		if load >= 1 {
+			note(CauseFuse, k)
+		}
+		if !math.IsNaN(m) {
+			m = min(m, 1-load)
+		}
+	}
 	if d := nd.cellAvg - e.cell.EndPoint; d < 0 {
 		note(CauseEndPoint, low)
 		if !math.IsNaN(m) {
@@ -428,7 +452,7 @@ func rank(c Cause) int {
 		return 1
 	case CauseCollapse:
 		return 2
-	case CauseFloor:
+	case CauseFloor, CauseDim:
 		return 3
 	case CauseCutoff:
 		return 4

@@ -133,14 +133,8 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	}
 	cal, loadWh, protWh, cellWh, stby, self, peak := tot.h, tot.loadWh, tot.protWh, tot.cellWh, tot.stby, tot.self, tot.peak
 	// The element's peak dissipation can sit at either end of the run.
-	for i, x := range []float64{0, qsCut} {
-		switch {
-		case x >= e.end:
-		case i == 0 && e.peak0Known:
-			peak = math.Max(peak, e.peak0)
-		case i == 1 && e.peakCutKnown:
-			peak = math.Max(peak, e.peakCut)
-		default:
+	for _, x := range []float64{0, qsCut} {
+		if x < e.end {
 			peak = math.Max(peak, e.rates(x, v, nd).peakW)
 		}
 	}

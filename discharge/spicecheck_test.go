@@ -7,6 +7,7 @@ import (
 	"headroom/discharge"
 	"headroom/internal/spicenet"
 	"headroom/internal/spicetest"
+	"headroom/protect"
 )
 
 // TestRuntimeAgainstNgspice compares the engine's runtime with ngspice
@@ -115,15 +116,17 @@ func slowestTau(d *discharge.Design) float64 {
 // limiter with a pulse above its limit. Agreement here is on behaviour and
 // on the clamped current, not on a runtime.
 //
-// The engine treats the limiter as ideal: above Vbe/Rsh (0.646 A at 27 °C)
-// it passes no more current, the load voltage collapses, and the product
-// stops at charge 0 with cause "current limit". In the discrete circuit
-// (a reverse-blocking FET, then Rsh, the PNP and the pass FET turned with
-// its body diode towards the pack) the PNP pulls the pass FET's gate up
-// until the channel saturates at the limit, so ngspice, too, must hold the
-// 0.9 A pulse near Vbe/Rsh and let the load voltage fall through the floor
-// during the first pulse, to where the constant-current load's guard
-// (spicenet.CCGuard) fades its demand down to the clamped current.
+// The engine's limiter (protect.Limiter) passes no more than its clamp at
+// the pack voltage it sees (ClampAt: the pass channel saturating at the
+// gate drive the Ebers–Moll PNP leaves it); above it the load voltage
+// collapses, and the product stops at charge 0 with cause "current
+// limit". In the discrete circuit (a reverse-blocking FET, then Rsh, the
+// PNP and the pass FET turned with its body diode towards the pack) the
+// PNP pulls the pass FET's gate up until the channel saturates at the
+// limit, so ngspice, too, must hold the 0.9 A pulse at that limit and let
+// the load voltage fall through the floor during the first pulse, to where
+// the constant-current load's guard (spicenet.CCGuard) fades its demand
+// down to the clamped current.
 func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	if r.CutoffCause != discharge.CauseLimit {
 		t.Fatalf("engine runtime 0 with cause %q, want %q", r.CutoffCause, discharge.CauseLimit)
@@ -140,7 +143,15 @@ func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	clamp := d.Protect.Limit(d.TempC).Clamp
+	lim, ok := d.Protect.(protect.Limiter)
+	if !ok {
+		t.Fatalf("the limiter case has element %q", d.Protect.Kind())
+	}
+	// The clamp at the fresh pack's open-circuit voltage: the pack carries
+	// the clamped current, some 0.1–0.2 V lower, and the clamp moves about
+	// 2 %/V with it (protect's limiter tests), so this errs high by under
+	// 0.5 %.
+	clamp := lim.ClampAt(r.FreshV, d.TempC)
 	// The pulse is the profile's largest phase; before is when it starts.
 	var pulse, before, width, start float64
 	for _, p := range d.Profile {
@@ -156,11 +167,9 @@ func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	if sec := s.CutoffH * 3600; s.Cause != spicenet.Floor || sec < before || sec > before+width {
 		t.Errorf("ngspice cut-off at %.3f s (%q), want inside the first pulse, %.0f s into the cycle", sec, s.Cause, before)
 	}
-	// ngspice's pulse current is held at the limit. The circuit's PNP
-	// reaches the engine's Vbe(T) at a collector current of
-	// spicenet.LimiterOnCurrent; a factor of two either way in the current
-	// it really needs at the clamp moves the limit by Vt·ln 2 ≈ 18 mV of
-	// 0.646 V, 2.8 %, so we allow 3 % (measured: −0.5 %).
+	// ngspice's pulse current is held at the limit: the laws are the
+	// same, so what differs is the pack voltage above and the PNP's base
+	// current; the issue asks 3 % (measured: see the log).
 	if math.Abs(s.PeakA/clamp-1) > 0.03 {
 		t.Errorf("ngspice passes %.4f A during the %.3f A pulse; want the %.4f A limit within 3 %%", s.PeakA, pulse, clamp)
 	}

@@ -126,7 +126,11 @@ func cellsShow(c *cli, args []string) error {
 	}
 	line("chemistry", "%s", cell.Chemistry)
 	line("nominal", "%s V", short(cell.NominalV))
-	line("rated", "%s mAh at %s to %s V", fixed(cell.RatedMAh, 0), human(cell.RatedCurrent, units.Current), short(cell.EndPoint))
+	if cell.RatedCurrent > 0 {
+		line("rated", "%s mAh at %s to %s V", fixed(cell.RatedMAh, 0), human(cell.RatedCurrent, units.Current), short(cell.EndPoint))
+	} else { // an imported cell: the rating is the curve's charge, at no stated current
+		line("rated", "%s mAh to %s V (no rating current given)", fixed(cell.RatedMAh, 0), short(cell.EndPoint))
+	}
 	line("end-point", "%s V", short(cell.EndPoint))
 	if cell.RefCurrent > 0 {
 		line("curve", "terminal voltage at %s, %g °C", human(cell.RefCurrent, units.Current), curves.RefTempC)
