@@ -256,12 +256,17 @@ type quadrature struct {
 	// bufs[d] holds the sampled rates of the span being judged at depth
 	// d of the halving: a span reads its own only until it recurses.
 	bufs [maxSplit + 2][]rates
+	buf0 [gaussN]rates // depth 0's, in place: most spans are never halved
 }
 
 // buf is the node buffer for depth d, made on first use.
 func (q *quadrature) buf(d int) []rates {
 	if q.bufs[d] == nil {
-		q.bufs[d] = make([]rates, len(q.e.gx))
+		if d == 0 && len(q.e.gx) <= len(q.buf0) {
+			q.bufs[0] = q.buf0[:len(q.e.gx)]
+		} else {
+			q.bufs[d] = make([]rates, len(q.e.gx))
+		}
 	}
 	return q.bufs[d]
 }
