@@ -182,7 +182,7 @@ func Fit(logs []*Log, opt Options) (*Result, error) {
 	}
 	res.Model = best.model
 	res.Iterations = best.iters
-	for li, l := range logs {
+	for _, l := range logs {
 		lf := LogFit{Log: l, Model: res.Model.Simulate(l, nil)}
 		sum := 0.0
 		for k := range l.V {
@@ -194,7 +194,7 @@ func Fit(logs []*Log, opt Options) (*Result, error) {
 		}
 		lf.RMS = math.Sqrt(sum / float64(l.Len()))
 		last := l.LastLoaded()
-		lf.ChargeMAh, lf.LastV = p.q[li][last], l.V[last]
+		lf.ChargeMAh, lf.LastV = l.ChargeTrapezoid(last), l.V[last]
 		if math.IsNaN(lf.RMS) {
 			return nil, fmt.Errorf("%w: the model gives no finite voltage for %s", ErrNoConvergence, l.Name)
 		}
@@ -680,4 +680,3 @@ func (p *problem) fit(nb int, st stats) (*fitted, error) {
 	})
 	return &fitted{model: m, cost: cost, iters: evals}, nil
 }
-

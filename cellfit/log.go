@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -281,4 +282,53 @@ func (l *Log) Charge(k int) float64 {
 		q += l.I[j] * (l.T[j+1] - l.T[j]) / 3.6
 	}
 	return q
+}
+
+// ChargeTrapezoid is the charge in mAh delivered from the first sample to
+// sample k by the trapezoid rule on the sampled current (the rule the
+// measured data sets' own notes use).
+func (l *Log) ChargeTrapezoid(k int) float64 {
+	q := 0.0
+	for j := 0; j < k; j++ {
+		q += (l.I[j] + l.I[j+1]) / 2 * (l.T[j+1] - l.T[j]) / 3.6
+	}
+	return q
+}
+
+// Level is the log's load current: the median of its loaded samples,
+// amperes.
+func (l *Log) Level() float64 {
+	rest := restCurrent(l.Peak())
+	var in []float64
+	for _, i := range l.I {
+		if i > rest {
+			in = append(in, i)
+		}
+	}
+	slices.Sort(in)
+	return in[len(in)/2]
+}
+
+// CrossingTrapezoid is the charge in mAh, by the trapezoid rule, at the
+// first moment the measured voltage under load falls to volts, found by
+// linear interpolation between the sample above and the loaded sample at
+// or below; ok is false when the log never falls that far under load.
+func (l *Log) CrossingTrapezoid(volts float64) (mAh float64, ok bool) {
+	rest := restCurrent(l.Peak())
+	prev := -1 // the loaded sample before
+	for k := 0; k < l.Len(); k++ {
+		if l.I[k] <= rest {
+			continue
+		}
+		if l.V[k] <= volts {
+			if prev < 0 {
+				return l.ChargeTrapezoid(k), true
+			}
+			f := (l.V[prev] - volts) / (l.V[prev] - l.V[k])
+			q0, q1 := l.ChargeTrapezoid(prev), l.ChargeTrapezoid(k)
+			return q0 + f*(q1-q0), true
+		}
+		prev = k
+	}
+	return 0, false
 }
