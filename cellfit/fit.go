@@ -90,6 +90,8 @@ func Fit(logs []*Log, opt Options) (*Result, error) {
 		res.TermCurrent = st.levels[0]
 		p.nR = 0
 		p.QR = nil
+		p.penalty()
+		p.rows = nil
 		res.Warnings = append(res.Warnings, fmt.Sprintf(
 			"one load current only (%.3g A) and no current steps: the resistance cannot be told from the open-circuit voltage, so the curve is the terminal voltage at %.3g A and predicts no rate effect",
 			st.levels[0], st.levels[0]))
@@ -326,6 +328,50 @@ type problem struct {
 	D      *mat.Dense // smoothness penalty rows over (E, R0)
 	dtMin  float64
 	dur    float64
+	rows   []logRows // the part of the linear model that no time constant changes
+}
+
+// logRows is one log's rows of the linear model over (E, R0), which do
+// not depend on the time constants, and their unweighted normal
+// equations.
+type logRows struct {
+	n   []uint8 // entries in each row, at most 4
+	idx [][4]int
+	val [][4]float64
+	N0  []float64 // (nE+nR)², upper triangle
+	b0  []float64
+	yy  float64
+}
+
+// prepare builds the rows that stay fixed while the time constants move.
+func (p *problem) prepare() {
+	nf := p.nE + p.nR
+	p.rows = make([]logRows, len(p.logs))
+	var idx []int
+	var val []float64
+	for li, l := range p.logs {
+		lr := &p.rows[li]
+		lr.n = make([]uint8, l.Len())
+		lr.idx = make([][4]int, l.Len())
+		lr.val = make([][4]float64, l.Len())
+		lr.N0 = make([]float64, nf*nf)
+		lr.b0 = make([]float64, nf)
+		for k := range l.T {
+			idx, val = p.row(l, li, k, nil, idx[:0], val[:0])
+			lr.n[k] = uint8(len(idx))
+			copy(lr.idx[k][:], idx)
+			copy(lr.val[k][:], val)
+			y := l.V[k]
+			lr.yy += y * y
+			for a, ia := range idx {
+				lr.b0[ia] += val[a] * y
+				for c := a; c < len(idx); c++ {
+					ic := idx[c]
+					lr.N0[min(ia, ic)*nf+max(ia, ic)] += val[a] * val[c]
+				}
+			}
+		}
+	}
 }
 
 // knots spreads n knots over [0, qmax], closer together at both ends
@@ -428,6 +474,7 @@ type fitted struct {
 // respect to τ: u' = a·u + (1 − a)·I over each interval, a = e^(−dt/τ).
 func branchResponse(l *Log, tau float64, u, s []float64) {
 	uu, ss := 0.0, 0.0
+	a, lastDt := 0.0, -1.0
 	for k := range l.T {
 		u[k] = uu
 		if s != nil {
@@ -435,7 +482,9 @@ func branchResponse(l *Log, tau float64, u, s []float64) {
 		}
 		if k+1 < len(l.T) {
 			dt := l.T[k+1] - l.T[k]
-			a := math.Exp(-dt / tau)
+			if dt != lastDt {
+				a, lastDt = math.Exp(-dt/tau), dt
+			}
 			if s != nil {
 				ss = a*ss + a*dt/(tau*tau)*(uu-l.I[k])
 			}
@@ -453,33 +502,50 @@ func branchResponse(l *Log, tau float64, u, s []float64) {
 // again, until none is violated. It returns the parameters (E, R0, R) and
 // the cost.
 func (p *problem) linear(taus []float64) ([]float64, float64, bool) {
+	if p.rows == nil {
+		p.prepare()
+	}
 	nb := len(taus)
-	np := p.nE + p.nR + nb
+	nf := p.nE + p.nR
+	np := nf + nb
 	N := make([]float64, np*np) // upper triangle used
 	b := make([]float64, np)
 	yy := 0.0
-	idx := make([]int, 0, 4+nb)
-	val := make([]float64, 0, 4+nb)
-	u := make([][]float64, nb)
+	var u []float64
+	var ub [2]float64
 	for li, l := range p.logs {
 		w := p.w[li]
-		for bi, tau := range taus {
-			if cap(u[bi]) < l.Len() {
-				u[bi] = make([]float64, l.Len())
+		lr := &p.rows[li]
+		for i := 0; i < nf; i++ {
+			b[i] += w * lr.b0[i]
+			for j := i; j < nf; j++ {
+				N[i*np+j] += w * lr.N0[i*nf+j]
 			}
-			u[bi] = u[bi][:l.Len()]
-			branchResponse(l, tau, u[bi], nil)
+		}
+		yy += w * lr.yy
+		if nb == 0 {
+			continue
+		}
+		if cap(u) < nb*l.Len() {
+			u = make([]float64, nb*l.Len())
+		}
+		for bi, tau := range taus {
+			branchResponse(l, tau, u[bi*l.Len():(bi+1)*l.Len()], nil)
 		}
 		for k := range l.T {
-			idx, val = p.row(l, li, k, u, idx[:0], val[:0])
 			y := l.V[k]
-			yy += w * y * y
-			for a, ia := range idx {
-				wa := w * val[a]
-				b[ia] += wa * y
-				for c := a; c < len(idx); c++ {
-					ic := idx[c]
-					N[min(ia, ic)*np+max(ia, ic)] += wa * val[c]
+			for bi := 0; bi < nb; bi++ {
+				ub[bi] = -u[bi*l.Len()+k]
+			}
+			for bi := 0; bi < nb; bi++ {
+				wu := w * ub[bi]
+				col := nf + bi
+				b[col] += wu * y
+				for a := 0; a < int(lr.n[k]); a++ {
+					N[lr.idx[k][a]*np+col] += wu * lr.val[k][a]
+				}
+				for bj := bi; bj < nb; bj++ {
+					N[col*np+nf+bj] += wu * ub[bj]
 				}
 			}
 		}
