@@ -57,10 +57,21 @@ func headerName(f string) string {
 	return columnNames[f]
 }
 
-// splitLog splits a log line on commas, semicolons or tabs and trims the
-// fields.
-func splitLog(s string) []string {
-	f := strings.FieldsFunc(s, func(r rune) bool { return r == ',' || r == ';' || r == '\t' })
+// logSeparator is the separator a header line uses: a comma, else a
+// semicolon, else a tab.
+func logSeparator(header string) string {
+	for _, sep := range []string{",", ";", "\t"} {
+		if strings.Contains(header, sep) {
+			return sep
+		}
+	}
+	return ","
+}
+
+// splitLog splits a log line on sep and trims the fields; empty fields
+// stay (and are then reported as not numbers).
+func splitLog(s, sep string) []string {
+	f := strings.Split(s, sep)
 	for i := range f {
 		f[i] = strings.TrimSpace(f[i])
 	}
@@ -73,7 +84,8 @@ func splitLog(s string) []string {
 func restCurrent(peak float64) float64 { return math.Max(0.01, 0.02*peak) }
 
 // ReadLog reads a bench log: a header line naming the columns, then one
-// sample a line, fields separated by commas, semicolons or tabs. Blank
+// sample a line, fields separated by commas, semicolons or tabs (whichever
+// the header uses). Blank
 // lines and lines starting with '#' are skipped. Required columns: time
 // (t_s, time or s; seconds), current (I_A, current or A; amperes, positive
 // discharging the cell) and voltage (V or voltage; volts, one cell);
@@ -93,6 +105,7 @@ func ReadLog(r io.Reader, name string) (*Log, error) {
 	nfields := 0
 	n := 0
 	header := false
+	sep := ","
 	rows := 0
 	for sc.Scan() {
 		n++
@@ -107,7 +120,10 @@ func ReadLog(r io.Reader, name string) (*Log, error) {
 		if text == "" || strings.HasPrefix(text, "#") {
 			continue
 		}
-		f := splitLog(text)
+		if !header {
+			sep = logSeparator(text)
+		}
+		f := splitLog(text, sep)
 		if !header {
 			header = true
 			nfields = len(f)

@@ -79,7 +79,8 @@ func ModelOf(c *curves.Cell, tempC float64) *Model {
 // held; a pulse train continued), so that a model whose cell lasts longer
 // than the logged one can still be run to its cut-off. The period is the
 // shortest run of samples that the last loaded samples repeat within 5 %
-// of the peak current.
+// of the peak current. The continuation stops after twice the record's
+// samples (and a thousand more) whatever mAh asks.
 func (l *Log) LoadCurrent(mAh float64) Current {
 	last := l.LastLoaded()
 	peak := l.Peak()
@@ -115,8 +116,8 @@ func (l *Log) LoadCurrent(mAh float64) Current {
 		q += cur[p] * dur[p] / 3.6
 		p = (p + 1) % m
 		c.T, c.I = append(c.T, t), append(c.I, cur[p])
-		if len(c.T) > 10*MaxRows {
-			break
+		if len(c.T) > 2*l.Len()+1000 {
+			break // far past the record: no prediction there
 		}
 	}
 	return c
