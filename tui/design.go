@@ -237,28 +237,11 @@ type reverseRow struct {
 	rev     protect.Reversal
 }
 
-// reversePack describes the current pack for protect's Reverse.
+// reversePack describes the current pack for protect's Reverse
+// (discharge.ReversePack, the rule the report and the search use too).
 func (sh *shared) reversePack() protect.Pack {
-	c := sh.cell()
-	v := sh.vals
-	p := protect.Pack{Series: v.series, Parallel: v.parallel, TempC: v.tempC,
-		CellV: c.OpenCircuit(0, v.tempC), CellR: c.ResistanceAt(0, v.tempC), LoadR: math.Inf(1)}
-	vp := p.CellV * float64(v.series)
-	for _, ph := range sh.profile() {
-		var r float64
-		switch l := ph.Load; l.Kind {
-		case discharge.ConstantCurrent:
-			r = vp / l.Amps
-		case discharge.ConstantPower:
-			r = vp * vp / l.InputPower()
-		case discharge.ConstantResistance, discharge.LED:
-			r = l.Ohms
-		}
-		if r > 0 && r < p.LoadR {
-			p.LoadR = r
-		}
-	}
-	return p
+	d := sh.design()
+	return discharge.ReversePack(&d)
 }
 
 func (sh *shared) evaluateReverse() []reverseRow {

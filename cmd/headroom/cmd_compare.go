@@ -133,59 +133,10 @@ func runCompare(c *cli, args []string) error {
 	}
 
 	d := s.Design
-	el := d.Protect
-	elCost := 0.0
-	if el != nil {
-		elCost = el.Cost()
+	rows, misfits, err := lineupRows(s, &d, budget, *within, key)
+	if err != nil {
+		return err
 	}
-	var cells []*curves.Cell
-	seen := map[string]bool{}
-	for _, list := range [][]*curves.Cell{curves.Library(), s.FileCells} {
-		for _, cell := range list {
-			if !seen[cell.ID] {
-				seen[cell.ID] = true
-				cells = append(cells, cell)
-			}
-		}
-	}
-	var rows []compareRow
-	var misfits []string
-	for _, cell := range cells {
-		n := seriesFor(cell, &d)
-		if n == 0 {
-			misfits = append(misfits, cell.ID)
-			continue
-		}
-		cd := d
-		cd.Cell, cd.Series, cd.TracePoints = cell, n, 0
-		if !(cell == d.Cell && n == d.Series) {
-			cd.PackPrice = 0 // the file's price is for its own pack
-		}
-		r, err := discharge.Evaluate(&cd)
-		if err != nil {
-			return fmt.Errorf("compare %s: %w", cell.ID, err)
-		}
-		row := compareRow{cell: cell, series: n, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
-		if r.RuntimeDays > 0 {
-			row.perYear = 365 / r.RuntimeDays
-		}
-		row.costPerYear = r.CostPerHour * hoursPerDay(&d) * 365
-		row.overBudget = budget > 0 && row.partCost > budget+1e-9
-		if *within && row.overBudget {
-			continue
-		}
-		rows = append(rows, row)
-	}
-	sort.SliceStable(rows, func(i, j int) bool {
-		a, b := rows[i], rows[j]
-		if (a.runtime() > 0) != (b.runtime() > 0) {
-			return a.runtime() > 0
-		}
-		if key == "runtime" {
-			return a.runtime() > b.runtime()
-		}
-		return a.r.CostPerHour < b.r.CostPerHour
-	})
 
 	if f == formatText {
 		if err := compareContext(c, s, &d, budget); err != nil {
@@ -298,4 +249,66 @@ func orNaN(runtimeH, v float64) float64 {
 		return math.NaN()
 	}
 	return v
+}
+
+// lineupRows evaluates every library cell and the scenario's own in design
+// d's place (series count by seriesFor), marks rows over budget (leaving
+// them out when within), and ranks them by key ("cost" or "runtime");
+// misfits are the cells no series count fits. compare and the report
+// share it.
+func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, within bool, key string) (rows []compareRow, misfits []string, err error) {
+	d := *dp
+	el := d.Protect
+	elCost := 0.0
+	if el != nil {
+		elCost = el.Cost()
+	}
+	var cells []*curves.Cell
+	seen := map[string]bool{}
+	for _, list := range [][]*curves.Cell{curves.Library(), s.FileCells} {
+		for _, cell := range list {
+			if !seen[cell.ID] {
+				seen[cell.ID] = true
+				cells = append(cells, cell)
+			}
+		}
+	}
+	for _, cell := range cells {
+		n := seriesFor(cell, &d)
+		if n == 0 {
+			misfits = append(misfits, cell.ID)
+			continue
+		}
+		cd := d
+		cd.Cell, cd.Series, cd.TracePoints = cell, n, 0
+		if !(cell == d.Cell && n == d.Series) {
+			cd.PackPrice = 0 // the file's price is for its own pack
+		}
+		r, err := discharge.Evaluate(&cd)
+		if err != nil {
+			return nil, nil, fmt.Errorf("compare %s: %w", cell.ID, err)
+		}
+		row := compareRow{cell: cell, series: n, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
+		if r.RuntimeDays > 0 {
+			row.perYear = 365 / r.RuntimeDays
+		}
+		row.costPerYear = r.CostPerHour * hoursPerDay(&d) * 365
+		row.overBudget = budget > 0 && row.partCost > budget+1e-9
+		if within && row.overBudget {
+			continue
+		}
+		rows = append(rows, row)
+	}
+	sort.SliceStable(rows, func(i, j int) bool {
+		a, b := rows[i], rows[j]
+		if (a.runtime() > 0) != (b.runtime() > 0) {
+			return a.runtime() > 0
+		}
+		if key == "runtime" {
+			return a.runtime() > b.runtime()
+		}
+		return a.r.CostPerHour < b.r.CostPerHour
+	})
+
+	return rows, misfits, nil
 }

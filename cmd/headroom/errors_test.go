@@ -50,7 +50,7 @@ func TestErrors(t *testing.T) {
 		{"wrong unit kind", []string{"run", "--standby", "2V"}, `--standby: "2V" is a voltage (V), expected a current (A)`, true},
 		{"wrong unit kind", []string{"run", "--temp", "300K"}, `--temp: "300K": unknown unit "K", expected a temperature (C)`, true},
 		{"NaN value", []string{"run", "--floor", "NaN"}, `--floor: "NaN" is not a number`, true},
-		{"unknown subcommand", []string{"frobnicate"}, `unknown command "frobnicate": expected one of run, table, compare, cells, plot, demo, help`, false},
+		{"unknown subcommand", []string{"frobnicate"}, `unknown command "frobnicate": expected one of run, table, compare, cells, plot, report, netlist, demo, help`, false},
 		{"missing file", []string{"run", filepath.Join(dir, "nope.toml")}, "nope.toml: no such file or directory", false},
 		{"missing file", []string{"table", filepath.Join(dir, "nope.toml")}, "nope.toml: no such file or directory", false},
 		{"directory instead of file", []string{"run", dir}, "is a directory, expected a scenario file (.toml)", false},

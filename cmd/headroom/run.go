@@ -37,7 +37,7 @@ var errHelp = errors.New("help requested")
 var commands []*command
 
 func init() {
-	commands = []*command{runCmd, tableCmd, compareCmd, cellsCmd, plotCmd, demoCmd, helpCmd}
+	commands = []*command{runCmd, tableCmd, compareCmd, cellsCmd, plotCmd, reportCmd, netlistCmd, demoCmd, helpCmd}
 }
 
 func lookupCommand(name string) *command {
