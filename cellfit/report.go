@@ -10,7 +10,7 @@ import (
 )
 
 // LogReport is what the report says about one log. Voltages in volts,
-// charges in mAh, currents in amperes.
+// charges in mAh, currents in amperes; values at the logs' temperature.
 type LogReport struct {
 	File      string   `json:"file"`
 	Samples   int      `json:"samples"`
@@ -39,11 +39,13 @@ type Report struct {
 	Logs        []LogReport    `json:"logs"`
 	TempC       float64        `json:"temp_C"`
 	FullV       float64        `json:"full_ocv_V"`
+	HalfV       float64        `json:"half_ocv_V"`    // at half the deepest charge
+	DeepestV    float64        `json:"deepest_ocv_V"` // at the deepest charge
 	DeepestMAh  float64        `json:"deepest_mAh"`   // where the logs end; the curve past it is extrapolated
 	CurveEndMAh float64        `json:"curve_end_mAh"` // the written curve's end
 	CurveEndV   float64        `json:"curve_end_V"`
 	CurvePoints int            `json:"curve_points"`
-	R0          [][2]float64   `json:"r0_depth_ohm"` // at the reference temperature of the file
+	R0          [][2]float64   `json:"r0_depth_ohm"` // [depth 0–1, ohm]
 	Branches    []BranchReport `json:"rc"`
 	RefCurrent  float64        `json:"ref_current_A"`
 	EndPoint    float64        `json:"end_point_V"`
@@ -52,20 +54,23 @@ type Report struct {
 	Warnings    []string       `json:"warnings"`
 }
 
-// Report describes the fit and the cell written from it.
+// Report describes the fit and the cell written from it. Fitted values
+// are stated at the logs' temperature tempC (the file holds them at
+// curves.RefTempC when a temperature table moved them).
 func (r *Result) Report(c *curves.Cell, tempC float64) *Report {
 	rep := &Report{TempC: tempC, RefCurrent: c.RefCurrent, EndPoint: c.EndPoint, Levels: r.Levels, Steps: r.Steps, Warnings: r.Warnings}
-	_, rep.FullV = c.Curve.Point(0)
-	rep.CurvePoints = c.Curve.Len()
-	rep.CurveEndMAh, rep.CurveEndV = c.Curve.Point(c.Curve.Len() - 1)
+	m := ModelOf(c, tempC)
+	rep.FullV = m.E[0]
+	rep.CurvePoints = len(m.E)
+	rep.CurveEndMAh, rep.CurveEndV = m.QE[len(m.QE)-1], m.E[len(m.E)-1]
 	rep.DeepestMAh = r.Model.QE[len(r.Model.QE)-1]
-	for _, p := range c.Resistance {
-		rep.R0 = append(rep.R0, [2]float64{p.Depth, p.Ohm})
+	rep.HalfV, rep.DeepestV = m.OCV(rep.DeepestMAh/2), m.OCV(rep.DeepestMAh)
+	for i, p := range c.Resistance {
+		rep.R0 = append(rep.R0, [2]float64{p.Depth, m.R0[i]})
 	}
-	for _, s := range c.RC {
+	for _, s := range m.RC {
 		rep.Branches = append(rep.Branches, BranchReport{Ohm: s.R, Tau: s.Tau})
 	}
-	m := ModelOf(c, tempC)
 	for _, f := range r.Fits {
 		l := f.Log
 		lr := LogReport{

@@ -192,7 +192,7 @@ func writeFitText(c *cli, rep *cellfit.Report, cell *curves.Cell, out, plotOut s
 	fmt.Fprintf(&b, "\ndelivered: to the last loaded sample (trapezoid rule); model: the written cell on the\nlog's own current down to that sample's voltage; RMS and worst: measured − model.\n")
 	fmt.Fprintf(&b, "\nfitted at %s °C", trimZeros(fixed(rep.TempC, 1)))
 	if borrow != nil && len(cell.Temperature) > 0 {
-		fmt.Fprintf(&b, " (written at %g °C through %s's temperature table)", curves.RefTempC, borrow.ID)
+		fmt.Fprintf(&b, " (the file states them at %g °C through %s's temperature table)", curves.RefTempC, borrow.ID)
 	}
 	fmt.Fprintf(&b, ":\n")
 	line := func(k, format string, a ...any) { fmt.Fprintf(&b, "  %-14s %s\n", k, fmt.Sprintf(format, a...)) }
@@ -201,7 +201,7 @@ func writeFitText(c *cli, rep *cellfit.Report, cell *curves.Cell, out, plotOut s
 			fixed(rep.FullV, 3), fixed(rep.CurveEndV, 3), fixed(rep.CurveEndMAh, 0), rep.CurvePoints)
 	} else {
 		line("open-circuit", "%s V full, %s V at half, %s V at %s mAh (%d points)", fixed(rep.FullV, 3),
-			fixed(cell.Curve.At(rep.DeepestMAh/2), 3), fixed(cell.Curve.At(rep.DeepestMAh), 3), fixed(rep.DeepestMAh, 0), rep.CurvePoints)
+			fixed(rep.HalfV, 3), fixed(rep.DeepestV, 3), fixed(rep.DeepestMAh, 0), rep.CurvePoints)
 		if rep.CurveEndMAh > rep.DeepestMAh*(1+1e-9) {
 			line("", "extrapolated to %s V at %s mAh", fixed(rep.CurveEndV, 3), fixed(rep.CurveEndMAh, 0))
 		}
@@ -264,7 +264,8 @@ func writeFitJSON(c *cli, rep *cellfit.Report, out, plotOut string) error {
 		l := &r.Logs[i]
 		l.LoadA, l.Delivered, l.LastV, l.RMSmV, l.WorstmV, l.ModelMAh = round6(l.LoadA), round6(l.Delivered), round6(l.LastV), round6(l.RMSmV), round6(l.WorstmV), round6(l.ModelMAh)
 	}
-	r.FullV, r.DeepestMAh, r.CurveEndMAh, r.CurveEndV = round6(r.FullV), round6(r.DeepestMAh), round6(r.CurveEndMAh), round6(r.CurveEndV)
+	r.FullV, r.HalfV, r.DeepestV = round6(r.FullV), round6(r.HalfV), round6(r.DeepestV)
+	r.DeepestMAh, r.CurveEndMAh, r.CurveEndV = round6(r.DeepestMAh), round6(r.CurveEndMAh), round6(r.CurveEndV)
 	r.R0 = nil
 	for _, p := range rep.R0 {
 		r.R0 = append(r.R0, [2]float64{round6(p[0]), round6(p[1])})
