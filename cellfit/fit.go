@@ -14,15 +14,16 @@ import (
 	"headroom/internal/rc"
 )
 
-// Options steer a fit. The zero value fits what the logs support.
+// Options steer a fit.
 type Options struct {
-	// Branches is the number of polarisation branches to fit: 0, 1 or 2,
-	// or -1 (also the zero value's meaning via Auto) for the number the
-	// logs support: none without current steps, else one or two,
-	// whichever fits clearly better.
-	Branches int
-	// Auto, when true, ignores Branches and chooses as above.
+	// Auto chooses the number of polarisation branches the logs support:
+	// none without current steps, else one or two, whichever fits clearly
+	// better (a second branch must lower the cost by 10 %); a count the
+	// logs cannot hold (a branch left with no resistance) is passed over.
 	Auto bool
+	// Branches is the number of branches to fit when Auto is false: 0, 1
+	// or 2. With no current steps in the logs it is 0 whatever is asked.
+	Branches int
 }
 
 // LogFit is how the fitted model matches one log.
@@ -51,8 +52,9 @@ type Result struct {
 	TermCurrent float64
 	// Warnings say plainly what the data cannot support.
 	Warnings []string
-	// Iterations is the number of optimiser iterations of the final fit.
-	Iterations int
+	// Evaluations is the number of trial time constants the final fit
+	// tried (each a linear solve).
+	Evaluations int
 }
 
 // ErrNoConvergence is returned, wrapped, when the optimiser fails.
@@ -183,7 +185,7 @@ func Fit(logs []*Log, opt Options) (*Result, error) {
 		}
 	}
 	res.Model = best.model
-	res.Iterations = best.iters
+	res.Evaluations = best.iters
 	for _, l := range logs {
 		lf := LogFit{Log: l, Model: res.Model.Simulate(l, nil)}
 		sum := 0.0

@@ -1,6 +1,7 @@
 package cellfit
 
 import (
+	"errors"
 	"math"
 	"testing"
 )
@@ -134,5 +135,27 @@ func TestFitOneCurrentNoSteps(t *testing.T) {
 	// first minutes differ from any memoryless curve); RMS within 15 mV.
 	if r.Fits[0].RMS > 0.015 {
 		t.Errorf("RMS %.1f mV against the log", r.Fits[0].RMS*1e3)
+	}
+}
+
+// A pulse test of a cell with no polarisation at all: asked for two
+// branches, the fit refuses (it does not converge on a branch the data do
+// not show); left to choose, it fits none and says why.
+func TestFitNoPolarisation(t *testing.T) {
+	flat := twoRC
+	flat.r = [2]float64{1e-12, 1e-12}
+	logs := []*Log{synthLog("p.csv", flat, []segment{{0, 20}, {2, 600}, {0, 600}, {1, 600}, {0, 600}}, 5)}
+	if _, err := Fit(logs, Options{Branches: 2}); err == nil || !errors.Is(err, ErrNoConvergence) {
+		t.Errorf("two branches asked: got %v, want the fit to refuse", err)
+	}
+	r, err := Fit(logs, Options{Auto: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Model.RC) != 0 || len(r.Warnings) == 0 {
+		t.Errorf("auto: %d branches, warnings %q; want none and a warning", len(r.Model.RC), r.Warnings)
+	}
+	if r.Fits[0].RMS > 1e-4 {
+		t.Errorf("RMS %.3f mV, want ~0 (no polarisation to miss)", r.Fits[0].RMS*1e3)
 	}
 }
