@@ -235,7 +235,7 @@ func (c *Cell) ResistanceAt(qs, tempC float64) float64 {
 //
 //	V = Vcurve(qs) − (i − Iref)·R(qs)
 //
-// (DESIGN §2). It may be negative at absurd currents; callers cut off first.
+// (docs/cells.md). It may be negative at absurd currents; callers cut off first.
 func (c *Cell) Terminal(qs, i, tempC float64) float64 {
 	return c.Curve.At(qs) - (i-c.RefCurrent)*c.ResistanceAt(qs, tempC)
 }

@@ -18,7 +18,7 @@ func testCell() *Cell {
 }
 
 // TestCapacityFactorPeukert checks the worked example of Peukert's law
-// (Peukert 1897, t = H·(C/(I·H))^k; DESIGN §7): 100 Ah rated at H = 20 h,
+// (Peukert 1897, t = H·(C/(I·H))^k; docs/references.md): 100 Ah rated at H = 20 h,
 // that is at 5 A. At 10 A it runs 8.7055 h with k = 1.2 and 9.3303 h with
 // k = 1.1; at the rating current it runs H for every k. Tolerance 1e-4
 // relative: the reference values are given to five significant digits.

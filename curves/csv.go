@@ -13,6 +13,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"headroom/internal/limited"
 	"headroom/internal/units"
 )
 
@@ -34,12 +35,9 @@ type textLine struct {
 // over-long input, and returns its non-blank lines that do not start with
 // '#'.
 func readLines(r io.Reader, name string) ([]textLine, error) {
-	data, err := io.ReadAll(io.LimitReader(r, MaxFileSize+1))
+	data, err := limited.ReadAll(r, name, MaxFileSize, "a cell file or log")
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
-	if len(data) > MaxFileSize {
-		return nil, fmt.Errorf("%s: file is larger than the %d kB limit", name, MaxFileSize>>10)
+		return nil, err
 	}
 	if len(bytes.TrimSpace(data)) == 0 {
 		return nil, fmt.Errorf("%s: file is empty", name)

@@ -72,7 +72,7 @@ func TestReadCSVErrors(t *testing.T) {
 		{"binary", "mAh,V\n\x00\x01\x02\n", "cells.csv line 2: not a text file"},
 		{"bad utf-8", "mAh,V\n0,1.5\xff\n", "cells.csv line 2: not a text file"},
 		{"long line", long, "cells.csv line 3: line is longer than 4096 bytes"},
-		{"too big", "mAh,V\n" + strings.Repeat("#\n", MaxFileSize/2+1), "cells.csv: file is larger than the 1024 kB limit"},
+		{"too big", "mAh,V\n" + strings.Repeat("#\n", MaxFileSize/2+1), "cells.csv: larger than the 1048576-byte limit"},
 	}
 	for _, k := range cases {
 		_, err := ReadCSV(strings.NewReader(k.in), "cells.csv")
@@ -136,10 +136,13 @@ func TestLoadErrors(t *testing.T) {
 	if err := os.Mkdir(filepath.Join(dir, "d.csv"), 0o755); err != nil {
 		t.Fatal(err)
 	}
+	if err := os.WriteFile(filepath.Join(dir, "cell.txt"), []byte("mAh,V\n0,1.5\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	cases := []struct{ path, want string }{
 		{filepath.Join(dir, "none.csv"), "none.csv: no such file"},
 		{filepath.Join(dir, "d.csv"), "d.csv: is a directory"},
-		{big, "big.csv: file is larger than the 1024 kB limit"},
+		{big, "big.csv: 1048577 bytes, larger than the 1048576-byte limit"},
 		{filepath.Join(dir, "cell.txt"), `cell.txt: unknown cell file type ".txt": want .csv or .toml`},
 	}
 	for _, k := range cases {

@@ -45,43 +45,88 @@ func IDs() []string {
 	return ids
 }
 
+// chemistryCautions are each chemistry's cautions: a few words for a
+// table column, and the full sentences. The one home of the cautions
+// (docs/cells.md §Cautions); Cautions, PackCautions and ShortCaution read
+// it.
+var chemistryCautions = map[string]struct {
+	short string
+	full  func(c *Cell) []string
+}{
+	"li-ion": {"needs a protection circuit and a Li-ion charger", func(c *Cell) []string {
+		return []string{
+			"Li-ion cells need a protection circuit (over-charge, over-discharge, over-current) and a proper Li-ion charger.",
+			fmt.Sprintf("Never discharge below the %s V end-point nor charge above 4.2 V per cell; a cell taken below it may be unsafe to recharge.", trimV(c.EndPoint)),
+			"A damaged, swollen or hot Li-ion cell can vent or catch fire: stop using it."}
+	}},
+	"lifepo4": {"needs a protection circuit and a LiFePO4 charger", func(c *Cell) []string {
+		return []string{
+			"LiFePO4 cells need a protection circuit and a charger made for LiFePO4 (not a Li-ion charger).",
+			fmt.Sprintf("Never discharge below the %s V end-point nor charge above 3.65 V per cell.", trimV(c.EndPoint))}
+	}},
+	"nimh": {"NiMH charger only; stop at the end-point", func(*Cell) []string {
+		return []string{
+			"Charge NiMH cells only in a NiMH charger; never charge primary cells.",
+			"A flat NiMH cell in a series pack is reverse-charged by the others: stop at the end-point."}
+	}},
+	"alkaline":     {"may leak when flat or flipped; do not recharge", primaryAqueous},
+	"zinc-carbon":  {"may leak when flat or flipped; do not recharge", primaryAqueous},
+	"lithium-fes2": {"do not recharge; may vent if shorted", primaryLithium},
+	"lithium-mno2": {"do not recharge; may vent if shorted", primaryLithium},
+}
+
+func primaryAqueous(*Cell) []string {
+	return []string{
+		"Do not recharge primary cells.",
+		"Primary cells may leak when reverse-driven (a cell flipped in a series pack) or left flat in a product: remove spent cells."}
+}
+
+func primaryLithium(*Cell) []string {
+	return []string{
+		"Do not recharge lithium primary cells.",
+		"A lithium primary cell reverse-driven or shorted may heat up and vent."}
+}
+
+const (
+	buttonCaution = "Coin and button cells are a swallowing hazard for children: keep the compartment screwed shut; toy-safety standards such as IEC 62115 set rules for battery compartments."
+	buttonShort   = "swallowing hazard: screw the compartment shut; "
+	mixCaution    = "Never mix old and new cells, or different chemistries, in one pack."
+	estimates     = "These are estimates, not certification: the cell maker's data and local codes come first."
+)
+
 // Cautions returns the usual cautions for the cell's chemistry and form, in
 // plain words, ending with the ones that hold for every cell. They are
 // reminders, not a safety assessment: the cell maker's data and local codes
-// come first.
-func Cautions(c *Cell) []string {
+// come first. It is PackCautions for a pack whose cell count is not known.
+func Cautions(c *Cell) []string { return PackCautions(c, 0) }
+
+// PackCautions is Cautions for a pack of n cells of c: the warning against
+// mixing cells is left out for a single cell (n == 1); n == 0 means the
+// count is not known, and keeps it.
+func PackCautions(c *Cell, n int) []string {
 	var out []string
-	switch c.Chemistry {
-	case "li-ion":
-		out = append(out,
-			"Li-ion cells need a protection circuit (over-charge, over-discharge, over-current) and a proper Li-ion charger.",
-			fmt.Sprintf("Never discharge below the %s V end-point nor charge above 4.2 V per cell; a cell taken below it may be unsafe to recharge.", trimV(c.EndPoint)),
-			"A damaged, swollen or hot Li-ion cell can vent or catch fire: stop using it.")
-	case "lifepo4":
-		out = append(out,
-			"LiFePO4 cells need a protection circuit and a charger made for LiFePO4 (not a Li-ion charger).",
-			fmt.Sprintf("Never discharge below the %s V end-point nor charge above 3.65 V per cell.", trimV(c.EndPoint)))
-	case "nimh":
-		out = append(out,
-			"Charge NiMH cells only in a NiMH charger; never charge primary cells.",
-			"A flat NiMH cell in a series pack is reverse-charged by the others: stop at the end-point.")
-	case "alkaline", "zinc-carbon":
-		out = append(out,
-			"Do not recharge primary cells.",
-			"Primary cells may leak when reverse-driven (a cell flipped in a series pack) or left flat in a product: remove spent cells.")
-	case "lithium-fes2", "lithium-mno2":
-		out = append(out,
-			"Do not recharge lithium primary cells.",
-			"A lithium primary cell reverse-driven or shorted may heat up and vent.")
+	if cc, ok := chemistryCautions[c.Chemistry]; ok {
+		out = append(out, cc.full(c)...)
 	}
 	if isButton(c) {
-		out = append(out,
-			"Coin and button cells are a swallowing hazard for children: keep the compartment screwed shut; toy-safety standards such as IEC 62115 set rules for battery compartments.")
+		out = append(out, buttonCaution)
 	}
-	out = append(out,
-		"Never mix old and new cells, or different chemistries, in one pack.",
-		"These are estimates, not certification: the cell maker's data and local codes come first.")
-	return out
+	if n != 1 {
+		out = append(out, mixCaution)
+	}
+	return append(out, estimates)
+}
+
+// ShortCaution is the cell's main caution in a few words, for a table.
+func ShortCaution(c *Cell) string {
+	s := "check the maker's data"
+	if cc, ok := chemistryCautions[c.Chemistry]; ok {
+		s = cc.short
+	}
+	if isButton(c) {
+		s = buttonShort + s
+	}
+	return s
 }
 
 // isButton reports a coin or button cell from its IEC designation: CR/BR

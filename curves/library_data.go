@@ -2,7 +2,7 @@ package curves
 
 // The built-in cells. Every number here is a typical value from memory for
 // a generic cell of the type, not any maker's data and not a brand: curve
-// shapes after DESIGN §2, capacities and prices as commonly seen in retail.
+// shapes after docs/cells.md, capacities and prices as commonly seen in retail.
 // Each curve is the terminal voltage at the cell's RefCurrent and 20 °C, and
 // each RatedMAh is the charge where that curve crosses EndPoint, so the
 // library is self-consistent (TestLibraryConsistent checks it).
@@ -30,7 +30,7 @@ var alkalineShape = shape{
 	v: []float64{1.56, 1.49, 1.43, 1.39, 1.34, 1.30, 1.26, 1.22, 1.17, 1.12, 1.05, 0.98, 0.90, 0.80},
 }
 
-// alkalineResistance rises several-fold near the end (DESIGN §2); scaled
+// alkalineResistance rises several-fold near the end (docs/cells.md); scaled
 // per size by the fresh value. From memory.
 func alkalineResistance(fresh float64) []ResistancePoint {
 	return []ResistancePoint{{0, fresh}, {0.5, 1.25 * fresh}, {0.8, 1.8 * fresh}, {0.95, 3 * fresh}, {1, 5 * fresh}}
@@ -140,7 +140,7 @@ func library() []*Cell {
 		{
 			// Lithium coin (Li/MnO2), rated at a light load of about 0.2 mA
 			// (a 15 kΩ resistor) to 2.0 V. Its 10–20 Ω resistance makes a
-			// 20 mA pulse sag it by a volt or more (DESIGN §2).
+			// 20 mA pulse sag it by a volt or more (docs/cells.md).
 			ID: "cr2032", Name: "lithium coin 20 × 3.2 mm", Chemistry: "lithium-mno2", Designation: "CR2032",
 			Curve: MustCurve(
 				[]float64{0, 5, 30, 80, 130, 170, 195, 210, 218, 225, 228},

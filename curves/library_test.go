@@ -86,7 +86,7 @@ func TestLibraryConsistent(t *testing.T) {
 		if f, r := c.TempFactors(RefTempC); f != 1 || r != 1 {
 			t.Errorf("%s: factors at 20 °C are %g, %g; want 1, 1", c.ID, f, r)
 		}
-		// Internal resistance never falls as the cell empties (DESIGN §2).
+		// Internal resistance never falls as the cell empties (docs/cells.md).
 		for i := 1; i < len(c.Resistance); i++ {
 			if c.Resistance[i].Ohm < c.Resistance[i-1].Ohm {
 				t.Errorf("%s: resistance falls at point %d", c.ID, i+1)
@@ -99,7 +99,7 @@ func TestLibraryConsistent(t *testing.T) {
 }
 
 // TestLibraryStandards checks the built-in cells against the ratings in
-// the IEC standards (DESIGN §7).
+// the IEC standards (docs/references.md).
 func TestLibraryStandards(t *testing.T) {
 	for _, c := range Library() {
 		fresh := c.OpenCircuit(0, RefTempC)
@@ -112,7 +112,7 @@ func TestLibraryStandards(t *testing.T) {
 				t.Errorf("%s: nominal %g V, end %g V, rated at %g A for %g mAh; IEC 61951-2 wants 1.2 V, 1.0 V, 0.2 It",
 					c.ID, c.NominalV, c.EndPoint, c.RatedCurrent, c.RatedMAh)
 			}
-			// About 1.4 V after charge (DESIGN §2, from memory): 1.35–1.45 V.
+			// About 1.4 V after charge (docs/cells.md, from memory): 1.35–1.45 V.
 			if fresh < 1.35 || fresh > 1.45 {
 				t.Errorf("%s: fresh open-circuit %.3f V, want about 1.4 V", c.ID, fresh)
 			}
@@ -140,7 +140,7 @@ func TestLibraryStandards(t *testing.T) {
 	// IEC 60086-1/-2 primary cells: nominal voltages, and fresh
 	// open-circuit voltages below the maxima (from memory): 1.65 V for the
 	// L system, 1.83 V for F, 3.7 V for C, six L cells for 6LR61. The
-	// lower bounds are DESIGN §2's rough shapes (from memory): alkaline
+	// lower bounds are docs/cells.md's rough shapes (from memory): alkaline
 	// about 1.6 V fresh, coin about 3.0 V or a little above.
 	prim := []struct {
 		id               string
@@ -168,7 +168,7 @@ func TestLibraryStandards(t *testing.T) {
 	}
 }
 
-// TestLibraryShapes checks DESIGN §2's rough figures (from memory) where
+// TestLibraryShapes checks docs/cells.md's rough figures (from memory) where
 // they are stated: Peukert exponents, fresh resistances and
 // self-discharge.
 func TestLibraryShapes(t *testing.T) {
@@ -192,7 +192,7 @@ func TestLibraryShapes(t *testing.T) {
 		cold, _ := c.TempFactors(-20)
 		if c.Peukert < k.kLo || c.Peukert > k.kHi || r0 < k.rLo || r0 > k.rHi ||
 			c.SelfDischarge < k.sdLo || c.SelfDischarge > k.sdHi || cold > k.coldCapAtMinus {
-			t.Errorf("%s: k %g, R %g Ω, self-discharge %g/month, −20 °C capacity %g; outside DESIGN §2", k.id, c.Peukert, r0, c.SelfDischarge, cold)
+			t.Errorf("%s: k %g, R %g Ω, self-discharge %g/month, −20 °C capacity %g; outside docs/cells.md", k.id, c.Peukert, r0, c.SelfDischarge, cold)
 		}
 		// Resistance rises several-fold towards empty for alkaline.
 		if k.id == "lr6" && c.Resistance[len(c.Resistance)-1].Ohm < 3*r0 {

@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -13,6 +12,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"headroom/internal/limited"
 	"headroom/internal/rc"
 	"headroom/internal/units"
 )
@@ -264,12 +264,9 @@ func validateFieldError(err error) error {
 // directory curve_csv is relative to, and the place in every message
 // ("cell.toml line 4: end_point: ..."). Unknown keys are an error.
 func ReadCellTOML(r io.Reader, name string) (*Cell, error) {
-	data, err := io.ReadAll(io.LimitReader(r, MaxFileSize+1))
+	data, err := limited.ReadAll(r, name, MaxFileSize, "a cell file")
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
-	if len(data) > MaxFileSize {
-		return nil, fmt.Errorf("%s: file is larger than the %d kB limit", name, MaxFileSize>>10)
+		return nil, err
 	}
 	if bytes.IndexByte(data, 0) >= 0 {
 		return nil, fmt.Errorf("%s: not a text file (binary data)", name)
@@ -397,37 +394,26 @@ func entryLine(data []byte, keyLine, point int) int {
 // ReadCSV points, ".toml" for ReadCellTOML. Files over MaxFileSize,
 // directories and unknown extensions are errors naming the path.
 func Load(path string) (*Cell, error) {
+	var read func(io.Reader, string) (*Cell, error)
 	switch strings.ToLower(filepath.Ext(path)) {
 	case ".csv":
-		return loadFile(path, ReadCSV)
+		read = ReadCSV
 	case ".toml":
-		return loadFile(path, ReadCellTOML)
+		read = ReadCellTOML
 	}
-	return nil, fmt.Errorf("%s: unknown cell file type %q: want .csv or .toml", path, filepath.Ext(path))
+	return loadFile(path, read)
 }
 
+// loadFile reads path within MaxFileSize, then with read (nil: an unknown
+// type, named after the read so that a folder or a FIFO is named as such
+// whatever its extension).
 func loadFile(path string, read func(io.Reader, string) (*Cell, error)) (*Cell, error) {
-	st, err := os.Stat(path)
-	if err != nil {
-		if errors.Is(err, os.ErrNotExist) {
-			return nil, fmt.Errorf("%s: no such file", path)
-		}
-		return nil, err // *PathError names the path
-	}
-	if st.IsDir() {
-		return nil, fmt.Errorf("%s: is a directory, not a cell file", path)
-	}
-	if !st.Mode().IsRegular() {
-		// A FIFO or a device would block the open or the read forever.
-		return nil, fmt.Errorf("%s: not a regular file (%s), not a cell file", path, st.Mode().Type())
-	}
-	if st.Size() > MaxFileSize {
-		return nil, fmt.Errorf("%s: file is larger than the %d kB limit", path, MaxFileSize>>10)
-	}
-	f, err := os.Open(path)
+	data, err := limited.ReadFile(path, MaxFileSize, "a cell file (.csv or .toml)")
 	if err != nil {
 		return nil, err
 	}
-	defer f.Close()
-	return read(f, path)
+	if read == nil {
+		return nil, fmt.Errorf("%s: unknown cell file type %q: want .csv or .toml", path, filepath.Ext(path))
+	}
+	return read(bytes.NewReader(data), path)
 }

@@ -119,7 +119,7 @@ func TestReadCellTOMLErrors(t *testing.T) {
 		{"resistance point", curve + "resistance = [[0, 0.1], [0.5, 0.2], [0.4, 0.3]]\n", "c.toml line 2: resistance point 3: depth 0.4 must be above the previous 0.5"},
 		{"temperature row", curve + "temperature = [\n[-20, 0.5],\n]\n", "c.toml line 3: temperature point 1: want [°C, capacity factor, resistance factor]"},
 		{"binary", "\x00id = 1", "c.toml: not a text file"},
-		{"too big", strings.Repeat("#\n", MaxFileSize/2+1), "c.toml: file is larger than the 1024 kB limit"},
+		{"too big", strings.Repeat("#\n", MaxFileSize/2+1), "c.toml: larger than the 1048576-byte limit"},
 	}
 	for _, k := range cases {
 		_, err := ReadCellTOML(strings.NewReader(k.in), "c.toml")

@@ -11,8 +11,8 @@ import (
 // Design is one product to evaluate: its pack, protection, load and floor.
 type Design struct {
 	Cell     *curves.Cell    // the cell type; read-only
-	Series   int             // cells in series, 1 to 48
-	Parallel int             // strings in parallel, 1 to 16
+	Series   int             // cells in series, 1 to MaxSeries
+	Parallel int             // strings in parallel, 1 to MaxParallel
 	Protect  protect.Element // input protection; nil means none
 	Profile  []Phase         // the repeating load; at least one phase
 	Floor    float64         // minimum voltage at the load, volts, at least 0
@@ -38,34 +38,40 @@ type Design struct {
 // (from memory; set Design.ElectricityPrice for your own).
 const DefaultElectricityPrice = 0.30
 
-// Validate checks the design and says which value is wrong.
+// Validate checks the design and says which value is wrong. The ranges are
+// those of ranges.go, shared with every reader of a design.
 func (d *Design) Validate() error {
 	fin := func(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+	type check struct {
+		what string
+		err  error
+	}
+	checks := []check{
+		{"series", CheckSeries(d.Series)},
+		{"parallel", CheckParallel(d.Parallel)},
+		{"floor", CheckFloor(d.Floor)},
+		{"temperature", CheckTemp(d.TempC)},
+		{"standby", CheckStandby(d.Standby)},
+		{"price", CheckPrice(d.PackPrice)},
+		{"electricity price", CheckPrice(d.ElectricityPrice)},
+	}
+	if d.HoursPerDay != 0 {
+		checks = append(checks, check{"hours per day", CheckHoursPerDay(d.HoursPerDay)})
+	}
 	switch {
 	case d.Cell == nil:
 		return fmt.Errorf("cell: none given")
-	case d.Series < 1 || d.Series > 48:
-		return fmt.Errorf("series: %d cells must be between 1 and 48", d.Series)
-	case d.Parallel < 1 || d.Parallel > 16:
-		return fmt.Errorf("parallel: %d strings must be between 1 and 16", d.Parallel)
 	case len(d.Profile) == 0:
 		return fmt.Errorf("load: no phases")
-	case len(d.Profile) > 64:
-		return fmt.Errorf("load: %d phases, at most 64", len(d.Profile))
-	case !fin(d.Floor) || d.Floor < 0 || d.Floor > 1000:
-		return fmt.Errorf("floor: %v V must be between 0 and 1000 V", d.Floor)
-	case !fin(d.TempC) || d.TempC < -40 || d.TempC > 85:
-		return fmt.Errorf("temperature: %v °C must be between -40 and 85 °C", d.TempC)
-	case !fin(d.HoursPerDay) || d.HoursPerDay < 0 || d.HoursPerDay > 24:
-		return fmt.Errorf("hours per day: %v must be between 0 (continuous use) and 24", d.HoursPerDay)
-	case !fin(d.Standby) || d.Standby < 0 || d.Standby > 10:
-		return fmt.Errorf("standby: %v A must be between 0 and 10 A", d.Standby)
-	case !fin(d.PackPrice) || d.PackPrice < 0:
-		return fmt.Errorf("price: %v must be 0 or more", d.PackPrice)
-	case !fin(d.ElectricityPrice) || d.ElectricityPrice < 0:
-		return fmt.Errorf("electricity price: %v must be 0 or more", d.ElectricityPrice)
+	case len(d.Profile) > MaxPhases:
+		return fmt.Errorf("load: %d phases, at most %d", len(d.Profile), MaxPhases)
 	case d.TracePoints < 0 || d.TracePoints > 100000:
 		return fmt.Errorf("trace points: %d must be between 0 and 100000", d.TracePoints)
+	}
+	for _, c := range checks {
+		if c.err != nil {
+			return fmt.Errorf("%s: %w", c.what, c.err)
+		}
 	}
 	if err := d.Cell.Validate(); err != nil {
 		return fmt.Errorf("cell %s: %w", d.Cell.ID, err)
@@ -101,7 +107,7 @@ type TracePoint struct {
 	IdleV float64 // load voltage during the lightest phase (the highest of all phases)
 }
 
-// Result is what Evaluate computes (DESIGN §6). Charges are in mAh of the
+// Result is what Evaluate computes (docs/engine.md §What a result holds). Charges are in mAh of the
 // pack, energies in Wh, times in hours of use unless named otherwise.
 type Result struct {
 	RuntimeH    float64 // hours of use until cut-off

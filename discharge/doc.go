@@ -7,7 +7,7 @@
 // seconds); power in watts, energy in watt-hours; temperatures in °C; money
 // in dollars.
 //
-// Method (DESIGN §5). The only state is the charge q drawn from the pack.
+// Method (docs/engine.md). The only state is the charge q drawn from the pack.
 // At any q every load phase has one operating point, found by a 1-D solve of
 // Vload = Vpack(q, I) − Vdrop(I) against the load law. Runtime is the
 // quadrature t = ∫₀^qcut dq / Ī(q), with Ī the duty-weighted current plus

@@ -49,7 +49,7 @@ func mustEval(t testing.TB, d *Design) *Result {
 func relErr(got, want float64) float64 { return math.Abs(got-want) / math.Abs(want) }
 
 // Closed forms: on a linear curve every runtime is exact algebra, so the
-// quadrature and the cut-off search must match to 1e-6 relative (the issue's
+// quadrature and the cut-off search must match to 1e-6 relative (the acceptance
 // bound; the engine bisects the cut-off to 1e-12 of the curve, so the only
 // error left is rounding).
 func TestClosedForms(t *testing.T) {
@@ -84,7 +84,7 @@ func TestClosedForms(t *testing.T) {
 	}
 }
 
-// Constant power into a resistive source has the closed form of DESIGN §4:
+// Constant power into a resistive source has the closed form of docs/loads.md:
 // I = (E − sqrt(E² − 4·R·P))/(2R), collapse when E² < 4·R·P. On a flat
 // curve the current is constant, so runtime = capacity / I exactly.
 func TestConstantPowerClosedForm(t *testing.T) {
@@ -105,9 +105,9 @@ func TestConstantPowerClosedForm(t *testing.T) {
 	}
 }
 
-// Peukert (1897): t = H·(C/(I·H))^k. Worked example (DESIGN §7): 100 Ah at
+// Peukert (1897): t = H·(C/(I·H))^k. Worked example (docs/references.md): 100 Ah at
 // H = 20 h, k = 1.2, I = 10 A → 8.7055 h; k = 1.1 → 9.3303 h; at I = C/H the
-// runtime is H for every k. Tolerance 0.5 % (the bound); the engine
+// runtime is H for every k. Tolerance 0.5 % (the acceptance bound); the engine
 // applies the law in closed form, so it is met with room to spare.
 func TestPeukertWorkedExample(t *testing.T) {
 	cases := []struct{ k, amps, want float64 }{
@@ -127,7 +127,7 @@ func TestPeukertWorkedExample(t *testing.T) {
 // IEC 61951-2 (NiMH): rated capacity is what the cell delivers at 0.2 It to
 // 1.0 V at 20 ± 5 °C (It = rated capacity ÷ 1 h). IEC 61960-3 (Li-ion): at
 // 0.2 It to the maker's end-of-discharge voltage. The built-in cells must
-// deliver their rating within 3 % (the bound; self-discharge over the
+// deliver their rating within 3 % (the acceptance bound; self-discharge over the
 // 5 h run takes well under 0.5 %).
 func TestRatedCapacityIEC(t *testing.T) {
 	for _, id := range []string{"hr6", "hr6-lsd", "hr03", "li-ion-18650", "li-ion-pouch", "lifepo4"} {
@@ -160,8 +160,8 @@ func measuredData(name string) string {
 // set, cell B0005, first discharge at 2 A (testdata/measured/README.md gives
 // the check values, by linear interpolation of the file): 3335.0 s to 2.7 V,
 // 3079.5 s to 3.3 V; a 3.0 V floor behind a 0.3 V drop stops at 3.3 V cell
-// voltage, 1710.8 of 1852.8 mAh: 7.7 % stranded. Tolerances are the issue's
-// (0.5 %, ±0.2 points); the import's running minimum moves a crossing by
+// voltage, 1710.8 of 1852.8 mAh: 7.7 % stranded. Tolerances are the acceptance
+// bounds (0.5 %, ±0.2 points); the import's running minimum moves a crossing by
 // less than one ~19 s sample.
 func TestMeasuredLiIon(t *testing.T) {
 	p := measuredData("li-ion-2A-discharge.csv")
@@ -197,7 +197,7 @@ func TestMeasuredLiIon(t *testing.T) {
 // 15 mA for 27 s. The pulse hits the floor when 2·(V(q) − 0.45·0.2) = 2.2:
 // V = 1.19 V, q = (1.5 − 1.19)·4000 = 1240 mAh. The average current
 // (450·3 + 15·27)/30 = 58.5 mA alone would reach the floor only at 1553 mAh.
-// Runtime = 1240/58.5 h. Tolerance 1 % (the issue's); the engine is exact here.
+// Runtime = 1240/58.5 h. Tolerance 1 % (the acceptance bound); the engine is exact here.
 func TestPulseSetsCutoff(t *testing.T) {
 	cell := linearCell(1.5, 1.0, 2000, 0.2)
 	d := &Design{Cell: cell, Series: 2, Parallel: 1, Floor: 2.2, TempC: 20, Profile: []Phase{

@@ -5,12 +5,12 @@ import (
 	"testing"
 
 	"headroom/discharge"
-	"headroom/internal/spice"
 	"headroom/internal/spicenet"
+	"headroom/internal/spicetest"
 )
 
 // TestRuntimeAgainstNgspice compares the engine's runtime with ngspice
-// (Debian package; DESIGN §7) on the designs of spicenet.Cases: the same
+// (Debian package; docs/references.md) on the designs of spicenet.Cases: the same
 // cells, element and load built as a circuit — a charge-counting
 // capacitor driving a behavioural pack source, ngspice's own diode,
 // level-1 MOSFET and PNP models for the element, a behavioural load — and
@@ -25,8 +25,8 @@ import (
 // span to simulate (1.2× the engine's runtime, only a window: ngspice
 // stops at its own cut-off, and a run that finds none fails the test).
 //
-// Tolerances. The issue asks 1 %; DESIGN §7 expects about 0.01 % from a
-// careful run, and we hold steady loads to that, 1e-4: with reltol 1e-6
+// Tolerances. The acceptance bound is 1 %; docs/references.md expects
+// about 0.01 % from a careful run, and we hold steady loads to that, 1e-4: with reltol 1e-6
 // and at least 4000 time steps, ngspice's own error is its linear
 // interpolation of the crossing between two steps and the 5e-7 load ramp
 // at the start. Measured: at most 1e-6 on every steady case. A pulsed
@@ -35,13 +35,13 @@ import (
 // engine's quasi-static phases fail, so those cases get one period on
 // top (30 s of 6.3 h, 1.3e-3; measured 3.5e-4).
 func TestRuntimeAgainstNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	cases, err := spicenet.Cases()
 	if err != nil {
 		t.Fatal(err)
 	}
 	if len(cases) < 8 {
-		t.Fatalf("%d cases, the issue asks at least eight", len(cases))
+		t.Fatalf("%d cases, want at least eight", len(cases))
 	}
 	for _, c := range cases {
 		t.Run(c.Name, func(t *testing.T) {

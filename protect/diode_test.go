@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 )
 
 // SI Brochure, 9th edition (2019): k and q are exact, so Vt = kT/q is
@@ -15,7 +16,7 @@ func TestThermalVoltage(t *testing.T) {
 	for _, c := range []struct {
 		kelvin, wantMV, tolMV float64
 	}{
-		{300, 25.852, 0.001}, // the issue asks ±0.001 mV
+		{300, 25.852, 0.001}, // SI Brochure values (docs/references.md), given to ±0.001 mV
 		{298.15, 25.6926, 0.00005},
 		{300.15, 25.8649, 0.00005},
 	} {
@@ -51,12 +52,12 @@ func TestShockleyWorkedValues(t *testing.T) {
 }
 
 // diodeCases are the junctions compared with ngspice: the generic PN
-// rectifier, the issue's example spec and the generic Schottky.
+// rectifier, the documented example spec (protect/doc.go) and the generic Schottky.
 var diodeCases = []struct {
 	name string
 	s    Shockley
 }{
-	{"default PN", DefaultDiode().Junction}, // the issue's diode:is=10n,n=1.8,rs=0.08
+	{"default PN", DefaultDiode().Junction}, // the example spec diode:is=10n,n=1.8,rs=0.08
 	{"ideal n=1", Shockley{Is: 1e-14, N: 1, Rs: 0.5, Eg: 1.11, XTI: 3}},
 	{"small-signal", Shockley{Is: 2.5e-9, N: 1.75, Rs: 0.6, Eg: 1.11, XTI: 3}},
 	{"default Schottky", DefaultSchottky().Junction},
@@ -95,7 +96,7 @@ func diodeNetlist(tempC float64) string {
 // 3.5e-7 below the exact SI value): 3.5e-7 × 0.5–1 V. At 85 °C the same
 // 1 mV checks our saturation-current temperature law against ngspice's.
 func TestDiodeAgainstNgspice(t *testing.T) {
-	spice.Require(t)
+	spicetest.Require(t)
 	for _, tempC := range []float64{27, 85} {
 		out, err := spice.Run(diodeNetlist(tempC))
 		if err != nil {
@@ -118,7 +119,7 @@ func TestDiodeAgainstNgspice(t *testing.T) {
 	}
 }
 
-// Common practice (DESIGN §3; Sedra and Smith, Microelectronic Circuits):
+// Common practice (docs/references.md; Sedra and Smith, Microelectronic Circuits):
 // a silicon diode's drop falls about 2 mV/°C. The slope depends on current
 // and n — (Vj − Eg − XTI·Vt)/T in this model, Vj the junction part of the
 // drop — so it shrinks at high current as Vj nears Eg (about −1.5 mV/°C
@@ -135,7 +136,7 @@ func TestDiodeTemperatureSlope(t *testing.T) {
 	}
 }
 
-// Typical values from memory (DESIGN §3): a 1 A silicon rectifier drops
+// Typical values from memory (docs/protection.md): a 1 A silicon rectifier drops
 // about 0.75 V at 100 mA and 0.93 V at 1 A; a Schottky about 0.3 V and
 // 0.45–0.5 V. The defaults must sit near them; ±25 mV because the figures
 // are remembered to two digits.
@@ -156,7 +157,7 @@ func TestDiodeDefaultsNearTypical(t *testing.T) {
 	}
 }
 
-// Schottky leakage (from memory, DESIGN §3): microamperes at 25 °C, rising
+// Schottky leakage (from memory, docs/protection.md): microamperes at 25 °C, rising
 // towards a milliampere when hot. Checked as an order of magnitude: 0.3–3
 // µA at 25 °C and at least 30× more at 85 °C.
 func TestSchottkyLeakage(t *testing.T) {

@@ -6,7 +6,7 @@ import (
 	"testing"
 )
 
-// Common practice (no published source; DESIGN §3 and §7): the limiter
+// Common practice (no published source; docs/protection.md and docs/references.md): the limiter
 // starts limiting when the sense voltage reaches Vbe ≈ 0.7 V, so the limit
 // is about Vbe/Rsh, and halving Rsh doubles it.
 func TestLimiterLimit(t *testing.T) {
@@ -48,7 +48,7 @@ func TestLimiterTemperature(t *testing.T) {
 	}
 }
 
-// Below the limit the drop is I·Rsh plus the two channels' drops (DESIGN §3
+// Below the limit the drop is I·Rsh plus the two channels' drops (docs/protection.md
 // names I·(Rsh + Rch) for the one-FET sketch; the circuit has two FETs in
 // the rail). At small current each channel is its rated law at the gate
 // drive it sees: the blocking FET's |Vgs| is the pack's vin (gate to
@@ -132,7 +132,7 @@ func TestLimiterPassSaturates(t *testing.T) {
 }
 
 // In a short the pass FET holds the limit with the pack across it:
-// P = Vpack·Ilim, Tj = Tamb + θja·P (DESIGN §3). 4×AA fresh (6 V) with the
+// P = Vpack·Ilim, Tj = Tamb + θja·P (docs/protection.md). 4×AA fresh (6 V) with the
 // default 0.65 A limit: 3.9 W; in SOT-23 at 250 °C/W far above 150 °C.
 // Exact arithmetic, 1e-9.
 func TestLimiterShortCircuit(t *testing.T) {

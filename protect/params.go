@@ -96,12 +96,12 @@ func (f field) rangeText() string {
 
 func (f field) validate(kind string) error {
 	if !f.inRange(*f.p) {
-		return fmt.Errorf("protect: %s: key %q: %s is out of range: expected %s %s",
-			kind, f.key, strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, f.rangeText())
+		return specErrorf(kind, f.key, "%s is out of range: expected %s %s",
+			strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, f.rangeText())
 	}
 	if f.least > 0 && *f.p < f.least {
-		return fmt.Errorf("protect: %s: key %q: %s is too small: expected %s of at least %s",
-			kind, f.key, strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, units.Format(f.least, f.kind))
+		return specErrorf(kind, f.key, "%s is too small: expected %s of at least %s",
+			strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, units.Format(f.least, f.kind))
 	}
 	return nil
 }
@@ -222,11 +222,11 @@ func parse(spec string) (settable, error) {
 	head, rest, hasParams := strings.Cut(strings.TrimSpace(spec), ":")
 	kind := strings.ToLower(strings.TrimSpace(head))
 	if kind == "" {
-		return nil, fmt.Errorf("protect: empty element spec: expected one of %s", strings.Join(Kinds(), ", "))
+		return nil, specErrorf("", "", "empty element spec: expected one of %s", strings.Join(Kinds(), ", "))
 	}
 	info, ok := lookup(kind)
 	if !ok {
-		return nil, fmt.Errorf("protect: unknown element %q: expected one of %s", kind, strings.Join(Kinds(), ", "))
+		return nil, specErrorf("", "", "unknown element %q: expected one of %s", kind, strings.Join(Kinds(), ", "))
 	}
 	s := info.def()
 	fs := s.fields()
@@ -236,22 +236,22 @@ func parse(spec string) (settable, error) {
 			key, val, ok := strings.Cut(pair, "=")
 			key = strings.ToLower(strings.TrimSpace(key))
 			if !ok || key == "" {
-				return nil, fmt.Errorf("protect: %s: %q is not key=value", kind, strings.TrimSpace(pair))
+				return nil, specErrorf(kind, "", "%q is not key=value", strings.TrimSpace(pair))
 			}
 			f, found := findField(fs, key)
 			if !found {
 				if len(fs) == 0 {
-					return nil, fmt.Errorf("protect: %s: unknown key %q: %s takes no parameters", kind, key, kind)
+					return nil, specErrorf(kind, "", "unknown key %q: %s takes no parameters", key, kind)
 				}
-				return nil, fmt.Errorf("protect: %s: unknown key %q: expected one of %s", kind, key, keyList(fs))
+				return nil, specErrorf(kind, "", "unknown key %q: expected one of %s", key, keyList(fs))
 			}
 			if given[key] {
-				return nil, fmt.Errorf("protect: %s: key %q given twice", kind, key)
+				return nil, specErrorf(kind, "", "key %q given twice", key)
 			}
 			given[key] = true
 			v, err := f.parseValue(val)
 			if err != nil {
-				return nil, fmt.Errorf("protect: %s: key %q: %w", kind, key, err)
+				return nil, &SpecError{Kind: kind, Key: key, Err: err}
 			}
 			*f.p = v
 		}
@@ -368,11 +368,11 @@ func MainRange(kind string) (lo, hi float64, log, ok bool) {
 func WithMain(e Element, v float64) (Element, error) {
 	s, ok := settableOf(e)
 	if !ok {
-		return nil, fmt.Errorf("protect: %s: no main parameter to set", e.Kind())
+		return nil, specErrorf(e.Kind(), "", "no main parameter to set")
 	}
 	info, _ := lookup(s.Kind())
 	if info.main == "" {
-		return nil, fmt.Errorf("protect: %s: no main parameter to set", s.Kind())
+		return nil, specErrorf(s.Kind(), "", "no main parameter to set")
 	}
 	f, _ := findField(s.fields(), info.main)
 	old := *f.p

@@ -9,7 +9,7 @@ import (
 	"headroom/internal/units"
 )
 
-// The example specs of issue 3, with a value each must have set. Values
+// The example specs shown to users (README, protect/doc.go), with a value each must have set. Values
 // are decimal literals read back through units.Parse, so exact.
 func TestParseExamples(t *testing.T) {
 	for _, c := range []struct {

@@ -1,7 +1,6 @@
 package protect
 
 import (
-	"fmt"
 	"math"
 
 	"headroom/internal/units"
@@ -100,8 +99,8 @@ func fetFields(f *FET) []field {
 
 func (f FET) check(kind string) error {
 	if !(f.Vref > f.Vth) {
-		return fmt.Errorf("protect: %s: key \"vref\": %s must be above vth %s, where the channel turns on",
-			kind, units.Format(f.Vref, units.Voltage), units.Format(f.Vth, units.Voltage))
+		return specErrorf(kind, "vref", "%s must be above vth %s, where the channel turns on",
+			units.Format(f.Vref, units.Voltage), units.Format(f.Vth, units.Voltage))
 	}
 	return nil
 }
@@ -259,7 +258,7 @@ func (m *PMOSClamp) check() error {
 		return err
 	}
 	if !(m.Vz > m.Vth) {
-		return fmt.Errorf("protect: pmos-clamp: key \"vz\": %s must be above vth %s, or the clamp holds the channel off",
+		return specErrorf("pmos-clamp", "vz", "%s must be above vth %s, or the clamp holds the channel off",
 			units.Format(m.Vz, units.Voltage), units.Format(m.Vth, units.Voltage))
 	}
 	return nil

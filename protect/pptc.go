@@ -1,7 +1,6 @@
 package protect
 
 import (
-	"fmt"
 	"math"
 
 	"headroom/internal/units"
@@ -127,7 +126,7 @@ func (f *PPTC) fields() []field {
 
 func (f *PPTC) check() error {
 	if !(f.Trip > f.Hold) {
-		return fmt.Errorf("protect: pptc: key \"trip\": %s must be above the hold current %s",
+		return specErrorf("pptc", "trip", "%s must be above the hold current %s",
 			units.Format(f.Trip, units.Current), units.Format(f.Hold, units.Current))
 	}
 	return nil

@@ -6,7 +6,7 @@ import (
 	"testing"
 )
 
-// Derating from memory (DESIGN §3: hold falls roughly linearly to about
+// Derating from memory (docs/protection.md: hold falls roughly linearly to about
 // half at 85 °C): the model is that line, so the values are exact to
 // rounding (1e-12).
 func TestPPTCDerating(t *testing.T) {

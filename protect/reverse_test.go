@@ -5,7 +5,7 @@ import (
 	"testing"
 )
 
-// The reverse table (DESIGN §3, issue 3): for every element, the class of
+// The reverse table (docs/protection.md §Wrong insertion): for every element, the class of
 // what a whole reversed pack and one flipped cell do. A flipped cell in a
 // series pack is seen by no input element; in a one-cell pack there is
 // nothing to flip against.

@@ -139,7 +139,7 @@ func TestDiodeToPMOSRaisesRuntime(t *testing.T) {
 		t.Fatalf("protection after two steps: %q, want pmos", k)
 	}
 	pmos := mustResult(t, end)
-	// A P-MOSFET drops millivolts where the diode drops ~0.8 V (DESIGN §3),
+	// A P-MOSFET drops millivolts where the diode drops ~0.8 V (docs/protection.md),
 	// so the pack reaches the 1.8 V floor much later: any rise passes, the
 	// direction is what is checked.
 	if !(pmos > diode) {

@@ -1,10 +1,8 @@
 package tui
 
 import (
-	"errors"
 	"math"
 	"sort"
-	"sync"
 
 	"headroom/curves"
 	"headroom/discharge"
@@ -171,61 +169,25 @@ type lineupRow struct {
 	err    error
 }
 
-// errNoFit marks a line-up cell with no series count that fits.
-var errNoFit = errors.New("no series count fits this product's voltage")
-
-// evaluateLineup evaluates every cell for the current pack counts, load,
-// protection and floor, on as many goroutines as there are cores to spare.
+// evaluateLineup tries every cell in the product (scenario.Lineup, the
+// rule compare uses too).
 func (sh *shared) evaluateLineup() []lineupRow {
 	base := sh.design()
-	rows := make([]lineupRow, len(sh.cells))
-	var wg sync.WaitGroup
-	const workers = 2
-	for w := range workers {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := w; i < len(rows); i += workers {
-				d := base
-				d.Cell = sh.cells[i]
-				if i != sh.vals.cell {
-					// Another chemistry in the series count that fits this
-					// product's voltage (the rule compare uses), at its own price.
-					d.PackPrice = 0
-					d.Series = scenario.FitSeries(d.Cell, &base)
-				}
-				var r *discharge.Result
-				var err error
-				if d.Series == 0 {
-					err = errNoFit
-				} else {
-					r, err = evaluateFinite(&d)
-				}
-				rows[i] = lineupRow{cell: d.Cell, idx: i, series: d.Series, res: r, err: err}
-			}
-		}()
+	rows := scenario.Lineup(&base, sh.cells, evaluateFinite)
+	out := make([]lineupRow, len(rows))
+	for i, r := range rows {
+		out[i] = lineupRow{cell: r.Cell, idx: i, series: r.Series, res: r.Result, err: r.Err}
 	}
-	wg.Wait()
-	return rows
+	return out
 }
 
-// ranked returns the line-up ordered by runtime (longest first) or by cost
-// per hour (cheapest first); cells that cannot run come last.
+// ranked returns the line-up in scenario.LineupBefore's order.
 func ranked(rows []lineupRow, byRuntime bool) []lineupRow {
 	out := append([]lineupRow(nil), rows...)
-	usable := func(r lineupRow) bool { return r.err == nil && r.res.RuntimeH > 0 }
 	sort.SliceStable(out, func(i, j int) bool {
 		a, b := out[i], out[j]
-		if usable(a) != usable(b) {
-			return usable(a)
-		}
-		if !usable(a) {
-			return false
-		}
-		if byRuntime {
-			return a.res.RuntimeH > b.res.RuntimeH
-		}
-		return a.res.CostPerHour < b.res.CostPerHour
+		return scenario.LineupBefore(scenario.LineupRow{Cell: a.cell, Series: a.series, Result: a.res, Err: a.err},
+			scenario.LineupRow{Cell: b.cell, Series: b.series, Result: b.res, Err: b.err}, byRuntime)
 	})
 	return out
 }

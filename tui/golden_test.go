@@ -1,22 +1,15 @@
 package tui
 
 import (
-	"flag"
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/ansi"
-)
 
-// updating reports whether -update was given. The flag itself is
-// registered by teatest's golden package, which this package links.
-func updating() bool {
-	f := flag.Lookup("update")
-	return f != nil && f.Value.String() == "true"
-}
+	"headroom/internal/goldentest"
+)
 
 // sized returns the demo's screen at w × h after the given keys.
 func sized(w, h int, keys ...tea.Msg) tea.Model {
@@ -50,23 +43,7 @@ func TestGolden(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			got := ansi.Strip(sized(100, 30, c.keys...).View())
 			checkSize(t, got, 100, 30)
-			path := filepath.Join("testdata", t.Name()+".golden")
-			if updating() {
-				if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-					t.Fatal(err)
-				}
-				if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
-					t.Fatal(err)
-				}
-				return
-			}
-			want, err := os.ReadFile(path)
-			if err != nil {
-				t.Fatalf("%v (run go test ./tui -run TestGolden -update to create it)", err)
-			}
-			if got != string(want) {
-				t.Errorf("view differs from %s (rerun with -update if the change is meant):\n--- got\n%s\n--- want\n%s", path, got, want)
-			}
+			goldentest.Check(t, filepath.Join("testdata", t.Name()+".golden"), got)
 		})
 	}
 }

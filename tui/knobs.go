@@ -9,6 +9,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/curves"
+	"headroom/discharge"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -34,11 +35,11 @@ const (
 // outside a slider's range when the shared checks allow them; the arrows
 // then never push further out.
 const (
-	loadLo, loadHi   = 0.1, 5.0 // × the scenario's load
-	tempLo, tempHi   = -40, 85  // °C, as scenario.CheckTemp
-	hoursLo, hoursHi = 0.25, 24 // hours of use a day
-	seriesHi         = 48       // as scenario.CheckSeries
-	parallelHi       = 16       // as scenario.CheckParallel
+	loadLo, loadHi   = 0.1, 5.0                               // × the scenario's load
+	tempLo, tempHi   = discharge.MinTempC, discharge.MaxTempC // °C
+	hoursLo, hoursHi = 0.25, 24                               // hours of use a day
+	seriesHi         = discharge.MaxSeries
+	parallelHi       = discharge.MaxParallel
 )
 
 // knobsModel is the knobs panel: one row per value, a selection, and a
@@ -519,9 +520,9 @@ func (sh *shared) typingHint(k knob) string {
 	case knobCell:
 		return "a cell id (" + strings.Join(firstIDs(sh.cells, 4), ", ") + ", …) or a .csv/.toml cell file"
 	case knobSeries:
-		return "a whole number from 1 to 48"
+		return fmt.Sprintf("a whole number from 1 to %d", seriesHi)
 	case knobParallel:
-		return "a whole number from 1 to 16"
+		return fmt.Sprintf("a whole number from 1 to %d", parallelHi)
 	case knobProtect:
 		return "a kind (" + strings.Join(sh.kinds, ", ") + ") or a spec such as pmos:vth=1.2"
 	case knobPart:

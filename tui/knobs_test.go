@@ -161,7 +161,7 @@ func TestLineupRanks(t *testing.T) {
 }
 
 // TestReverseView: one row per protection kind; with no element the
-// reversed pack reaches the load and a series diode blocks it (DESIGN §3).
+// reversed pack reaches the load and a series diode blocks it (docs/protection.md).
 func TestReverseView(t *testing.T) {
 	m := sized(120, 40, runes("3")).(Model)
 	if len(m.reverseRows) != len(protect.Kinds()) {

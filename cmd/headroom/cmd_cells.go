@@ -4,18 +4,19 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"os"
 	"path/filepath"
 	"strings"
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/limited"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 )
 
 var cellsCmd = &command{
 	name:  "cells",
+	run:   runCells,
 	args:  "[show ID|FILE | check FILE | import LOG.csv --current I -o CELL.csv | fit LOG.csv... -o CELL.toml] [flags]",
 	short: "list the cell library, show a cell, check a cell file, import or fit bench logs",
 	help: `
@@ -54,8 +55,6 @@ examples:
   headroom cells fit testdata/measured/nasa-li-ion/cc-4A-B0034.csv testdata/measured/nasa-li-ion/cc-2A-B0036.csv -o nasa.toml
 `,
 }
-
-func init() { cellsCmd.run = runCells }
 
 func runCells(c *cli, args []string) error {
 	if len(args) > 0 {
@@ -121,25 +120,8 @@ func rechargeWords(c *curves.Cell) string {
 	return fmt.Sprintf("%d cycles", c.CycleLife)
 }
 
-// findCell resolves a library id or a cell file path.
-func findCell(ref string) (*curves.Cell, error) {
-	if c, ok := curves.Lookup(ref); ok {
-		return c, nil
-	}
-	ext := strings.ToLower(filepath.Ext(ref))
-	if ext != ".csv" && ext != ".toml" {
-		return nil, fmt.Errorf("unknown cell %q: not a library id (%s) nor a .csv or .toml file", ref, strings.Join(curves.IDs(), ", "))
-	}
-	return loadCellFile(ref)
-}
-
-// loadCellFile is curves.Load with a plain message for a folder.
-func loadCellFile(path string) (*curves.Cell, error) {
-	if st, err := os.Stat(path); err == nil && st.IsDir() {
-		return nil, fmt.Errorf("%s: is a directory, expected a cell file (.csv or .toml)", path)
-	}
-	return curves.Load(path)
-}
+// findCell resolves a library id or a cell file path (scenario.FindCell).
+func findCell(ref string) (*curves.Cell, error) { return scenario.FindCell(ref) }
 
 func cellsShow(c *cli, args []string) error {
 	fs := newFlags("cells show")
@@ -216,7 +198,7 @@ func cellsCheck(c *cli, args []string) error {
 	if err := wantArgs("cells check", pos, 1, 1, "a cell file (.csv or .toml)"); err != nil {
 		return err
 	}
-	cell, err := loadCellFile(pos[0])
+	cell, err := curves.Load(pos[0])
 	if err != nil {
 		return err
 	}
@@ -256,7 +238,7 @@ func cellsImport(c *cli, args []string) error {
 	if ext := strings.ToLower(filepath.Ext(*out)); ext != ".csv" {
 		return fmt.Errorf("-o: %q: the imported cell is written as CSV points; name it .csv", *out)
 	}
-	log, err := openLimited(pos[0], curves.MaxFileSize)
+	log, err := limited.ReadFile(pos[0], curves.MaxFileSize, "a discharge log (time and voltage columns)")
 	if err != nil {
 		return err
 	}
@@ -278,24 +260,4 @@ func cellsImport(c *cli, args []string) error {
 	_, err = fmt.Fprintf(c.stdout, "wrote %s: %d points, %s mAh at %s down to %s V\n",
 		*out, cell.Curve.Len(), sig(q, 4), human(amps, units.Current), fixed(v, 3))
 	return err
-}
-
-// openLimited reads a whole file of at most limit bytes, with messages
-// naming it.
-func openLimited(path string, limit int64) ([]byte, error) {
-	st, err := os.Stat(path)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, scenario.UnwrapPath(err))
-	}
-	if st.IsDir() {
-		return nil, fmt.Errorf("%s: is a directory, expected a file", path)
-	}
-	if st.Size() > limit {
-		return nil, fmt.Errorf("%s: %d bytes, larger than the %d-byte limit", path, st.Size(), limit)
-	}
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, scenario.UnwrapPath(err))
-	}
-	return data, nil
 }

@@ -1,9 +1,9 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"math"
-	"sort"
 	"strings"
 
 	"headroom/curves"
@@ -13,6 +13,7 @@ import (
 
 var compareCmd = &command{
 	name:  "compare",
+	run:   runCompare,
 	args:  "[scenario.toml] [--budget DOLLARS] [--within-budget] [--sort cost|runtime] [--format text|json|csv|md]",
 	short: "every chemistry that fits the product, ranked by cost per hour of use",
 	help: `
@@ -22,7 +23,7 @@ count as the file's design. With no file the built-in demo is used.
 
 Series count, per chemistry: the count whose nominal pack voltage is closest
 to the design's (ties go to fewer cells), among the counts whose fresh
-open-circuit pack voltage is at most 1.5 × the design's and above the floor.
+open-circuit pack voltage is at most ` + fmt.Sprint(scenario.FreshLimit) + ` × the design's and above the floor.
 A chemistry with no such count does not fit and is listed as such.
 
 Columns: runtime in hours of use, packs bought (primary) or charges
@@ -47,12 +48,6 @@ examples:
 `,
 }
 
-func init() { compareCmd.run = runCompare }
-
-// freshLimit is how far above the design's fresh pack voltage a candidate
-// pack may start (see the help text).
-const freshLimit = scenario.FreshLimit
-
 type compareRow struct {
 	cell         *curves.Cell
 	series, par  int
@@ -62,39 +57,6 @@ type compareRow struct {
 	partCost     float64 // pack + protection element
 	overBudget   bool
 	budgetActive bool
-}
-
-func (c compareRow) runtime() float64 { return c.r.RuntimeH }
-
-// seriesFor picks the series count of cell for design d, or 0 when none
-// fits: scenario.FitSeries, the rule the screen's line-up uses too.
-func seriesFor(cell *curves.Cell, d *discharge.Design) int { return scenario.FitSeries(cell, d) }
-
-// shortCaution is one chemistry's main caution in a few words.
-func shortCaution(c *curves.Cell) string {
-	var s string
-	switch c.Chemistry {
-	case "li-ion":
-		s = "needs a protection circuit and a Li-ion charger"
-	case "lifepo4":
-		s = "needs a protection circuit and a LiFePO4 charger"
-	case "nimh":
-		s = "NiMH charger only; stop at the end-point"
-	case "alkaline", "zinc-carbon":
-		s = "may leak when flat or flipped; do not recharge"
-	case "lithium-fes2", "lithium-mno2":
-		s = "do not recharge; may vent if shorted"
-	default:
-		s = "check the maker's data"
-	}
-	d := strings.ToUpper(c.Designation)
-	for _, p := range []string{"CR", "BR", "SR", "LR4", "LR5"} {
-		if strings.HasPrefix(d, p) {
-			s = "swallowing hazard: screw the compartment shut; " + s
-			break
-		}
-	}
-	return s
 }
 
 func runCompare(c *cli, args []string) error {
@@ -169,8 +131,8 @@ func compareContext(c *cli, s *scenario.Scenario, d *discharge.Design, budget fl
 	freshD := float64(d.Series) * d.Cell.OpenCircuit(0, d.TempC)
 	b := fmt.Sprintf("%s: chemistries for load %s; protect %s; floor %s V; %s h of use a day\n",
 		name, loadWords(d), s.ProtectSpec, fixed(d.Floor, 2), short(hoursPerDay(d)))
-	b += fmt.Sprintf("series count: nominal pack voltage closest to %s V (%d × %s), fresh at most %s V (1.5 × %s V)\n",
-		short(float64(d.Series)*d.Cell.NominalV), d.Series, d.Cell.ID, fixed(freshLimit*freshD, 2), fixed(freshD, 2))
+	b += fmt.Sprintf("series count: nominal pack voltage closest to %s V (%d × %s), fresh at most %s V (%g × %s V)\n",
+		short(float64(d.Series)*d.Cell.NominalV), d.Series, d.Cell.ID, fixed(scenario.FreshLimit*freshD, 2), scenario.FreshLimit, fixed(freshD, 2))
 	if budget > 0 {
 		b += fmt.Sprintf("budget for pack + protection part: %s\n", money(budget))
 	}
@@ -237,7 +199,7 @@ func compareColumns(withBudget bool) []column[compareRow] {
 	cols = append(cols,
 		column[compareRow]{key: "cutoff_cause", machine: true, val: func(r compareRow) any { return string(r.r.CutoffCause) }},
 		column[compareRow]{key: "caution", head: "caution", human: true, machine: true,
-			text: func(r compareRow) string { return shortCaution(r.cell) }, val: func(r compareRow) any { return shortCaution(r.cell) }},
+			text: func(r compareRow) string { return curves.ShortCaution(r.cell) }, val: func(r compareRow) any { return curves.ShortCaution(r.cell) }},
 	)
 	return cols
 }
@@ -252,7 +214,7 @@ func orNaN(runtimeH, v float64) float64 {
 }
 
 // lineupRows evaluates every library cell and the scenario's own in design
-// d's place (series count by seriesFor), marks rows over budget (leaving
+// d's place (scenario.Lineup: series count by scenario.FitSeries), marks rows over budget (leaving
 // them out when within), and ranks them by key ("cost" or "runtime");
 // misfits are the cells no series count fits. compare and the report
 // share it.
@@ -273,22 +235,17 @@ func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, with
 			}
 		}
 	}
-	for _, cell := range cells {
-		n := seriesFor(cell, &d)
-		if n == 0 {
-			misfits = append(misfits, cell.ID)
+	// The screen's line-up is the same function (scenario.Lineup).
+	for _, lr := range scenario.RankLineup(scenario.Lineup(&d, cells, nil), key == "runtime") {
+		if errors.Is(lr.Err, scenario.ErrNoFit) {
+			misfits = append(misfits, lr.Cell.ID)
 			continue
 		}
-		cd := d
-		cd.Cell, cd.Series, cd.TracePoints = cell, n, 0
-		if !(cell == d.Cell && n == d.Series) {
-			cd.PackPrice = 0 // the file's price is for its own pack
+		if lr.Err != nil {
+			return nil, nil, fmt.Errorf("compare %s: %w", lr.Cell.ID, lr.Err)
 		}
-		r, err := discharge.Evaluate(&cd)
-		if err != nil {
-			return nil, nil, fmt.Errorf("compare %s: %w", cell.ID, err)
-		}
-		row := compareRow{cell: cell, series: n, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
+		r := lr.Result
+		row := compareRow{cell: lr.Cell, series: lr.Series, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
 		if r.RuntimeDays > 0 {
 			row.perYear = 365 / r.RuntimeDays
 		}
@@ -299,16 +256,5 @@ func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, with
 		}
 		rows = append(rows, row)
 	}
-	sort.SliceStable(rows, func(i, j int) bool {
-		a, b := rows[i], rows[j]
-		if (a.runtime() > 0) != (b.runtime() > 0) {
-			return a.runtime() > 0
-		}
-		if key == "runtime" {
-			return a.runtime() > b.runtime()
-		}
-		return a.r.CostPerHour < b.r.CostPerHour
-	})
-
 	return rows, misfits, nil
 }

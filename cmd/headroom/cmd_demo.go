@@ -4,6 +4,7 @@ import "headroom/internal/scenario"
 
 var demoCmd = &command{
 	name:  "demo",
+	run:   runDemo,
 	args:  "",
 	short: "print the built-in demo scenario (an invented toy) to start a file from",
 	help: `
@@ -16,17 +17,15 @@ examples:
 `,
 }
 
-func init() {
-	demoCmd.run = func(c *cli, args []string) error {
-		fs := newFlags("demo")
-		pos, err := parseArgs(fs, args)
-		if err != nil {
-			return err
-		}
-		if err := wantArgs("demo", pos, 0, 0, "no arguments"); err != nil {
-			return err
-		}
-		_, err = c.stdout.Write(scenario.DemoTOML())
+func runDemo(c *cli, args []string) error {
+	fs := newFlags("demo")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
 		return err
 	}
+	if err := wantArgs("demo", pos, 0, 0, "no arguments"); err != nil {
+		return err
+	}
+	_, err = c.stdout.Write(scenario.DemoTOML())
+	return err
 }

@@ -12,6 +12,7 @@ import (
 
 var netlistCmd = &command{
 	name:  "netlist",
+	run:   runNetlist,
 	args:  "[scenario.toml] [flags] -o DESIGN.cir [--force]",
 	short: "write the design as an ngspice circuit, to check the runtime in a simulator",
 	help: `
@@ -41,8 +42,6 @@ examples:
   headroom netlist --protect pmos --load 0.5W@85% --floor 1.8 -o pmos.cir
 `,
 }
-
-func init() { netlistCmd.run = runNetlist }
 
 func runNetlist(c *cli, args []string) error {
 	fs := newFlags("netlist")

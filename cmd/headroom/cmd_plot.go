@@ -19,6 +19,7 @@ import (
 
 var plotCmd = &command{
 	name:  "plot",
+	run:   runPlot,
 	args:  "[scenario.toml] -o CHART.svg|CHART.png [--by time|charge] [--force]",
 	short: "chart pack and load voltage over the run for each protection option",
 	help: `
@@ -41,8 +42,6 @@ examples:
   headroom plot testdata/scenarios/example.toml -o example.png --by charge
 `,
 }
-
-func init() { plotCmd.run = runPlot }
 
 // palette is a set of colours that stay apart on white and for the common
 // colour-vision deficiencies (the Okabe–Ito set, common practice).

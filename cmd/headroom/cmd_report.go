@@ -10,6 +10,7 @@ import (
 	"runtime/debug"
 	"strings"
 
+	"headroom/curves"
 	"headroom/discharge"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
@@ -18,6 +19,7 @@ import (
 
 var reportCmd = &command{
 	name:  "report",
+	run:   runReport,
 	args:  "[scenario.toml] [flags] -o REPORT.html [--format html|md] [--force]",
 	short: "write a one-file report of the design: verdict, chart, line-up, reversed cells",
 	help: `
@@ -47,8 +49,6 @@ examples:
   headroom report --format md -o design.md
 `,
 }
-
-func init() { reportCmd.run = runReport }
 
 func runReport(c *cli, args []string) error {
 	fs := newFlags("report")
@@ -197,7 +197,7 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 		}
 		rep.Lineup = append(rep.Lineup, lineupLine{Cell: row.cell.ID, Pack: fmt.Sprintf("%d×%d", row.series, row.par),
 			Runtime: sig(row.r.RuntimeH, 3) + " h", PerHour: ph, Stranded: fixed(strandedPct(row.r), 1) + " %",
-			Cost: money(row.partCost), Caution: shortCaution(row.cell),
+			Cost: money(row.partCost), Caution: curves.ShortCaution(row.cell),
 			Current: row.cell == d.Cell && row.series == d.Series})
 	}
 	rep.Misfits = strings.Join(misfits, ", ")

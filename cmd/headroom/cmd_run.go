@@ -14,6 +14,7 @@ import (
 
 var runCmd = &command{
 	name:  "run",
+	run:   runDesign,
 	args:  "[scenario.toml] [flags]",
 	short: "evaluate one design: runtime, stranded capacity, heat, cost",
 	help: `
@@ -35,9 +36,7 @@ examples:
 `,
 }
 
-func init() { runCmd.run = runRun }
-
-func runRun(c *cli, args []string) error {
+func runDesign(c *cli, args []string) error {
 	fs := newFlags("run")
 	addDesignFlags(fs)
 	formatFlag := fs.String("format", "text", "")

@@ -12,6 +12,7 @@ import (
 
 var tableCmd = &command{
 	name:  "table",
+	run:   runTable,
 	args:  "[scenario.toml] [--sort COLUMN] [--desc] [--format text|json|csv|md]",
 	short: "a runtime table over every option and swept value in a scenario file",
 	help: `
@@ -38,8 +39,6 @@ examples:
   headroom table testdata/scenarios/example.toml --sort cost --format csv > runtimes.csv
 `,
 }
-
-func init() { tableCmd.run = runTable }
 
 // tableRow is one evaluated combination, kept small so a sorted table of
 // many rows stays light.

@@ -21,12 +21,12 @@ type designFlag struct {
 
 var designFlags = []designFlag{
 	{"cell", "ID|FILE.csv|FILE.toml", "cell: a library id (headroom cells) or a cell file", setCell},
-	{"series", "N", "cells in series, 1 to 48", func(s *scenario.Scenario, v string) error {
+	{"series", "N", fmt.Sprintf("cells in series, 1 to %d", discharge.MaxSeries), func(s *scenario.Scenario, v string) error {
 		n, err := scenario.ParseCount(v, scenario.CheckSeries)
 		s.Design.Series = n
 		return err
 	}},
-	{"parallel", "N", "strings in parallel, 1 to 16", func(s *scenario.Scenario, v string) error {
+	{"parallel", "N", fmt.Sprintf("strings in parallel, 1 to %d", discharge.MaxParallel), func(s *scenario.Scenario, v string) error {
 		n, err := scenario.ParseCount(v, scenario.CheckParallel)
 		s.Design.Parallel = n
 		return err
@@ -34,7 +34,7 @@ var designFlags = []designFlag{
 	{"protect", "SPEC", "protection element: " + strings.Join(protect.Kinds(), ", ") + ", with optional :key=value,...", func(s *scenario.Scenario, v string) error {
 		el, err := protect.Parse(v)
 		if err != nil {
-			return fmt.Errorf("%s", strings.TrimPrefix(err.Error(), "protect: "))
+			return protect.Unprefixed(err)
 		}
 		s.Design.Protect, s.ProtectSpec = el, strings.TrimSpace(v)
 		return nil

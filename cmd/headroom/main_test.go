@@ -3,14 +3,12 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"flag"
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
-)
 
-var update = flag.Bool("update", false, "rewrite the golden files under testdata/")
+	"headroom/internal/goldentest"
+)
 
 // example is the commented example scenario, relative to this package.
 const example = "../../testdata/scenarios/example.toml"
@@ -58,27 +56,9 @@ func checkClean(t *testing.T, what, s string) {
 }
 
 // golden compares got with testdata/<test>/<name>.golden, or rewrites it
-// with -update.
+// with -update (internal/goldentest).
 func golden(t *testing.T, name, got string) {
 	t.Helper()
-	path := filepath.Join("testdata", t.Name(), name+".golden")
-	if strings.Contains(t.Name(), "/") {
-		path = filepath.Join("testdata", strings.Split(t.Name(), "/")[0], name+".golden")
-	}
-	if *update {
-		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test -update to create it)", err)
-	}
-	if got != string(want) {
-		t.Errorf("output differs from %s (go test -update rewrites it after a deliberate change)\n--- got:\n%s\n--- want:\n%s", path, got, want)
-	}
+	test := strings.Split(t.Name(), "/")[0]
+	goldentest.Check(t, filepath.Join("testdata", test, name+".golden"), got)
 }

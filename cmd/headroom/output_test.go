@@ -74,7 +74,7 @@ func TestMachineFormatsParse(t *testing.T) {
 	if err != nil || len(recs) != 2 {
 		t.Fatalf("run csv: %v, %d lines, want a header and one row", err, len(recs))
 	}
-	// The keys the issue fixes for scripts, in JSON and CSV alike.
+	// The keys promised to scripts (README, output formats), in JSON and CSV alike.
 	m := runJSON(t, "run")
 	for _, k := range []string{"runtime_h", "runtime_days", "delivered_mAh", "delivered_Wh", "reference_mAh",
 		"stranded_mAh", "stranded_by_protection_mAh", "stranded_by_floor_mAh", "protection_loss_Wh",

@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"runtime/debug"
 	"strings"
 
 	"github.com/mattn/go-isatty"
@@ -23,22 +24,27 @@ type command struct {
 	run   func(c *cli, args []string) error
 }
 
-// cli is one invocation: its streams and how to tell a terminal.
+// cli is one invocation: its streams, how to tell a terminal and how to
+// open the screen. Tests build one with newCLI and replace terminal or
+// openScreen on it; nothing global is swapped.
 type cli struct {
 	stdin          io.Reader
 	stdout, stderr io.Writer
 	terminal       bool // standard output is a terminal
+	// openScreen opens the interactive screen on a scenario (tui.Run).
+	openScreen func(s *scenario.Scenario, stdout io.Writer) error
+	out        *recordingWriter // stdout, remembering the first write error
 }
 
 // errHelp asks for the command's help on standard output and exit status 0.
 var errHelp = errors.New("help requested")
 
 // commands lists the subcommands in the order "headroom help" shows them.
-var commands []*command
+var commands = []*command{runCmd, tableCmd, compareCmd, cellsCmd, plotCmd, reportCmd, netlistCmd, demoCmd, helpCmd}
 
-func init() {
-	commands = []*command{runCmd, tableCmd, compareCmd, cellsCmd, plotCmd, reportCmd, netlistCmd, demoCmd, helpCmd}
-}
+// helpCmd's body lists commands, which lists helpCmd: the one cycle the
+// table has, broken here.
+func init() { helpCmd.run = runHelp }
 
 func lookupCommand(name string) *command {
 	for _, c := range commands {
@@ -57,26 +63,82 @@ func commandNames() string {
 	return strings.Join(n, ", ")
 }
 
-// run is the whole program: it returns the exit status. Errors print one
-// line on stderr and give status 2; help and results give 0.
-func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
-	defer func() {
-		// Last guard only: a panic here is a bug to fix at its source.
-		if r := recover(); r != nil {
-			fmt.Fprintf(stderr, "headroom: internal error: %s\n", oneLine(fmt.Sprint(r)))
-			code = 2
-		}
-	}()
-	c := &cli{stdin: stdin, stdout: stdout, stderr: stderr, terminal: isTerminal(stdout)}
-	if err := c.dispatch(args); err != nil {
-		fmt.Fprintf(stderr, "headroom: %s\n", oneLine(err.Error()))
-		return 2
-	}
-	return 0
+// Exit statuses. Like Go's own tools, 2 is for what the user typed or
+// gave (a flag, an argument, a file, a value) and 1 for a failure that is
+// not the input's fault: an internal error, standard output that cannot
+// be written, a screen that cannot open.
+const (
+	exitOK      = 0
+	exitFailure = 1
+	exitInput   = 2
+)
+
+// failure marks an error that is not the input's fault (exit status 1).
+type failure struct{ err error }
+
+func (f failure) Error() string { return f.err.Error() }
+func (f failure) Unwrap() error { return f.err }
+
+// run is the whole program: it returns the exit status (see exitInput).
+// Errors print one line on stderr.
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	return newCLI(stdin, stdout, stderr).main(args)
 }
 
-// isTerminal reports whether w is a terminal; tests replace it.
-var isTerminal = func(w io.Writer) bool {
+// newCLI is an invocation on these streams with the real terminal test
+// and screen.
+func newCLI(stdin io.Reader, stdout, stderr io.Writer) *cli {
+	out := &recordingWriter{w: stdout}
+	return &cli{stdin: stdin, stdout: out, stderr: stderr, out: out,
+		terminal: isTerminal(stdout), openScreen: openTUI}
+}
+
+// main runs one command line and returns the exit status.
+func (c *cli) main(args []string) (code int) {
+	defer func() {
+		// Last guard only: a panic here is a bug to fix at its source, so
+		// its stack goes with it.
+		if r := recover(); r != nil {
+			fmt.Fprintf(c.stderr, "headroom: internal error: %s\n%s", oneLine(fmt.Sprint(r)), debug.Stack())
+			code = exitFailure
+		}
+	}()
+	err := c.dispatch(args)
+	if c.out.err != nil {
+		fmt.Fprintf(c.stderr, "headroom: writing the output: %s\n", oneLine(c.out.err.Error()))
+		return exitFailure
+	}
+	if err != nil {
+		fmt.Fprintf(c.stderr, "headroom: %s\n", oneLine(err.Error()))
+		var f failure
+		if errors.As(err, &f) {
+			return exitFailure
+		}
+		return exitInput
+	}
+	return exitOK
+}
+
+// recordingWriter passes writes on and remembers the first error, so a
+// full disk or a closed pipe is reported once, with status 1.
+type recordingWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (r *recordingWriter) Write(p []byte) (int, error) {
+	if r.err != nil {
+		return 0, r.err
+	}
+	n, err := r.w.Write(p)
+	if err != nil {
+		r.err = err
+	}
+	return n, err
+}
+
+// isTerminal reports whether w is a terminal.
+func isTerminal(w io.Writer) bool {
 	f, ok := w.(*os.File)
 	if !ok {
 		return false
@@ -126,8 +188,8 @@ func (c *cli) dispatch(args []string) error {
 }
 
 func (c *cli) screen(s *scenario.Scenario) error {
-	if err := openScreen(s, c.stdout); err != nil {
-		return fmt.Errorf("%w; the headless commands work: headroom help", err)
+	if err := c.openScreen(s, c.stdout); err != nil {
+		return failure{fmt.Errorf("%w; the headless commands work: headroom help", err)}
 	}
 	return nil
 }
@@ -153,7 +215,8 @@ commands:
 	}
 	fmt.Fprint(w, `
 "headroom COMMAND -h" shows a command's flags and examples. Flags may be written
--flag or --flag, before or after the file. Errors exit with status 2.
+-flag or --flag, before or after the file. Errors in what you give (flags,
+arguments, files, values) exit with status 2; other failures with status 1.
 `)
 }
 
@@ -174,24 +237,22 @@ examples:
 `,
 }
 
-func init() {
-	helpCmd.run = func(c *cli, args []string) error {
-		switch {
-		case len(args) == 0:
-			c.usage(c.stdout)
-			return nil
-		case len(args) == 1 && (args[0] == "-h" || args[0] == "--help" || args[0] == "-help"):
-			return errHelp
-		case len(args) > 1:
-			return fmt.Errorf("help: one command at a time, got %d", len(args))
-		}
-		cmd := lookupCommand(args[0])
-		if cmd == nil {
-			return fmt.Errorf("help: unknown command %q: expected one of %s", args[0], commandNames())
-		}
-		cmd.printHelp(c.stdout)
+func runHelp(c *cli, args []string) error {
+	switch {
+	case len(args) == 0:
+		c.usage(c.stdout)
 		return nil
+	case len(args) == 1 && (args[0] == "-h" || args[0] == "--help" || args[0] == "-help"):
+		return errHelp
+	case len(args) > 1:
+		return fmt.Errorf("help: one command at a time, got %d", len(args))
 	}
+	cmd := lookupCommand(args[0])
+	if cmd == nil {
+		return fmt.Errorf("help: unknown command %q: expected one of %s", args[0], commandNames())
+	}
+	cmd.printHelp(c.stdout)
+	return nil
 }
 
 // newFlags makes a subcommand's flag set; it prints nothing itself.

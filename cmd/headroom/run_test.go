@@ -1,6 +1,8 @@
 package main
 
 import (
+	"bytes"
+	"errors"
 	"io"
 	"math"
 	"os"
@@ -65,7 +67,7 @@ func TestFlagsOverrideFile(t *testing.T) {
 	}
 }
 
-// The hand check of the issue: a CSV cell with header mAh,V, two in series,
+// A hand check: a CSV cell with header mAh,V, two in series,
 // a PN diode with Is = 2.5 nA, n = 1.75, Rs = 0.1 Ω, 100 mA, floor 1.8 V at
 // 27 °C. By hand: the diode drop is Vd = n·Vt·ln(1 + I/Is) + I·Rs
 // (Shockley 1949, with series resistance) and Vt = k·T/q with k and q exact
@@ -104,7 +106,7 @@ func TestHandCheckDiodeCSV(t *testing.T) {
 		floor  = 1.8 // V
 		series = 2
 	)
-	vt := k * T / qe // 25.8649 mV at 300.15 K (SI Brochure value, see DESIGN §7)
+	vt := k * T / qe // 25.8649 mV at 300.15 K (SI Brochure value, see docs/references.md)
 	vd := n*vt*math.Log(1+I/Is) + I*Rs
 	// Solve series·V(q) − vd = floor on the segment where it crosses.
 	target := (floor + vd) / series
@@ -131,7 +133,7 @@ func TestHandCheckDiodeCSV(t *testing.T) {
 		m := runJSON(t, append(args, c.extra...)...)
 		want := qcut / 1000 / c.amps
 		got := num(t, m, "runtime_h")
-		// 1 %: the issue's tolerance. The engine solves the same equations
+		// 1 %: the acceptance bound set for this hand check. The engine solves the same equations
 		// by root finding and quadrature, so it agrees far closer (the
 		// measured difference is logged).
 		if rel := math.Abs(got-want) / want; rel > 0.01 {
@@ -151,32 +153,67 @@ func fmtFloat(x float64) string { return strings.TrimRight(strings.TrimRight(fix
 // file the file opens; off a terminal, usage (status 0) or a one-line error.
 func TestScreenHook(t *testing.T) {
 	var opened *scenario.Scenario
-	savedOpen, savedTerm := openScreen, isTerminal
-	defer func() { openScreen, isTerminal = savedOpen, savedTerm }()
-	openScreen = func(s *scenario.Scenario, _ io.Writer) error { opened = s; return nil }
-	isTerminal = func(io.Writer) bool { return true }
+	// cliFor is an invocation with the terminal test and the screen
+	// replaced on the value itself.
+	cliFor := func(terminal bool, open func(*scenario.Scenario, io.Writer) error) (*cli, *bytes.Buffer, *bytes.Buffer) {
+		var out, errb bytes.Buffer
+		c := newCLI(strings.NewReader(""), &out, &errb)
+		c.terminal = terminal
+		if open != nil {
+			c.openScreen = open
+		}
+		return c, &out, &errb
+	}
+	fake := func(s *scenario.Scenario, _ io.Writer) error { opened = s; return nil }
 
-	if code, _, errs := runCLI(t); code != 0 || opened == nil || opened.Path != "" || !strings.Contains(opened.Name, "invented") {
+	c, _, errs := cliFor(true, fake)
+	if code := c.main(nil); code != 0 || opened == nil || opened.Path != "" || !strings.Contains(opened.Name, "invented") {
 		t.Errorf("no args on a terminal: status %d, %q, opened %v; want the demo", code, errs, opened)
 	}
 	opened = nil
-	if code, _, errs := runCLI(t, example); code != 0 || opened == nil || opened.Path != example {
+	c, _, errs = cliFor(true, fake)
+	if code := c.main([]string{example}); code != 0 || opened == nil || opened.Path != example {
 		t.Errorf("a file on a terminal: status %d, %q; want the file opened", code, errs)
 	}
-	isTerminal = func(io.Writer) bool { return false }
-	code, out, _ := runCLI(t)
-	if code != 0 || !strings.HasPrefix(out, "headroom estimates") {
+	c, out, _ := cliFor(false, fake)
+	if code := c.main(nil); code != 0 || !strings.HasPrefix(out.String(), "headroom estimates") {
 		t.Errorf("no args, no terminal: status %d, want usage on stdout and 0:\n%s", code, out)
 	}
-	code, _, errs := runCLI(t, example)
-	if code != 2 || !strings.Contains(errs, "needs a terminal") {
+	c, _, errs = cliFor(false, fake)
+	if code := c.main([]string{example}); code != 2 || !strings.Contains(errs.String(), "needs a terminal") {
 		t.Errorf("a file, no terminal: status %d, %q", code, errs)
 	}
-	// The hook's own error (the screen not built yet) is one line, status 2.
-	isTerminal = func(io.Writer) bool { return true }
-	openScreen = savedOpen
-	code, _, errs = runCLI(t)
-	if code != 2 || strings.Count(errs, "\n") != 1 {
+	// The real screen on a stream that is not a terminal fails: one line,
+	// status 1 (not the input's fault).
+	c, _, errs = cliFor(true, nil)
+	if code := c.main(nil); code != 1 || strings.Count(errs.String(), "\n") != 1 {
 		t.Errorf("screen error: status %d, %q", code, errs)
+	}
+}
+
+// failingWriter refuses every write, as a closed pipe or a full disk does.
+type failingWriter struct{}
+
+func (failingWriter) Write([]byte) (int, error) { return 0, errors.New("no space left on device") }
+
+// Exit statuses: 2 for what the user gave, 1 for output that cannot be
+// written and for an internal error, which prints its stack.
+func TestExitStatuses(t *testing.T) {
+	var errb bytes.Buffer
+	if code := run([]string{"demo"}, strings.NewReader(""), failingWriter{}, &errb); code != 1 ||
+		!strings.Contains(errb.String(), "writing the output: no space left") || strings.Count(errb.String(), "\n") != 1 {
+		t.Errorf("unwritable output: status %d, stderr %q; want 1 and one line", code, errb.String())
+	}
+	errb.Reset()
+	if code := run([]string{"run", "--series", "0"}, strings.NewReader(""), io.Discard, &errb); code != 2 {
+		t.Errorf("bad flag: status %d, want 2 (%q)", code, errb.String())
+	}
+	errb.Reset()
+	c := newCLI(strings.NewReader(""), io.Discard, &errb)
+	c.terminal = true
+	c.openScreen = func(*scenario.Scenario, io.Writer) error { panic("boom") }
+	if code := c.main(nil); code != 1 || !strings.HasPrefix(errb.String(), "headroom: internal error: boom\n") ||
+		!strings.Contains(errb.String(), "goroutine ") {
+		t.Errorf("panic: status %d, stderr %q; want 1, the message and a stack", code, errb.String())
 	}
 }

@@ -7,8 +7,8 @@ import (
 	"headroom/tui"
 )
 
-// openScreen opens the interactive screen on s. It is a variable so that
-// tests can replace it without starting a real terminal program.
-var openScreen = func(s *scenario.Scenario, stdout io.Writer) error {
+// openTUI opens the interactive screen on s: the cli's openScreen, which
+// tests replace without starting a real terminal program.
+func openTUI(s *scenario.Scenario, stdout io.Writer) error {
 	return tui.Run(s)
 }

@@ -21,7 +21,7 @@ func FitSeries(cell *curves.Cell, d *discharge.Design) int {
 	freshD := float64(d.Series) * d.Cell.OpenCircuit(0, d.TempC)
 	ocv := cell.OpenCircuit(0, d.TempC)
 	best, bestDiff := 0, math.Inf(1)
-	for s := 1; s <= 48; s++ {
+	for s := 1; s <= discharge.MaxSeries; s++ {
 		fresh := float64(s) * ocv
 		if fresh > FreshLimit*freshD {
 			break

@@ -8,9 +8,7 @@ import (
 	_ "embed"
 	"errors"
 	"fmt"
-	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -19,6 +17,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/limited"
 	"headroom/internal/units"
 	"headroom/protect"
 )
@@ -208,28 +207,9 @@ func Demo() *Scenario {
 
 // Load reads a scenario file.
 func Load(path string) (*Scenario, error) {
-	st, err := os.Stat(path)
+	data, err := limited.ReadFile(path, MaxFileSize, "a scenario file (.toml)")
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
-	}
-	if st.IsDir() {
-		return nil, fmt.Errorf("%s: is a directory, expected a scenario file (.toml)", path)
-	}
-	if !st.Mode().IsRegular() {
-		// A FIFO or a device would block the open or the read forever.
-		return nil, fmt.Errorf("%s: not a regular file (%s), expected a scenario file (.toml)", path, st.Mode().Type())
-	}
-	if st.Size() > MaxFileSize {
-		return nil, fmt.Errorf("%s: %d bytes, larger than the %d-byte limit for a scenario file", path, st.Size(), MaxFileSize)
-	}
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, UnwrapPath(err))
+		return nil, err
 	}
 	s, err := Parse(data, path, filepath.Dir(path))
 	if err != nil {
@@ -240,20 +220,14 @@ func Load(path string) (*Scenario, error) {
 }
 
 // UnwrapPath returns the reason inside an *os.PathError (the path is
-// named in the message already), or err itself.
-func UnwrapPath(err error) error {
-	var pe *os.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
-}
+// named in the message already), or err itself: limited.UnwrapPath.
+func UnwrapPath(err error) error { return limited.UnwrapPath(err) }
 
 // Parse reads a scenario from data; name is used in messages and dir is
 // the folder relative cell paths start from.
 func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if len(data) > MaxFileSize {
-		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file", name, MaxFileSize)
+		return nil, fmt.Errorf("%s: larger than the %d-byte limit for a scenario file (.toml)", name, MaxFileSize)
 	}
 	if i := strings.IndexByte(string(data), 0); i >= 0 {
 		return nil, fmt.Errorf("%s: binary data (a NUL byte at offset %d), expected a TOML text file", name, i)
@@ -349,13 +323,13 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	for _, spec := range specs {
 		el, err := protect.Parse(spec)
 		if err != nil {
-			return nil, at("protect", unprefixed(err))
+			return nil, at("protect", protect.Unprefixed(err))
 		}
 		s.Protects = append(s.Protects, el)
 		s.ProtectSpecs = append(s.ProtectSpecs, protect.Short(el))
 	}
 	if d.Protect, err = protect.Parse(s.ProtectSpec); err != nil {
-		return nil, at("protect", unprefixed(err))
+		return nil, at("protect", protect.Unprefixed(err))
 	}
 
 	switch {
@@ -486,11 +460,9 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	return s, nil
 }
 
-// unprefixed drops the "protect: " that protect's messages start with,
-// which at adds already with the file and line.
-func unprefixed(err error) error {
-	return errors.New(strings.TrimPrefix(err.Error(), "protect: "))
-}
+// FindCell resolves a library id, or a .csv or .toml cell file path
+// relative to the working folder: ResolveCell with no scenario around it.
+func FindCell(ref string) (*curves.Cell, error) { return (&Scenario{}).ResolveCell(ref) }
 
 // ResolveCell finds a cell by library id, by the id of a cell defined in
 // the file, or as a path to a .csv or .toml cell file (relative to the
@@ -526,50 +498,17 @@ func (s *Scenario) ResolveCell(ref string) (*curves.Cell, error) {
 	return c, nil
 }
 
-// Field checks shared by flags, files and screen fields.
+// Field checks shared by flags, files and screen fields. The ranges live
+// in discharge (ranges.go); these name them for the readers here.
 
-func CheckSeries(n int) error {
-	if n < 1 || n > 48 {
-		return fmt.Errorf("%d cells in series: must be 1 to 48", n)
-	}
-	return nil
-}
+func CheckSeries(n int) error      { return discharge.CheckSeries(n) }
+func CheckParallel(n int) error    { return discharge.CheckParallel(n) }
+func CheckFloor(v float64) error   { return discharge.CheckFloor(v) }
+func CheckTemp(v float64) error    { return discharge.CheckTemp(v) }
+func CheckStandby(v float64) error { return discharge.CheckStandby(v) }
+func CheckPrice(v float64) error   { return discharge.CheckPrice(v) }
 
-func CheckParallel(n int) error {
-	if n < 1 || n > 16 {
-		return fmt.Errorf("%d strings in parallel: must be 1 to 16", n)
-	}
-	return nil
-}
-
-func CheckFloor(v float64) error {
-	if v < 0 || v > 1000 {
-		return fmt.Errorf("floor %v V: must be 0 to 1000 V", v)
-	}
-	return nil
-}
-
-func CheckTemp(v float64) error {
-	if v < -40 || v > 85 {
-		return fmt.Errorf("ambient %v °C: must be -40 to 85 °C", v)
-	}
-	return nil
-}
-
-func CheckStandby(v float64) error {
-	if v < 0 || v > 10 {
-		return fmt.Errorf("standby %v A: must be 0 to 10 A", v)
-	}
-	return nil
-}
-
-func CheckPrice(v float64) error {
-	if v < 0 || v > 1e6 {
-		return fmt.Errorf("price %v: must be 0 or more and at most 1000000", v)
-	}
-	return nil
-}
-
+// CheckScale checks a load scale (a sweep's factor on every phase).
 func CheckScale(v float64) error {
 	if !(v > 0) || v > 1000 {
 		return fmt.Errorf("load scale %v: must be above 0 and at most 1000 (×)", v)
@@ -601,8 +540,8 @@ func ParseHoursPerDay(s string) (float64, error) {
 		v *= 3600 // a bare number means hours here
 	}
 	h := v / 3600
-	if !(h > 0) || h > 24 {
-		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most 24", s)
+	if discharge.CheckHoursPerDay(h) != nil {
+		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most %g", s, discharge.MaxHoursPerDay)
 	}
 	return h, nil
 }

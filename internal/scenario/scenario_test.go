@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"headroom/protect"
 )
 
 func TestDemoParses(t *testing.T) {
@@ -171,5 +173,21 @@ func TestWriteFileNeverClobbers(t *testing.T) {
 	}
 	if err := WriteFile(dir, []byte("x"), true); err == nil {
 		t.Fatal("writing over a directory succeeded")
+	}
+}
+
+// A bad element spec in a file names the file, line and key once, and the
+// error still unwraps to protect's *SpecError (no prefix cut off the text).
+func TestProtectErrorKeepsItsType(t *testing.T) {
+	for _, text := range []string{"protect = \"diode:is=0\"\n", "[options]\nprotect = [\"diode:zz=1\"]\n"} {
+		_, err := Parse([]byte(text), "p.toml", "")
+		var se *protect.SpecError
+		if !errors.As(err, &se) || se.Kind != "diode" {
+			t.Errorf("%q: %v, want a *protect.SpecError for diode", text, err)
+			continue
+		}
+		if strings.Count(err.Error(), "protect:") != 1 {
+			t.Errorf("%q: %q names protect more than once", text, err)
+		}
 	}
 }

@@ -1,6 +1,7 @@
 // Package spice runs the ngspice circuit simulator in batch mode so tests
-// can compare headroom's closed forms with an independent simulation, and
-// reads the numbers back from its output.
+// and cmd/spicebench can compare headroom's closed forms with an
+// independent simulation, and reads the numbers back from its output.
+// Tests skip or fail on a missing ngspice through internal/spicetest.
 //
 // Netlists that print values should use a .control block ending in
 // "quit 0"; ngspice -b exits with status 1 when a batch run has no .print
@@ -17,7 +18,6 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
-	"testing"
 	"time"
 )
 
@@ -31,20 +31,6 @@ const InstallHint = "install ngspice: apt-get install -y ngspice"
 func Available() bool {
 	_, err := exec.LookPath("ngspice")
 	return err == nil
-}
-
-// Require skips the test when ngspice is missing, with a message saying
-// how to install it; when the environment variable CI is "true" a missing
-// ngspice fails the test instead, so a check cannot silently vanish there.
-func Require(t testing.TB) {
-	t.Helper()
-	if Available() {
-		return
-	}
-	if os.Getenv("CI") == "true" {
-		t.Fatal("spice: ngspice not found on PATH in CI; " + InstallHint)
-	}
-	t.Skip("spice: ngspice not found; " + InstallHint)
 }
 
 // Run writes netlist to a temporary file, runs "ngspice -b" on it and

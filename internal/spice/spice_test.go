@@ -1,8 +1,11 @@
-package spice
+package spice_test
 
 import (
 	"math"
 	"testing"
+
+	"headroom/internal/spice"
+	"headroom/internal/spicetest"
 )
 
 func TestValues(t *testing.T) {
@@ -11,7 +14,7 @@ func TestValues(t *testing.T) {
 		"vd                  =  7.50000e-01 at=  1.00000e-03\n" +
 		"note = not-a-number\n" +
 		"v(1) = 4.088465675430e-01\n"
-	got := Values(out)
+	got := spice.Values(out)
 	// Exact: the parser must return the printed decimal unchanged.
 	want := map[string]float64{"v(1)": 4.088465675430e-01, "vd": 0.75}
 	for k, w := range want {
@@ -25,7 +28,7 @@ func TestValues(t *testing.T) {
 	if _, ok := got["doing analysis at temp"]; ok {
 		t.Errorf("a sentence was read as a name")
 	}
-	if _, err := Value(out, "v(9)"); err == nil {
+	if _, err := spice.Value(out, "v(9)"); err == nil {
 		t.Errorf("missing name gave no error")
 	}
 }
@@ -33,12 +36,12 @@ func TestValues(t *testing.T) {
 // A resistor divider, solved exactly by hand: 3 V across 1k + 2k gives 2 V
 // at the middle node.
 func TestRunDivider(t *testing.T) {
-	Require(t)
-	out, err := Run("divider\nV1 1 0 DC 3\nR1 1 2 1k\nR2 2 0 2k\n.control\nset numdgt=12\nop\nprint v(2)\nquit 0\n.endc\n.end\n")
+	spicetest.Require(t)
+	out, err := spice.Run("divider\nV1 1 0 DC 3\nR1 1 2 1k\nR2 2 0 2k\n.control\nset numdgt=12\nop\nprint v(2)\nquit 0\n.endc\n.end\n")
 	if err != nil {
 		t.Fatal(err)
 	}
-	v, err := Value(out, "v(2)")
+	v, err := spice.Value(out, "v(2)")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -50,8 +53,8 @@ func TestRunDivider(t *testing.T) {
 }
 
 func TestRunBadNetlist(t *testing.T) {
-	Require(t)
-	if _, err := Run("bad\nQ1 1 2\n.control\nop\nquit 0\n.endc\n.end\n"); err == nil {
+	spicetest.Require(t)
+	if _, err := spice.Run("bad\nQ1 1 2\n.control\nop\nquit 0\n.endc\n.end\n"); err == nil {
 		t.Errorf("a broken netlist gave no error")
 	}
 }
@@ -61,12 +64,12 @@ func TestRunBadNetlist(t *testing.T) {
 // Value; 0.5 % allows for ngspice's time-step truncation error at a
 // 10 µs maximum step.
 func TestRunMeas(t *testing.T) {
-	Require(t)
-	out, err := Run("rc\nV1 1 0 DC 1\nR1 1 2 1k\nC1 2 0 1u IC=0\n.tran 1u 2m 0 10u uic\n.meas tran tcross WHEN v(2)=0.5\n.end\n")
+	spicetest.Require(t)
+	out, err := spice.Run("rc\nV1 1 0 DC 1\nR1 1 2 1k\nC1 2 0 1u IC=0\n.tran 1u 2m 0 10u uic\n.meas tran tcross WHEN v(2)=0.5\n.end\n")
 	if err != nil {
 		t.Fatal(err)
 	}
-	got, err := Value(out, "tcross")
+	got, err := spice.Value(out, "tcross")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,17 +1,17 @@
 // Package spicenet turns a headroom design into an ngspice transient
 // netlist, so that a general-purpose circuit simulator can compute the same
 // runtime independently of the engine's charge-domain quadrature. The
-// discharge cross-check test and the speed comparison (internal/spicebench)
+// discharge cross-check test and the speed comparison (cmd/spicebench)
 // share it.
 //
-// The circuit (DESIGN §7, "ngspice"):
+// The circuit (docs/references.md, "ngspice"):
 //
 //   - a charge counter: a current-controlled current source copies the
 //     pack current (and the cells' self-discharge) into a capacitor, so
 //     that the capacitor's voltage is the charge drawn;
 //   - the pack: a behavioural voltage source E(q) − I·Rp(q) with E and Rp
 //     as pwl() tables of that charge, straight from the cell's curve and
-//     resistance table (DESIGN §2: V = Vcurve − (I − Iref)·R per cell, S in
+//     resistance table (docs/cells.md: V = Vcurve − (I − Iref)·R per cell, S in
 //     series, P in parallel, pack resistance S·R/P);
 //   - the protection element as ngspice's own devices: a diode model with
 //     the element's IS, N, RS, EG, XTI; a level-1 PMOS with KP·W/L matching
@@ -122,7 +122,7 @@ func Build(d *discharge.Design, o Options) (string, error) {
 	// The load switches on over the first millionth of the span: the
 	// operating point at t = 0 is then the unloaded pack, and the
 	// simulation follows the load's stable operating point from there (a
-	// constant-power load has two, DESIGN §4, and a solver started cold
+	// constant-power load has two, docs/loads.md, and a solver started cold
 	// can land on the low, unstable one). The ramp misses half its width
 	// of load charge: 5e-7 of the span.
 	fmt.Fprintf(&b, "Vstart st 0 PWL(0 0 %s 1)\n", g(1e-6*o.StopHours))

@@ -2,7 +2,7 @@
 // headroom and in ngspice and prints a Markdown table of both runtimes,
 // their difference, the median wall time of each and the speed ratio:
 //
-//	go run ./internal/spicebench
+//	go run ./cmd/spicebench
 //
 // headroom's time is the median over batches of evaluations, per
 // evaluation; ngspice's is the median of a few complete runs, each

@@ -1,0 +1,54 @@
+package scenario
+
+import (
+	"path/filepath"
+	"testing"
+
+	"headroom/discharge"
+	"headroom/protect"
+)
+
+// What headroom writes, headroom reads back: a design with every field
+// Format writes set away from its default, and a cell from a file (written
+// out in full as [[define_cell]]), parses back to a design that the engine
+// evaluates to the same runtime and cost (exactly: the same numbers go in).
+func TestFormatKeepsEveryField(t *testing.T) {
+	s := Demo()
+	d := s.Design
+	var err error
+	if d.Cell, err = s.ResolveCell(filepath.Join("..", "..", "testdata", "cells", "example-cell.csv")); err != nil {
+		t.Fatal(err)
+	}
+	d.Series, d.Parallel = 3, 2
+	d.Floor, d.TempC, d.HoursPerDay, d.Standby = 2.7, -5, 1.5, 30e-6
+	d.PackPrice, d.ElectricityPrice = 4.2, 0.17
+	if d.Profile, err = discharge.ParseProfile("450mA/3s,0.5W@90%/2s,15mA/25s"); err != nil {
+		t.Fatal(err)
+	}
+	el, err := protect.Parse("pmos-clamp:vz=5.1,rg=100k")
+	if err != nil {
+		t.Fatal(err)
+	}
+	d.Protect = el
+	data := Format(Saved{Name: "every field", Note: "a note", Design: d, Budget: 3.5})
+	back, err := Parse(data, "saved.toml", "")
+	if err != nil {
+		t.Fatalf("saved scenario does not parse: %v\n%s", err, data)
+	}
+	b := back.Design
+	if back.Name != "every field" || back.Note != "a note" || back.Budget != 3.5 {
+		t.Errorf("labels: %q %q %v", back.Name, back.Note, back.Budget)
+	}
+	if b.Series != 3 || b.Parallel != 2 || b.Floor != 2.7 || b.TempC != -5 || b.HoursPerDay != 1.5 ||
+		b.Standby != 30e-6 || b.PackPrice != 4.2 || b.ElectricityPrice != 0.17 || b.Protect.Spec() != el.Spec() {
+		t.Errorf("design changed:\n%s", data)
+	}
+	r1, err1 := discharge.Evaluate(&d)
+	r2, err2 := discharge.Evaluate(&b)
+	if err1 != nil || err2 != nil {
+		t.Fatalf("evaluate: %v, %v", err1, err2)
+	}
+	if r1.RuntimeH != r2.RuntimeH || r1.CostPerHour != r2.CostPerHour || r1.ReferenceMAh != r2.ReferenceMAh {
+		t.Errorf("read back, the design runs %v h at $%v/h; written, %v h at $%v/h", r2.RuntimeH, r2.CostPerHour, r1.RuntimeH, r1.CostPerHour)
+	}
+}
