@@ -121,7 +121,7 @@ func Fit(logs []*Log, opt Options) (*Result, error) {
 	var best *fitted
 	var firstErr error
 	for _, nb := range cands {
-		f, err := p.fit(nb, st)
+		f, err := p.fit(nb, st, nil)
 		if err != nil {
 			// Choosing for the user, a branch count the logs cannot
 			// support is passed over; asked for one, it is an error.
@@ -137,7 +137,7 @@ func Fit(logs []*Log, opt Options) (*Result, error) {
 		}
 	}
 	if best == nil && opt.Auto {
-		f, err := p.fit(0, st)
+		f, err := p.fit(0, st, nil)
 		if err != nil {
 			return nil, err
 		}
@@ -175,7 +175,12 @@ func Fit(logs []*Log, opt Options) (*Result, error) {
 		for li := range logs {
 			p.w[li] *= math.Sqrt(mse[li] / mean)
 		}
-		f, err := p.fit(nb, st)
+		// Each round starts from the last round's time constants.
+		var from []float64
+		for _, s := range cur.model.RC {
+			from = append(from, math.Log(s.Tau))
+		}
+		f, err := p.fit(nb, st, from)
 		if err != nil {
 			return nil, err
 		}
@@ -678,10 +683,10 @@ func clampTaus(x []float64, lo, hi float64) []float64 {
 }
 
 // fit fits nb branches: the time constants by gonum's Nelder–Mead over
-// their logarithms (from several starts), each candidate solved linearly
+// their logarithms (from several starts, or from the logarithms in from), each candidate solved linearly
 // for everything else (variable projection: Golub and Pereyra, SIAM J.
 // Numer. Anal. 10, 1973).
-func (p *problem) fit(nb int, st stats) (*fitted, error) {
+func (p *problem) fit(nb int, st stats, from []float64) (*fitted, error) {
 	lo, hi := p.tauBounds()
 	var logTau []float64
 	evals := 0
@@ -692,6 +697,9 @@ func (p *problem) fit(nb int, st stats) (*fitted, error) {
 			starts = [][]float64{{s}, {f}}
 		} else {
 			starts = [][]float64{{f, s}, {f - math.Log(5), s + math.Log(5)}}
+		}
+		if len(from) == nb {
+			starts = [][]float64{from}
 		}
 		best := math.Inf(1)
 		for _, x0 := range starts {
