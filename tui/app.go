@@ -29,6 +29,8 @@ const (
 	screenDesign  screen = iota // knobs, verdict and chart
 	screenLineup                // every cell ranked
 	screenReverse               // cells put in wrong
+	screenSpread                // the spread over the tolerances
+	screenPick                  // the cheapest designs for a target
 	screenCount
 )
 
@@ -40,6 +42,10 @@ func (s screen) String() string {
 		return "Line-up"
 	case screenReverse:
 		return "Reversed cells"
+	case screenSpread:
+		return "Spread"
+	case screenPick:
+		return "Pick"
 	}
 	return "?"
 }
@@ -67,6 +73,8 @@ type Model struct {
 	notes   notesModel
 	lineup  lineupModel
 	reverse reverseModel
+	spread  spreadModel
+	pick    pickModel
 	save    saveModel
 	help    help.Model
 }
@@ -79,7 +87,7 @@ func New(s *scenario.Scenario) Model {
 	sh := newShared(s)
 	m := Model{shared: sh,
 		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
-		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, save: newSave(sh), help: newHelp(sh.styles)}
+		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, pick: newPick(sh), save: newSave(sh), help: newHelp(sh.styles)}
 	return m
 }
 
@@ -97,8 +105,9 @@ func Run(s *scenario.Scenario) error {
 // reason when the design cannot run.
 func (m Model) Result() (*discharge.Result, error) { return m.res, m.err }
 
-// Init starts nothing: the first evaluation ran in New.
-func (m Model) Init() tea.Cmd { return nil }
+// Init starts the spread over the tolerances; the first evaluation ran
+// in New.
+func (m Model) Init() tea.Cmd { return m.spreadCmd() }
 
 func (m Model) mode() mode {
 	switch {
@@ -114,8 +123,26 @@ func (m Model) mode() mode {
 	return modeNone
 }
 
-// Update handles a message.
+// Update handles a message, then starts the spread of the design when it
+// has changed (off the key path, after a short pause: it fills in when
+// ready).
 func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	switch sm := msg.(type) {
+	case spreadMsg:
+		return m, m.gotSpread(sm)
+	case spreadTickMsg:
+		return m, m.gotTick(sm)
+	}
+	next, cmd := m.update(msg)
+	if cmd != nil {
+		// The message cmd brings back passes here again and starts the
+		// spread then; a command stays a single one for its callers.
+		return next, cmd
+	}
+	return next, m.spreadCmd()
+}
+
+func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	var cmd tea.Cmd
 	switch msg := msg.(type) {
 	case tea.WindowSizeMsg:
@@ -128,8 +155,17 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.view = screenDesign
 		m.knobs.sel = knobCell
 		return m, nil
+	case pickDoneMsg:
+		m.pick, cmd = m.pick.Update(msg)
+		return m, cmd
 	case tea.KeyMsg:
-		return m.key(msg)
+		nm, cmd := m.key(msg)
+		if next, ok := nm.(Model); ok && next.view == screenPick && next.mode() == modeNone {
+			// Off the key path: the search runs in a command.
+			cmd = tea.Batch(cmd, next.pick.search())
+			return next, cmd
+		}
+		return nm, cmd
 	}
 	// Anything else (a cursor blink) goes to the text field in use.
 	switch {
@@ -191,6 +227,11 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(km, k.Reverse):
 		m.show(screenReverse)
 		return m, nil
+	case key.Matches(km, k.Spread):
+		m.show(screenSpread)
+	case key.Matches(km, pickKeys.Open):
+		m.show(screenPick)
+		return m, nil
 	case key.Matches(km, k.Back):
 		m.show(screenDesign)
 		return m, nil
@@ -200,6 +241,8 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.lineup, cmd = m.lineup.Update(km)
 	case screenReverse:
 		m.reverse, cmd = m.reverse.Update(km)
+	case screenPick:
+		m.pick, cmd = m.pick.Update(km)
 	default:
 		m.knobs, cmd = m.knobs.Update(km)
 	}
@@ -240,6 +283,12 @@ func (m Model) View() string {
 	case m.view == screenReverse:
 		m.reverse.SetSize(w, bodyH)
 		body = fitLines(m.reverse.View(), w, bodyH)
+	case m.view == screenSpread:
+		m.spread.SetSize(w, bodyH)
+		body = fitLines(m.spread.View(), w, bodyH)
+	case m.view == screenPick:
+		m.pick.SetSize(w, bodyH)
+		body = fitLines(m.pick.View(), w, bodyH)
 	default:
 		body = m.designView(w, bodyH)
 	}

@@ -31,6 +31,7 @@ const (
 	layerFloor
 	layerPack
 	layerLoad
+	layerBand // the p10–p90 spread of the cut-off, along the bottom
 )
 
 // dots is a braille canvas of w × h character cells.
@@ -96,7 +97,7 @@ func abs(x int) int {
 }
 
 // render writes row r, one styled run per stretch of equal layer.
-func (d *dots) render(r int, styles [5]lipgloss.Style) string {
+func (d *dots) render(r int, styles [6]lipgloss.Style) string {
 	var b, run strings.Builder
 	cur := layerNone
 	flush := func() {
@@ -153,6 +154,10 @@ func (m chartModel) View() string {
 		st.FloorLine.Render("⠒⠒ floor"),
 		st.CutoffLine.Render("⡇ cut-off"),
 	}
+	p10, p90, band := sh.spreadBand()
+	if band {
+		legend = append(legend, st.Warn.Render("⣤⣤")+st.Dim.Render(" p10–p90 cut-off"))
+	}
 	for _, l := range joinItems(legend, w, "  ") {
 		b.WriteString(l + "\n")
 	}
@@ -167,6 +172,9 @@ func (m chartModel) View() string {
 	// Ranges: hours from 0 to a little past the cut-off; volts from just
 	// under the lowest of floor and load to just over the fresh pack.
 	xmax := r.RuntimeH * 1.06
+	if band {
+		xmax = max(xmax, p90*1.06)
+	}
 	ylo, yhi := sh.vals.floor, r.FreshV
 	for _, p := range r.Trace {
 		ylo = math.Min(ylo, p.LoadV)
@@ -205,10 +213,16 @@ func (m chartModel) View() string {
 			px, py = x, y
 		}
 	}
+	if band {
+		for x := X(p10); x <= X(p90); x++ {
+			d.set(x, 4*ph-1, layerBand)
+			d.set(x, 4*ph-2, layerBand)
+		}
+	}
 	plot(func(p discharge.TracePoint) float64 { return p.PackV }, layerPack)
 	plot(func(p discharge.TracePoint) float64 { return p.LoadV }, layerLoad)
 
-	styles := [5]lipgloss.Style{layerNone: st.Axis, layerCutoff: st.CutoffLine, layerFloor: st.FloorLine, layerPack: st.PackLine, layerLoad: st.LoadLine}
+	styles := [6]lipgloss.Style{layerNone: st.Axis, layerCutoff: st.CutoffLine, layerFloor: st.FloorLine, layerPack: st.PackLine, layerLoad: st.LoadLine, layerBand: st.Warn}
 	yLabel := func(row int) string {
 		v := yhi - (float64(row)*4+1.5)/float64(4*ph-1)*(yhi-ylo)
 		return fmt.Sprintf("%6.2f V", v)

@@ -45,6 +45,7 @@ type shared struct {
 	err         error
 	lineupRows  []lineupRow
 	reverseRows []reverseRow
+	spread      spreadState
 }
 
 // newShared builds the state for scenario s.
@@ -126,6 +127,7 @@ func (sh *shared) evaluate() {
 	d := sh.design()
 	d.TracePoints = tracePoints
 	sh.res, sh.err = evaluateFinite(&d)
+	sh.spread.gen++ // the spread shown is now stale; Update starts the next
 	sh.lineupRows = sh.evaluateLineup()
 	sh.reverseRows = sh.evaluateReverse()
 }

@@ -70,6 +70,8 @@ func (m Model) helpOverlay(w, h int) string {
 			"and when one cell of a series pack is flipped. Green: blocked;",
 			"amber: a fuse opens; red: the load or the cells take the harm.",
 		}
+	case screenPick:
+		about = pickAbout
 	default:
 		about = []string{
 			"Each knob row: name, value with its unit, and a slider.",

@@ -18,6 +18,7 @@ type KeyMap struct {
 	Design     key.Binding
 	Lineup     key.Binding
 	Reverse    key.Binding
+	Spread     key.Binding
 	Save       key.Binding
 	Help       key.Binding
 	Back       key.Binding
@@ -47,6 +48,7 @@ func DefaultKeyMap() KeyMap {
 		Design:     key.NewBinding(key.WithKeys("1"), key.WithHelp("1", "design")),
 		Lineup:     key.NewBinding(key.WithKeys("2"), key.WithHelp("2", "cell line-up")),
 		Reverse:    key.NewBinding(key.WithKeys("3"), key.WithHelp("3", "reversed cells")),
+		Spread:     key.NewBinding(key.WithKeys("4"), key.WithHelp("4", "spread")),
 		Save:       key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save")),
 		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "help")),
 		Back:       key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "back")),
@@ -75,7 +77,7 @@ func (k KeyMap) ShortHelp() []key.Binding {
 func (k KeyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type},
-		{k.Pick, k.Rank, k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse},
+		{k.Pick, k.Rank, k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, k.Spread},
 		{k.Save, k.Help, k.Back, k.Quit},
 	}
 }
@@ -103,19 +105,27 @@ func (v viewKeys) ShortHelp() []key.Binding {
 		return []key.Binding{hint("↑/↓", "choose cell"), k.Pick, k.Rank, hint("tab", "views"), k.Save}
 	case screenReverse:
 		return []key.Binding{hint("↑/↓", "choose protection"), hint("tab", "views"), k.Save}
+	case screenSpread:
+		return []key.Binding{hint("tab", "views"), k.Design, k.Save}
+	case screenPick:
+		return pickShortHelp(k)
 	}
 	return k.ShortHelp()
 }
 
 func (v viewKeys) FullHelp() [][]key.Binding {
 	k := v.k
-	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse}
+	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, k.Spread, pickKeys.Open}
 	general := []key.Binding{k.Save, k.Help, k.Back, k.Quit}
 	switch v.view {
 	case screenLineup:
 		return [][]key.Binding{{k.Up, k.Down, k.Pick, k.Rank}, views, general}
 	case screenReverse:
 		return [][]key.Binding{{k.Up, k.Down}, views, general}
+	case screenSpread:
+		return [][]key.Binding{views, general}
+	case screenPick:
+		return [][]key.Binding{{k.Up, k.Down, pickKeys.Less, pickKeys.More, pickKeys.LessCoarse, pickKeys.MoreCoarse, pickKeys.Use}, views, general}
 	}
 	return [][]key.Binding{{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type}, views, general}
 }

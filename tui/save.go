@@ -152,5 +152,6 @@ func (sh *shared) saved() []byte {
 		name = "headroom design"
 	}
 	return scenario.Format(scenario.Saved{Name: name, Note: sh.scen.Note, Design: d,
-		ProtectSpec: sh.vals.elem.Spec(), Budget: sh.scen.Budget})
+		ProtectSpec: sh.vals.elem.Spec(), Budget: sh.scen.Budget,
+		Tolerances: sh.scen.Tolerances, Samples: sh.scen.Samples, Seed: sh.scen.Seed})
 }

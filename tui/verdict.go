@@ -45,6 +45,7 @@ func (m verdictModel) View() string {
 	}
 	line("Runtime", hours(r.RuntimeH), "of use")
 	line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
+	sh.spreadVerdict(line)
 	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
 	line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
 	line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")

@@ -124,12 +124,12 @@ func cellsFit(c *cli, args []string) error {
 	}
 	// What headroom writes, headroom reads back.
 	if _, err := curves.ReadCellTOML(bytes.NewReader(toml.Bytes()), *out); err != nil {
-		return fmt.Errorf("cells fit: internal error: the written cell does not read back: %w", err)
+		return failure{fmt.Errorf("cells fit: internal error: the written cell does not read back: %w", err)}
 	}
 	var chart []byte
 	if *plotOut != "" {
 		if chart, err = res.Plot(plotExt); err != nil {
-			return fmt.Errorf("--plot: %w", err)
+			return failure{fmt.Errorf("--plot: %w", err)}
 		}
 	}
 	if err := scenario.WriteFile(*out, toml.Bytes(), *force); err != nil {

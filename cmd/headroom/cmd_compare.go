@@ -2,8 +2,10 @@ package main
 
 import (
 	"errors"
+	"flag"
 	"fmt"
 	"math"
+	"sort"
 	"strings"
 
 	"headroom/curves"
@@ -37,8 +39,12 @@ flags:
   --budget DOLLARS  most a pack + protection part may cost (default: the
                     file's budget key); dearer rows are marked OVER
   --within-budget   leave out the rows over budget instead of marking them
-  --sort KEY        cost (cheapest per hour first, the default) or runtime
-                    (longest first)
+  --sort KEY        cost (cheapest per hour first, the default), runtime
+                    (longest first), worst or p10 (the longest worst-corner
+                    or p10 runtime over the tolerances first; see headroom
+                    spread)
+  --samples N, --seed S, --tol NAME=SPREAD
+                    the spread's samples, seed and tolerances
   --format FORMAT   text, json, csv or md (default text)
 
 examples:
@@ -57,6 +63,7 @@ type compareRow struct {
 	partCost     float64 // pack + protection element
 	overBudget   bool
 	budgetActive bool
+	rank         float64 // worst-corner or p10 runtime, for --sort worst|p10
 }
 
 func runCompare(c *cli, args []string) error {
@@ -65,6 +72,7 @@ func runCompare(c *cli, args []string) error {
 	within := fs.Bool("within-budget", false, "")
 	sortFlag := fs.String("sort", "cost", "")
 	formatFlag := fs.String("format", "text", "")
+	sf := addSpreadFlags(fs)
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -77,12 +85,27 @@ func runCompare(c *cli, args []string) error {
 		return err
 	}
 	key := strings.ToLower(strings.TrimSpace(*sortFlag))
-	if key != "cost" && key != "runtime" {
-		return fmt.Errorf("--sort: %q is not a compare column: expected cost or runtime", *sortFlag)
+	_, ranked := rankKeys[key]
+	if key != "cost" && key != "runtime" && !ranked {
+		return fmt.Errorf("--sort: %q is not a compare column: expected cost, runtime, worst or p10", *sortFlag)
 	}
 	s, err := loadScenario(pos)
 	if err != nil {
 		return err
+	}
+	if err := sf.apply(s); err != nil {
+		return err
+	}
+	if !ranked {
+		given := ""
+		fs.Visit(func(fl *flag.Flag) {
+			if sf.given(fl.Name) && given == "" {
+				given = fl.Name
+			}
+		})
+		if given != "" {
+			return fmt.Errorf("--%s: sets the spread, so it needs --sort worst or --sort p10", given)
+		}
 	}
 	budget := s.Budget
 	if *budgetFlag != "" {
@@ -95,9 +118,18 @@ func runCompare(c *cli, args []string) error {
 	}
 
 	d := s.Design
-	rows, misfits, err := lineupRows(s, &d, budget, *within, key)
+	lineKey := key
+	if ranked {
+		lineKey = "runtime"
+	}
+	rows, misfits, err := lineupRows(s, &d, budget, *within, lineKey)
 	if err != nil {
 		return err
+	}
+	if ranked {
+		if err := rankRows(s, &d, rows, key); err != nil {
+			return err
+		}
 	}
 
 	if f == formatText {
@@ -105,7 +137,11 @@ func runCompare(c *cli, args []string) error {
 			return err
 		}
 	}
-	t := newTable(c.stdout, f, compareColumns(budget > 0))
+	cols := compareColumns(budget > 0)
+	if ranked {
+		cols = append(cols[:len(cols)-1:len(cols)-1], rankColumn(key, func(r compareRow) float64 { return r.rank }), cols[len(cols)-1])
+	}
+	t := newTable(c.stdout, f, cols)
 	t.fit(rows)
 	t.header()
 	for _, r := range rows {
@@ -257,4 +293,29 @@ func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, with
 		rows = append(rows, row)
 	}
 	return rows, misfits, nil
+}
+
+// rankRows sets each row's worst-corner or p10 runtime (key) and ranks
+// the rows by it, longest first; designs that never start go last.
+func rankRows(s *scenario.Scenario, d *discharge.Design, rows []compareRow, key string) error {
+	for i := range rows {
+		cd := *d
+		cd.Cell, cd.Series, cd.TracePoints = rows[i].cell, rows[i].series, 0
+		if !(rows[i].cell == d.Cell && rows[i].series == d.Series) {
+			cd.PackPrice = 0
+		}
+		v, err := rankFigure(s, &cd, key)
+		if err != nil {
+			return fmt.Errorf("--sort %s: %s: %w", key, rows[i].cell.ID, err)
+		}
+		rows[i].rank = v
+	}
+	sort.SliceStable(rows, func(i, j int) bool {
+		a, b := rows[i], rows[j]
+		if (a.r.RuntimeH > 0) != (b.r.RuntimeH > 0) {
+			return a.r.RuntimeH > 0
+		}
+		return a.rank > b.rank
+	})
+	return nil
 }

@@ -10,6 +10,7 @@ import (
 	"headroom/discharge"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
+	"headroom/tolerance"
 )
 
 var runCmd = &command{
@@ -24,7 +25,9 @@ from the built-in demo's design (see headroom demo): a 2×AA toy with a motor
 pulse, 1 h of use a day and a 30 µA standby drain.
 
 flags:
-` + designFlagHelp() + `  --format text|json|csv|md       output format (default text)
+` + designFlagHelp() + `  --spread                      add the spread over the tolerances (see headroom spread),
+                                with its --samples, --seed and --tol
+  --format text|json|csv|md       output format (default text)
 
 Values take SI prefixes (n, u or µ, m, k) and units (V A W ohm Ω h min s % C);
 a bare number is the flag's own unit where that is unambiguous.
@@ -40,6 +43,8 @@ func runDesign(c *cli, args []string) error {
 	fs := newFlags("run")
 	addDesignFlags(fs)
 	formatFlag := fs.String("format", "text", "")
+	spreadFlag := fs.Bool("spread", false, "")
+	sf := addSpreadFlags(fs)
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -58,25 +63,52 @@ func runDesign(c *cli, args []string) error {
 	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
+	if err := sf.apply(s); err != nil {
+		return err
+	}
 	var changed []string
+	var spreadOnly string
 	fs.Visit(func(fl *flag.Flag) {
-		if fl.Name != "format" {
+		if sf.given(fl.Name) && spreadOnly == "" {
+			spreadOnly = fl.Name
+		}
+		if fl.Name != "format" && fl.Name != "spread" && !sf.given(fl.Name) {
 			changed = append(changed, "--"+fl.Name)
 		}
 	})
 	if len(changed) > 0 && s.Name != "" {
 		s.Name += " with " + strings.Join(changed, ", ")
 	}
+	if spreadOnly != "" && !*spreadFlag {
+		return fmt.Errorf("--%s: sets the spread, so it needs --spread", spreadOnly)
+	}
 	d := s.Design
 	r, err := discharge.Evaluate(&d)
 	if err != nil {
 		return fmt.Errorf("design: %w", err)
 	}
+	var rep *tolerance.Report
+	if *spreadFlag {
+		if rep, err = tolerance.Analyse(&d, s.Tolerances, s.Samples, s.Seed); err != nil {
+			return fmt.Errorf("spread: %w", err)
+		}
+	}
 	if f == formatText {
-		_, err = c.stdout.Write(runText(s, &d, r))
+		out := runText(s, &d, r)
+		if rep != nil {
+			b := bytes.NewBuffer(out)
+			fmt.Fprintf(b, "\nspread over the tolerances (headroom spread)\n")
+			spreadText(b, s, rep)
+			out = b.Bytes()
+		}
+		_, err = c.stdout.Write(out)
 		return err
 	}
-	return writeRecord(c.stdout, f, runRecord(s, &d, r))
+	rec := runRecord(s, &d, r)
+	if rep != nil {
+		rec = append(rec, spreadRecord(s, rep, f == formatCSV || f == formatMD)...)
+	}
+	return writeRecord(c.stdout, f, rec)
 }
 
 // hoursPerDay is the design's daily hours of use; 0 means continuous.

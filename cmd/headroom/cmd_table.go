@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"math"
 	"sort"
@@ -29,8 +30,13 @@ row first (at most 1,000,000); ties keep the file's order.
 
 flags:
   --sort COLUMN    runtime, days, delivered, stranded, loss, heat, cost, cell,
-                   protect, floor, temp, load or scale (ascending)
+                   protect, floor, temp, load, scale, worst or p10 (ascending);
+                   worst and p10 are each row's worst-corner and p10 runtime
+                   over the tolerances (see headroom spread), in a column
   --desc           sort descending
+  --samples N, --seed S, --tol NAME=SPREAD
+                   the spread's samples, seed and tolerances, for --sort p10
+                   and worst
   --format FORMAT  text, json, csv or md (default text)
 
 examples:
@@ -53,6 +59,7 @@ type tableRow struct {
 	lossWh, peakW, cost                 float64
 	cause, phase                        string
 	err                                 string
+	rank                                float64 // worst-corner or p10 runtime, for --sort worst|p10
 }
 
 func (r tableRow) cutoff() string {
@@ -108,9 +115,11 @@ var sortKeys = map[string]func(tableRow) (float64, string){
 	"cell":      func(r tableRow) (float64, string) { return 0, r.cell },
 	"protect":   func(r tableRow) (float64, string) { return 0, r.protect },
 	"load":      func(r tableRow) (float64, string) { return 0, r.load },
+	"worst":     func(r tableRow) (float64, string) { return r.rank, "" },
+	"p10":       func(r tableRow) (float64, string) { return r.rank, "" },
 }
 
-var sortOrder = []string{"runtime", "days", "delivered", "stranded", "loss", "heat", "cost", "cell", "protect", "floor", "temp", "load", "scale"}
+var sortOrder = []string{"runtime", "days", "delivered", "stranded", "loss", "heat", "cost", "cell", "protect", "floor", "temp", "load", "scale", "worst", "p10"}
 
 // maxSortedRows bounds the rows held for --sort (about 200 bytes each).
 const maxSortedRows = 1_000_000
@@ -175,6 +184,7 @@ func runTable(c *cli, args []string) error {
 	sortFlag := fs.String("sort", "", "")
 	desc := fs.Bool("desc", false, "")
 	formatFlag := fs.String("format", "text", "")
+	sf := addSpreadFlags(fs)
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -197,6 +207,21 @@ func runTable(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := sf.apply(s); err != nil {
+		return err
+	}
+	_, ranked := rankKeys[key]
+	if !ranked {
+		given := ""
+		fs.Visit(func(fl *flag.Flag) {
+			if sf.given(fl.Name) && given == "" {
+				given = fl.Name
+			}
+		})
+		if given != "" {
+			return fmt.Errorf("--%s: sets the spread, so it needs --sort worst or --sort p10", given)
+		}
+	}
 	n := s.Count()
 	if key != "" && n > maxSortedRows {
 		return fmt.Errorf("--sort: %d rows, more than the %d a sorted table holds; sort fewer combinations or leave out --sort to stream them", n, maxSortedRows)
@@ -206,7 +231,11 @@ func runTable(c *cli, args []string) error {
 			return err
 		}
 	}
-	t := newTable(c.stdout, f, tableColumns(s))
+	cols := tableColumns(s)
+	if ranked {
+		cols = append(cols, rankColumn(key, func(r tableRow) float64 { return r.rank }))
+	}
+	t := newTable(c.stdout, f, cols)
 	if key == "" {
 		t.header()
 		s.Sweep(func(row scenario.Row) bool {
@@ -216,7 +245,23 @@ func runTable(c *cli, args []string) error {
 		return t.end()
 	}
 	rows := make([]tableRow, 0, n)
-	s.Sweep(func(row scenario.Row) bool { rows = append(rows, rowOf(row)); return true })
+	var rankErr error
+	s.Sweep(func(row scenario.Row) bool {
+		r := rowOf(row)
+		r.rank = math.NaN()
+		if ranked && row.Err == nil {
+			d := row.Combo.Design
+			if r.rank, rankErr = rankFigure(s, &d, key); rankErr != nil {
+				rankErr = fmt.Errorf("--sort %s: row %d: %w", key, row.Combo.Index+1, rankErr)
+				return false
+			}
+		}
+		rows = append(rows, r)
+		return true
+	})
+	if rankErr != nil {
+		return rankErr
+	}
 	get := sortKeys[key]
 	sort.SliceStable(rows, func(i, j int) bool {
 		a, as := get(rows[i])

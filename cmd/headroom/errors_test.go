@@ -31,6 +31,8 @@ func TestErrors(t *testing.T) {
 	existing := write("exists.svg", "keep me")
 	existingCSV := write("exists.csv", "keep me")
 	log := write("log.csv", "t,V\n0,1.5\n60,1.4\n120,1.3\n")
+	badTol := write("bad-tol.toml", "name = \"x\"\nfloor = \"1.8V\"\n\n[tolerance]\nfloor = { min = \"1.9V\", max = \"1.7V\" }\n")
+	badTolName := write("bad-tol-name.toml", "name = \"x\"\n[tolerance]\nvt = \"5%\"\n")
 
 	cases := []struct {
 		class string
@@ -39,6 +41,18 @@ func TestErrors(t *testing.T) {
 		exact bool
 	}{
 		{"bad flag value", []string{"run", "--series", "0"}, "--series: 0 cells in series: must be 1 to 48", true},
+		{"bad spread flag", []string{"compare", "--samples", "500"}, "--samples: sets the spread, so it needs --sort worst or --sort p10", true},
+		{"bad spread flag", []string{"table", "--seed", "3"}, "--seed: sets the spread, so it needs --sort worst or --sort p10", true},
+		{"bad spread flag", []string{"spread", "--samples", "0"}, `--samples: "0" must be a whole number from 1 to 1000000`, true},
+		{"bad spread flag", []string{"spread", "--samples", "1000001"}, `--samples: "1000001" must be a whole number from 1 to 1000000`, true},
+		{"bad spread flag", []string{"run", "--spread", "--samples", "x"}, `--samples: "x" must be a whole number from 1 to 1000000`, true},
+		{"bad spread flag", []string{"spread", "--tol", "capacity=-5%"}, "--tol: capacity: spread -5% is negative: expected 0 % or more", true},
+		{"bad spread flag", []string{"spread", "--tol", "load=100%"}, "--tol: load: spread 100% would take load current or power, product to product to zero or below: expected under 100 %", true},
+		{"bad spread flag", []string{"spread", "--tol", "floor=2V..1.7V"}, "--tol: floor: min 2 V is above max 1.7 V", true},
+		{"bad spread flag", []string{"spread", "--tol", "ambient=10%"}, "--tol: ambient: a percentage means nothing", false},
+		{"bad spread flag", []string{"spread", "--tol", "vt=5%"}, `--tol: unknown tolerance "vt": expected one of capacity, lot_capacity, resistance,`, false},
+		{"bad tolerance in file", []string{"spread", badTol}, badTol + ":5: [tolerance] floor: min 1.9 V is above max 1.7 V", true},
+		{"bad tolerance in file", []string{"spread", badTolName}, badTolName + `:3: [tolerance] unknown key "vt": expected samples, seed or a tolerance (capacity,`, false},
 		{"bad flag value", []string{"run", "--series", "two"}, `--series: "two" is not a whole number`, true},
 		{"bad flag value", []string{"run", "--parallel", "17"}, "--parallel: 17 strings in parallel: must be 1 to 16", true},
 		{"bad flag value", []string{"run", "--hours-per-day", "25"}, "--hours-per-day: 25 hours a day: must be above 0 and at most 24", true},
@@ -50,7 +64,7 @@ func TestErrors(t *testing.T) {
 		{"wrong unit kind", []string{"run", "--standby", "2V"}, `--standby: "2V" is a voltage (V), expected a current (A)`, true},
 		{"wrong unit kind", []string{"run", "--temp", "300K"}, `--temp: "300K": unknown unit "K", expected a temperature (C)`, true},
 		{"NaN value", []string{"run", "--floor", "NaN"}, `--floor: "NaN" is not a number`, true},
-		{"unknown subcommand", []string{"frobnicate"}, `unknown command "frobnicate": expected one of run, table, compare, cells, plot, report, netlist, demo, help`, false},
+		{"unknown subcommand", []string{"frobnicate"}, `unknown command "frobnicate": expected one of run, spread, table, compare, pick, cells, plot, report, netlist, demo, help`, false},
 		{"missing file", []string{"run", filepath.Join(dir, "nope.toml")}, "nope.toml: no such file or directory", false},
 		{"missing file", []string{"table", filepath.Join(dir, "nope.toml")}, "nope.toml: no such file or directory", false},
 		{"directory instead of file", []string{"run", dir}, "is a directory, expected a scenario file (.toml)", false},
@@ -65,7 +79,7 @@ func TestErrors(t *testing.T) {
 		{"bad cell file", []string{"cells", "check", badCell}, "bad-cell.csv line 3:", false},
 		{"bad cell file", []string{"run", "--cell", badCell}, "--cell: ", false},
 		{"bad --sort", []string{"table", "--sort", "speed"}, `--sort: "speed" is not a column: expected one of runtime, days`, false},
-		{"bad --sort", []string{"compare", "--sort", "speed"}, `--sort: "speed" is not a compare column: expected cost or runtime`, true},
+		{"bad --sort", []string{"compare", "--sort", "speed"}, `--sort: "speed" is not a compare column: expected cost, runtime, worst or p10`, true},
 		{"--desc without --sort", []string{"table", "--desc"}, "--desc: sorts descending, so it needs --sort COLUMN", true},
 		{"no budget", []string{"compare", "--within-budget", example, "--budget", "0"}, "--within-budget: no budget", false},
 		{"too many arguments", []string{"run", example, example}, "run: unexpected argument", false},
@@ -145,8 +159,8 @@ func TestHelpAndItsExamples(t *testing.T) {
 					redirect = filepath.Join(tmp, f[i+1])
 					made[f[i+1]] = redirect
 					i++
-				case f[i] == "-o":
-					args = append(args, "-o", filepath.Join(tmp, fmt.Sprint(n, "-", f[i+1])))
+				case f[i] == "-o" || f[i] == "--plot":
+					args = append(args, f[i], filepath.Join(tmp, fmt.Sprint(n, "-", f[i+1])))
 					i++
 				case made[f[i]] != "":
 					args = append(args, made[f[i]])

@@ -102,6 +102,9 @@ type field struct {
 	val   any
 }
 
+// rawJSON is a value already written as JSON (a nested list).
+type rawJSON []byte
+
 // writeJSONValue writes v as JSON; floats that are not finite become null.
 func writeJSONValue(b *bytes.Buffer, v any) {
 	switch x := v.(type) {
@@ -128,6 +131,8 @@ func writeJSONValue(b *bytes.Buffer, v any) {
 		b.WriteByte(']')
 	case nil:
 		b.WriteString("null")
+	case rawJSON:
+		b.Write(x)
 	default:
 		panic(fmt.Sprintf("headroom: writeJSONValue: unexpected %T", v))
 	}
@@ -159,6 +164,8 @@ func plainValue(v any) string {
 		return strings.Join(x, "; ")
 	case nil:
 		return ""
+	case rawJSON:
+		return string(x)
 	}
 	panic(fmt.Sprintf("headroom: plainValue: unexpected %T", v))
 }

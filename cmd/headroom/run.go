@@ -40,7 +40,7 @@ type cli struct {
 var errHelp = errors.New("help requested")
 
 // commands lists the subcommands in the order "headroom help" shows them.
-var commands = []*command{runCmd, tableCmd, compareCmd, cellsCmd, plotCmd, reportCmd, netlistCmd, demoCmd, helpCmd}
+var commands = []*command{runCmd, spreadCmd, tableCmd, compareCmd, pickCmd, cellsCmd, plotCmd, reportCmd, netlistCmd, demoCmd, helpCmd}
 
 // helpCmd's body lists commands, which lists helpCmd: the one cycle the
 // table has, broken here.

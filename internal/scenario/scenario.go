@@ -11,6 +11,8 @@ import (
 	"math"
 	"path/filepath"
 	"regexp"
+	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -20,6 +22,7 @@ import (
 	"headroom/internal/limited"
 	"headroom/internal/units"
 	"headroom/protect"
+	"headroom/tolerance"
 )
 
 //go:embed demo.toml
@@ -58,8 +61,38 @@ type Scenario struct {
 	LoadScales   []float64
 
 	Budget float64 // dollars for cells + protection; 0 for none
-	dir    string
+
+	// Tolerances are the spreads of parts and conditions (the [tolerance]
+	// table over tolerance.Defaults), with the spread's sample count and
+	// seed.
+	Tolerances []tolerance.Tol
+	Samples    int
+	Seed       uint64
+
+	// OptionKeys are the keys written in the file's [options] table
+	// ("cells", "protect", ...), so that a search can tell a list the
+	// user narrowed from the design's own single value.
+	OptionKeys []string
+	// Pick holds the [pick] table's settings as written, in file order,
+	// for the pick command to read with the same parsers as its flags.
+	Pick []Setting
+
+	dir string
 }
+
+// Setting is one key of a table read as text: its key, its value as
+// written (numbers and booleans in Go's shortest form) and its line.
+type Setting struct {
+	Key, Value string
+	Line       int
+}
+
+// DefaultSamples and DefaultSeed are the spread's sample count and seed
+// when the [tolerance] table does not give them.
+const (
+	DefaultSamples = 2000
+	DefaultSeed    = 1
+)
 
 type phaseDef struct {
 	Name     string    `toml:"name"`
@@ -73,6 +106,22 @@ type optionsDef struct {
 	Parallel []int    `toml:"parallel"`
 	Protect  []string `toml:"protect"`
 	Loads    []string `toml:"loads"`
+}
+
+// pickDef is the [pick] table: the search's target and limits, checked
+// by the pick command's parsers (the same as its flags).
+type pickDef struct {
+	Need          units.Raw `toml:"need"`
+	At            string    `toml:"at"`
+	Budget        units.Raw `toml:"budget"`
+	MaxCells      int       `toml:"max_cells"`
+	MaxParallel   int       `toml:"max_parallel"`
+	MaxStranded   units.Raw `toml:"max_stranded"`
+	MaxJunction   units.Raw `toml:"max_junction"`
+	BlockReversed bool      `toml:"block_reversed"`
+	MaxInput      units.Raw `toml:"max_input"`
+	By            string    `toml:"by"`
+	Top           int       `toml:"top"`
 }
 
 type sweepDef struct {
@@ -99,7 +148,9 @@ type fileDef struct {
 	Budget      units.Raw        `toml:"budget"`
 	Options     optionsDef       `toml:"options"`
 	Sweep       sweepDef         `toml:"sweep"`
+	Pick        pickDef          `toml:"pick"`
 	Cells       []curves.CellDef `toml:"define_cell"`
+	Tolerance   map[string]any   `toml:"tolerance"`
 }
 
 // sweepValues is a list of values or a {from, to, step} range, decoded
@@ -248,7 +299,16 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if len(md.Keys()) == 0 {
 		return nil, fmt.Errorf("%s: no settings in the file: expected keys such as cell, load and floor", name)
 	}
-	if und := md.Undecoded(); len(und) > 0 {
+	var und []toml.Key
+	for _, k := range md.Undecoded() {
+		// Inline tables inside [tolerance] are decoded into map[string]any
+		// and read by readTolerances, which names its own unknown keys.
+		if len(k) > 2 && k[0] == "tolerance" {
+			continue
+		}
+		und = append(und, k)
+	}
+	if len(und) > 0 {
 		k := und[0].String()
 		return nil, fmt.Errorf("%s:%d: unknown key %q", name, lineOf(data, und[0][len(und[0])-1]), k)
 	}
@@ -256,6 +316,12 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		return fmt.Errorf("%s:%d: %s: %w", name, lineOf(data, key), key, err)
 	}
 	s := &Scenario{Name: f.Name, Note: f.Note, dir: dir}
+	for _, k := range []string{"cells", "series", "parallel", "protect", "loads"} {
+		if md.IsDefined("options", k) {
+			s.OptionKeys = append(s.OptionKeys, k)
+		}
+	}
+	s.Pick = pickSettings(f.Pick, md, data)
 
 	// Cells defined in the file come first, so a design can name them.
 	for i := range f.Cells {
@@ -457,7 +523,72 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if err := d.Validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
+	if err := s.readTolerances(f.Tolerance, func(key string, err error) error {
+		return fmt.Errorf("%s:%d: [tolerance] %w", name, lineInTable(data, "tolerance", key), err)
+	}); err != nil {
+		return nil, err
+	}
 	return s, nil
+}
+
+// pickSettings lists the [pick] keys the file sets, in the order of
+// pickDef, with their values as text and their lines.
+func pickSettings(p pickDef, md toml.MetaData, data []byte) []Setting {
+	vals := []struct {
+		key string
+		val string
+	}{
+		{"need", p.Need.String()}, {"at", p.At}, {"budget", p.Budget.String()},
+		{"max_cells", strconv.Itoa(p.MaxCells)}, {"max_parallel", strconv.Itoa(p.MaxParallel)},
+		{"max_stranded", p.MaxStranded.String()}, {"max_junction", p.MaxJunction.String()},
+		{"block_reversed", strconv.FormatBool(p.BlockReversed)}, {"max_input", p.MaxInput.String()},
+		{"by", p.By}, {"top", strconv.Itoa(p.Top)},
+	}
+	var out []Setting
+	for _, v := range vals {
+		if md.IsDefined("pick", v.key) {
+			out = append(out, Setting{Key: v.key, Value: v.val, Line: lineInTable(data, "pick", v.key)})
+		}
+	}
+	return out
+}
+
+// readTolerances sets s.Tolerances, Samples and Seed from the [tolerance]
+// table (nil: the defaults). at names the key and its line.
+func (s *Scenario) readTolerances(tab map[string]any, at func(key string, err error) error) error {
+	s.Tolerances, s.Samples, s.Seed = tolerance.Defaults(), DefaultSamples, DefaultSeed
+	keys := make([]string, 0, len(tab))
+	for k := range tab {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	for _, k := range keys {
+		v := tab[k]
+		switch k {
+		case "samples":
+			n, ok := v.(int64)
+			if !ok || n < 1 || n > tolerance.MaxSamples {
+				return at(k, fmt.Errorf("samples: %v must be a whole number from 1 to %d", v, tolerance.MaxSamples))
+			}
+			s.Samples = int(n)
+		case "seed":
+			n, ok := v.(int64)
+			if !ok || n < 0 {
+				return at(k, fmt.Errorf("seed: %v must be a whole number, 0 or more", v))
+			}
+			s.Seed = uint64(n)
+		default:
+			if _, ok := tolerance.Default(k); !ok {
+				return at(k, fmt.Errorf("unknown key %q: expected samples, seed or a tolerance (%s)", k, strings.Join(tolerance.Names(), ", ")))
+			}
+			t, err := tolerance.Parse(k, v)
+			if err != nil {
+				return at(k, err)
+			}
+			s.Tolerances = tolerance.With(s.Tolerances, t)
+		}
+	}
+	return nil
 }
 
 // FindCell resolves a library id, or a .csv or .toml cell file path
@@ -589,4 +720,16 @@ func lineOf(data []byte, key string) int {
 		return 1
 	}
 	return 1 + strings.Count(string(data[:loc[0]]), "\n")
+}
+
+// lineInTable finds the first line that sets key after the [table]
+// header, for messages; the header's line if none, 1 if no header.
+func lineInTable(data []byte, table, key string) int {
+	re := regexp.MustCompile(`(?m)^[ \t]*\[[ \t]*` + regexp.QuoteMeta(table) + `[ \t]*\][ \t]*(#.*)?$`)
+	loc := re.FindIndex(data)
+	if loc == nil {
+		return 1
+	}
+	head := 1 + strings.Count(string(data[:loc[0]]), "\n")
+	return head - 1 + lineOf(data[loc[0]:], key)
 }

@@ -13,6 +13,7 @@ import (
 	"headroom/curves"
 	"headroom/discharge"
 	"headroom/protect"
+	"headroom/tolerance"
 )
 
 // Saved is what a saved scenario holds: one design and its labels.
@@ -22,6 +23,12 @@ type Saved struct {
 	Design      discharge.Design
 	ProtectSpec string
 	Budget      float64
+	// Tolerances, Samples and Seed are the spread's; those that differ
+	// from tolerance.Defaults, DefaultSamples and DefaultSeed are written
+	// in a [tolerance] table (nil and 0: none).
+	Tolerances []tolerance.Tol
+	Samples    int
+	Seed       uint64
 }
 
 func g(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
@@ -69,6 +76,7 @@ func Format(s Saved) []byte {
 		}
 		fmt.Fprintf(&b, "load = %q\nduration = \"%ss\"\n", p.Load.String(), g(p.Seconds))
 	}
+	writeTolerances(&b, s)
 	if lib, ok := curves.Lookup(d.Cell.ID); !ok || lib != d.Cell {
 		writeCell(&b, d.Cell)
 	}
@@ -179,4 +187,25 @@ func writeAtomic(path string, data []byte, overwrite bool, write func(*os.File, 
 		return fmt.Errorf("%s: %w", path, UnwrapPath(err))
 	}
 	return nil
+}
+
+// writeTolerances writes the [tolerance] table: the tolerances that differ
+// from the defaults, and the sample count and seed when not the default.
+func writeTolerances(b *bytes.Buffer, s Saved) {
+	var lines []string
+	for _, t := range s.Tolerances {
+		if def, ok := tolerance.Default(t.Name); ok && def != t {
+			lines = append(lines, t.Name+" = "+t.TOML())
+		}
+	}
+	if s.Samples > 0 && s.Samples != DefaultSamples {
+		lines = append(lines, fmt.Sprintf("samples = %d", s.Samples))
+	}
+	if s.Samples > 0 && s.Seed != DefaultSeed {
+		lines = append(lines, fmt.Sprintf("seed = %d", s.Seed))
+	}
+	if len(lines) == 0 {
+		return
+	}
+	b.WriteString("\n[tolerance]\n" + strings.Join(lines, "\n") + "\n")
 }

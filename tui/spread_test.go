@@ -1,0 +1,97 @@
+package tui
+
+import (
+	"path/filepath"
+	"strings"
+	"testing"
+
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
+
+	"headroom/internal/goldentest"
+	"headroom/tolerance"
+)
+
+// settle runs the commands a model returns (the spread's, off the key
+// path) until none is left, as the bubbletea runtime would.
+func settle(t *testing.T, m tea.Model, cmd tea.Cmd) tea.Model {
+	t.Helper()
+	for i := 0; cmd != nil && i < 10; i++ {
+		msg := cmd()
+		if b, ok := msg.(tea.BatchMsg); ok {
+			var next []tea.Cmd
+			for _, c := range b {
+				if c != nil {
+					next = append(next, c)
+				}
+			}
+			if len(next) == 0 {
+				return m
+			}
+			for _, c := range next[1:] {
+				m = settle(t, m, c)
+			}
+			cmd = next[0]
+			continue
+		}
+		m, cmd = m.Update(msg)
+	}
+	return m
+}
+
+// The verdict fills in the p10 and the worst corner once the spread's
+// command has run, and they are the tolerance package's own figures for
+// the demo (same design, tolerances, samples and seed).
+func TestSpreadFillsVerdict(t *testing.T) {
+	m := New(nil)
+	var tm tea.Model = m
+	first := m.Init()
+	if first == nil {
+		t.Fatal("Init started no spread")
+	}
+	tm, _ = tm.Update(tea.WindowSizeMsg{Width: 120, Height: 40})
+	before := ansi.Strip(tm.View())
+	if !strings.Contains(before, "working…") {
+		t.Fatalf("before the spread ran, no \"working…\":\n%s", before)
+	}
+	tm = settle(t, tm, first)
+	view := ansi.Strip(tm.View())
+	d := m.shared.design()
+	rep, err := tolerance.Analyse(&d, m.scen.Tolerances, m.scen.Samples, m.scen.Seed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"9 of 10 run", "≥ " + hours(rep.Stats.P10H), "(p10), worst " + hours(rep.Corner.WorstH()), "p10–p90 cut-off"} {
+		if !strings.Contains(view, want) {
+			t.Errorf("no %q after the spread ran:\n%s", want, view)
+		}
+	}
+	// A knob step makes the spread stale at once: the verdict says so
+	// and Update hands back the command for the next one.
+	tm, cmd := tm.Update(keyRight)
+	if v := ansi.Strip(tm.View()); !strings.Contains(v, "working…") {
+		t.Errorf("after a knob step the old spread is still shown:\n%s", v)
+	}
+	if cmd == nil {
+		t.Error("a knob step started no spread")
+	}
+}
+
+// The spread view at 100×30 (colour stripped) against its golden file;
+// go test ./tui -run TestSpreadView -update rewrites it.
+func TestSpreadView(t *testing.T) {
+	m := New(nil)
+	var tm tea.Model = m
+	first := m.Init()
+	tm, _ = tm.Update(tea.WindowSizeMsg{Width: 100, Height: 30})
+	tm = settle(t, tm, first)
+	tm, _ = tm.Update(runes("4"))
+	got := ansi.Strip(tm.View())
+	checkSize(t, got, 100, 30)
+	for _, want := range []string{"What to tighten", "floor", "ambient", "█"} {
+		if !strings.Contains(got, want) {
+			t.Errorf("no %q in the spread view:\n%s", want, got)
+		}
+	}
+	goldentest.Check(t, filepath.Join("testdata", "TestSpreadView.golden"), got)
+}
