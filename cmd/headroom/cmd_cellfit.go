@@ -175,7 +175,11 @@ func readLogFile(path string) (*cellfit.Log, error) {
 
 func writeFitText(c *cli, rep *cellfit.Report, cell *curves.Cell, out, plotOut string, borrow *curves.Cell) error {
 	var b bytes.Buffer
-	fmt.Fprintf(&b, "cells fit: %d log(s) fitted together, each log weighted alike\n\n", len(rep.Logs))
+	if n := len(rep.Logs); n == 1 {
+		fmt.Fprintf(&b, "cells fit: one log\n\n")
+	} else {
+		fmt.Fprintf(&b, "cells fit: %d logs fitted together, each log weighted alike\n\n", n)
+	}
 	name := 4
 	for _, l := range rep.Logs {
 		name = max(name, len([]rune(l.File)))
