@@ -15,6 +15,7 @@ import (
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
+	"headroom/tolerance"
 )
 
 var reportCmd = &command{
@@ -120,24 +121,33 @@ func runReport(c *cli, args []string) error {
 
 // report is everything a report shows, worked out once for both formats.
 type report struct {
-	Title    string
-	Job      string
-	Design   [][2]string // label, value
-	Verdict  []reportValue
-	Summary  []string // the verdict in sentences
-	Lineup   []lineupLine
-	Misfits  string
-	Reverse  []reverseLine
-	Warnings []string
-	Cautions []string
-	Version  string
-	Command  string
-	chartSVG []byte
-	Chart    template.HTML // the chart, inline
+	Title      string
+	Job        string
+	Design     [][2]string // label, value
+	Verdict    []reportValue
+	Summary    []string // the verdict in sentences
+	Lineup     []lineupLine
+	Misfits    string
+	Reverse    []reverseLine
+	Warnings   []string
+	Cautions   []string
+	Spread     []reportValue // the spread's figures, as run --spread --format json gives them
+	Sides      []sideLine
+	SpreadNote string
+	spreadMD   []byte
+	Version    string
+	Command    string
+	chartSVG   []byte
+	Chart      template.HTML // the chart, inline
 }
 
 type reportValue struct {
 	Key, Label, Value string
+}
+
+type sideLine struct {
+	Name, Low, High, LowH, HighH, Lost string
+	Bar                                int // percent of the largest loss
 }
 
 type lineupLine struct {
@@ -219,6 +229,34 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 		rep.Reverse = append(rep.Reverse, reverseLine{Kind: k, Current: k == cur,
 			Whole: caseWords(rv.WholePack), WholeNote: rv.WholePack.Note, OneCell: caseWords(rv.OneCell)})
 	}
+
+	tr, err := tolerance.Analyse(&d, s.Tolerances, s.Samples, s.Seed)
+	if err != nil {
+		return nil, fmt.Errorf("spread: %w", err)
+	}
+	for _, f := range spreadRecord(s, tr, false) {
+		if f.key == "sensitivity" || f.key == "spread_warnings" {
+			continue
+		}
+		rep.Spread = append(rep.Spread, reportValue{Key: f.key, Label: f.label, Value: plainValue(f.val)})
+	}
+	maxLost := 0.0
+	for _, sd := range tr.Corner.Sides {
+		maxLost = max(maxLost, sd.LostH)
+	}
+	for _, sd := range tr.Corner.Sides {
+		bar := 0
+		if maxLost > 0 {
+			bar = int(100*sd.LostH/maxLost + 0.5)
+		}
+		rep.Sides = append(rep.Sides, sideLine{Name: sd.Name, Low: sd.LowText, High: sd.HighText,
+			LowH: sig(sd.LowH, 3) + " h", HighH: sig(sd.HighH, 3) + " h", Lost: sig(sd.LostH, 3) + " h", Bar: bar})
+	}
+	rep.Warnings = append(rep.Warnings, tr.Warnings...)
+	rep.SpreadNote = fmt.Sprintf("Each tolerance alone at its limits, the rest nominal, ranked by the hours its worse side loses; the spread is %d samples (Latin hypercube, seed %d). The default tolerances are typical values from memory: set yours in the scenario's [tolerance] table from your data sheets.", tr.Stats.Samples, tr.Stats.Seed)
+	var mb bytes.Buffer
+	spreadMarkdown(&mb, tr)
+	rep.spreadMD = mb.Bytes()
 
 	svg, err := chart(s, false, "svg")
 	if err != nil {
@@ -333,6 +371,8 @@ func (rep *report) markdown(chartFile string) []byte {
 		fmt.Fprintf(&b, "| %s | `%s` | %s |\n", v.Label, v.Key, esc(v.Value))
 	}
 	fmt.Fprintf(&b, "\n## Discharge\n\n![Pack and load voltage over the run](%s)\n", chartFile)
+	fmt.Fprintf(&b, "\n## Spread over the tolerances\n\n%s\n\n", rep.SpreadNote)
+	b.Write(rep.spreadMD)
 	b.WriteString("\n## Chemistry line-up\n\n| cell | S×P | runtime | $/h | stranded | pack+part | caution |\n|---|---|---:|---:|---:|---:|---|\n")
 	for _, l := range rep.Lineup {
 		cell := l.Cell
@@ -386,6 +426,8 @@ tr.this { background: #eef4fa; font-weight: 600; }
 .job { color: #444; }
 .key { color: #777; font-family: ui-monospace, monospace; font-size: .85em; }
 .chart svg { width: 100%; height: auto; }
+td.barcell { width: 30%; }
+.bar { background: #c8553d; height: .8em; margin-top: .25em; print-color-adjust: exact; -webkit-print-color-adjust: exact; }
 pre { background: #f4f4f4; padding: .5rem; white-space: pre-wrap; word-break: break-all; }
 @media print {
   @page { size: A4; margin: 15mm; }
@@ -420,6 +462,18 @@ pre { background: #f4f4f4; padding: .5rem; white-space: pre-wrap; word-break: br
 <table>
 <tr><th>quantity</th><th>key</th><th class="num">value</th></tr>
 {{range .Verdict}}<tr><td>{{.Label}}</td><td class="key">{{.Key}}</td><td class="num" data-key="{{.Key}}">{{.Value}}</td></tr>
+{{end}}</table>
+</section>
+<section id="spread">
+<h2>Spread over the tolerances</h2>
+<table>
+<tr><th>quantity</th><th>key</th><th class="num">value</th></tr>
+{{range .Spread}}<tr><td>{{.Label}}</td><td class="key">{{.Key}}</td><td class="num" data-key="{{.Key}}">{{.Value}}</td></tr>
+{{end}}</table>
+<p>{{.SpreadNote}}</p>
+<table>
+<tr><th>tolerance</th><th class="num">low</th><th class="num">runtime</th><th class="num">high</th><th class="num">runtime</th><th class="num">lost</th><th></th></tr>
+{{range .Sides}}<tr><td>{{.Name}}</td><td class="num">{{.Low}}</td><td class="num">{{.LowH}}</td><td class="num">{{.High}}</td><td class="num">{{.HighH}}</td><td class="num">{{.Lost}}</td><td class="barcell"><div class="bar" style="width: {{.Bar}}%"></div></td></tr>
 {{end}}</table>
 </section>
 <section id="lineup">

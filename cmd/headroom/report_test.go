@@ -76,7 +76,7 @@ func TestReportHTMLMatchesRun(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			want := runJSON(t, append([]string{"run"}, c.args...)...)
+			want := runJSON(t, append([]string{"run", "--spread"}, c.args...)...)
 			doc := parseHTML(t, page)
 			ids := map[string]bool{}
 			seen := 0
@@ -123,14 +123,15 @@ func TestReportHTMLMatchesRun(t *testing.T) {
 					t.Errorf("%s: run --format json has %T %v", key, w, w)
 				}
 			})
-			for _, id := range []string{"job", "design", "verdict", "chart", "figures", "lineup", "reverse", "cautions", "reproduce"} {
+			for _, id := range []string{"job", "design", "verdict", "chart", "figures", "spread", "lineup", "reverse", "cautions", "reproduce"} {
 				if !ids[id] {
 					t.Errorf("section %q missing", id)
 				}
 			}
-			// Every figure of run's JSON but the lists and the name is in
-			// the verdict table.
-			if n := len(want) - 3; seen != n {
+			// Every figure of run --spread's JSON but the lists (warnings,
+			// cautions, sensitivity, spread warnings) and the name is in
+			// the figures and spread tables.
+			if n := len(want) - 5; seen != n {
 				t.Errorf("%d verdict figures in the report, run --format json has %d", seen, n)
 			}
 			if !strings.Contains(string(page), "<svg") || !strings.Contains(string(page), "@media print") {
