@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"headroom/internal/guard"
 	"headroom/internal/rc"
 )
 
@@ -85,7 +86,18 @@ type Cell struct {
 
 	Price  float64 // typical price of one cell in dollars, at least 0
 	Source string  // where the numbers come from
+
+	// Thinned is set when the readers thinned a long curve (see
+	// MaxCurvePoints); nil otherwise.
+	Thinned *Thinning
 }
+
+// MaxCellCurrent is the most current, in amperes, a cell's curve or
+// rating may be taken at: the most a load may draw.
+const MaxCellCurrent = 100.0
+
+// MaxTempPoints is the most points a cell's temperature table may have.
+const MaxTempPoints = 64
 
 // MaxRC is the most polarisation branches a cell may have.
 const MaxRC = 3
@@ -99,26 +111,26 @@ func (c *Cell) Validate() error {
 	switch {
 	case c.Curve == nil:
 		return bad("curve", "missing")
-	case !fin(c.RefCurrent) || c.RefCurrent < 0:
-		return bad("ref_current", "%v A must be 0 or more", c.RefCurrent)
-	case !fin(c.RatedMAh) || c.RatedMAh <= 0:
-		return bad("rated_mAh", "%v must be above 0", c.RatedMAh)
-	case !fin(c.RatedCurrent) || c.RatedCurrent < 0:
-		return bad("rated_current", "%v A must be 0 or more", c.RatedCurrent)
+	case !fin(c.RefCurrent) || c.RefCurrent < 0 || c.RefCurrent > MaxCellCurrent:
+		return bad("ref_current", "%v A must be 0 to %g A", c.RefCurrent, MaxCellCurrent)
+	case !fin(c.RatedMAh) || c.RatedMAh <= 0 || c.RatedMAh > MaxCapacityMAh:
+		return bad("rated_mAh", "%v must be above 0 and at most %.0f mAh (1000 Ah)", c.RatedMAh, MaxCapacityMAh)
+	case !fin(c.RatedCurrent) || c.RatedCurrent < 0 || c.RatedCurrent > MaxCellCurrent:
+		return bad("rated_current", "%v A must be 0 to %g A", c.RatedCurrent, MaxCellCurrent)
 	case !fin(c.EndPoint) || c.EndPoint <= 0:
 		return bad("end_point", "%v V must be above 0", c.EndPoint)
 	case !fin(c.Peukert) || c.Peukert < 1 || c.Peukert > 2:
 		return bad("peukert", "%v must be between 1 and 2", c.Peukert)
 	case !fin(c.SelfDischarge) || c.SelfDischarge < 0 || c.SelfDischarge > 1:
 		return bad("self_discharge", "%v per month must be between 0 and 1", c.SelfDischarge)
-	case !fin(c.Price) || c.Price < 0:
-		return bad("price", "%v must be 0 or more", c.Price)
-	case !fin(c.NominalV) || c.NominalV < 0:
-		return bad("nominal", "%v V must be 0 or more", c.NominalV)
+	case !guard.PriceOK(c.Price):
+		return bad("price", "%v must be 0 to %.0f dollars (above 0, at least %.6f)", c.Price, guard.MaxPrice, guard.MinPrice)
+	case !fin(c.NominalV) || c.NominalV < 0 || c.NominalV > 60:
+		return bad("nominal", "%v V must be 0 to 60 V", c.NominalV)
 	}
 	if c.Rechargeable {
-		if c.CycleLife < 1 {
-			return bad("cycle_life", "%d must be at least 1 for a rechargeable cell", c.CycleLife)
+		if c.CycleLife < 1 || c.CycleLife > 1e6 {
+			return bad("cycle_life", "%d must be at least 1 and at most 1000000 for a rechargeable cell", c.CycleLife)
 		}
 		if !fin(c.ChargeEfficiency) || c.ChargeEfficiency <= 0 || c.ChargeEfficiency > 1 {
 			return bad("charge_efficiency", "%v must be above 0 and at most 1", c.ChargeEfficiency)
@@ -151,6 +163,9 @@ func (c *Cell) Validate() error {
 		if i > 0 && r.Depth <= c.Resistance[i-1].Depth {
 			return bad("resistance", "point %d: depth %v must be above the previous %v", i+1, r.Depth, c.Resistance[i-1].Depth)
 		}
+	}
+	if len(c.Temperature) > MaxTempPoints {
+		return bad("temperature", "%d points, at most %d", len(c.Temperature), MaxTempPoints)
 	}
 	for i, t := range c.Temperature {
 		if !fin(t.Celsius) || t.Celsius < -60 || t.Celsius > 100 {

@@ -13,6 +13,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"headroom/internal/guard"
 	"headroom/internal/limited"
 	"headroom/internal/units"
 )
@@ -43,6 +44,11 @@ func readLines(r io.Reader, name string) ([]textLine, error) {
 		return nil, fmt.Errorf("%s: file is empty", name)
 	}
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf")) // a UTF-8 byte-order mark from spreadsheets
+	// Line ends: LF, CR LF, or CR alone (old spreadsheet exports) all end
+	// a line.
+	if bytes.IndexByte(data, '\r') >= 0 {
+		data = bytes.ReplaceAll(bytes.ReplaceAll(data, []byte("\r\n"), []byte("\n")), []byte("\r"), []byte("\n"))
+	}
 	var out []textLine
 	sc := bufio.NewScanner(bytes.NewReader(data))
 	sc.Buffer(make([]byte, 0, 512), maxLineLen+2)
@@ -113,10 +119,10 @@ func parseNumber(s string, col csvColumn) (float64, error) {
 }
 
 // cellName is the id a file gives its cell: the base name without the
-// extension.
+// extension, fit to print on a terminal.
 func cellName(name string) string {
 	b := filepath.Base(name)
-	return strings.TrimSuffix(b, filepath.Ext(b))
+	return guard.Clean(strings.TrimSuffix(b, filepath.Ext(b)))
 }
 
 // ReadCSV reads a user cell from CSV points. name is used for the cell id
@@ -199,7 +205,7 @@ func ReadCSV(r io.Reader, name string) (*Cell, error) {
 		RatedMAh:  curve.End(),
 		EndPoint:  v[len(v)-1],
 		Peukert:   1,
-		Source:    "points from " + filepath.Base(name),
+		Source:    "points from " + guard.Clean(filepath.Base(name)),
 	}
 	if withOhm {
 		end := curve.End()
@@ -212,6 +218,7 @@ func ReadCSV(r io.Reader, name string) (*Cell, error) {
 	if err := c.Validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
+	thinCell(c, false)
 	return c, nil
 }
 

@@ -15,6 +15,12 @@ type Curve struct {
 	v []float64 // volts, non-increasing
 }
 
+// MaxCapacityMAh is the most charge a cell may claim, in its curve or its
+// rating: 1000 Ah, far above any cell a small product carries (a D cell
+// holds about 15 Ah), and far enough below overflow that every figure
+// derived from it stays finite.
+const MaxCapacityMAh = 1e6
+
 // CurveError says what is wrong with a curve and at which point (0-based
 // index into the points given).
 type CurveError struct {
@@ -45,6 +51,8 @@ func NewCurve(q, v []float64) (*Curve, error) {
 			return nil, &CurveError{i, fmt.Sprintf("voltage %g V must be above 0 V", v[i])}
 		case v[i] > 60:
 			return nil, &CurveError{i, fmt.Sprintf("voltage %g V is above 60 V: not a small cell", v[i])}
+		case q[i] > MaxCapacityMAh:
+			return nil, &CurveError{i, fmt.Sprintf("charge %g mAh is above %.0f mAh (1000 Ah): not a small cell", q[i], MaxCapacityMAh)}
 		}
 		if i == 0 {
 			continue

@@ -122,11 +122,26 @@ func FuzzReadCellTOML(f *testing.F) {
 		"curve = [[0, 1.5], [100, 1]]\nresistance = [[0.5, 1], [0.2, 1]]\n", "curve = \"x\"\n", "voltage = 3\n",
 		"curve = [[0, 1.5], [100, 1]]\ncurve_csv = \"x.csv\"\n", "curve_csv = \"/dev/null.csv\"\n", "x = \x00\n",
 		"curve = [[0, 1.5], [100, 1]]\nrechargeable = true\n", "curve = [[0, 1.5], [100, 1]]\nrated_mAh = \"1e400mAh\"\n",
+		// hostile shapes: nesting at and past the limit, long dotted keys,
+		// claims past the physical ranges
+		"curve = [[0, 1.5], [100, 1]]\nx = " + strings.Repeat("{a=", 16) + "1" + strings.Repeat("}", 16) + "\n",
+		"curve = " + strings.Repeat("[", 17) + strings.Repeat("]", 17) + "\n",
+		"curve = [[0, 1.5], [100, 1]]\n" + strings.Repeat("a.", 8) + "b = 1\n",
+		"curve = [[0, 1.5], [1e307, 1]]\n", "curve = [[0, 1.5], [100, 1]]\nprice = 1e308\n",
 	} {
 		f.Add([]byte(s))
 	}
 	name := filepath.Join(f.TempDir(), "cell.toml")
 	f.Fuzz(func(t *testing.T, data []byte) {
+		// Whatever follows a line that opens 17 inline tables, or a key
+		// of 9 parts, the file is refused on its shape, before parsing.
+		for _, head := range []string{"x = " + strings.Repeat("{a=", 17), strings.Repeat("a.", 8) + "b = 1"} {
+			hostile := append([]byte(head+"\n"), data...)
+			if _, err := ReadCellTOML(bytes.NewReader(hostile), name); err == nil || !(strings.HasPrefix(err.Error(), name+" line 1: ") &&
+				strings.Contains(err.Error(), "refuses the file before reading it") || prechecked(err)) {
+				t.Fatalf("%q + data: %v, want the shape refusal on line 1 (or a binary or size refusal)", head, err)
+			}
+		}
 		c, err := ReadCellTOML(bytes.NewReader(data), name)
 		if err != nil {
 			if c != nil {
@@ -161,4 +176,10 @@ func FuzzReadCellTOML(f *testing.F) {
 			}
 		}
 	})
+}
+
+// prechecked reports the refusals that come before the shape check: binary
+// data and size.
+func prechecked(err error) bool {
+	return strings.Contains(err.Error(), "binary data") || strings.Contains(err.Error(), "larger than")
 }

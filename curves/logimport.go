@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+
+	"headroom/internal/guard"
 )
 
 // ImportLog converts a time–voltage log, recorded while the cell was
@@ -111,11 +113,14 @@ func ImportLog(r io.Reader, name string, current float64) (*Cell, error) {
 		RatedCurrent: current,
 		EndPoint:     v[len(v)-1],
 		Peukert:      1,
-		Source:       fmt.Sprintf("log %s at %g A", filepath.Base(name), current),
+		Source:       fmt.Sprintf("log %s at %g A", guard.Clean(filepath.Base(name)), current),
 	}
 	if err := c.Validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
+	// A log holds thousands of samples; the engine needs a few dozen
+	// points, and the file written must stay within what the readers take.
+	thinCell(c, true)
 	return c, nil
 }
 

@@ -12,6 +12,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"headroom/internal/guard"
 	"headroom/internal/limited"
 	"headroom/internal/rc"
 	"headroom/internal/units"
@@ -111,9 +112,11 @@ func (d *CellDef) build() (*Cell, error) {
 	if id == "" {
 		return nil, fe("id", 0, "missing")
 	}
+	// Every text a file gives reaches a terminal: no control characters.
 	c := &Cell{
-		ID: id, Name: d.Name, Chemistry: d.Chemistry, Designation: d.Designation,
-		Rechargeable: d.Rechargeable, CycleLife: d.CycleLife, Source: d.Source,
+		ID: guard.Clean(id), Name: guard.Clean(d.Name), Chemistry: guard.Clean(d.Chemistry),
+		Designation: guard.Clean(d.Designation), Rechargeable: d.Rechargeable, CycleLife: d.CycleLife,
+		Source: guard.Clean(d.Source),
 	}
 	if c.Name == "" {
 		c.Name = id
@@ -242,6 +245,7 @@ func (d *CellDef) build() (*Cell, error) {
 	if err := c.Validate(); err != nil {
 		return nil, validateFieldError(err)
 	}
+	thinCell(c, false)
 	return c, nil
 }
 
@@ -270,6 +274,9 @@ func ReadCellTOML(r io.Reader, name string) (*Cell, error) {
 	}
 	if bytes.IndexByte(data, 0) >= 0 {
 		return nil, fmt.Errorf("%s: not a text file (binary data)", name)
+	}
+	if err := guard.CheckTOML(data); err != nil {
+		return nil, fmt.Errorf("%s %w", name, err)
 	}
 	var d CellDef
 	md, err := toml.Decode(string(data), &d)

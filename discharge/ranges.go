@@ -1,6 +1,10 @@
 package discharge
 
-import "fmt"
+import (
+	"fmt"
+
+	"headroom/internal/guard"
+)
 
 // The ranges a design's values must lie in. This is their one home: the
 // scenario reader, the command line's flags and the screen's knobs all
@@ -13,9 +17,20 @@ const (
 	MaxFloorV      = 1000.0 // floor at the load, volts, from 0
 	MinTempC       = -40.0  // ambient, °C
 	MaxTempC       = 85.0
-	MaxStandbyA    = 10.0 // standby drain, amperes, from 0
-	MaxPrice       = 1e6  // any price in dollars (pack, per kWh, budget), from 0
-	MaxHoursPerDay = 24.0 // hours of use a day, above 0
+	MaxStandbyA    = 10.0           // standby drain, amperes, from 0
+	MaxPrice       = guard.MaxPrice // any price in dollars (pack, per kWh, budget, a cell's), from 0
+	MaxHoursPerDay = 24.0           // hours of use a day, above 0
+
+	// Below these a value above 0 is noise that prints as a row of zeros
+	// (a standby of 1e-300 A did): 1 pA is far below any cell's
+	// self-discharge, a ten-thousandth of a cent below any price, 1 s a
+	// day below any use. MaxLoadOhms is the largest load resistance.
+	MinStandbyA    = 1e-12
+	MinPrice       = guard.MinPrice
+	MinHoursPerDay = 1.0 / 3600
+	MinLoadA       = 1e-12 // a constant-current phase, from 0
+	MinLoadW       = 1e-12 // a constant-power phase, from 0
+	MaxLoadOhms    = 1e12
 )
 
 // CheckSeries checks a series count.
@@ -52,16 +67,16 @@ func CheckTemp(v float64) error {
 
 // CheckStandby checks a standby current.
 func CheckStandby(v float64) error {
-	if !(v >= 0 && v <= MaxStandbyA) {
-		return fmt.Errorf("standby %v A: must be 0 to %g A", v, MaxStandbyA)
+	if !(v == 0 || v >= MinStandbyA && v <= MaxStandbyA) {
+		return fmt.Errorf("standby %v A: must be 0 to %g A (above 0, at least 1 pA)", v, MaxStandbyA)
 	}
 	return nil
 }
 
 // CheckPrice checks a price in dollars.
 func CheckPrice(v float64) error {
-	if !(v >= 0 && v <= MaxPrice) {
-		return fmt.Errorf("price %v: must be 0 or more and at most %.0f", v, MaxPrice)
+	if !guard.PriceOK(v) {
+		return fmt.Errorf("price %v: must be 0 or more and at most %.0f (above 0, at least %.6f)", v, MaxPrice, MinPrice)
 	}
 	return nil
 }
@@ -69,8 +84,28 @@ func CheckPrice(v float64) error {
 // CheckHoursPerDay checks hours of use a day: above 0 and at most
 // MaxHoursPerDay (a Design also takes 0 for continuous use).
 func CheckHoursPerDay(h float64) error {
-	if !(h > 0 && h <= MaxHoursPerDay) {
-		return fmt.Errorf("%v hours a day: must be above 0 and at most %g", h, MaxHoursPerDay)
+	if !(h >= MinHoursPerDay && h <= MaxHoursPerDay) {
+		return fmt.Errorf("%v hours a day: must be above 0 and at most %g (at least 1 s)", h, MaxHoursPerDay)
+	}
+	return nil
+}
+
+// CheckDemand checks a load's demand against MinLoadA, MinLoadW and
+// MaxLoadOhms; Load.Validate bounds it from the other side.
+func CheckDemand(l Load) error {
+	switch l.Kind {
+	case ConstantCurrent:
+		if l.Amps > 0 && l.Amps < MinLoadA {
+			return fmt.Errorf("current %v A: must be 0 or at least 1 pA", l.Amps)
+		}
+	case ConstantPower:
+		if l.Watts > 0 && l.Watts < MinLoadW {
+			return fmt.Errorf("power %v W: must be 0 or at least 1 pW", l.Watts)
+		}
+	case ConstantResistance, LED:
+		if l.Ohms > MaxLoadOhms {
+			return fmt.Errorf("resistance %v Ω: must be at most 1 TΩ", l.Ohms)
+		}
 	}
 	return nil
 }

@@ -63,7 +63,7 @@ func checkSane(t *testing.T, m Model, where string) {
 			}
 		}
 	}
-	for _, row := range m.lineupRows {
+	for _, row := range m.lineupRows() {
 		if row.err == nil && (math.IsNaN(row.res.RuntimeH) || math.IsNaN(row.res.CostPerHour)) {
 			t.Fatalf("%s: line-up row %s is not finite", where, row.cell.ID)
 		}

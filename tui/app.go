@@ -6,13 +6,17 @@ package tui
 
 import (
 	"fmt"
+	"os"
+	"os/signal"
 	"strings"
+	"syscall"
 
 	"github.com/charmbracelet/bubbles/help"
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 )
 
@@ -92,14 +96,64 @@ func New(s *scenario.Scenario) Model {
 }
 
 // Run opens the screen on scenario s (nil for the demo) in the terminal's
-// alternate screen and returns when the user quits.
+// alternate screen and returns when the user quits. A hangup, quit,
+// terminate or interrupt signal closes the screen, restores the terminal
+// (main screen, cursor, line mode) and returns a *SignalError.
 func Run(s *scenario.Scenario) error {
-	_, err := tea.NewProgram(New(s), tea.WithAltScreen()).Run()
+	return run(s)
+}
+
+// run is Run with the program's options added (tests give it pipes).
+func run(s *scenario.Scenario, opts ...tea.ProgramOption) error {
+	opts = append([]tea.ProgramOption{tea.WithAltScreen(), tea.WithoutSignalHandler()}, opts...)
+	p := tea.NewProgram(New(s), opts...)
+	sigs := make(chan os.Signal, 1)
+	signal.Notify(sigs, closingSignals...)
+	defer signal.Stop(sigs)
+	caught := make(chan os.Signal, 1)
+	done := make(chan struct{})
+	defer close(done)
+	go func() {
+		select {
+		case sig := <-sigs:
+			caught <- sig
+			p.Kill() // Run restores the terminal on its way out
+		case <-done:
+		}
+	}()
+	_, err := p.Run()
+	select {
+	case sig := <-caught:
+		if n, ok := sig.(syscall.Signal); ok {
+			return &SignalError{Signal: n}
+		}
+		return &SignalError{Signal: syscall.SIGTERM}
+	default:
+	}
 	if err != nil {
 		return fmt.Errorf("interactive screen: %w", err)
 	}
 	return nil
 }
+
+// closingSignals are the signals that close the screen.
+var closingSignals = []os.Signal{syscall.SIGHUP, syscall.SIGINT, syscall.SIGQUIT, syscall.SIGTERM}
+
+// SignalError says the screen was closed by a signal; the command exits
+// with ExitCode, 128 + the signal's number, as shells expect.
+type SignalError struct{ Signal syscall.Signal }
+
+func (e *SignalError) Error() string {
+	name := map[syscall.Signal]string{syscall.SIGHUP: "SIGHUP (the terminal hung up)", syscall.SIGINT: "SIGINT (an interrupt)",
+		syscall.SIGQUIT: "SIGQUIT (a quit)", syscall.SIGTERM: "SIGTERM (a request to stop)"}[e.Signal]
+	if name == "" {
+		name = e.Signal.String()
+	}
+	return "the screen was closed by " + name + "; the design was not saved"
+}
+
+// ExitCode is 128 + the signal's number.
+func (e *SignalError) ExitCode() int { return 128 + int(e.Signal) }
 
 // Result is the engine's verdict for the current design; nil with the
 // reason when the design cannot run.
@@ -125,19 +179,35 @@ func (m Model) mode() mode {
 
 // Update handles a message, then starts the spread of the design when it
 // has changed (off the key path, after a short pause: it fills in when
-// ready).
-func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+// ready). A panic anywhere below it puts the knobs back as they were
+// before the message and says so on the status line: the screen stays
+// open and the design can still be saved.
+func (m Model) Update(msg tea.Msg) (res tea.Model, cmd tea.Cmd) {
+	before := m.vals
+	defer func() {
+		if p := recover(); p != nil {
+			m.vals = before
+			func() {
+				defer func() { _ = recover() }() // the old design's verdict, if it can be had
+				m.evaluate()
+			}()
+			m.knobs.editing = false
+			m.save.state, m.save.failed = saveIdle, true
+			m.save.status = guard.Clean(fmt.Sprintf("That step failed inside headroom (%v); the design is as it was. Press s to save it.", p))
+			res, cmd = m, nil
+		}
+	}()
 	switch sm := msg.(type) {
 	case spreadMsg:
 		return m, m.gotSpread(sm)
 	case spreadTickMsg:
 		return m, m.gotTick(sm)
 	}
-	next, cmd := m.update(msg)
-	if cmd != nil {
-		// The message cmd brings back passes here again and starts the
+	next, c := m.update(msg)
+	if c != nil {
+		// The message c brings back passes here again and starts the
 		// spread then; a command stays a single one for its callers.
-		return next, cmd
+		return next, c
 	}
 	return next, m.spreadCmd()
 }
@@ -154,6 +224,13 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	case pickedMsg:
 		m.view = screenDesign
 		m.knobs.sel = knobCell
+		return m, nil
+	case lineupMsg:
+		m.takeLineup(msg)
+		if m.view == screenLineup {
+			m.lineup.selectCurrent()
+			return m, m.lineupCmd() // the design changed meanwhile
+		}
 		return m, nil
 	case pickDoneMsg:
 		m.pick, cmd = m.pick.Update(msg)
@@ -213,28 +290,21 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.save, cmd = m.save.Start()
 		return m, cmd
 	case key.Matches(km, k.NextView):
-		m.show((m.view + 1) % screenCount)
-		return m, nil
+		return m, m.show((m.view + 1) % screenCount)
 	case key.Matches(km, k.PrevView):
-		m.show((m.view + screenCount - 1) % screenCount)
-		return m, nil
+		return m, m.show((m.view + screenCount - 1) % screenCount)
 	case key.Matches(km, k.Design):
-		m.show(screenDesign)
-		return m, nil
+		return m, m.show(screenDesign)
 	case key.Matches(km, k.Lineup):
-		m.show(screenLineup)
-		return m, nil
+		return m, m.show(screenLineup)
 	case key.Matches(km, k.Reverse):
-		m.show(screenReverse)
-		return m, nil
+		return m, m.show(screenReverse)
 	case key.Matches(km, k.Spread):
 		m.show(screenSpread)
 	case key.Matches(km, pickKeys.Open):
-		m.show(screenPick)
-		return m, nil
+		return m, m.show(screenPick)
 	case key.Matches(km, k.Back):
-		m.show(screenDesign)
-		return m, nil
+		return m, m.show(screenDesign)
 	}
 	switch m.view {
 	case screenLineup:
@@ -249,22 +319,36 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	return m, cmd
 }
 
-// show switches to view s with its selection on what is in use.
-func (m *Model) show(s screen) {
+// show switches to view s with its selection on what is in use; the
+// command, if any, evaluates the line-up off the key path.
+func (m *Model) show(s screen) tea.Cmd {
 	if s == m.view {
-		return
+		return nil
 	}
 	m.view = s
+	var cmd tea.Cmd
 	switch s {
 	case screenLineup:
+		cmd = m.lineupCmd()
 		m.lineup.selectCurrent()
 	case screenReverse:
 		m.reverse.selectCurrent()
 	}
+	return cmd
 }
 
-// View draws the screen.
-func (m Model) View() string {
+// View draws the screen; if drawing panics it says so in plain text and
+// the keys still work (s saves the design, q quits).
+func (m Model) View() (out string) {
+	defer func() {
+		if p := recover(); p != nil {
+			out = wrap(guard.Clean(fmt.Sprintf("headroom could not draw this screen (%v). The design is kept: press s to save it, esc to go back, q to quit.", p)), max(20, m.width))
+		}
+	}()
+	return m.draw()
+}
+
+func (m Model) draw() string {
 	w, h := m.width, m.height
 	if w == 0 && h == 0 {
 		return "" // no size yet
@@ -332,7 +416,7 @@ func (m Model) header(w int) string {
 	}
 	name := m.scen.Name
 	if m.scen.Path != "" {
-		name += " (" + m.scen.Path + ")"
+		name += " (" + guard.Clean(m.scen.Path) + ")"
 	}
 	left := st.Title.Render("headroom") + " " + st.Scenario.Render(pad(name, max(0, w-rw-10)))
 	return padRight(left, w-rw) + right

@@ -1,11 +1,16 @@
 package tui
 
 import (
+	"fmt"
 	"math"
+	"slices"
 	"sort"
+
+	tea "github.com/charmbracelet/bubbletea"
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/protect"
 )
@@ -41,11 +46,14 @@ type shared struct {
 	vals    values
 	saveDir string // folder a relative save name is written in; "" is the working folder
 
-	res         *discharge.Result // nil when err is set
-	err         error
-	lineupRows  []lineupRow
-	reverseRows []reverseRow
-	spread      spreadState
+	res           *discharge.Result // nil when err is set
+	err           error
+	lineupCache   []lineupRow // see lineupRows and lineupCmd
+	lineupStale   bool        // the cache is not for the current design
+	lineupGen     int         // counts design changes
+	lineupPending bool        // a line-up is being evaluated off the key path
+	reverseRows   []reverseRow
+	spread        spreadState
 }
 
 // newShared builds the state for scenario s.
@@ -120,22 +128,93 @@ func (sh *shared) design() discharge.Design {
 	return d
 }
 
-// evaluate runs the engine for the design, the line-up and the reverse
-// view. It takes a few milliseconds at most (BenchmarkKnobStep), so it runs
-// inside Update and the screen never shows a stale verdict.
+// evaluate runs the engine for the design and the reverse view, and marks
+// the line-up for evaluation when it is next looked at. It takes a few
+// milliseconds (BenchmarkKnobStep; BenchmarkKnobStepHostile for the
+// heaviest input the readers accept), so it runs inside Update and the
+// screen never shows a stale verdict.
 func (sh *shared) evaluate() {
 	d := sh.design()
 	d.TracePoints = tracePoints
 	sh.res, sh.err = evaluateFinite(&d)
 	sh.spread.gen++ // the spread shown is now stale; Update starts the next
-	sh.lineupRows = sh.evaluateLineup()
+	sh.lineupCache, sh.lineupStale = nil, true
+	sh.lineupGen++
 	sh.reverseRows = sh.evaluateReverse()
 }
 
+// lineupRows is the line-up for the current design, evaluated now if it is
+// stale: a knob turned on the design view evaluates one design, not one
+// per cell.
+func (sh *shared) lineupRows() []lineupRow {
+	if sh.lineupStale {
+		sh.lineupCache, sh.lineupStale = sh.evaluateLineup(), false
+	}
+	return sh.lineupCache
+}
+
+// lineupReady is the line-up if it is up to date, nil while it is being
+// evaluated.
+func (sh *shared) lineupReady() []lineupRow {
+	if sh.lineupStale {
+		return nil
+	}
+	return sh.lineupCache
+}
+
+// lineupSyncWork is the most work (curve and resistance points of every
+// cell times load phases) the line-up is evaluated for inside a key press:
+// about 20 ms on the project's 2-core machine. Past it (a scenario with
+// many long cells and a long profile; BenchmarkLineupHostile) it is
+// evaluated off the key path and shown when done, so a key never waits.
+const lineupSyncWork = 20000
+
+// lineupMsg carries a line-up evaluated off the key path for design
+// change gen.
+type lineupMsg struct {
+	gen  int
+	rows []lineupRow
+}
+
+// lineupCmd brings the line-up up to date: now when it is cheap, or as a
+// command whose lineupMsg Update takes in.
+func (sh *shared) lineupCmd() tea.Cmd {
+	if !sh.lineupStale || sh.lineupPending {
+		return nil
+	}
+	work := 0
+	for _, c := range sh.cells {
+		work += c.Curve.Len() + len(c.Resistance)
+	}
+	if work*len(sh.profile()) <= lineupSyncWork {
+		sh.lineupRows()
+		return nil
+	}
+	sh.lineupPending = true
+	base, cells, gen := sh.design(), slices.Clone(sh.cells), sh.lineupGen
+	return func() tea.Msg { return lineupMsg{gen: gen, rows: lineupFor(base, cells)} }
+}
+
+// takeLineup stores a line-up evaluated off the key path, if it is for
+// the current design, and says whether another is needed.
+func (sh *shared) takeLineup(msg lineupMsg) {
+	sh.lineupPending = false
+	if msg.gen == sh.lineupGen {
+		sh.lineupCache, sh.lineupStale = msg.rows, false
+	}
+}
+
 // evaluateFinite is discharge.Evaluate, with a result holding a number that
-// is not finite turned into an error, so the screen never prints NaN.
-func evaluateFinite(d *discharge.Design) (*discharge.Result, error) {
-	r, err := discharge.Evaluate(d)
+// is not finite turned into an error, so the screen never prints NaN, and a
+// panic in the engine turned into an error, so the screen (and the design
+// on it, not yet saved) survives any design the knobs can make.
+func evaluateFinite(d *discharge.Design) (r *discharge.Result, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			r, err = nil, engineFailure(p)
+		}
+	}()
+	r, err = discharge.Evaluate(d)
 	if err != nil {
 		return nil, err
 	}
@@ -162,6 +241,13 @@ func (finiteError) Error() string {
 
 var errNotFinite error = finiteError{}
 
+// engineFailure is the error a panic inside the engine becomes: the
+// design stays on the screen and can still be changed or saved.
+func engineFailure(p any) error {
+	return fmt.Errorf("the engine failed on this design (%s); change a knob, or save the design and report it",
+		guard.Clean(fmt.Sprint(p)))
+}
+
 // lineupRow is one cell of the line-up.
 type lineupRow struct {
 	cell   *curves.Cell
@@ -174,8 +260,13 @@ type lineupRow struct {
 // evaluateLineup tries every cell in the product (scenario.Lineup, the
 // rule compare uses too).
 func (sh *shared) evaluateLineup() []lineupRow {
-	base := sh.design()
-	rows := scenario.Lineup(&base, sh.cells, evaluateFinite)
+	return lineupFor(sh.design(), sh.cells)
+}
+
+// lineupFor evaluates every cell of cells for design base. It only reads
+// its arguments, so it may run beside Update.
+func lineupFor(base discharge.Design, cells []*curves.Cell) []lineupRow {
+	rows := scenario.Lineup(&base, cells, evaluateFinite)
 	out := make([]lineupRow, len(rows))
 	for i, r := range rows {
 		out[i] = lineupRow{cell: r.Cell, idx: i, series: r.Series, res: r.Result, err: r.Err}
@@ -208,6 +299,17 @@ func (sh *shared) reversePack() protect.Pack {
 	return discharge.ReversePack(&d)
 }
 
+// safeReverse is e.Reverse(p), false when it panics: a row the reverse
+// view leaves out rather than a screen that closes.
+func safeReverse(e protect.Element, p protect.Pack) (rev protect.Reversal, ok bool) {
+	defer func() {
+		if recover() != nil {
+			ok = false
+		}
+	}()
+	return e.Reverse(p), true
+}
+
 func (sh *shared) evaluateReverse() []reverseRow {
 	p := sh.reversePack()
 	out := make([]reverseRow, 0, len(sh.kinds))
@@ -220,7 +322,11 @@ func (sh *shared) evaluateReverse() []reverseRow {
 		if e == nil {
 			continue
 		}
-		out = append(out, reverseRow{kind: k, current: cur, rev: e.Reverse(p)})
+		rev, ok := safeReverse(e, p)
+		if !ok {
+			continue
+		}
+		out = append(out, reverseRow{kind: k, current: cur, rev: rev})
 	}
 	return out
 }

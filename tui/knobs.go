@@ -10,6 +10,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -71,7 +72,7 @@ func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
 				return m, nil
 			case key.Matches(km, k.Accept):
 				if err := m.sh.setText(m.sel, m.input.Value()); err != nil {
-					m.errText = err.Error()
+					m.errText = guard.Clean(err.Error())
 					return m, nil
 				}
 				m.editing, m.errText = false, ""
@@ -304,7 +305,10 @@ func (sh *shared) setText(k knob, s string) error {
 	case knobCell:
 		c, err := sh.scen.ResolveCell(s)
 		if err != nil {
-			c, err = sh.scen.ResolveCell(strings.ToLower(s))
+			// "LR6" for lr6; a file's own error stands when that fails too.
+			if lc, lerr := sh.scen.ResolveCell(strings.ToLower(s)); lerr == nil {
+				c, err = lc, nil
+			}
 		}
 		if err != nil {
 			return err

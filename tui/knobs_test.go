@@ -140,11 +140,11 @@ func TestLineupPick(t *testing.T) {
 // per hour and then by runtime, with cells that cannot run last.
 func TestLineupRanks(t *testing.T) {
 	m := sized(120, 40).(Model)
-	if len(m.lineupRows) != len(curves.Library()) {
-		t.Fatalf("%d line-up rows, want the %d library cells", len(m.lineupRows), len(curves.Library()))
+	if len(m.lineupRows()) != len(curves.Library()) {
+		t.Fatalf("%d line-up rows, want the %d library cells", len(m.lineupRows()), len(curves.Library()))
 	}
 	for _, byRuntime := range []bool{false, true} {
-		rows := ranked(m.lineupRows, byRuntime)
+		rows := ranked(m.lineupRows(), byRuntime)
 		for i := 1; i < len(rows); i++ {
 			a, b := rows[i-1], rows[i]
 			if b.err != nil || b.res.RuntimeH == 0 {

@@ -36,7 +36,10 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 		return m, nil
 	}
 	k := m.sh.keys
-	n := len(m.sh.lineupRows)
+	n := len(m.sh.lineupReady())
+	if n == 0 {
+		return m, nil // still being evaluated
+	}
 	switch {
 	case key.Matches(km, k.Up):
 		m.sel = (m.sel + n - 1) % max(n, 1)
@@ -62,7 +65,7 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 	return m, nil
 }
 
-func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineupRows, m.byRuntime) }
+func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineupReady(), m.byRuntime) }
 
 // selectCurrent puts the selection on the current cell.
 func (m *lineupModel) selectCurrent() {
@@ -86,10 +89,18 @@ func (m lineupModel) View() string {
 	b.WriteString(st.Heading.Render("Cell line-up") + "\n")
 	intro := fmt.Sprintf("Every cell, %d string(s) in parallel, in the series count (S) whose nominal voltage is closest to this pack's without starting above %.1f× its fresh voltage; same load (%s), protection (%s), floor (%.2f V) and ambient (%s). Ranked by %s; press o to rank by %s.",
 		v.parallel, scenario.FreshLimit, profileLabel(sh.profile()), v.elem.Kind(), v.floor, trimFloat(v.tempC)+" °C", order, other)
-	for _, l := range wrapLines(intro, w) {
+	intro2 := wrapLines(intro, w)
+	if len(intro2) > 4 { // a long profile must not push the table off the screen
+		intro2 = append(intro2[:3:3], "… ranked by "+order+"; press o to rank by "+other+".")
+	}
+	for _, l := range intro2 {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	rows := m.rows()
+	if rows == nil {
+		b.WriteString("\n" + st.Dim.Render(fmt.Sprintf("Evaluating %d cells for this design…", len(sh.cells))))
+		return b.String()
+	}
 	maxRun := 0.0
 	for _, r := range rows {
 		if r.err == nil {

@@ -8,6 +8,7 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
 
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 )
 
@@ -81,7 +82,7 @@ func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
 			m.state = saveConfirm
 		default:
 			m.state, m.failed = saveIdle, true
-			m.status = "Not saved: " + sm.err.Error()
+			m.status = "Not saved: " + guard.Clean(sm.err.Error())
 		}
 		return m, nil
 	}

@@ -9,6 +9,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/limited"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
@@ -205,8 +206,12 @@ func cellsCheck(c *cli, args []string) error {
 	n := cell.Curve.Len()
 	q0, v0 := cell.Curve.Point(0)
 	q1, v1 := cell.Curve.Point(n - 1)
-	_, err = fmt.Fprintf(c.stdout, "ok: %s: cell %q, %d points from %s to %s mAh, %s V down to %s V; end-point %s V, rated %s mAh, nominal %s V\n",
-		pos[0], cell.ID, n, sig(q0, 4), sig(q1, 4), fixed(v0, 3), fixed(v1, 3), short(cell.EndPoint), sig(cell.RatedMAh, 4), short(cell.NominalV))
+	thinned := ""
+	if t := cell.Thinned; t != nil {
+		thinned = fmt.Sprintf(" (thinned on load from %d, none dropped more than %s off)", t.From, human(t.ErrV, units.Voltage))
+	}
+	_, err = fmt.Fprintf(c.stdout, "ok: %s: cell %q, %d points%s from %s to %s mAh, %s V down to %s V; end-point %s V, rated %s mAh, nominal %s V\n",
+		guard.Clean(pos[0]), cell.ID, n, thinned, sig(q0, 4), sig(q1, 4), fixed(v0, 3), fixed(v1, 3), short(cell.EndPoint), sig(cell.RatedMAh, 4), short(cell.NominalV))
 	return err
 }
 
@@ -226,8 +231,8 @@ func cellsImport(c *cli, args []string) error {
 		return errors.New("cells import: --current is required: the constant current of the log, e.g. --current 2A")
 	}
 	amps, err := units.Parse(*current, units.Current, true)
-	if err == nil && !(amps > 0) {
-		err = fmt.Errorf("%q: must be above 0 A", *current)
+	if err == nil && (!(amps > 0) || amps > curves.MaxCellCurrent) {
+		err = fmt.Errorf("%q: must be above 0 A and at most %g A", *current, curves.MaxCellCurrent)
 	}
 	if err != nil {
 		return fmt.Errorf("--current: %w", err)
@@ -257,7 +262,11 @@ func cellsImport(c *cli, args []string) error {
 		return err
 	}
 	q, v := cell.Curve.Point(cell.Curve.Len() - 1)
-	_, err = fmt.Fprintf(c.stdout, "wrote %s: %d points, %s mAh at %s down to %s V\n",
-		*out, cell.Curve.Len(), sig(q, 4), human(amps, units.Current), fixed(v, 3))
+	thinned := ""
+	if t := cell.Thinned; t != nil {
+		thinned = fmt.Sprintf(" (thinned from %d, none dropped more than %s off)", t.From, human(t.ErrV, units.Voltage))
+	}
+	_, err = fmt.Fprintf(c.stdout, "wrote %s: %d points%s, %s mAh at %s down to %s V\n",
+		guard.Clean(*out), cell.Curve.Len(), thinned, sig(q, 4), human(amps, units.Current), fixed(v, 3))
 	return err
 }

@@ -10,6 +10,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 )
 
@@ -162,7 +163,7 @@ func runCompare(c *cli, args []string) error {
 func compareContext(c *cli, s *scenario.Scenario, d *discharge.Design, budget float64) error {
 	name := s.Name
 	if name == "" {
-		name = s.Path
+		name = guard.Clean(s.Path)
 	}
 	freshD := float64(d.Series) * d.Cell.OpenCircuit(0, d.TempC)
 	b := fmt.Sprintf("%s: chemistries for load %s; protect %s; floor %s V; %s h of use a day\n",

@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 )
 
@@ -56,6 +57,11 @@ var palette = []color.RGBA{
 	{240, 228, 66, 255},  // yellow
 }
 
+// maxPlotLines is the most protection options one chart draws: each is
+// an evaluation and two lines, and past a dozen or so they cannot be told
+// apart (20,000 options once took 20 s and 2.25 GB).
+const maxPlotLines = 16
+
 // tracePoints is how many points each curve has: smooth at chart size.
 const tracePoints = 200
 
@@ -90,6 +96,9 @@ func runPlot(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
+	if n := len(s.Protects); n > maxPlotLines {
+		return fmt.Errorf("plot: %d protection options; a chart draws at most %d (more could not be told apart): list fewer in [options] protect, or use headroom table", n, maxPlotLines)
+	}
 	data, err := chart(s, byCharge, ext)
 	if err != nil {
 		return err
@@ -110,7 +119,7 @@ func chart(s *scenario.Scenario, byCharge bool, ext string) ([]byte, error) {
 	d0 := s.Design
 	title := s.Name
 	if title == "" {
-		title = filepath.Base(s.Path)
+		title = guard.Clean(filepath.Base(s.Path))
 	}
 	p.Title.Text = fmt.Sprintf("%s\n%s; %s", title, packWords(&d0), loadWords(&d0))
 	p.Title.TextStyle.Font.Size = vg.Points(11)

@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strings"
 
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 )
@@ -311,7 +312,7 @@ func tableContext(c *cli, s *scenario.Scenario, n int) error {
 	}
 	name := s.Name
 	if name == "" {
-		name = s.Path
+		name = guard.Clean(s.Path)
 	}
 	rows := "rows"
 	if n == 1 {

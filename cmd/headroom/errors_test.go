@@ -55,7 +55,7 @@ func TestErrors(t *testing.T) {
 		{"bad tolerance in file", []string{"spread", badTolName}, badTolName + `:3: [tolerance] unknown key "vt": expected samples, seed or a tolerance (capacity,`, false},
 		{"bad flag value", []string{"run", "--series", "two"}, `--series: "two" is not a whole number`, true},
 		{"bad flag value", []string{"run", "--parallel", "17"}, "--parallel: 17 strings in parallel: must be 1 to 16", true},
-		{"bad flag value", []string{"run", "--hours-per-day", "25"}, "--hours-per-day: 25 hours a day: must be above 0 and at most 24", true},
+		{"bad flag value", []string{"run", "--hours-per-day", "25"}, "--hours-per-day: 25 hours a day: must be above 0 and at most 24 (at least 1 s)", true},
 		{"bad flag value", []string{"run", "--load", "5V"}, "--load: load \"5V\": expected a current", false},
 		{"bad flag value", []string{"run", "--format", "xml"}, `--format: "xml" is not an output format: expected text, json, csv or md`, true},
 		{"missing flag value", []string{"run", "--series"}, "--series: needs a value", true},

@@ -40,7 +40,7 @@ var designFlags = []designFlag{
 		return nil
 	}},
 	{"load", "SPEC", "one load (120mA, 0.8W@85%, 33ohm, led:vf=2.0,r=47) or phases LOAD/TIME,... (450mA/3s,15mA/27s)", func(s *scenario.Scenario, v string) error {
-		p, err := discharge.ParseProfile(v)
+		p, err := scenario.ParseProfile(v)
 		if err != nil {
 			return err
 		}

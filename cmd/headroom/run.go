@@ -12,7 +12,10 @@ import (
 
 	"github.com/mattn/go-isatty"
 
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
+	"headroom/internal/units"
+	"headroom/tui"
 )
 
 // command is one subcommand: its name, synopsis, help text and body.
@@ -104,6 +107,12 @@ func (c *cli) main(args []string) (code int) {
 		}
 	}()
 	err := c.dispatch(args)
+	var se *tui.SignalError
+	if errors.As(err, &se) {
+		// The screen closed on a signal: 128 + its number, as shells expect.
+		fmt.Fprintf(c.stderr, "headroom: %s\n", se)
+		return se.ExitCode()
+	}
 	if c.out.err != nil {
 		fmt.Fprintf(c.stderr, "headroom: writing the output: %s\n", oneLine(c.out.err.Error()))
 		return exitFailure
@@ -283,6 +292,20 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 		if len(rest) == 0 {
 			return pos, nil
 		}
+		// "--floor 1.8 V": the shell made the unit an argument of its own.
+		if units.IsUnit(rest[0]) && used >= 1 {
+			prev := ""
+			switch {
+			case strings.HasPrefix(args[used-1], "-") && strings.Contains(args[used-1], "="):
+				prev = args[used-1] // --floor=1.8
+			case used >= 2 && strings.HasPrefix(args[used-2], "-") && !strings.Contains(args[used-2], "="):
+				prev = args[used-2] + " " + args[used-1]
+			}
+			if prev != "" {
+				return nil, fmt.Errorf("%s %s: a value and its unit go together: write %s%s, or quote them: \"%s %s\"",
+					prev, rest[0], prev, rest[0], strings.TrimLeft(prev[strings.LastIndexAny(prev, " =")+1:], " "), rest[0])
+			}
+		}
 		pos = append(pos, rest[0])
 		args = rest[1:]
 	}
@@ -335,4 +358,6 @@ func loadScenario(pos []string) (*scenario.Scenario, error) {
 	return scenario.Load(pos[0])
 }
 
-func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+// oneLine puts a message on one line fit for a terminal: a file name or a
+// value quoted in it may hold control characters.
+func oneLine(s string) string { return strings.Join(strings.Fields(guard.Clean(s)), " ") }

@@ -34,11 +34,25 @@ func FuzzParse(f *testing.F) {
 		"[sweep]\nfloor = []\n", "x = 1\n", "name = \"\x00\"\n", "[[phase]]\nload = \"1A\"\n", "= =\n",
 		"temp = \"-41C\"\n", "hours_per_day = 25\n", "standby = -1\n",
 		"[[define_cell]]\nid = \"x\"\ncurve = [[0, 1.5], [0, 1.4]]\n",
+		// hostile shapes: nesting at and past the limit, long dotted keys
+		"x = " + strings.Repeat("{a=", 16) + "1" + strings.Repeat("}", 16) + "\n",
+		"x = " + strings.Repeat("[", 17) + strings.Repeat("]", 17) + "\n",
+		"[" + strings.Repeat("a.", 8) + "b]\nc = 1\n", strings.Repeat("a.", 7) + "b = 1\n",
+		"x = '''" + strings.Repeat("[", 40) + "'''\ny = \"{{{{{{{{{{{{{{{{{{{{\"\n",
 	} {
 		f.Add([]byte(s))
 	}
 	dir := f.TempDir()
 	f.Fuzz(func(t *testing.T, data []byte) {
+		// Whatever follows a line that opens 17 arrays, or a key of 9
+		// parts, the file is refused on its shape, before parsing.
+		for _, head := range []string{"x = " + strings.Repeat("[", 17), "[" + strings.Repeat("a.", 8) + "b]"} {
+			hostile := append([]byte(head+"\n"), data...)
+			if _, err := Parse(hostile, "fuzz.toml", dir); err == nil || !(strings.HasPrefix(err.Error(), "fuzz.toml:1: ") &&
+				strings.Contains(err.Error(), "refuses the file before reading it") || prechecked(err)) {
+				t.Fatalf("%q + data: %v, want the shape refusal on line 1 (or a binary or size refusal)", head, err)
+			}
+		}
 		s, err := Parse(data, "fuzz.toml", dir)
 		if err != nil {
 			if s != nil {
@@ -76,4 +90,10 @@ func FuzzParse(f *testing.F) {
 			check("last combination", &last.Design)
 		}
 	})
+}
+
+// prechecked reports the refusals that come before the shape check: binary
+// data and size.
+func prechecked(err error) bool {
+	return strings.Contains(err.Error(), "binary data") || strings.Contains(err.Error(), "larger than")
 }

@@ -11,6 +11,7 @@ import (
 	"math"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -19,6 +20,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/limited"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -283,6 +285,10 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	if i := strings.IndexByte(string(data), 0); i >= 0 {
 		return nil, fmt.Errorf("%s: binary data (a NUL byte at offset %d), expected a TOML text file", name, i)
 	}
+	var se *guard.ShapeError
+	if err := guard.CheckTOML(data); errors.As(err, &se) {
+		return nil, fmt.Errorf("%s:%d: %s", name, se.Line, se.Reason)
+	}
 	var f fileDef
 	md, err := toml.Decode(string(data), &f)
 	if err != nil {
@@ -315,7 +321,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	at := func(key string, err error) error {
 		return fmt.Errorf("%s:%d: %s: %w", name, lineOf(data, key), key, err)
 	}
-	s := &Scenario{Name: f.Name, Note: f.Note, dir: dir}
+	s := &Scenario{Name: guard.Clean(f.Name), Note: guard.CleanLines(f.Note), dir: dir}
 	for _, k := range []string{"cells", "series", "parallel", "protect", "loads"} {
 		if md.IsDefined("options", k) {
 			s.OptionKeys = append(s.OptionKeys, k)
@@ -323,6 +329,20 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	}
 	s.Pick = pickSettings(f.Pick, md, data)
 
+	if n := len(f.Cells); n > MaxCells {
+		return nil, fmt.Errorf("%s: %d [[define_cell]] tables, at most %d", name, n, MaxCells)
+	}
+	if n := len(f.Options.Cells); n > MaxCells {
+		return nil, fmt.Errorf("%s:%d: options.cells: %d cells, at most %d", name, lineOf(data, "cells"), n, MaxCells)
+	}
+	for _, o := range []struct {
+		key string
+		n   int
+	}{{"series", len(f.Options.Series)}, {"parallel", len(f.Options.Parallel)}, {"protect", len(f.Options.Protect)}, {"loads", len(f.Options.Loads)}} {
+		if o.n > MaxOptions {
+			return nil, fmt.Errorf("%s:%d: options.%s: %d entries, at most %d", name, lineOf(data, o.key), o.key, o.n, MaxOptions)
+		}
+	}
 	// Cells defined in the file come first, so a design can name them.
 	for i := range f.Cells {
 		f.Cells[i].BaseDir = dir
@@ -350,6 +370,9 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	}
 	if d.Cell, err = s.ResolveCell(s.CellRef); err != nil {
 		return nil, at("cell", err)
+	}
+	if n := len(s.FileCells); n > MaxCells {
+		return nil, at("cell", fmt.Errorf("%d cells of your own (defined and from files), at most %d", n, MaxCells))
 	}
 
 	d.Series, d.Parallel = f.Series, f.Parallel
@@ -402,8 +425,14 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 	case f.Load != "" && len(f.Phase) > 0:
 		return nil, at("load", fmt.Errorf("give either load = \"...\" or [[phase]] tables, not both"))
 	case len(f.Phase) > 0:
+		if err := CheckPhases(len(f.Phase)); err != nil {
+			return nil, fmt.Errorf("%s:%d: [[phase]]: %w", name, lineOf(data, "load"), err)
+		}
 		for i, p := range f.Phase {
 			l, err := discharge.ParseLoad(p.Load)
+			if err == nil {
+				err = discharge.CheckDemand(l)
+			}
 			if err != nil {
 				return nil, fmt.Errorf("%s: [[phase]] %d: %w", name, i+1, err)
 			}
@@ -417,19 +446,19 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 			if err != nil {
 				return nil, fmt.Errorf("%s: [[phase]] %d: duration: %w", name, i+1, err)
 			}
-			d.Profile = append(d.Profile, discharge.Phase{Name: p.Name, Load: l, Seconds: sec})
+			d.Profile = append(d.Profile, discharge.Phase{Name: guard.Clean(p.Name), Load: l, Seconds: sec})
 		}
 		s.LoadSpec = discharge.FormatProfile(d.Profile)
 	default:
 		s.LoadSpec = orDefault(f.Load, "100mA")
-		if d.Profile, err = discharge.ParseProfile(s.LoadSpec); err != nil {
+		if d.Profile, err = ParseProfile(s.LoadSpec); err != nil {
 			return nil, at("load", err)
 		}
 	}
 	s.Loads = [][]discharge.Phase{d.Profile}
 	s.LoadSpecs = []string{s.LoadSpec}
 	for i, spec := range f.Options.Loads {
-		ph, err := discharge.ParseProfile(spec)
+		ph, err := ParseProfile(spec)
 		if err != nil {
 			return nil, fmt.Errorf("%s:%d: options.loads entry %d: %w", name, lineOf(data, "loads"), i+1, err)
 		}
@@ -437,7 +466,7 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 			s.Loads, s.LoadSpecs = nil, nil
 		}
 		s.Loads = append(s.Loads, ph)
-		s.LoadSpecs = append(s.LoadSpecs, spec)
+		s.LoadSpecs = append(s.LoadSpecs, guard.Clean(spec))
 	}
 
 	type field struct {
@@ -509,14 +538,15 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		return nil, err
 	}
 	// A scale can push a load out of its range (2 A × 1000): say so now,
-	// not row by row in a table.
+	// not row by row in a table. Every load's range is an upper bound on
+	// its demand, so the largest scale is the one to check (checking all
+	// 10,000 scales of every load took seconds).
+	top := slices.Max(s.LoadScales)
 	for i, p := range s.Loads {
-		for _, f := range s.LoadScales {
-			for j, ph := range ScaleProfile(p, f) {
-				if err := ph.Load.Validate(); err != nil {
-					return nil, fmt.Errorf("%s:%d: sweep load_scale %v of load %q phase %d: %w",
-						name, lineOf(data, "load_scale"), f, s.LoadSpecs[i], j+1, err)
-				}
+		for j, ph := range ScaleProfile(p, top) {
+			if err := ph.Load.Validate(); err != nil {
+				return nil, fmt.Errorf("%s:%d: sweep load_scale %v of load %q phase %d: %w",
+					name, lineOf(data, "load_scale"), top, s.LoadSpecs[i], j+1, err)
 			}
 		}
 	}
@@ -647,6 +677,40 @@ func CheckScale(v float64) error {
 	return nil
 }
 
+// MaxCells is the most cells a scenario may define ([[define_cell]]), list
+// in its options, or bring in from files, together: the screen's line-up
+// evaluates each whenever it is shown after a change.
+const MaxCells = 16
+
+// MaxOptions is the most entries any other [options] list may have.
+const MaxOptions = 1000
+
+// CheckPhases checks the number of phases in a load profile.
+func CheckPhases(n int) error {
+	if n > discharge.MaxPhases {
+		return fmt.Errorf("%d phases: a load profile has at most %d", n, discharge.MaxPhases)
+	}
+	return nil
+}
+
+// ParseProfile reads a load or a profile (discharge.ParseProfile) of at
+// most discharge.MaxPhases phases.
+func ParseProfile(s string) ([]discharge.Phase, error) {
+	if n := strings.Count(s, "/"); n > discharge.MaxPhases {
+		return nil, CheckPhases(n) // refused before parsing a huge string
+	}
+	p, err := discharge.ParseProfile(s)
+	if err != nil {
+		return nil, err
+	}
+	for _, ph := range p {
+		if err := discharge.CheckDemand(ph.Load); err != nil {
+			return nil, err
+		}
+	}
+	return p, CheckPhases(len(p))
+}
+
 // ParseFloor reads a floor voltage ("1.8V" or "1.8").
 func ParseFloor(s string) (float64, error) { return parseChecked(s, units.Voltage, CheckFloor) }
 
@@ -672,7 +736,7 @@ func ParseHoursPerDay(s string) (float64, error) {
 	}
 	h := v / 3600
 	if discharge.CheckHoursPerDay(h) != nil {
-		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most %g", s, discharge.MaxHoursPerDay)
+		return 0, fmt.Errorf("%s hours a day: must be above 0 and at most %g (at least 1 s)", s, discharge.MaxHoursPerDay)
 	}
 	return h, nil
 }

@@ -63,6 +63,45 @@ var prefixes = map[string]float64{
 	"k": 1e3, "M": 1e6, "G": 1e9,
 }
 
+// sensible lists the SI prefixes each kind takes. A prefix outside its
+// list is a typo ("0.0001MA" for 100 µA ran at 100 A): headroom's cells
+// and loads run from picoamps to amperes, millivolts to kilovolts,
+// microwatts to a kilowatt and microamp-hours to ampere-hours; resistance
+// takes them all.
+var sensible = map[Kind][]string{
+	Voltage:    {"n", "u", "m", "k"},
+	Current:    {"p", "n", "u", "m"},
+	Power:      {"p", "n", "u", "m", "k"},
+	Resistance: {"p", "n", "u", "m", "k", "M", "G"},
+	Time:       {"p", "n", "u", "m"},
+	Charge:     {"u", "m"},
+}
+
+// prefixSense reports the SI prefix that starts tail (a unit with its
+// prefix, or a prefix alone) and whether kind takes it. A tail that is a
+// whole unit symbol ("mAh", "min") has no prefix.
+func prefixSense(tail string, kind Kind) (string, bool) {
+	for _, u := range symbols {
+		if tail == u.sym {
+			return "", true
+		}
+	}
+	r, _ := utf8.DecodeRuneInString(tail)
+	pre := string(r)
+	if _, ok := prefixes[pre]; !ok {
+		return "", true
+	}
+	if pre == "µ" || pre == "μ" {
+		pre = "u"
+	}
+	for _, p := range sensible[kind] {
+		if p == pre {
+			return pre, true
+		}
+	}
+	return string(r), false
+}
+
 // ErrEmpty is returned for an empty or blank value.
 var ErrEmpty = errors.New("empty value")
 
@@ -112,6 +151,9 @@ func Parse(s string, want Kind, bare bool) (float64, error) {
 	}
 	if kind != want {
 		return 0, fmt.Errorf("%q is %s, expected %s", s, kind, want)
+	}
+	if pre, ok := prefixSense(tail, kind); !ok {
+		return 0, fmt.Errorf("%q: the prefix %s (×%g) makes no sense for %s: use %s or none", s, pre, prefixes[pre], kind, strings.Join(sensible[kind], ", "))
 	}
 	r := scaled(num, v, scale)
 	if math.IsInf(r, 0) {
@@ -338,4 +380,12 @@ func RoundSig(x float64, sig int) float64 {
 	}
 	p := math.Pow(10, float64(sig)-math.Ceil(math.Log10(math.Abs(x))))
 	return math.Round(x*p) / p
+}
+
+// IsUnit reports whether s is a unit symbol alone, with or without a
+// prefix ("V", "mA", "%"): what a value's unit looks like when a shell
+// split it from its number.
+func IsUnit(s string) bool {
+	_, kind, ok := splitUnit(strings.TrimSpace(s))
+	return ok && kind != -1
 }

@@ -149,3 +149,37 @@ func TestHuman(t *testing.T) {
 		}
 	}
 }
+
+// A prefix that makes no sense for the kind is refused (M on a current
+// once ran 0.0001MA at 100 A); the sensible ones still parse.
+func TestPrefixSense(t *testing.T) {
+	bad := []struct {
+		s    string
+		kind Kind
+		bare bool
+	}{
+		{"0.0001MA", Current, false}, {"1kA", Current, false}, {"2GA", Current, false}, {"4.7k", Current, true},
+		{"1MV", Voltage, false}, {"1GW", Power, false}, {"1MW", Power, false},
+		{"1Ms", Time, false}, {"1ks", Time, false}, {"3kAh", Charge, false}, {"1MAh", Charge, false},
+	}
+	for _, c := range bad {
+		if _, err := Parse(c.s, c.kind, c.bare); err == nil || !strings.Contains(err.Error(), "makes no sense") {
+			t.Errorf("Parse(%q, %v): %v, want the prefix refused", c.s, c.kind, err)
+		}
+	}
+	good := []struct {
+		s    string
+		kind Kind
+		want float64
+	}{
+		{"10mA", Current, 0.01}, {"30uA", Current, 30e-6}, {"30µA", Current, 30e-6}, {"5pA", Current, 5e-12},
+		{"4.7Mohm", Resistance, 4.7e6}, {"1Gohm", Resistance, 1e9}, {"1kV", Voltage, 1000}, {"500mW", Power, 0.5},
+		{"20ms", Time, 0.02}, {"2min", Time, 120}, {"2500mAh", Charge, 2.5}, {"800uAh", Charge, 800e-6},
+	}
+	for _, c := range good {
+		// Tolerance: one part in 1e12, float rounding of the decimal scaling.
+		if v, err := Parse(c.s, c.kind, false); err != nil || math.Abs(v-c.want) > 1e-12*math.Abs(c.want) {
+			t.Errorf("Parse(%q): %v %v, want %v", c.s, v, err, c.want)
+		}
+	}
+}
