@@ -205,59 +205,205 @@ func (c *Cell) TempFactors(tempC float64) (capacity, resistance float64) {
 	return last.Capacity, last.Resistance
 }
 
-// CapacityFactor is Ceff/Cref: how much of the curve's charge the cell
-// delivers at an effective current ieff (A) and ambient tempC, relative to
-// the curve. It combines the temperature table with Peukert's law
-// (Peukert 1897): Ceff = Cref·(Iref/I)^(k−1). Below the reference current
-// the factor is held at 1: Peukert's law over-predicts the gain at light
-// loads, so headroom claims none (conservative).
+// CapacityFactor is how much of the curve's charge the cell delivers at an
+// effective current ieff (A, per cell) and ambient tempC, relative to the
+// curve: RateFactor(ieff) · ColdFactor(ieff, tempC). The engine stretches
+// the curve's charge axis by it; the voltage sag comes from the resistances
+// on top, so the two together make one rate law (see RateFactor).
 func (c *Cell) CapacityFactor(ieff, tempC float64) float64 {
-	f, _ := c.TempFactors(tempC)
-	iref := c.RefCurrent
-	if iref <= 0 {
-		iref = c.RatedCurrent
-	}
-	if c.Peukert > 1 && iref > 0 && ieff > iref {
-		f *= math.Pow(iref/ieff, c.Peukert-1)
-	}
-	return f
+	return c.RateFactor(ieff) * c.ColdFactor(ieff, tempC)
 }
 
-// ResistanceAt is the internal resistance in ohms at scaled charge qs (mAh
-// along the curve) and ambient tempC.
-func (c *Cell) ResistanceAt(qs, tempC float64) float64 {
+// rateRef is the current the rate law is stated against: RefCurrent, or
+// RatedCurrent for a rest-voltage curve; 0 when neither is known.
+func (c *Cell) rateRef() float64 {
+	if c.RefCurrent > 0 {
+		return c.RefCurrent
+	}
+	return c.RatedCurrent
+}
+
+// LightLoadSpan is how far below its reference current Peukert's law is
+// followed for a capacity gain: a cell at a quarter of its reference
+// current gains what it gains at half of it. Peukert's law over-predicts
+// the gain at light loads (typical alkaline AA cells give about
+// 2700–3000 mAh at 25 mA against about 2400 mAh at 100 mA, from memory);
+// a lighter load still gains a little from its smaller sag.
+const LightLoadSpan = 2
+
+// RateFactor is the one rate law (Peukert 1897): the constant-current
+// capacity to the end-point at current i is Cref·(Iref/i)^(k−1), Cref the
+// capacity at Iref. Part of that the sag already gives: at a higher
+// current the steady terminal voltage E − i·(R0 + ΣRᵢ) reaches the
+// end-point sooner, at EndCharge(i). RateFactor stretches the charge axis
+// by the rest, Cref·(Iref/i)^(k−1) / EndCharge(i), held between 1 and
+// (Iref/i)^(k−1) — a stated k is what two constant-current runs measure
+// while the sag is less than Peukert asks, k = 1 means the sag alone, and
+// the sag is never undone. Below Iref/LightLoadSpan the factor stops
+// growing, and it never rises with the current (the running minimum on a
+// grid of half-doublings). At RefTempC: cold is ColdFactor's.
+func (c *Cell) RateFactor(i float64) float64 {
+	iref := c.rateRef()
+	if c.Peukert <= 1 || iref <= 0 || !(i > 0) {
+		return 1
+	}
+	cref := c.EndCharge(iref, RefTempC)
+	raw := func(j float64) float64 {
+		p := math.Pow(iref/j, c.Peukert-1)
+		q := c.EndCharge(j, RefTempC)
+		if !(q > 0) || !(cref > 0) {
+			return p
+		}
+		return math.Min(math.Max(p*cref/q, math.Min(1, p)), math.Max(1, p))
+	}
+	// Where the sag grows faster than Peukert asks, raw rises again
+	// towards 1 (no extra loss). The factor is the running minimum of raw
+	// on a grid of half-doublings from the light-load span, interpolated
+	// in log current between grid points: exact on the grid (Iref and
+	// 2·Iref among them), never rising with the current.
+	lo := iref / LightLoadSpan
+	if i <= lo {
+		return raw(lo)
+	}
+	const step = math.Sqrt2
+	run := raw(lo)
+	for g := lo; ; g *= step {
+		next := math.Min(run, raw(g*step))
+		if i <= g*step {
+			w := math.Log(i/g) / math.Log(step)
+			return run + w*(next-run)
+		}
+		run = next
+	}
+}
+
+// ColdFactor is the share of the charge the cold leaves at current i (A)
+// and ambient tempC. The temperature table's capacity factor f is taken as
+// the share at the reference current; the loss grows with the current,
+// f^√(i/Iref), so a light load keeps more in the cold than a heavy one
+// (common practice: cold mostly takes rate capability; the square root is
+// our choice, not a published law). Above 1 (warm) f applies as it is.
+func (c *Cell) ColdFactor(i, tempC float64) float64 {
+	f, _ := c.TempFactors(tempC)
+	iref := c.rateRef()
+	if f >= 1 || iref <= 0 {
+		return f
+	}
+	return math.Pow(f, math.Sqrt(math.Max(i, 0)/iref))
+}
+
+// resistanceTable is R0 at RefTempC at scaled charge qs, interpolated in
+// the Resistance table and held at its ends.
+func (c *Cell) resistanceTable(qs float64) float64 {
 	r := c.Resistance
 	if len(r) == 0 {
 		return 0
 	}
-	_, fr := c.TempFactors(tempC)
 	d := qs / c.Curve.End()
 	if d <= r[0].Depth {
-		return r[0].Ohm * fr
+		return r[0].Ohm
 	}
 	for i := 1; i < len(r); i++ {
 		if d <= r[i].Depth {
 			f := (d - r[i-1].Depth) / (r[i].Depth - r[i-1].Depth)
-			return (r[i-1].Ohm + f*(r[i].Ohm-r[i-1].Ohm)) * fr
+			return r[i-1].Ohm + f*(r[i].Ohm-r[i-1].Ohm)
 		}
 	}
-	return r[len(r)-1].Ohm * fr
+	return r[len(r)-1].Ohm
 }
 
-// Terminal is the cell's terminal voltage at scaled charge qs (mAh along
-// the curve, that is delivered charge divided by CapacityFactor), current i
-// (A, out of the cell) and ambient tempC:
-//
-//	V = Vcurve(qs) − (i − Iref)·R(qs)
-//
-// (docs/cells.md). It may be negative at absurd currents; callers cut off first.
-func (c *Cell) Terminal(qs, i, tempC float64) float64 {
-	return c.Curve.At(qs) - (i-c.RefCurrent)*c.ResistanceAt(qs, tempC)
+// ResistanceAt is the instant series resistance R0 in ohms at scaled charge
+// qs (mAh along the curve, delivered charge divided by CapacityFactor) and
+// ambient tempC.
+func (c *Cell) ResistanceAt(qs, tempC float64) float64 {
+	_, fr := c.TempFactors(tempC)
+	return c.resistanceTable(qs) * fr
 }
 
-// OpenCircuit is the cell's voltage with no current at scaled charge qs.
+// PolarisationOhms is ΣRᵢ of the RC branches at RefTempC.
+func (c *Cell) PolarisationOhms() float64 {
+	s := 0.0
+	for _, b := range c.RC {
+		s += b.R
+	}
+	return s
+}
+
+// SteadyResistance is what a constant current meets once every RC branch
+// has settled: R0 + ΣRᵢ at scaled charge qs and ambient tempC.
+func (c *Cell) SteadyResistance(qs, tempC float64) float64 {
+	_, fr := c.TempFactors(tempC)
+	return (c.resistanceTable(qs) + c.PolarisationOhms()) * fr
+}
+
+// OpenCircuit is the cell's open-circuit voltage E at scaled charge qs.
+// The curve was taken under RefCurrent at RefTempC, settled, so E adds
+// that current's steady sag back at RefTempC:
+//
+//	E = Vcurve(qs) + Iref·(R0(qs) + ΣRᵢ)   (resistances at RefTempC)
+//
+// E does not move with the ambient (tempC is unused): the reversible
+// temperature coefficient of the chemistries here is well under 1 mV/K
+// (from memory), which headroom leaves out; the cold acts through the
+// resistances and ColdFactor.
 func (c *Cell) OpenCircuit(qs, tempC float64) float64 {
-	return c.Terminal(qs, 0, tempC)
+	return c.Curve.At(qs) + c.RefCurrent*(c.resistanceTable(qs)+c.PolarisationOhms())
+}
+
+// Terminal is the cell's steady terminal voltage at scaled charge qs,
+// constant current i (A, out of the cell) and ambient tempC, every RC
+// branch settled (Thevenin: E − i·R0 − Σ i·Rᵢ):
+//
+//	V = E(qs) − i·(R0(qs, T) + ΣRᵢ(T))
+//
+// At RefCurrent and RefTempC it is the curve. It may be negative at
+// absurd currents; callers cut off first.
+func (c *Cell) Terminal(qs, i, tempC float64) float64 {
+	return c.OpenCircuit(qs, tempC) - i*c.SteadyResistance(qs, tempC)
+}
+
+// EndCharge is the scaled charge at which the steady terminal voltage at
+// constant current i and ambient tempC first reaches EndPoint: the sag's
+// own rate effect. 0 when it starts below, the curve's end when it never
+// gets there. Between the breakpoints of the curve and the resistance
+// table the terminal voltage is linear in charge, so the crossing is
+// found exactly.
+func (c *Cell) EndCharge(i, tempC float64) float64 {
+	end := c.Curve.End()
+	g := func(q float64) float64 { return c.Terminal(q, i, tempC) - c.EndPoint }
+	lo, glo := 0.0, g(0)
+	if glo <= 0 {
+		return 0
+	}
+	// Walk the curve's points and the resistance table's depths in
+	// order of charge (both are sorted: a merge), stopping at the first
+	// at or below the end-point; the crossing lies on the straight piece
+	// before it.
+	n, r := c.Curve.Len(), c.Resistance
+	ci, ri := 0, 0
+	for ci < n || ri < len(r) {
+		var x float64
+		cq := math.Inf(1)
+		if ci < n {
+			cq, _ = c.Curve.Point(ci)
+		}
+		if ri < len(r) && r[ri].Depth*end < cq {
+			x = r[ri].Depth * end
+			ri++
+		} else {
+			x = cq
+			ci++
+		}
+		if x <= lo || x > end {
+			continue
+		}
+		gx := g(x)
+		if gx <= 0 {
+			return lo + (x-lo)*glo/(glo-gx)
+		}
+		lo, glo = x, gx
+	}
+	return end
 }
 
 // IsPrimary reports whether the cell is single-use.

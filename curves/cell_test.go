@@ -50,7 +50,11 @@ func TestCellFactors(t *testing.T) {
 		{"resistance at 0 °C", second(c.TempFactors(0)), 2.5}, // halfway 4…1
 		{"capacity held below −20 °C", first(c.TempFactors(-40)), 0.4},
 		{"resistance held above 40 °C", second(c.TempFactors(60)), 0.8},
-		{"light load gains nothing", c.CapacityFactor(0.01, RefTempC), 1},
+		// A tenth of Iref gains what half of it gains (LightLoadSpan):
+		// (0.1/0.05)^0.2. The sag alone moves no crossing here: the
+		// curve ends on the end-point, so EndCharge is the curve's end at
+		// both currents.
+		{"light load gains one halving's worth", c.CapacityFactor(0.01, RefTempC), math.Pow(2, 0.2)},
 		{"R at 25 % depth", c.ResistanceAt(250, RefTempC), 0.15},
 		{"R at 75 % depth", c.ResistanceAt(750, RefTempC), 0.4},
 		{"R at 75 % depth, 0 °C", c.ResistanceAt(750, 0), 1.0},
@@ -58,7 +62,12 @@ func TestCellFactors(t *testing.T) {
 		{"terminal at 0.6 A", c.Terminal(500, 0.6, RefTempC), 1.15},
 		// At rest the voltage is above the curve by Iref·R: 1.25 + 0.1·0.2
 		{"open circuit", c.OpenCircuit(500, RefTempC), 1.27},
-		{"terminal at RefCurrent is the curve", c.Terminal(300, 0.1, 0), c.Curve.At(300)},
+		{"terminal at RefCurrent is the curve", c.Terminal(300, 0.1, RefTempC), c.Curve.At(300)},
+		// In the cold the rest voltage stays and the sag grows: at 0 °C
+		// R is 2.5× (0.16 Ω at 300 mAh → 0.4 Ω), so at Iref the
+		// terminal is the curve less 0.1·(0.4 − 0.16).
+		{"cold rest voltage unchanged", c.OpenCircuit(300, -20), c.OpenCircuit(300, RefTempC)},
+		{"cold sag at RefCurrent", c.Terminal(300, 0.1, 0), c.Curve.At(300) - 0.1*(0.4-0.16)},
 	}
 	for _, k := range cases {
 		if math.Abs(k.got-k.want) > 1e-12 {

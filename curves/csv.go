@@ -259,7 +259,7 @@ func WriteCSV(w io.Writer, c *Cell) error {
 		fmt.Fprintf(bw, "# source: %s\n", oneLine(c.Source))
 	}
 	g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
-	if len(c.Resistance) == 0 {
+	if len(c.Resistance) == 0 && len(c.RC) == 0 {
 		if c.RefCurrent > 0 {
 			fmt.Fprintf(bw, "# terminal voltage at %s A\n", g(c.RefCurrent))
 		}
@@ -279,8 +279,10 @@ func WriteCSV(w io.Writer, c *Cell) error {
 	fmt.Fprintln(bw, "mAh,V,ohm")
 	prev := math.Inf(1)
 	for _, q := range qs {
-		r := c.ResistanceAt(q, RefTempC)
-		v := c.Curve.At(q) + c.RefCurrent*r
+		// The polarisation branches fold into the steady resistance: the
+		// format has no time, so it keeps what a steady current meets.
+		r := c.SteadyResistance(q, RefTempC)
+		v := c.OpenCircuit(q, RefTempC)
 		if v > prev {
 			return fmt.Errorf("cell %s: rest voltage rises at %g mAh (%g V after %g V); it cannot be written as mAh,V,ohm points", c.ID, q, v, prev)
 		}

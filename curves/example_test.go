@@ -20,14 +20,14 @@ func ExampleLookup() {
 		fmt.Printf("at %.0f mAh, %.1f A: %.3f V\n", half, amps, c.Terminal(qs, amps, curves.RefTempC))
 	}
 	// By hand: at 0.1 A the curve at 1200 mAh is 1.273 V. At 0.5 A
-	// Peukert (k = 1.25) leaves (0.1/0.5)^0.25 = 0.669 of the charge, so
-	// 1200 mAh sits at 1794 mAh along the curve (1.188 V) where R is
-	// 0.252 Ω: 1.188 − 0.4 × 0.252 = 1.087 V.
+	// Peukert (k = 1.25) leaves (0.1/0.5)^0.25 = 0.669 of the charge; the
+	// sag to 0.9 V already ends the run at EndCharge(0.5 A), so the
+	// charge axis is stretched by what is left (curves.Cell.RateFactor).
 
 	// Output:
 	// alkaline AA (LR6): 2400 mAh to 0.9 V at 0.1 A
 	// at 1200 mAh, 0.1 A: 1.273 V
-	// at 1200 mAh, 0.5 A: 1.087 V
+	// at 1200 mAh, 0.5 A: 1.116 V
 }
 
 // Every built-in cell id, in library order.

@@ -122,6 +122,15 @@ func FuzzReadCellTOML(f *testing.F) {
 		"curve = [[0, 1.5], [100, 1]]\nresistance = [[0.5, 1], [0.2, 1]]\n", "curve = \"x\"\n", "voltage = 3\n",
 		"curve = [[0, 1.5], [100, 1]]\ncurve_csv = \"x.csv\"\n", "curve_csv = \"/dev/null.csv\"\n", "x = \x00\n",
 		"curve = [[0, 1.5], [100, 1]]\nrechargeable = true\n", "curve = [[0, 1.5], [100, 1]]\nrated_mAh = \"1e400mAh\"\n",
+		// polarisation branches and the pack cut-off
+		"curve = [[0, 4.2], [3000, 3.0]]\nresistance = [[0, 0.03]]\nrc = [[0.012, 15], [0.01, 400]]\ncutoff_v = 2.5\n" +
+			"cutoff_delay = \"150ms\"\nrechargeable = true\ncycle_life = 500\ncharge_efficiency = 0.9\n",
+		"curve = [[0, 1.6], [2500, 0.8]]\nref_current = 0.1\nrc = [[0.02, 2], [0.05, 600]]\n",
+		"curve = [[0, 1.5], [100, 1]]\nrc = [[0, 10]]\n", "curve = [[0, 1.5], [100, 1]]\nrc = [[0.1, -1]]\n",
+		"curve = [[0, 1.5], [100, 1]]\nrc = [[0.1]]\n", "curve = [[0, 1.5], [100, 1]]\nrc = [[1, 1], [1, 1], [1, 1], [1, 1]]\n",
+		"curve = [[0, 1.5], [100, 1]]\nrc = [[nan, 1]]\n", "curve = [[0, 1.5], [100, 1]]\nrc = [[1, inf]]\n",
+		"curve = [[0, 1.5], [100, 1]]\ncutoff_v = 2.5\n", "curve = [[0, 1.5], [100, 1]]\ncutoff_v = 1\ncutoff_delay = 0\n",
+		"curve = [[0, 1.5], [100, 1]]\ncutoff_v = -1\ncutoff_delay = 1\n", "curve = [[0, 1.5], [100, 1]]\ncutoff_delay = \"1e9s\"\n",
 		// hostile shapes: nesting at and past the limit, long dotted keys,
 		// claims past the physical ranges
 		"curve = [[0, 1.5], [100, 1]]\nx = " + strings.Repeat("{a=", 16) + "1" + strings.Repeat("}", 16) + "\n",

@@ -1,5 +1,7 @@
 package curves
 
+import "headroom/internal/rc"
+
 // The built-in cells. Every number here is a typical value from memory for
 // a generic cell of the type, not any maker's data and not a brand: curve
 // shapes after docs/cells.md, capacities and prices as commonly seen in retail.
@@ -30,10 +32,23 @@ var alkalineShape = shape{
 	v: []float64{1.56, 1.49, 1.43, 1.39, 1.34, 1.30, 1.26, 1.22, 1.17, 1.12, 1.05, 0.98, 0.90, 0.80},
 }
 
-// alkalineResistance rises several-fold near the end (docs/cells.md); scaled
-// per size by the fresh value. From memory.
+// alkalineResistance is the instant series resistance R0, rising
+// several-fold near the end (docs/cells.md); scaled per size by the fresh
+// total resistance, half of which is R0 and half the polarisation
+// branches (alkalineRC), so that a steady current meets what it met
+// before the cells had memory. From memory.
 func alkalineResistance(fresh float64) []ResistancePoint {
-	return []ResistancePoint{{0, fresh}, {0.5, 1.25 * fresh}, {0.8, 1.8 * fresh}, {0.95, 3 * fresh}, {1, 5 * fresh}}
+	return []ResistancePoint{{0, 0.5 * fresh}, {0.5, 0.75 * fresh}, {0.8, 1.3 * fresh}, {0.95, 2.5 * fresh}, {1, 4.5 * fresh}}
+}
+
+// alkalineRC are the polarisation branches: a fast one (charge transfer,
+// seconds) and a slow one (diffusion in the zinc and the electrolyte, ten
+// minutes), together half the fresh resistance. The slow one is what
+// makes alkaline cells recover strongly in a rest: intermittent use
+// delivers clearly more than continuous use at the same current. Typical
+// values from memory, not a fit.
+func alkalineRC(fresh float64) []rc.Stage {
+	return []rc.Stage{{R: 0.15 * fresh, Tau: 2}, {R: 0.35 * fresh, Tau: 600}}
 }
 
 // alkalineTemperature: alkaline cells are strongly cold-sensitive. From
@@ -48,7 +63,7 @@ func alkaline(id, name, desig string, ratedMAh, refA, freshOhm, price float64) *
 		ID: id, Name: name, Chemistry: "alkaline", Designation: desig,
 		Curve: alkalineShape.curve(ratedMAh, 1), RefCurrent: refA,
 		NominalV: 1.5, RatedMAh: ratedMAh, RatedCurrent: refA, EndPoint: 0.9,
-		Resistance: alkalineResistance(freshOhm), Peukert: 1.25,
+		Resistance: alkalineResistance(freshOhm), RC: alkalineRC(freshOhm), Peukert: 1.25,
 		Temperature: alkalineTemperature, SelfDischarge: alkalineSelfDischarge,
 		Price: price, Source: fromMemory,
 	}
@@ -71,7 +86,10 @@ func nimh(id, name, desig string, ratedMAh, freshOhm, selfDischarge float64, cyc
 		ID: id, Name: name, Chemistry: "nimh", Designation: desig,
 		Curve: nimhShape.curve(ratedMAh, 1), RefCurrent: 0.2 * it,
 		NominalV: 1.2, RatedMAh: ratedMAh, RatedCurrent: 0.2 * it, EndPoint: 1.0,
-		Resistance: []ResistancePoint{{0, freshOhm}, {0.6, 1.1 * freshOhm}, {0.9, 1.4 * freshOhm}, {1, 2 * freshOhm}},
+		// R0, and 30 % of the fresh resistance in two branches: NiMH
+		// recovers a little in a rest.
+		Resistance: []ResistancePoint{{0, 0.7 * freshOhm}, {0.6, 0.8 * freshOhm}, {0.9, 1.1 * freshOhm}, {1, 1.7 * freshOhm}},
+		RC:         []rc.Stage{{R: 0.15 * freshOhm, Tau: 5}, {R: 0.15 * freshOhm, Tau: 300}},
 		Peukert:    1.05, Temperature: nimhTemperature, SelfDischarge: selfDischarge,
 		Rechargeable: true, CycleLife: cycles, ChargeEfficiency: 0.75,
 		Price: price, Source: fromMemory,
@@ -90,6 +108,21 @@ var liionShape = shape{
 // From memory.
 var liionTemperature = []TempPoint{{-20, 0.6, 4}, {0, 0.85, 2}, {20, 1, 1}, {45, 1.0, 0.8}}
 
+// liionRC are a lithium cell's polarisation branches: about 15 s (charge
+// transfer) and about 7 minutes (diffusion in the particles), ohms given.
+// Lithium cells recover a little in a rest. Typical, from memory.
+func liionRC(fast, slow float64) []rc.Stage {
+	return []rc.Stage{{R: fast, Tau: 15}, {R: slow, Tau: 400}}
+}
+
+// The pack protection of lithium cells: under-voltage cut-off per cell
+// and its detection delay. Typical protection ICs trip at about 2.4–3.0 V
+// after tens to a few hundred milliseconds (from memory, not a part).
+const (
+	liionCutoffV    = 2.5
+	packCutoffDelay = 0.15
+)
+
 // library builds the built-in cells, grouped by chemistry. Typical values
 // from memory, not a brand.
 func library() []*Cell {
@@ -106,7 +139,7 @@ func library() []*Cell {
 			ID: "6lr61", Name: "alkaline 9 V block", Chemistry: "alkaline", Designation: "6LR61",
 			Curve: alkalineShape.curve(550, 6), RefCurrent: 0.025,
 			NominalV: 9, RatedMAh: 550, RatedCurrent: 0.025, EndPoint: 5.4,
-			Resistance: alkalineResistance(1.7), Peukert: 1.3,
+			Resistance: alkalineResistance(1.7), RC: alkalineRC(1.7), Peukert: 1.3,
 			Temperature: alkalineTemperature, SelfDischarge: alkalineSelfDischarge,
 			Price: 2.50, Source: fromMemory,
 		},
@@ -118,7 +151,10 @@ func library() []*Cell {
 				[]float64{0, 50, 150, 300, 450, 600, 700, 800, 860, 900, 930},
 				[]float64{1.52, 1.42, 1.35, 1.28, 1.22, 1.15, 1.09, 1.02, 0.96, 0.90, 0.80}),
 			RefCurrent: 0.050, NominalV: 1.5, RatedMAh: 900, RatedCurrent: 0.050, EndPoint: 0.9,
-			Resistance:  []ResistancePoint{{0, 0.35}, {0.5, 0.5}, {0.8, 0.8}, {1, 1.8}},
+			// R0 plus a fast and a slow branch (0.25 Ω together): zinc-
+			// carbon recovers in a rest even more than alkaline.
+			Resistance:  []ResistancePoint{{0, 0.10}, {0.5, 0.25}, {0.8, 0.55}, {1, 1.55}},
+			RC:          []rc.Stage{{R: 0.10, Tau: 3}, {R: 0.15, Tau: 600}},
 			Peukert:     1.35,
 			Temperature: []TempPoint{{-20, 0.15, 6}, {0, 0.55, 2.2}, {20, 1, 1}, {45, 1.0, 0.85}},
 			// About 6 % a year.
@@ -132,7 +168,8 @@ func library() []*Cell {
 				[]float64{0, 30, 150, 500, 1000, 1500, 2000, 2400, 2700, 2850, 2930, 2980, 3000, 3010},
 				[]float64{1.72, 1.60, 1.55, 1.52, 1.50, 1.48, 1.45, 1.42, 1.37, 1.30, 1.18, 1.02, 0.90, 0.80}),
 			RefCurrent: 0.100, NominalV: 1.5, RatedMAh: 3000, RatedCurrent: 0.100, EndPoint: 0.9,
-			Resistance:    []ResistancePoint{{0, 0.12}, {0.5, 0.13}, {0.9, 0.18}, {1, 0.35}},
+			Resistance:    []ResistancePoint{{0, 0.06}, {0.5, 0.07}, {0.9, 0.12}, {1, 0.29}},
+			RC:            []rc.Stage{{R: 0.03, Tau: 3}, {R: 0.03, Tau: 300}},
 			Peukert:       1.08,
 			Temperature:   []TempPoint{{-20, 0.8, 2}, {0, 0.95, 1.3}, {20, 1, 1}, {45, 1.0, 0.9}},
 			SelfDischarge: 0.001, Price: 1.50, Source: fromMemory,
@@ -146,7 +183,10 @@ func library() []*Cell {
 				[]float64{0, 5, 30, 80, 130, 170, 195, 210, 218, 225, 228},
 				[]float64{3.15, 3.00, 2.95, 2.92, 2.88, 2.82, 2.72, 2.55, 2.35, 2.00, 1.80}),
 			RefCurrent: 0.0002, NominalV: 3.0, RatedMAh: 225, RatedCurrent: 0.0002, EndPoint: 2.0,
-			Resistance:  []ResistancePoint{{0, 12}, {0.5, 15}, {0.9, 25}, {1, 40}},
+			// R0 plus 4 Ω of polarisation: coin cells recover well
+			// between pulses.
+			Resistance:  []ResistancePoint{{0, 8}, {0.5, 11}, {0.9, 21}, {1, 36}},
+			RC:          []rc.Stage{{R: 1.5, Tau: 2}, {R: 2.5, Tau: 900}},
 			Peukert:     1.15,
 			Temperature: []TempPoint{{-20, 0.6, 3}, {0, 0.85, 1.6}, {20, 1, 1}, {45, 1.0, 0.8}},
 			// About 1 % a year.
@@ -162,7 +202,9 @@ func library() []*Cell {
 			ID: "li-ion-18650", Name: "Li-ion cylindrical 18650", Chemistry: "li-ion", Designation: "INR19/66",
 			Curve: liionShape.curve(2600, 1), RefCurrent: 0.52,
 			NominalV: 3.6, RatedMAh: 2600, RatedCurrent: 0.52, EndPoint: 2.75,
-			Resistance:    []ResistancePoint{{0, 0.045}, {0.5, 0.05}, {0.9, 0.07}, {1, 0.12}},
+			Resistance: []ResistancePoint{{0, 0.023}, {0.5, 0.028}, {0.9, 0.048}, {1, 0.098}},
+			RC:         liionRC(0.012, 0.010),
+			CutoffV:    liionCutoffV, CutoffDelay: packCutoffDelay,
 			Peukert:       1.03,
 			Temperature:   liionTemperature,
 			SelfDischarge: 0.025, Rechargeable: true, CycleLife: 500, ChargeEfficiency: 0.95,
@@ -175,7 +217,9 @@ func library() []*Cell {
 				[]float64{0, 40, 115, 230, 350, 460, 580, 690, 770, 846, 904, 942, 973, 1000, 1004},
 				[]float64{4.16, 4.07, 3.99, 3.91, 3.85, 3.79, 3.74, 3.69, 3.64, 3.57, 3.48, 3.38, 3.22, 3.00, 2.75}),
 			RefCurrent: 0.2, NominalV: 3.7, RatedMAh: 1000, RatedCurrent: 0.2, EndPoint: 3.0,
-			Resistance:    []ResistancePoint{{0, 0.09}, {0.5, 0.10}, {0.9, 0.14}, {1, 0.22}},
+			Resistance: []ResistancePoint{{0, 0.045}, {0.5, 0.055}, {0.9, 0.095}, {1, 0.175}},
+			RC:         liionRC(0.025, 0.020),
+			CutoffV:    liionCutoffV, CutoffDelay: packCutoffDelay,
 			Peukert:       1.04,
 			Temperature:   liionTemperature,
 			SelfDischarge: 0.025, Rechargeable: true, CycleLife: 500, ChargeEfficiency: 0.95,
@@ -189,7 +233,9 @@ func library() []*Cell {
 				[]float64{0, 30, 150, 400, 700, 1000, 1200, 1350, 1420, 1460, 1485, 1500, 1506},
 				[]float64{3.40, 3.33, 3.30, 3.28, 3.26, 3.24, 3.21, 3.15, 3.05, 2.90, 2.75, 2.50, 2.30}),
 			RefCurrent: 0.3, NominalV: 3.2, RatedMAh: 1500, RatedCurrent: 0.3, EndPoint: 2.5,
-			Resistance:    []ResistancePoint{{0, 0.06}, {0.5, 0.065}, {0.9, 0.08}, {1, 0.13}},
+			Resistance: []ResistancePoint{{0, 0.03}, {0.5, 0.035}, {0.9, 0.05}, {1, 0.10}},
+			RC:         liionRC(0.015, 0.015),
+			CutoffV:    2.0, CutoffDelay: packCutoffDelay, // about 2.0–2.5 V, from memory
 			Peukert:       1.03,
 			Temperature:   []TempPoint{{-20, 0.55, 4.5}, {0, 0.85, 2}, {20, 1, 1}, {45, 1.0, 0.8}},
 			SelfDischarge: 0.03, Rechargeable: true, CycleLife: 2000, ChargeEfficiency: 0.95,

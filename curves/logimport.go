@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"headroom/internal/guard"
+	"headroom/internal/units"
 )
 
 // ImportLog converts a time–voltage log, recorded while the cell was
@@ -35,7 +36,7 @@ import (
 // RatedMAh the last charge.
 func ImportLog(r io.Reader, name string, current float64) (*Cell, error) {
 	if math.IsNaN(current) || math.IsInf(current, 0) || current <= 0 {
-		return nil, fmt.Errorf("%s: the discharge current must be above 0 A, got %v A", name, current)
+		return nil, fmt.Errorf("%s: the discharge current must be above 0 A, got %s", name, units.Eng(current, units.Current, 3))
 	}
 	lines, err := readLines(r, name)
 	if err != nil {

@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"headroom/curves"
+	"headroom/internal/units"
 	"headroom/protect"
 )
 
@@ -29,6 +30,25 @@ type Design struct {
 	// ElectricityPrice is the price of charging energy in dollars per kWh;
 	// 0 means DefaultElectricityPrice.
 	ElectricityPrice float64
+	// PriceGiven makes PackPrice the pack's price even when it is 0 (a
+	// pack that costs nothing); otherwise 0 means the cell's price.
+	PriceGiven bool
+	// Toy says the product is a toy: its cautions then include the
+	// toy-safety standards.
+	Toy bool
+	// MaxInputV is the highest voltage the product's input takes, volts
+	// (0: not stated); a fresh pack above it gets a warning.
+	MaxInputV float64
+	// MinLEDAmps is the least LED current at which the product still
+	// counts as working, amperes (0: none): an LED phase whose current
+	// falls below it stops the run as the floor does. Above 0 only.
+	MinLEDAmps float64
+	// MaxLEDAmps is the LED's maximum rated current, amperes (0: not
+	// stated); an LED phase driven above it gets a warning.
+	MaxLEDAmps float64
+	// ChargerPrice is the price of the charger a rechargeable pack needs,
+	// dollars, at least 0 (0: none to buy); paid for by one pack's life.
+	ChargerPrice float64
 	// TracePoints is how many points of the voltage trace to return for
 	// charts; 0 for none (sweeps).
 	TracePoints int
@@ -54,6 +74,10 @@ func (d *Design) Validate() error {
 		{"standby", CheckStandby(d.Standby)},
 		{"price", CheckPrice(d.PackPrice)},
 		{"electricity price", CheckPrice(d.ElectricityPrice)},
+		{"charger price", CheckPrice(d.ChargerPrice)},
+		{"maximum input voltage", CheckMaxInput(d.MaxInputV)},
+		{"minimum LED current", CheckLEDCurrent(d.MinLEDAmps)},
+		{"maximum LED current", CheckLEDCurrent(d.MaxLEDAmps)},
 	}
 	if d.HoursPerDay != 0 {
 		checks = append(checks, check{"hours per day", CheckHoursPerDay(d.HoursPerDay)})
@@ -81,7 +105,7 @@ func (d *Design) Validate() error {
 			return fmt.Errorf("load phase %d: %w", i+1, err)
 		}
 		if !fin(p.Seconds) || p.Seconds <= 0 {
-			return fmt.Errorf("load phase %d: duration %v s must be above 0", i+1, p.Seconds)
+			return fmt.Errorf("load phase %d: duration %s must be above 0", i+1, units.Eng(p.Seconds, units.Time, 3))
 		}
 	}
 	return nil
@@ -93,7 +117,8 @@ type Cause string
 const (
 	CauseFloor    Cause = "floor"         // the load voltage fell below the floor
 	CauseCollapse Cause = "collapse"      // a constant-power load found no operating point
-	CauseEndPoint Cause = "end-point"     // a cell reached its end-point voltage or the end of its curve
+	CauseEndPoint Cause = "end-point"     // the cells' voltage over a cycle reached their end-point, or the curve ran out
+	CauseCutoff   Cause = "pack cut-off"  // a rechargeable pack's under-voltage cut-off tripped (a dip longer than its delay)
 	CauseLimit    Cause = "current limit" // the protection element clamped the load's current
 	CauseFuse     Cause = "fuse"          // a fuse or polyfuse opened
 )
@@ -116,15 +141,23 @@ type Result struct {
 	DeliveredMAh float64 // charge drawn from the pack until cut-off (load, standby, element drain, self-discharge)
 	DeliveredWh  float64 // energy delivered into the load
 
-	ReferenceMAh            float64 // the cells at this load to their end-point, no element, no floor
-	StrandedMAh             float64 // ReferenceMAh − DeliveredMAh
-	StrandedByProtectionMAh float64 // cut-off charge without the element minus with it
-	StrandedByFloorMAh      float64 // the rest of StrandedMAh
+	// ReferenceMAh is what the cells give at this load and ambient to
+	// their end-point with no element and no floor; it depends on nothing
+	// the designer puts between the cells and the load. StrandedMAh is
+	// ReferenceMAh − DeliveredMAh, split between the element and the floor
+	// by the mean of both orders of removing them (stranded.go). Not
+	// clamped: an element that lowers a resistive load's current can let
+	// the cells run longer, and then its share (and the total) is negative.
+	ReferenceMAh            float64
+	StrandedMAh             float64
+	StrandedByProtectionMAh float64
+	StrandedByFloorMAh      float64
 
 	ProtectionLossWh float64 // energy burnt in the element (drop and standing drain)
 	CellLossWh       float64 // energy burnt in the cells' internal resistance
 	ProtectionPeakW  float64 // highest dissipation in the element
-	JunctionC        float64 // element junction temperature at ProtectionPeakW
+	JunctionC        float64 // element junction at the peak of the hottest pulse, °C (its thermal network, periodic steady state)
+	JunctionMeanC    float64 // element junction averaged over a profile cycle at the same point, °C
 
 	StandbyMAh       float64 // charge drawn outside the hours of use
 	SelfDischargeMAh float64 // charge lost inside the cells
@@ -132,9 +165,10 @@ type Result struct {
 	StandbyShare     float64 // (standby + self-discharge) ÷ delivered, 0 to 1
 
 	PackPrice   float64 // dollars for one pack
-	CostPerHour float64 // dollars per hour of use; 0 when the runtime is 0
+	CostPerHour float64 // dollars per hour of use (cost.go); 0 when the runtime is 0
 
 	CutoffPhase string  // label of the phase that failed first
+	CutoffIndex int     // index in Design.Profile of that phase (labels can repeat)
 	CutoffCause Cause   // why
 	CutoffLoadV float64 // load voltage of that phase just before cut-off
 	CutoffPackV float64 // pack terminal voltage of that phase just before cut-off

@@ -14,7 +14,8 @@ import (
 // that needs 2.2 V: the pack reaches 2.2 V at 1.1 V a cell, 800 mAh in,
 // after 8 h. The reference run to the 1.0 V end-point takes all 1000 mAh,
 // so 200 mAh are stranded, all by the floor (there is no element). Behind
-// a protector switch of 2 Ω (and no supply current) the load loses
+// a protector switch of 2 Ω (no supply current, and a resistance that
+// does not change as it warms: tcr=0) the load loses
 // 0.1 A × 2 Ω = 0.2 V, so the pack must stay above 2.4 V: 1.2 V a cell,
 // reached at 600 mAh, after 6 h: 400 mAh are stranded in all.
 func ExampleEvaluate() {
@@ -35,7 +36,7 @@ func ExampleEvaluate() {
 	fmt.Printf("runtime %.2f h, stops on %s, delivered %.0f of %.0f mAh, stranded by the floor %.0f mAh\n",
 		r.RuntimeH, r.CutoffCause, r.DeliveredMAh, r.ReferenceMAh, r.StrandedByFloorMAh)
 
-	if d.Protect, err = protect.Parse("ic:ron=2,iq=0"); err != nil {
+	if d.Protect, err = protect.Parse("ic:ron=2,iq=0,tcr=0"); err != nil {
 		panic(err)
 	}
 	r, err = discharge.Evaluate(&d)

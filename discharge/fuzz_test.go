@@ -221,8 +221,7 @@ func checkResult(t *testing.T, d *Design, r *Result) {
 	t.Helper()
 	for name, v := range map[string]float64{
 		"RuntimeH": r.RuntimeH, "RuntimeDays": r.RuntimeDays, "DeliveredMAh": r.DeliveredMAh, "DeliveredWh": r.DeliveredWh,
-		"ReferenceMAh": r.ReferenceMAh, "StrandedMAh": r.StrandedMAh, "StrandedByProtectionMAh": r.StrandedByProtectionMAh,
-		"StrandedByFloorMAh": r.StrandedByFloorMAh, "ProtectionLossWh": r.ProtectionLossWh, "CellLossWh": r.CellLossWh,
+		"ReferenceMAh": r.ReferenceMAh, "ProtectionLossWh": r.ProtectionLossWh, "CellLossWh": r.CellLossWh,
 		"ProtectionPeakW": r.ProtectionPeakW, "StandbyMAh": r.StandbyMAh, "SelfDischargeMAh": r.SelfDischargeMAh,
 		"QuiescentA": r.QuiescentA, "StandbyShare": r.StandbyShare, "PackPrice": r.PackPrice, "CostPerHour": r.CostPerHour,
 		"CutoffLoadV": r.CutoffLoadV, "CutoffPackV": r.CutoffPackV, "CutoffAmps": r.CutoffAmps, "FreshV": r.FreshV,
@@ -239,8 +238,15 @@ func checkResult(t *testing.T, d *Design, r *Result) {
 		t.Fatalf("%s: StandbyShare %v above 1", describeDesign(d), r.StandbyShare)
 	}
 	tol := 1e-9 * math.Max(1, r.ReferenceMAh)
-	if r.DeliveredMAh > r.ReferenceMAh+tol {
-		t.Fatalf("%s: delivered %v mAh above the reference %v", describeDesign(d), r.DeliveredMAh, r.ReferenceMAh)
+	// The element's share of the stranded charge (and so the total) may be
+	// negative: an element that lowers a resistive load's current can let
+	// the cells run past the reference. Removing the floor only removes a
+	// way to fail, so the floor's share is never negative beyond rounding.
+	if math.IsNaN(r.StrandedMAh+r.StrandedByProtectionMAh+r.StrandedByFloorMAh) || math.IsInf(r.StrandedMAh+r.StrandedByProtectionMAh+r.StrandedByFloorMAh, 0) {
+		t.Fatalf("%s: stranded %v = %v + %v: want finite numbers", describeDesign(d), r.StrandedMAh, r.StrandedByProtectionMAh, r.StrandedByFloorMAh)
+	}
+	if r.StrandedByFloorMAh < -tol {
+		t.Fatalf("%s: stranded by the floor %v mAh below zero", describeDesign(d), r.StrandedByFloorMAh)
 	}
 	if e := math.Abs(r.DeliveredMAh + r.StrandedMAh - r.ReferenceMAh); e > tol {
 		t.Fatalf("%s: delivered %v + stranded %v ≠ reference %v", describeDesign(d), r.DeliveredMAh, r.StrandedMAh, r.ReferenceMAh)
@@ -266,4 +272,107 @@ func checkResult(t *testing.T, d *Design, r *Result) {
 		}
 		prev = tp.Hours
 	}
+}
+
+// FuzzLoadScale checks that runtime never rises when every phase's demand
+// rises (Load.Scale by 1 to 2), on constant-power and LED profiles — the
+// laws whose current moves with the pack's voltage — with the cell's
+// polarisation branches scaled from a tenth to ten times their
+// resistance and from a hundredth to a hundred times their time
+// constants. No outside source: a bigger load draws at least as much
+// charge, and sags the pack at least as much, at every instant. Slack as
+// in FuzzEvaluate: 1e-9 relative plus the cut-off's resolution.
+func FuzzLoadScale(f *testing.F) {
+	type seed struct {
+		cell, s, p, kind uint8
+		knob             float64
+		n                uint8
+		ks               [3]uint8
+		as, ts           [3]float64
+		floor, temp      float64
+		hours, standby   float64
+		scale, rcR, rcT  float64
+	}
+	for _, sd := range []seed{
+		// The reproduction: 2×LR14, 4.8 W at 90 % for 1 s, a
+		// microampere for a minute (near enough in the fuzzer's scales).
+		{2, 1, 0, 0, 0, 1, [3]uint8{1, 0, 0}, [3]float64{0.93, 0.01, 0}, [3]float64{0.27, 0.6, 0}, 0, 0.48, 0, 0, 0.02, 0.5, 0.5},
+		{0, 1, 0, 1, 0.5, 2, [3]uint8{1, 3, 1}, [3]float64{0.7, 0.4, 0.2}, [3]float64{0.1, 0.3, 0.9}, 0.6, 0.4, 0.3, 0.7, 0.5, 0.9, 0.1},
+		{8, 3, 1, 4, 0.2, 0, [3]uint8{3, 0, 0}, [3]float64{0.3, 0, 0}, [3]float64{0.5, 0, 0}, 0.2, 0.3, 0.6, 0.2, 0.9, 0.2, 0.9},
+		{11, 0, 0, 0, 0, 1, [3]uint8{1, 1, 0}, [3]float64{0.9, 0.2, 0}, [3]float64{0.05, 0.95, 0}, 0.8, 0.5, 0, 0, 0.3, 0.99, 0.99},
+	} {
+		f.Add(sd.cell, sd.s, sd.p, sd.kind, sd.knob, sd.n, sd.ks[0], sd.ks[1], sd.ks[2], sd.as[0], sd.as[1], sd.as[2],
+			sd.ts[0], sd.ts[1], sd.ts[2], sd.floor, sd.temp, sd.hours, sd.standby, sd.scale, sd.rcR, sd.rcT)
+	}
+	f.Fuzz(func(t *testing.T, cell, s, p, kind uint8, knob float64, n, k1, k2, k3 uint8, a1, a2, a3, t1, t2, t3,
+		floor, temp, hours, standby, scale, rcR, rcT float64) {
+		as := [3]float64{a1, a2, a3}
+		d := fuzzDesign(cell, s, p, kind, knob, n, [3]uint8{k1, k2, k3}, as, [3]float64{t1, t2, t3},
+			floor, temp, hours, standby)
+		ks := [3]uint8{k1, k2, k3}
+		for i, k := range ks[:len(d.Profile)] {
+			law := uint8(1) // constant power
+			if k%2 == 1 {
+				law = 3 // LED
+			}
+			d.Profile[i].Load = fuzzLoad(law, frac(as[i]))
+		}
+		// A day's use shorter than one cycle of the profile is outside the
+		// periodic model (the engine warns); the property is not asked there.
+		period := 0.0
+		for _, ph := range d.Profile {
+			period += ph.Seconds
+		}
+		if d.HoursPerDay > 0 && d.HoursPerDay*3600 < period {
+			return
+		}
+		c := *d.Cell
+		c.RC = nil
+		for _, b := range d.Cell.RC {
+			b.R *= math.Pow(10, 2*frac(rcR)-1)
+			b.Tau *= math.Pow(10, 4*frac(rcT)-2)
+			c.RC = append(c.RC, b)
+		}
+		if c.Validate() != nil {
+			return // scaled out of the cell's valid range
+		}
+		d.Cell = &c
+		run := func(f float64) (*Result, bool) {
+			x := *d
+			x.Profile = nil
+			for _, ph := range d.Profile {
+				x.Profile = append(x.Profile, Phase{Load: ph.Load.Scale(f), Seconds: ph.Seconds})
+			}
+			r, err := Evaluate(&x)
+			if err != nil {
+				if !strings.Contains(err.Error(), "never run down") {
+					t.Fatalf("Evaluate(%s) ×%v: %v", describeDesign(&x), f, err)
+				}
+				return nil, false
+			}
+			checkResult(t, &x, r)
+			return r, true
+		}
+		r1, ok1 := run(1)
+		k := 1 + frac(scale)
+		r2, ok2 := run(k)
+		if !ok1 || !ok2 {
+			return
+		}
+		// A run of under a minute lies inside the rested start's first
+		// seconds, where the time a charge stands for is taken from the
+		// fresh pack's drain (docs/cell-model.md §Approximated): the
+		// property is not asked there.
+		if r1.RuntimeH < 1.0/60 {
+			return
+		}
+		res := 2e-12 * c.Curve.End() * float64(d.Parallel) * math.Max(r1.CapacityFac, r2.CapacityFac)
+		slack := 1e-9
+		if r2.DeliveredMAh > 0 {
+			slack += res / r2.DeliveredMAh
+		}
+		if r2.RuntimeH > r1.RuntimeH*(1+slack) {
+			t.Fatalf("%s: load ×%v raises the runtime %v → %v h (%s, %s; F %v, %v; delivered %v, %v; self %v, %v; rc %v)", describeDesign(d), k, r1.RuntimeH, r2.RuntimeH, r1.CutoffCause, r2.CutoffCause, r1.CapacityFac, r2.CapacityFac, r1.DeliveredMAh, r2.DeliveredMAh, r1.SelfDischargeMAh, r2.SelfDischargeMAh, c.RC)
+		}
+	})
 }

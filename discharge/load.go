@@ -57,14 +57,14 @@ func (l Load) String() string {
 	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 	switch l.Kind {
 	case ConstantCurrent:
-		return g(l.Amps) + "A"
+		return units.Format(l.Amps, units.Current)
 	case ConstantPower:
 		if l.Efficiency == 1 {
-			return g(l.Watts) + "W"
+			return units.Format(l.Watts, units.Power)
 		}
-		return g(l.Watts) + "W@" + units.Format(l.Efficiency, units.Fraction) // exact, unlike g(e·100)
+		return units.Format(l.Watts, units.Power) + "@" + units.Format(l.Efficiency, units.Fraction) // exact, unlike g(e·100)
 	case ConstantResistance:
-		return g(l.Ohms) + "ohm"
+		return units.Format(l.Ohms, units.Resistance)
 	case LED:
 		return "led:vf=" + g(l.Vf) + ",r=" + g(l.Ohms)
 	}
@@ -96,25 +96,25 @@ func (l Load) Validate() error {
 	switch l.Kind {
 	case ConstantCurrent:
 		if !fin(l.Amps) || l.Amps < 0 || l.Amps > 100 {
-			return fmt.Errorf("current %v A must be between 0 and 100 A", l.Amps)
+			return fmt.Errorf("current %s must be between 0 and 100 A", units.Eng(l.Amps, units.Current, 3))
 		}
 	case ConstantPower:
 		if !fin(l.Watts) || l.Watts < 0 || l.Watts > 1000 {
-			return fmt.Errorf("power %v W must be between 0 and 1 kW", l.Watts)
+			return fmt.Errorf("power %s must be between 0 and 1 kW", units.Eng(l.Watts, units.Power, 3))
 		}
 		if !fin(l.Efficiency) || l.Efficiency <= 0 || l.Efficiency > 1 {
-			return fmt.Errorf("efficiency %v %% must be above 0 and at most 100 %%", l.Efficiency*100)
+			return fmt.Errorf("efficiency %s must be above 0 and at most 100 %%", units.Eng(l.Efficiency, units.Fraction, 3))
 		}
 	case ConstantResistance:
 		if !fin(l.Ohms) || l.Ohms <= 0 {
-			return fmt.Errorf("resistance %v Ω must be above 0", l.Ohms)
+			return fmt.Errorf("resistance %s must be above 0", units.Eng(l.Ohms, units.Resistance, 3))
 		}
 	case LED:
 		if !fin(l.Ohms) || l.Ohms <= 0 {
-			return fmt.Errorf("LED resistor %v Ω must be above 0", l.Ohms)
+			return fmt.Errorf("LED resistor %s must be above 0", units.Eng(l.Ohms, units.Resistance, 3))
 		}
 		if !fin(l.Vf) || l.Vf < 0 || l.Vf > 50 {
-			return fmt.Errorf("LED forward voltage %v V must be between 0 and 50 V", l.Vf)
+			return fmt.Errorf("LED forward voltage %s must be between 0 and 50 V", units.Eng(l.Vf, units.Voltage, 3))
 		}
 	default:
 		return fmt.Errorf("unknown load kind %d", l.Kind)

@@ -2,8 +2,10 @@ package discharge
 
 import (
 	"fmt"
+	"strings"
 
 	"headroom/internal/guard"
+	"headroom/internal/units"
 )
 
 // The ranges a design's values must lie in. This is their one home: the
@@ -52,7 +54,7 @@ func CheckParallel(n int) error {
 // CheckFloor checks a floor voltage.
 func CheckFloor(v float64) error {
 	if !(v >= 0 && v <= MaxFloorV) {
-		return fmt.Errorf("floor %v V: must be 0 to %g V", v, MaxFloorV)
+		return fmt.Errorf("floor %s: must be 0 to %g V", units.Eng(v, units.Voltage, 3), MaxFloorV)
 	}
 	return nil
 }
@@ -60,7 +62,7 @@ func CheckFloor(v float64) error {
 // CheckTemp checks an ambient temperature.
 func CheckTemp(v float64) error {
 	if !(v >= MinTempC && v <= MaxTempC) {
-		return fmt.Errorf("ambient %v °C: must be %g to %g °C", v, MinTempC, MaxTempC)
+		return fmt.Errorf("ambient %s: must be %g to %g °C", units.Eng(v, units.Temperature, 3), MinTempC, MaxTempC)
 	}
 	return nil
 }
@@ -68,7 +70,7 @@ func CheckTemp(v float64) error {
 // CheckStandby checks a standby current.
 func CheckStandby(v float64) error {
 	if !(v == 0 || v >= MinStandbyA && v <= MaxStandbyA) {
-		return fmt.Errorf("standby %v A: must be 0 to %g A (above 0, at least 1 pA)", v, MaxStandbyA)
+		return fmt.Errorf("standby %s: must be 0 to %g A (above 0, at least 1 pA)", units.Said(v, units.Current), MaxStandbyA)
 	}
 	return nil
 }
@@ -76,7 +78,7 @@ func CheckStandby(v float64) error {
 // CheckPrice checks a price in dollars.
 func CheckPrice(v float64) error {
 	if !guard.PriceOK(v) {
-		return fmt.Errorf("price %v: must be 0 or more and at most %.0f (above 0, at least %.6f)", v, MaxPrice, MinPrice)
+		return fmt.Errorf("price %s: must be 0 or more and at most %.0f (above 0, at least %.6f)", strings.TrimSuffix(units.Said(v, units.Money), " $"), MaxPrice, MinPrice)
 	}
 	return nil
 }
@@ -85,7 +87,30 @@ func CheckPrice(v float64) error {
 // MaxHoursPerDay (a Design also takes 0 for continuous use).
 func CheckHoursPerDay(h float64) error {
 	if !(h >= MinHoursPerDay && h <= MaxHoursPerDay) {
-		return fmt.Errorf("%v hours a day: must be above 0 and at most %g (at least 1 s)", h, MaxHoursPerDay)
+		return fmt.Errorf("%s hours a day: must be above 0 and at most %g (at least 1 s)", units.Num(h, 3), MaxHoursPerDay)
+	}
+	return nil
+}
+
+// MaxInputLimitV is the highest maximum input voltage a product may state.
+const MaxInputLimitV = 1000.0
+
+// MaxLEDLimitA is the highest LED current limit a design may state.
+const MaxLEDLimitA = 100.0
+
+// CheckMaxInput checks a product's maximum input voltage: 0 (not stated)
+// to MaxInputLimitV.
+func CheckMaxInput(v float64) error {
+	if !(v >= 0 && v <= MaxInputLimitV) {
+		return fmt.Errorf("maximum input %s: must be 0 (not stated) to %g V", units.Eng(v, units.Voltage, 3), MaxInputLimitV)
+	}
+	return nil
+}
+
+// CheckLEDCurrent checks an LED current limit: 0 (none) to MaxLEDLimitA.
+func CheckLEDCurrent(v float64) error {
+	if !(v >= 0 && v <= MaxLEDLimitA) {
+		return fmt.Errorf("LED current %s: must be 0 (none) to %g A", units.Eng(v, units.Current, 3), MaxLEDLimitA)
 	}
 	return nil
 }
@@ -96,15 +121,15 @@ func CheckDemand(l Load) error {
 	switch l.Kind {
 	case ConstantCurrent:
 		if l.Amps > 0 && l.Amps < MinLoadA {
-			return fmt.Errorf("current %v A: must be 0 or at least 1 pA", l.Amps)
+			return fmt.Errorf("current %s: must be 0 or at least 1 pA", units.Said(l.Amps, units.Current))
 		}
 	case ConstantPower:
 		if l.Watts > 0 && l.Watts < MinLoadW {
-			return fmt.Errorf("power %v W: must be 0 or at least 1 pW", l.Watts)
+			return fmt.Errorf("power %s: must be 0 or at least 1 pW", units.Said(l.Watts, units.Power))
 		}
 	case ConstantResistance, LED:
 		if l.Ohms > MaxLoadOhms {
-			return fmt.Errorf("resistance %v Ω: must be at most 1 TΩ", l.Ohms)
+			return fmt.Errorf("resistance %s: must be at most 1 TΩ", units.Num(l.Ohms/1e12, 3)+" TΩ")
 		}
 	}
 	return nil

@@ -14,7 +14,7 @@ import (
 func ReversePack(d *Design) protect.Pack {
 	c := d.Cell
 	p := protect.Pack{Series: d.Series, Parallel: max(d.Parallel, 1), TempC: d.TempC,
-		CellV: c.OpenCircuit(0, d.TempC), CellR: c.ResistanceAt(0, d.TempC), LoadR: math.Inf(1)}
+		CellV: c.OpenCircuit(0, d.TempC), CellR: c.ResistanceAt(0, d.TempC), LoadR: math.Inf(1), Chemistry: c.Chemistry}
 	vp := p.CellV * float64(d.Series)
 	for _, ph := range d.Profile {
 		var r float64

@@ -7,6 +7,7 @@ import (
 	"headroom/discharge"
 	"headroom/internal/spicenet"
 	"headroom/internal/spicetest"
+	"headroom/protect"
 )
 
 // TestRuntimeAgainstNgspice compares the engine's runtime with ngspice
@@ -34,6 +35,15 @@ import (
 // floor, which can be up to one cycle after the charge at which the
 // engine's quasi-static phases fail, so those cases get one period on
 // top (30 s of 6.3 h, 1.3e-3; measured 3.5e-4).
+//
+// The cells' RC branches (curves.Cell.RC) are in the circuit as real
+// filters, starting discharged; the engine holds each at the periodic
+// state of the currents at that charge, built up from a rested start.
+// Where the current drifts over the run (a resistive or a constant-power
+// load) a branch lags it by about its time constant τ, which shifts the
+// cut-off by a fraction of τ/runtime: those cases get 0.1·τ/runtime on
+// top (measured: 0.04·τ/runtime for the constant-power case, 1.9e-3).
+// Every case stays within the issue's 1 %.
 func TestRuntimeAgainstNgspice(t *testing.T) {
 	spicetest.Require(t)
 	cases, err := spicenet.Cases()
@@ -68,9 +78,12 @@ func TestRuntimeAgainstNgspice(t *testing.T) {
 			}
 			rel := r.RuntimeH/s.CutoffH - 1
 			tol := 1e-4 + spicenet.Period(&d)/r.RuntimeH
+			if drifts(&d) {
+				tol += 0.1 * slowestTau(&d) / 3600 / r.RuntimeH
+			}
 			t.Logf("headroom %.5f h (%s on %s, load %.3f V from pack %.3f V), ngspice %.5f h (%s), diff %+.1e, tolerance %.1e",
 				r.RuntimeH, r.CutoffCause, r.CutoffPhase, r.CutoffLoadV, r.CutoffPackV, s.CutoffH, s.Cause, rel, tol)
-			if math.Abs(rel) > tol {
+			if math.Abs(rel) > tol || math.Abs(rel) > 0.01 {
 				t.Errorf("runtime %.5f h, ngspice %.5f h: %+.2e relative, beyond %.1e", r.RuntimeH, s.CutoffH, rel, tol)
 			}
 			if string(s.Cause) != string(r.CutoffCause) {
@@ -80,19 +93,40 @@ func TestRuntimeAgainstNgspice(t *testing.T) {
 	}
 }
 
+// drifts reports whether a phase's current moves with the pack's voltage.
+func drifts(d *discharge.Design) bool {
+	for _, p := range d.Profile {
+		if p.Load.Kind != discharge.ConstantCurrent {
+			return true
+		}
+	}
+	return false
+}
+
+// slowestTau is the longest time constant of d's cell's branches, s.
+func slowestTau(d *discharge.Design) float64 {
+	t := 0.0
+	for _, b := range d.Cell.RC {
+		t = math.Max(t, b.Tau)
+	}
+	return t
+}
+
 // limiterPulse checks a design the engine says never starts: a current
 // limiter with a pulse above its limit. Agreement here is on behaviour and
 // on the clamped current, not on a runtime.
 //
-// The engine treats the limiter as ideal: above Vbe/Rsh (0.646 A at 27 °C)
-// it passes no more current, the load voltage collapses, and the product
-// stops at charge 0 with cause "current limit". In the discrete circuit
-// (a reverse-blocking FET, then Rsh, the PNP and the pass FET turned with
-// its body diode towards the pack) the PNP pulls the pass FET's gate up
-// until the channel saturates at the limit, so ngspice, too, must hold the
-// 0.9 A pulse near Vbe/Rsh and let the load voltage fall through the floor
-// during the first pulse, to where the constant-current load's guard
-// (spicenet.CCGuard) fades its demand down to the clamped current.
+// The engine's limiter (protect.Limiter) passes no more than its clamp at
+// the pack voltage it sees (ClampAt: the pass channel saturating at the
+// gate drive the Ebers–Moll PNP leaves it); above it the load voltage
+// collapses, and the product stops at charge 0 with cause "current
+// limit". In the discrete circuit (a reverse-blocking FET, then Rsh, the
+// PNP and the pass FET turned with its body diode towards the pack) the
+// PNP pulls the pass FET's gate up until the channel saturates at the
+// limit, so ngspice, too, must hold the 0.9 A pulse at that limit and let
+// the load voltage fall through the floor during the first pulse, to where
+// the constant-current load's guard (spicenet.CCGuard) fades its demand
+// down to the clamped current.
 func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	if r.CutoffCause != discharge.CauseLimit {
 		t.Fatalf("engine runtime 0 with cause %q, want %q", r.CutoffCause, discharge.CauseLimit)
@@ -109,7 +143,15 @@ func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	clamp := d.Protect.Limit(d.TempC).Clamp
+	lim, ok := d.Protect.(protect.Limiter)
+	if !ok {
+		t.Fatalf("the limiter case has element %q", d.Protect.Kind())
+	}
+	// The clamp at the fresh pack's open-circuit voltage: the pack carries
+	// the clamped current, some 0.1–0.2 V lower, and the clamp moves about
+	// 2 %/V with it (protect's limiter tests), so this errs high by under
+	// 0.5 %.
+	clamp := lim.ClampAt(r.FreshV, d.TempC)
 	// The pulse is the profile's largest phase; before is when it starts.
 	var pulse, before, width, start float64
 	for _, p := range d.Profile {
@@ -125,11 +167,9 @@ func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	if sec := s.CutoffH * 3600; s.Cause != spicenet.Floor || sec < before || sec > before+width {
 		t.Errorf("ngspice cut-off at %.3f s (%q), want inside the first pulse, %.0f s into the cycle", sec, s.Cause, before)
 	}
-	// ngspice's pulse current is held at the limit. The circuit's PNP
-	// reaches the engine's Vbe(T) at a collector current of
-	// spicenet.LimiterOnCurrent; a factor of two either way in the current
-	// it really needs at the clamp moves the limit by Vt·ln 2 ≈ 18 mV of
-	// 0.646 V, 2.8 %, so we allow 3 % (measured: −0.5 %).
+	// ngspice's pulse current is held at the limit: the laws are the
+	// same, so what differs is the pack voltage above and the PNP's base
+	// current; the issue asks 3 % (measured: see the log).
 	if math.Abs(s.PeakA/clamp-1) > 0.03 {
 		t.Errorf("ngspice passes %.4f A during the %.3f A pulse; want the %.4f A limit within 3 %%", s.PeakA, pulse, clamp)
 	}

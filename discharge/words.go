@@ -24,8 +24,8 @@ func (d *Design) cutoffText(r *Result) string {
 	what := "the " + r.CutoffPhase + " phase"
 	if ph != nil {
 		heaviest := true
-		for _, q := range d.Profile {
-			if q.Load.Label() != ph.Load.Label() && q.Demand() > ph.Demand() {
+		for j, q := range d.Profile {
+			if j != r.CutoffIndex && q.Demand() > ph.Demand() {
 				heaviest = false
 			}
 		}
@@ -64,16 +64,24 @@ func (d *Design) cutoffText(r *Result) string {
 		return "the protection's current limit cuts " + what + " (it wants " + amps + ")"
 	case CauseFuse:
 		return "the fuse opens on " + what + " (" + amps + ")"
+	case CauseDim:
+		return "the LED dims below the " + units.Eng(d.MinLEDAmps, units.Current, 3) + " that counts as lit, on " + what
+	case CauseCutoff:
+		return fmt.Sprintf("the pack's under-voltage cut-off trips on %s (pack %.2f V for longer than its delay)", what, r.CutoffPackV)
+	}
+	if len(d.Profile) > 1 {
+		// The end-point applies to the voltage averaged over a cycle
+		// while current flows, not to one phase's dip.
+		return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V averaged over a cycle while it draws current)", r.CutoffPackV)
 	}
 	return fmt.Sprintf("the cells reach their end-point voltage (pack %.2f V) on %s", r.CutoffPackV, what)
 }
 
-// cutoffPhase is the profile phase the result names, or nil.
+// cutoffPhase is the profile phase the result names, or nil. It goes by
+// index: two phases can carry the same label.
 func (d *Design) cutoffPhase(r *Result) *Phase {
-	for i := range d.Profile {
-		if d.Profile[i].Label() == r.CutoffPhase {
-			return &d.Profile[i]
-		}
+	if i := r.CutoffIndex; i >= 0 && i < len(d.Profile) {
+		return &d.Profile[i]
 	}
 	return nil
 }

@@ -33,10 +33,9 @@ type Crowbar struct {
 	Diode Shockley
 	// Price is the unit cost of fuse and diode in dollars, at least 0.
 	Price float64
-	// ThetaJA is the diode's junction-to-ambient resistance in °C/W.
-	ThetaJA float64
-	// TjMax is the diode's highest junction temperature in °C.
-	TjMax float64
+	// Heat is the crowbar diode's thermal network (it is the part that
+	// heats, in a reversed-pack short).
+	Heat Thermal
 }
 
 // Typical fast-acting miniature fuse, from memory: cold resistance about
@@ -53,7 +52,7 @@ const (
 func DefaultCrowbar() Crowbar {
 	d := DefaultDiode()
 	return Crowbar{Fuse: 0.5, RFuse: fuseOhmAmps / 0.5, I2t: fuseI2tRatio * 0.5 * 0.5,
-		Diode: d.Junction, Price: 0.12, ThetaJA: d.ThetaJA, TjMax: d.TjMax}
+		Diode: d.Junction, Price: 0.12, Heat: d.Heat}
 }
 
 // deriveCrowbar scales the fuse resistance and I²t with the rating when a
@@ -64,7 +63,9 @@ func deriveCrowbar(s settable, given func(string) bool) {
 		return
 	}
 	if !given("rfuse") {
-		c.RFuse = fuseOhmAmps / c.Fuse
+		// Three digits, as a datasheet states it: the spec that writes it
+		// back then reads rfuse=14.3mohm, not 0.014285714285714287ohm.
+		c.RFuse = units.RoundSig(fuseOhmAmps/c.Fuse, 3)
 	}
 	if !given("i2t") {
 		c.I2t = fuseI2tRatio * c.Fuse * c.Fuse
@@ -96,7 +97,8 @@ func (c Crowbar) Limit(tempC float64) Limit {
 }
 
 func (c Crowbar) Cost() float64    { return c.Price }
-func (c Crowbar) Thermal() Thermal { return Thermal{ThetaJA: c.ThetaJA, TjMax: c.TjMax} }
+func (c Crowbar) Thermal() Thermal { return c.Heat }
+func (c *Crowbar) heat() *Thermal  { return &c.Heat }
 
 // OpenTime returns the seconds the fuse takes to open at current i, or
 // +Inf when i is at or below the minimum fusing current (twice the rating).
@@ -164,14 +166,26 @@ func (c Crowbar) ShortCurrent(v, r, tempC float64) (i, vd float64) {
 func (c Crowbar) Reverse(p Pack) Reversal {
 	i, vd := c.ShortCurrent(packVolts(p), packOhms(p), p.TempC)
 	ca := Case{Outcome: FuseOpens, Current: i, Volts: -vd}
+	// The diode heats through its network while the short lasts: to the
+	// single pulse's Zth(t)·P by the time the fuse opens, or to the
+	// steady θja·P when it never does.
 	if t := c.OpenTime(i); !math.IsInf(t, 1) {
 		ca.Seconds = t
+		ca.JunctionC = c.Heat.Pulse(i*vd, t, p.TempC)
 		ca.Note = "the crowbar diode shorts the reversed pack: " + units.Human(i, units.Current, 3) +
 			" opens the fuse in about " + units.Human(t, units.Time, 2) + "; replace the fuse"
+		if ca.JunctionC > c.Heat.TjMax {
+			ca.Note += "; the diode reaches " + units.Human(ca.JunctionC, units.Temperature, 3) + " first, above its " +
+				units.Human(c.Heat.TjMax, units.Temperature, 3) + " limit: use a bigger diode or a faster fuse"
+		}
 	} else {
 		ca.Outcome = ShortsCells
+		ca.JunctionC = c.Heat.Junction(i*vd, p.TempC)
 		ca.Note = "the crowbar diode shorts the reversed pack at " + units.Human(i, units.Current, 3) +
 			", too little to open the fuse: the cells discharge until flat or the diode fails"
+		if ca.JunctionC > c.Heat.TjMax {
+			ca.Note += " (it passes its " + units.Human(c.Heat.TjMax, units.Temperature, 3) + " limit" + c.Heat.reachText(i*vd, p.TempC) + ")"
+		}
 	}
 	return Reversal{WholePack: ca, OneCell: flipped(c, p)}
 }
@@ -184,7 +198,7 @@ func (c *Crowbar) fields() []field {
 	}
 	fs = append(fs, shockleyFields("d", &c.Diode)...)
 	fs = append(fs, costField(&c.Price))
-	return append(fs, thermalFields(&c.ThetaJA, &c.TjMax)...)
+	return append(fs, thermalFields(&c.Heat)...)
 }
-func (c *Crowbar) check() error   { return nil }
+func (c *Crowbar) check() error   { return c.Heat.check(c.Kind()) }
 func (c *Crowbar) value() Element { return *c }

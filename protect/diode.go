@@ -1,6 +1,10 @@
 package protect
 
-import "math"
+import (
+	"math"
+
+	"headroom/internal/units"
+)
 
 // The SI defining constants (SI Brochure, 9th edition, 2019), exact.
 const (
@@ -96,10 +100,8 @@ type Diode struct {
 	Junction Shockley
 	// Price is the unit cost in dollars, at least 0.
 	Price float64
-	// ThetaJA is junction-to-ambient thermal resistance in °C/W, above 0.
-	ThetaJA float64
-	// TjMax is the highest allowed junction temperature in °C.
-	TjMax float64
+	// Heat is the thermal network from junction to ambient.
+	Heat Thermal
 }
 
 // DefaultDiode is a generic 1 A silicon rectifier (typical, from memory):
@@ -108,7 +110,7 @@ type Diode struct {
 func DefaultDiode() Diode {
 	return Diode{
 		Junction: Shockley{Is: 10e-9, N: 1.8, Rs: 0.08, Eg: 1.11, XTI: 3},
-		Price:    0.03, ThetaJA: 100, TjMax: 150,
+		Price:    0.03, Heat: sma,
 	}
 }
 
@@ -118,19 +120,20 @@ func (d Diode) Drop(i, vin, tempC float64) float64   { return d.Junction.Drop(i,
 func (d Diode) Quiescent(vin, tempC float64) float64 { return 0 }
 func (d Diode) Limit(tempC float64) Limit            { return NoLimit }
 func (d Diode) Cost() float64                        { return d.Price }
-func (d Diode) Thermal() Thermal                     { return Thermal{ThetaJA: d.ThetaJA, TjMax: d.TjMax} }
+func (d Diode) Thermal() Thermal                     { return d.Heat }
 func (d Diode) Warnings(op Operating) []string       { return appendHeat(nil, d.Thermal(), op) }
 func (d Diode) Reverse(p Pack) Reversal {
 	return blockedReverse(d, p, d.Junction.Saturation(p.TempC), "the diode is reverse-biased")
 }
 func (d *Diode) fields() []field { return diodeFields(d) }
-func (d *Diode) check() error    { return nil }
+func (d *Diode) check() error    { return d.Heat.check(d.Kind()) }
+func (d *Diode) heat() *Thermal  { return &d.Heat }
 func (d *Diode) value() Element  { return *d }
 
 func diodeFields(d *Diode) []field {
 	fs := shockleyFields("", &d.Junction)
 	fs = append(fs, costField(&d.Price))
-	return append(fs, thermalFields(&d.ThetaJA, &d.TjMax)...)
+	return append(fs, thermalFields(&d.Heat)...)
 }
 
 // Schottky is a series Schottky-barrier diode: the same law as Diode with
@@ -147,7 +150,7 @@ type Schottky struct {
 func DefaultSchottky() Schottky {
 	return Schottky{Diode{
 		Junction: Shockley{Is: 1e-6, N: 1, Rs: 0.12, Eg: 0.69, XTI: 2},
-		Price:    0.05, ThetaJA: 150, TjMax: 125,
+		Price:    0.05, Heat: smaSchottky,
 	}}
 }
 
@@ -155,9 +158,28 @@ func (s Schottky) Kind() string     { return "schottky" }
 func (s Schottky) Spec() string     { return specOf(s.Kind(), s.fields()) }
 func (s *Schottky) fields() []field { return diodeFields(&s.Diode) }
 func (s *Schottky) value() Element  { return *s }
+func (s *Schottky) check() error    { return s.Heat.check(s.Kind()) }
+
+// Reverse: the reversed pack leaks through the Schottky diode, and the
+// leakage heats it: the junction settles where V·Is(Tj) through the
+// thermal network gives back Tj (Heating.Settle). A leakage that grows
+// with heat faster than the package sheds it runs away — Schottky
+// barriers are known for it — and the note says so.
 func (s Schottky) Reverse(p Pack) Reversal {
-	return blockedReverse(s, p, s.Junction.Saturation(p.TempC),
-		"the Schottky diode is reverse-biased (its leakage grows about a hundredfold from 25 to 85 °C)")
+	v := packVolts(p)
+	tj := []float64{p.TempC}
+	h := NewHeating(s.Heat, []float64{1})
+	st := h.Settle(p.TempC, func(_ int, t float64) float64 { return v * s.Junction.Saturation(t) }, tj)
+	why := "the Schottky diode is reverse-biased (its leakage grows about a hundredfold from 25 to 85 °C)"
+	r := blockedReverse(s, p, s.Junction.Saturation(tj[0]), why)
+	r.WholePack.JunctionC = tj[0]
+	if !st.OK {
+		r.WholePack.JunctionC = s.Heat.TjMax
+		r.WholePack.Current = s.Junction.Saturation(s.Heat.TjMax)
+		r.WholePack.Note = "the Schottky diode is reverse-biased, but its leakage heats it faster than its package sheds the heat: it runs away past " +
+			units.Human(s.Heat.TjMax, units.Temperature, 3) + " (" + units.Human(r.WholePack.Current, units.Current, 2) + " there and rising) and may fail"
+	}
+	return r
 }
 
 // AtTemp is an element whose temperature terms can be worked out once for
@@ -198,5 +220,7 @@ func (m PMOSClamp) AtTemp(tempC float64) Element {
 
 func (l Limiter) AtTemp(tempC float64) Element {
 	l.Body = l.Body.At(tempC)
+	q := l.PNP()
+	l.pnp = &junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
 	return l
 }

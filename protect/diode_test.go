@@ -169,8 +169,15 @@ func TestSchottkyLeakage(t *testing.T) {
 	if hot/cold < 30 {
 		t.Errorf("leakage grows only %.1f× from 25 to 85 °C", hot/cold)
 	}
+	// Reversed, the leakage heats the junction a little: it flows at the
+	// junction temperature Tj that solves Tj = 85 °C + θja·V·Is(Tj) (the
+	// steady balance; residual to 1e-6 °C), a touch above the ambient's.
 	r := s.Reverse(Pack{Series: 2, CellV: 1.5, CellR: 0.15, LoadR: 10, TempC: 85})
-	if r.WholePack.Outcome != Blocked || r.WholePack.Current != hot {
-		t.Errorf("hot reversal = %+v, want blocked with %g A", r.WholePack, hot)
+	tj := r.WholePack.JunctionC
+	if res := 85 + s.Heat.ThetaJA*3*s.Junction.Saturation(tj) - tj; math.Abs(res) > 1e-6 {
+		t.Errorf("hot reversal: junction %g °C does not balance its leakage's heat (residual %g °C)", tj, res)
+	}
+	if r.WholePack.Outcome != Blocked || r.WholePack.Current != s.Junction.Saturation(tj) || !(r.WholePack.Current > hot) {
+		t.Errorf("hot reversal = %+v, want blocked with Is(Tj), above %g A", r.WholePack, hot)
 	}
 }

@@ -7,9 +7,10 @@
 //
 // Units: amperes, volts, ohms, watts, °C, dollars. Currents are positive
 // from the pack into the load. The package knows nothing of cells or loads
-// beyond the numbers passed to it. Junctions are taken at the ambient
-// temperature passed in; self-heating is reported (Thermal, Warnings), not
-// fed back into the drop.
+// beyond the numbers passed to it. Drop and Quiescent take the junction
+// temperature passed in; each element's thermal network (Thermal, a
+// Foster ladder) and Heating give the junction over a repeating profile
+// and solve it together with the drops that heat it (Heating.Settle).
 //
 // Elements are written as specs, "kind:key=value,...", for example
 // "diode:is=10n,n=1.8,rs=0.08" or "pmos-clamp:vz=5.1,rg=100k"; Parse reads

@@ -30,8 +30,8 @@ type Element interface {
 	Limit(tempC float64) Limit
 	// Cost is the element's unit cost in dollars, parts only.
 	Cost() float64
-	// Thermal gives the junction-to-ambient thermal resistance and the
-	// maximum junction temperature.
+	// Thermal gives the element's thermal network (steady θja and its
+	// Foster ladder) and the maximum junction temperature.
 	Thermal() Thermal
 	// Warnings lists what goes wrong in normal use at the operating
 	// conditions given, in plain words; nil when nothing does.
@@ -52,23 +52,19 @@ type Limit struct {
 // NoLimit is a Limit with neither a clamp nor a trip.
 var NoLimit = Limit{Clamp: math.Inf(1), Trip: math.Inf(1)}
 
-// Thermal holds ThetaJA, junction-to-ambient thermal resistance in °C/W
-// (above 0), and TjMax, the highest allowed junction temperature in °C.
-type Thermal struct {
-	ThetaJA float64
-	TjMax   float64
-}
-
-// Junction returns the junction temperature in °C at dissipation p (W) and
-// ambient tambC: Tj = Tamb + θja·P.
-func (t Thermal) Junction(p, tambC float64) float64 { return tambC + t.ThetaJA*p }
-
 // Operating describes normal use for Warnings.
 type Operating struct {
 	VFresh   float64   // open-circuit pack voltage when fresh, volts
 	Currents []float64 // the highest current of each load phase, amperes
 	PeakW    float64   // highest dissipation in the element, watts
 	TempC    float64   // ambient, °C
+	// PeakC is the junction's highest temperature over the profile from
+	// its thermal network (Heating), °C; 0 means not worked out, and
+	// the steady Tamb + θja·PeakW is used instead.
+	PeakC float64
+	// Seconds is each phase's duration in seconds, beside Currents; nil
+	// when unknown (a polyfuse then judges each current as if held).
+	Seconds []float64
 }
 
 // Pack describes the pack for Reverse.
@@ -79,6 +75,26 @@ type Pack struct {
 	Parallel int     // strings in parallel, at least 1
 	LoadR    float64 // the load's resistance seen at its input, ohms (+Inf if unknown)
 	TempC    float64 // ambient, °C
+	// Chemistry is the cells' chemistry as the cell library names it
+	// ("alkaline", "nimh", …); it only picks the words for what a cell
+	// driven backwards does. "" for unknown.
+	Chemistry string
+}
+
+// backwardHarm says what a cell of chemistry chem does when the rest of a
+// series pack drives it backwards (common practice; makers' safety notes).
+func backwardHarm(chem string) string {
+	switch chem {
+	case "alkaline", "zinc-carbon":
+		return "alkaline and zinc-carbon cells may leak"
+	case "nimh":
+		return "a NiMH cell driven backwards heats and can vent gas"
+	case "li-ion", "lifepo4":
+		return "a lithium-ion cell driven backwards can be damaged for good; its pack protection should stop it"
+	case "lithium-mno2", "lithium-fes2":
+		return "a lithium primary cell driven backwards can heat and vent"
+	}
+	return "the flipped cell may leak or heat"
 }
 
 // Outcome is the class of what happens on a wrong insertion.
@@ -121,6 +137,10 @@ type Case struct {
 	Volts   float64 // voltage at the load, volts (negative when reversed)
 	Seconds float64 // time until a fuse opens, seconds; 0 when not applicable
 	Note    string  // one sentence for people
+	// JunctionC is the hottest the element's junction gets in this case,
+	// °C, from its thermal network: by the time a fuse opens, or settled
+	// when nothing opens; 0 when it does not heat worth the name.
+	JunctionC float64
 }
 
 // Reversal holds the two wrong insertions: the whole pack reversed, and one
@@ -139,7 +159,7 @@ func (None) Drop(i, vin, tempC float64) float64   { return 0 }
 func (None) Quiescent(vin, tempC float64) float64 { return 0 }
 func (None) Limit(tempC float64) Limit            { return NoLimit }
 func (None) Cost() float64                        { return 0 }
-func (None) Thermal() Thermal                     { return Thermal{ThetaJA: 1, TjMax: math.Inf(1)} }
+func (None) Thermal() Thermal                     { return Thermal{TjMax: math.Inf(1), TauFast: 1, Tau: 1} }
 func (None) Warnings(op Operating) []string       { return nil }
 func (None) Reverse(p Pack) Reversal {
 	v := float64(p.Series) * p.CellV
@@ -171,5 +191,24 @@ func FlippedCell(p Pack, drop float64) Case {
 		i = v / p.LoadR
 	}
 	return Case{Outcome: Unseen, Current: i, Volts: v,
-		Note: "no input element sees it: the pack gives two cell voltages less and the flipped cell is charged backwards (alkaline cells may leak)"}
+		Note: "no input element sees it: the pack gives two cell voltages less and the flipped cell is charged backwards (" + backwardHarm(p.Chemistry) + ")"}
+}
+
+// Overloader is an element that opens after a time set by the current
+// profile as a whole, not at once above a current (a polyfuse). Overload
+// returns the peak over one cycle of its normalised heating in the
+// periodic steady state of the profile repeating currents[k] for secs[k]
+// seconds at ambient tempC, and the phase where it peaks: at 1 or more it
+// opens. Its Limit().Trip is then the current it opens at if held.
+type Overloader interface {
+	Overload(currents, secs []float64, tempC float64) (peak float64, phase int)
+}
+
+// Clamper is an element whose current limit depends on the voltage at its
+// input (the limiter: more pack, more gate drive for the PNP to pull
+// down). ClampAt is the current it holds the load to with vin at its
+// input at tempC; Limit().Clamp is an upper bound of it over the inputs
+// the element takes. Its Drop is the whole input above the clamp.
+type Clamper interface {
+	ClampAt(vin, tempC float64) float64
 }

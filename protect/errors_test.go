@@ -21,7 +21,7 @@ func TestSpecError(t *testing.T) {
 		{"none:x=1", "none", "", `none: unknown key "x": none takes no parameters`},
 		{"diode:n=1,n=2", "diode", "", `diode: key "n" given twice`},
 		{"diode:is=abc", "diode", "is", `diode: key "is": `},
-		{"diode:is=0", "diode", "is", `diode: key "is": 0 is out of range`},
+		{"diode:is=0", "diode", "is", `diode: key "is": 0 A is out of range`},
 		{"pmos:vref=1,vth=2", "pmos", "vref", `pmos: key "vref": 1V must be above vth 2V`},
 		{"pmos-clamp:vz=1,vth=2", "pmos-clamp", "vz", `pmos-clamp: key "vz": `},
 		{"pptc:hold=1,trip=0.5", "pptc", "trip", `pptc: key "trip": `},

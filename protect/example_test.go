@@ -24,10 +24,10 @@ func ExampleParse() {
 	fmt.Println(err)
 	// Output:
 	// diode drops 0.761 V at 100 mA, 25 °C
-	// pmos from 3.2 V:   7.4 mV at 100 mA
-	// pmos from 1.9 V:  21.5 mV at 100 mA
-	// pmos from 1.1 V: 663.7 mV at 100 mA
-	// protect: limiter: key "rsh": 0 is out of range: expected the sense resistance above 0 Ω and at most 10000 Ω
+	// pmos from 3.2 V:   6.9 mV at 100 mA
+	// pmos from 1.9 V:  18.5 mV at 100 mA
+	// pmos from 1.1 V: 664.5 mV at 100 mA
+	// protect: limiter: key "rsh": 0 Ω is out of range: expected the sense resistance above 0 Ω and at most 10000 Ω
 }
 
 func ExampleElement_Reverse() {
@@ -43,10 +43,11 @@ func ExampleElement_Reverse() {
 func ExampleWithMain() {
 	l := protect.Default("limiter")
 	k, _ := protect.Main(l)
-	fmt.Printf("%s = %g, limit %.3f A\n", k.Key, k.Value, l.Limit(25).Clamp)
+	// The limit from a 2×AA pack (3 V) at 25 °C.
+	fmt.Printf("%s = %g, limit %.3f A\n", k.Key, k.Value, l.(protect.Limiter).ClampAt(3, 25))
 	l, _ = protect.WithMain(l, k.Value/2)
-	fmt.Printf("halved: limit %.3f A\n", l.Limit(25).Clamp)
+	fmt.Printf("halved: limit %.3f A\n", l.(protect.Limiter).ClampAt(3, 25))
 	// Output:
-	// rsh = 1, limit 0.650 A
-	// halved: limit 1.300 A
+	// rsh = 1, limit 0.535 A
+	// halved: limit 1.059 A
 }

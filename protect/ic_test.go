@@ -58,3 +58,28 @@ func TestIC(t *testing.T) {
 		t.Errorf("default part at 6.4 V: warnings %q", w)
 	}
 }
+
+// Issue 13: above its over-voltage threshold the protector cuts the load
+// (its drop is the whole input, nothing reaches the load), below it the
+// switch conducts; its on-resistance rises with the junction by tcr
+// (0.5 %/°C by default: 1.5× at 125 °C, as a MOSFET's, from memory); and
+// the current limit's spread is a key that reads back. Exact arithmetic.
+func TestICCutsAboveOVP(t *testing.T) {
+	c := DefaultIC()
+	if d := c.Drop(0.2, c.Vovp+0.01, 25); d != c.Vovp+0.01 {
+		t.Errorf("above Vovp: drop %g V, want the whole input %g V", d, c.Vovp+0.01)
+	}
+	if d := c.Drop(0.2, c.Vovp, 25); math.Abs(d-0.2*c.Ron) > 1e-15 {
+		t.Errorf("at Vovp: drop %g V, want I·Ron", d)
+	}
+	if r := c.Drop(0.2, 3, 125) / c.Drop(0.2, 3, 25); math.Abs(r-1.5) > 1e-12 {
+		t.Errorf("Ron(125 °C)/Ron(25 °C) = %g, want 1.5", r)
+	}
+	e, err := Parse("ic:spread=15%")
+	if err != nil || e.(IC).Spread != 0.15 {
+		t.Errorf("spread=15%%: %v, %+v", err, e)
+	}
+	if _, err := Parse("ic:spread=60%"); err == nil || !strings.Contains(err.Error(), `"spread"`) {
+		t.Errorf("spread=60%% accepted or not named: %v", err)
+	}
+}

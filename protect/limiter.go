@@ -24,23 +24,38 @@ import (
 // on the pack side, base on the load side — and once i·Rsh reaches Vbe its
 // collector pulls the pass FET's gate up towards its source.
 //
-// Below the limit the drop is i·Rsh plus the two channels' drops, each FET
-// driven by its own terminal voltages; the PNP is off. The limit current
-// is Vbe(T)/Rsh with Vbe(T) = Vbe + TcVbe·(T − 25 °C) (common practice;
-// BJT Vbe falls about 2 mV/°C, Sedra and Smith, Microelectronic Circuits).
+// Below the knee the drop is i·Rsh plus the two channels' drops, each FET
+// driven by its own terminal voltages. The PNP obeys the Ebers–Moll law in
+// its forward-active region (Ebers and Moll, 1954; the transport form
+// SPICE's Gummel–Poon model reduces to with its defaults): with Vbe =
+// i·Rsh it passes Ic = Is(T)·(e^(Vbe/Vt) − 1) into the gate node, and the
+// pass FET's gate drive falls from k·Vs to k·Vs − Ic·(R1∥R2). With R1∥R2
+// near 91 kΩ, some 10–30 µA of collector current already takes control,
+// at Vbe ≈ 0.53–0.56 V, well below the 0.65 V of the rule of thumb: the
+// limit is where the pass channel, at the gate drive the PNP leaves it,
+// just saturates at the load current (ClampAt), and the drop bends up
+// smoothly towards it — a soft knee, not a hard clamp. The limit falls
+// about 0.3 %/°C as the PNP's Vbe does (about −2 mV/°C from Is(T); Sedra
+// and Smith, Microelectronic Circuits) and grows a little with the pack
+// voltage (more gate drive to pull down). Base current (Ic/β, a fraction
+// of a µA) is left out.
+//
+// One temperature is used for the whole circuit: the pass FET's junction,
+// the part that heats; the PNP beside it on the board runs cooler, so this
+// errs towards a lower limit when the pass FET is hot.
+//
 // At the limit the pass FET takes up whatever voltage the load does not:
-// in a short it holds Ilim with almost the whole pack across it,
-// P = Vpack·Ilim, and heats to Tamb + θja·P.
+// in a short it holds the limit with almost the whole pack across it,
+// P = Vpack·Ilim, and heats through its thermal network.
 type Limiter struct {
 	// FET is each of the two MOSFETs: the blocking one and the pass one.
 	FET
 	// Rsh is the sense resistance in ohms. Above 0.
 	Rsh float64
-	// Vbe is the PNP's base-emitter turn-on voltage at 25 °C in volts,
-	// from 0.3 to 1.
+	// Vbe is the PNP's base-emitter voltage at 1 mA of collector current
+	// and 25 °C, in volts, from 0.3 to 1; it sets the PNP's saturation
+	// current (PNP).
 	Vbe float64
-	// TcVbe is Vbe's temperature coefficient in V/°C, from −0.005 to 0.
-	TcVbe float64
 	// R1 is the gate resistor from the pass FET's source to its gate,
 	// ohms. Above 0.
 	R1 float64
@@ -50,29 +65,63 @@ type Limiter struct {
 	// Price is the unit cost of all seven parts (two FETs, the PNP, three
 	// resistors) in dollars, at least 0.
 	Price float64
-	// ThetaJA is the pass FET's junction-to-ambient thermal resistance in
-	// °C/W, above 0.
-	ThetaJA float64
-	// TjMax is the pass FET's highest junction temperature in °C.
-	TjMax float64
+	// Heat is the pass FET's thermal network (it is the part that heats
+	// when limiting).
+	Heat Thermal
+
+	// pnp holds the PNP's Is(T) and Vt(T) for one temperature (AtTemp);
+	// not a parameter.
+	pnp *junctionAt
 }
 
-// DefaultLimiter is a 1 Ω sense resistor (0.65 A limit), a small-signal
-// PNP at 0.65 V, two of the generic SOT-23 FET of DefaultPMOS and a
-// 1 MΩ/100 kΩ gate divider (typical, from memory), $0.28 for the parts:
+// DefaultLimiter is a 1 Ω sense resistor, a small-signal PNP with Vbe
+// 0.65 V at 1 mA (Is about 1e-14 A), two of the generic SOT-23 FET of
+// DefaultPMOS and a 1 MΩ/100 kΩ gate divider (typical, from memory): it
+// limits near 0.55 A from a 2×AA pack at 25 °C. $0.28 for the parts:
 // $0.08 a FET as DefaultPMOS, the rest for the PNP and resistors.
 func DefaultLimiter() Limiter {
-	return Limiter{FET: defaultFET(), Rsh: 1, Vbe: 0.65, TcVbe: -0.002,
-		R1: 1e6, R2: 100e3, Price: 0.28, ThetaJA: 250, TjMax: 150}
+	return Limiter{FET: defaultFET(), Rsh: 1, Vbe: 0.65,
+		R1: 1e6, R2: 100e3, Price: 0.28, Heat: sot23}
 }
+
+// pnpEg and pnpXTI are a silicon BJT's activation energy (eV) and
+// saturation-current temperature exponent: SPICE's defaults for the
+// bipolar model (EG 1.11, XTI 3).
+const (
+	pnpEg  = 1.11
+	pnpXTI = 3
+	pnpRef = 1e-3 // A: the collector current at which Vbe is given
+)
+
+// PNP returns the sense transistor's base-emitter junction as a Shockley
+// junction with n = 1 (Ebers–Moll): its saturation current at 27 °C is
+// the one that passes 1 mA at Vbe and 25 °C.
+func (l Limiter) PNP() Shockley {
+	unit := Shockley{Is: 1, N: 1, Eg: pnpEg, XTI: pnpXTI}
+	is25 := pnpRef / math.Expm1(l.Vbe/ThermalVoltage(RefC+ZeroCelsius))
+	return Shockley{Is: is25 / unit.Saturation(RefC), N: 1, Eg: pnpEg, XTI: pnpXTI}
+}
+
+// VbeAt returns the PNP's Vbe at a collector current of 1 mA and tempC.
+func (l Limiter) VbeAt(tempC float64) float64 { return l.PNP().Drop(pnpRef, tempC) }
+
+// Collector returns the PNP's collector current in amperes with the sense
+// voltage vbe across its base and emitter at tempC: Is(T)·(e^(Vbe/Vt) − 1).
+func (l Limiter) Collector(vbe, tempC float64) float64 {
+	p := l.pnp
+	if p == nil || p.tempC != tempC {
+		q := l.PNP()
+		p = &junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
+	}
+	return p.is * math.Expm1(math.Min(vbe/p.nvt, 700))
+}
+
+// rp is the divider's Thevenin resistance R1∥R2, through which the PNP's
+// collector current pulls the gate.
+func (l Limiter) rp() float64 { return l.R1 * l.R2 / (l.R1 + l.R2) }
 
 func (l Limiter) Kind() string { return "limiter" }
 func (l Limiter) Spec() string { return specOf(l.Kind(), l.fields()) }
-
-// VbeAt returns the PNP's Vbe at tempC, never below 0.
-func (l Limiter) VbeAt(tempC float64) float64 {
-	return math.Max(0, l.Vbe+l.TcVbe*(tempC-25))
-}
 
 // drive is the gate divider's fraction R1/(R1+R2).
 func (l Limiter) drive() float64 { return l.R1 / (l.R1 + l.R2) }
@@ -98,14 +147,55 @@ func (l Limiter) Drop(i, vin, tempC float64) float64 {
 	if !(i > 0) {
 		return 0
 	}
-	ia := i * l.slope()
-	b1 := vin - l.Vth
-	up := channelDrop(ia, b1, 0.5, 0.5*b1*b1, l.Body.Drop(i, tempC)) + i*l.Rsh // d1 + i·Rsh
-	b2 := l.drive()*(vin-up) - l.Vth
+	f := l.At(tempC)
+	ia := i * f.A
+	b1 := vin - f.Vth
+	up := channelDrop(ia, b1, 0.5, 0.5*b1*b1, l.Body.Drop(i, tempC)) + i*(f.Rfix+l.Rsh) // d1 + i·Rsh
+	b2 := l.drive()*(vin-up) - l.Collector(i*l.Rsh, tempC)*l.rp() - f.Vth
 	if !(b2 > 0) || ia > 0.5*b2*b2 {
 		return math.Max(vin, up)
 	}
-	return up + channelDrop(ia, b2, 0.5, 0.5*b2*b2, math.Inf(1))
+	return up + channelDrop(ia, b2, 0.5, 0.5*b2*b2, math.Inf(1)) + i*f.Rfix
+}
+
+// ClampAt returns the current the limiter holds the load to with vin at
+// its input and the circuit at tempC: the largest current at which the
+// pass channel, at the gate drive k·Vs − Ic·(R1∥R2) the PNP leaves it,
+// still carries the load, i·A ≤ b2²/2 (the Shichman–Hodges saturation
+// current K·(|Vgs| − Vth)²/2: in a short the pass FET sits there). Found
+// by bisection (b2 − sqrt(2·i·A) falls as i rises); 0 when the pass FET
+// cannot turn on at all.
+func (l Limiter) ClampAt(vin, tempC float64) float64 {
+	f := l.At(tempC)
+	k, rp := l.drive(), l.rp()
+	excess := func(i float64) float64 {
+		ia := i * f.A
+		b1 := vin - f.Vth
+		up := channelDrop(ia, b1, 0.5, 0.5*b1*b1, l.Body.Drop(i, tempC)) + i*(f.Rfix+l.Rsh)
+		return k*(vin-up) - l.Collector(i*l.Rsh, tempC)*rp - f.Vth - math.Sqrt(2*ia)
+	}
+	if !(excess(0) > 0) {
+		return 0
+	}
+	lo, hi := 0.0, 1.2/l.Rsh // 1.2 V of sense: the PNP passes amperes
+	for excess(hi) > 0 {
+		hi *= 2
+		if hi > 1e6 {
+			return hi
+		}
+	}
+	for range 200 {
+		m := 0.5 * (lo + hi)
+		if excess(m) > 0 {
+			lo = m
+		} else {
+			hi = m
+		}
+		if hi-lo <= 1e-12*hi {
+			break
+		}
+	}
+	return lo
 }
 
 // Quiescent is the gate divider's current vin/(R1+R2). The divider hangs
@@ -120,30 +210,34 @@ func (l Limiter) Quiescent(vin, tempC float64) float64 {
 	return 0
 }
 
-// Limit clamps the load current at Vbe(T)/Rsh.
+// Limit gives, as Clamp, the highest current the limiter passes from any
+// pack its gates can take: ClampAt at the input where the divider drives
+// the pass gate to its limit VgsMax. The clamp at a given pack voltage is
+// ClampAt, at most this (Clamper).
 func (l Limiter) Limit(tempC float64) Limit {
-	return Limit{Clamp: l.VbeAt(tempC) / l.Rsh, Trip: math.Inf(1)}
+	return Limit{Clamp: l.ClampAt(l.VgsMax/l.drive(), tempC), Trip: math.Inf(1)}
 }
 
 func (l Limiter) Cost() float64    { return l.Price }
-func (l Limiter) Thermal() Thermal { return Thermal{ThetaJA: l.ThetaJA, TjMax: l.TjMax} }
+func (l Limiter) Thermal() Thermal { return l.Heat }
+func (l *Limiter) heat() *Thermal  { return &l.Heat }
 
 // ShortCircuit returns the pass FET's dissipation (W) and junction
 // temperature (°C) with the output shorted: the FET holds the limit current
 // with the pack voltage vpack across it.
 func (l Limiter) ShortCircuit(vpack, tempC float64) (watts, tjC float64) {
-	watts = vpack * l.Limit(tempC).Clamp
+	watts = vpack * l.ClampAt(vpack, tempC)
 	return watts, l.Thermal().Junction(watts, tempC)
 }
 
 func (l Limiter) Warnings(op Operating) []string {
 	var w []string
-	lim := l.Limit(op.TempC).Clamp
-	if p, tj := l.ShortCircuit(op.VFresh, op.TempC); tj > l.TjMax {
+	lim := l.ClampAt(op.VFresh, op.TempC)
+	if p, tj := l.ShortCircuit(op.VFresh, op.TempC); tj > l.Heat.TjMax {
 		w = append(w, "in a short the pass FET holds "+units.Human(lim, units.Current, 3)+" with "+
 			units.Human(op.VFresh, units.Voltage, 3)+" across it: "+units.Human(p, units.Power, 3)+
-			", junction "+units.Human(tj, units.Temperature, 3)+", above its "+units.Human(l.TjMax, units.Temperature, 3)+
-			" limit: it overheats unless heat-sunk")
+			", junction "+units.Human(tj, units.Temperature, 3)+" when settled, above its "+units.Human(l.Heat.TjMax, units.Temperature, 3)+
+			" limit"+l.Heat.reachText(p, op.TempC)+": it overheats unless heat-sunk")
 	}
 	if g := l.drive() * op.VFresh; g > l.VgsMax {
 		w = append(w, "the gate divider gives "+units.Human(g, units.Voltage, 3)+" of gate drive from a fresh pack, above the ±"+
@@ -174,17 +268,19 @@ func (l Limiter) Reverse(p Pack) Reversal {
 func (l *Limiter) fields() []field {
 	fs := []field{
 		{key: "rsh", kind: units.Resistance, p: &l.Rsh, lo: 0, hi: 1e4, loOpen: true, what: "the sense resistance"},
-		{key: "vbe", kind: units.Voltage, p: &l.Vbe, lo: 0.3, hi: 1, what: "the PNP's Vbe at 25 °C"},
-		{key: "tc", kind: plain, p: &l.TcVbe, lo: -0.005, hi: 0, what: "Vbe's temperature coefficient in V/°C"},
+		{key: "vbe", kind: units.Voltage, p: &l.Vbe, lo: 0.3, hi: 1, what: "the PNP's Vbe at 1 mA and 25 °C"},
 		{key: "r1", kind: units.Resistance, p: &l.R1, lo: 0, hi: 1e9, loOpen: true, what: "the source-to-gate resistor"},
 		{key: "r2", kind: units.Resistance, p: &l.R2, lo: 0, hi: 1e9, loOpen: true, what: "the gate-to-ground resistor"},
 	}
 	fs = append(fs, fetFields(&l.FET)...)
 	fs = append(fs, costField(&l.Price))
-	return append(fs, thermalFields(&l.ThetaJA, &l.TjMax)...)
+	return append(fs, thermalFields(&l.Heat)...)
 }
 
 func (l *Limiter) check() error {
-	return l.FET.check(l.Kind())
+	if err := l.FET.check(l.Kind()); err != nil {
+		return err
+	}
+	return l.Heat.check(l.Kind())
 }
 func (l *Limiter) value() Element { return *l }

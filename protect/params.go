@@ -97,13 +97,35 @@ func (f field) rangeText() string {
 func (f field) validate(kind string) error {
 	if !f.inRange(*f.p) {
 		return specErrorf(kind, f.key, "%s is out of range: expected %s %s",
-			strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, f.rangeText())
+			f.human(*f.p), f.what, f.rangeText())
 	}
 	if f.least > 0 && *f.p < f.least {
 		return specErrorf(kind, f.key, "%s is too small: expected %s of at least %s",
-			strconv.FormatFloat(*f.p, 'g', -1, 64), f.what, units.Format(f.least, f.kind))
+			f.human(*f.p), f.what, f.bound(f.least))
 	}
 	return nil
+}
+
+// bound writes a limit of the field: as human does, or for a limit far
+// below the smallest prefix, in plain scientific notation.
+func (f field) bound(v float64) string {
+	if s := f.human(v); !strings.HasPrefix(s, "a value under") {
+		return s
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64) + " " + strings.TrimPrefix(units.Eng(1, f.kind, 1), "1 ")
+}
+
+// human writes a value of the field for people (the one formatter,
+// internal/units).
+func (f field) human(v float64) string {
+	if f.kind == plain {
+		return units.Num(v, 4)
+	}
+	s := units.Eng(v, f.kind, 4)
+	if v != 0 && strings.HasPrefix(s, "0 ") { // too small to write: say so
+		return "a value under " + units.Eng(math.Copysign(1e-15, 1), f.kind, 1)
+	}
+	return s
 }
 
 // specOf writes kind:key=value,... with every field, in the field order.
@@ -259,6 +281,7 @@ func parse(spec string) (settable, error) {
 	if info.derive != nil {
 		info.derive(s, func(k string) bool { return given[k] })
 	}
+	deriveHeat(s, func(k string) bool { return given[k] })
 	if err := validate(s); err != nil {
 		return nil, err
 	}
@@ -383,6 +406,7 @@ func WithMain(e Element, v float64) (Element, error) {
 	switch t := s.(type) {
 	case *PPTC:
 		t.Trip *= v / old
+		t.R *= math.Pow(old/v, 1.2) // the scaling of pptcOhms
 	case *Crowbar:
 		t.RFuse *= old / v
 		t.I2t *= (v / old) * (v / old)
@@ -397,13 +421,6 @@ func WithMain(e Element, v float64) (Element, error) {
 // the same way.
 func costField(p *float64) field {
 	return field{key: "cost", kind: units.Money, p: p, lo: 0, hi: 1000, what: "the unit cost in dollars"}
-}
-
-func thermalFields(theta, tjmax *float64) []field {
-	return []field{
-		{key: "theta", kind: plain, p: theta, lo: 0, hi: 10000, loOpen: true, what: "θja in °C/W"},
-		{key: "tjmax", kind: units.Temperature, p: tjmax, lo: 25, hi: 400, loOpen: true, what: "the highest junction temperature"},
-	}
 }
 
 // shockleyFields lists a junction's parameters under keys with the given

@@ -110,7 +110,15 @@ func TestParseErrors(t *testing.T) {
 		{"ic:iq=1e400", []string{`"iq"`}},
 		{"none:x=1", []string{`"x"`, "no parameters"}},
 		{"diode:cost=-1", []string{`"cost"`}},
-		{"diode:theta=0", []string{`"theta"`}},
+		// Thermal keys (issue 13): θ below 0, τ at or below 0, a package
+		// stage above θja. theta=0 itself is an ideal heat sink and valid.
+		{"diode:theta=-1", []string{`"theta"`}},
+		{"pmos:tau=0", []string{`"tau"`, "above 0"}},
+		{"pptc:tauf=-2", []string{`"tauf"`}},
+		{"ic:thetaf=300", []string{`"thetaf"`, "at most theta"}},
+		{"limiter:theta=50,thetaf=60", []string{`"thetaf"`}},
+		{"schottky:thetaf=1000", []string{"schottky", `"thetaf"`}},
+		{"pptc:hold=2,trip=1.5", []string{`"trip"`, "hold"}},
 	} {
 		_, err := Parse(c.spec)
 		if err == nil {

@@ -9,36 +9,80 @@ import (
 // FET holds a P-channel MOSFET's conduction parameters, shared by PMOS,
 // PMOSClamp and the Limiter's pass element.
 //
-// The channel follows the square law (Shichman and Hodges, 1968) in its
-// linear region at small drain-source voltage: Rch(|Vgs|) = 1/(K·(|Vgs| −
-// Vth)) with K = KP·W/L. Fixing K by the rated on-resistance gives
+// The on-resistance is a channel part and a fixed part. The channel
+// follows the square law (Shichman and Hodges, 1968) in its linear region
+// at small drain-source voltage, Rch(|Vgs|) = 1/(K·(|Vgs| − Vth)); the
+// fixed part Rfix (package leads, bond wires, metallisation) does not
+// depend on the gate drive. Fixing K by the rated on-resistance gives
 //
-//	Rch(|Vgs|) = Ron·(Vref − Vth)/(|Vgs| − Vth), |Vgs| > Vth,
+//	Rch(|Vgs|) = (Ron − Rfix)·(Vref − Vth)/(|Vgs| − Vth), |Vgs| > Vth,
 //
-// and the channel is off at or below Vth. Ron and Vth are taken as
-// independent of temperature (real parts gain roughly 0.5 %/°C of Ron and
-// lose a few mV/°C of Vth, from memory); the body diode follows Shockley
-// with temperature.
+// and the channel is off at or below Vth. Rfix is taken on the load side
+// of the channel, so it does not eat gate drive (half of it in the source
+// lead would take i·Rfix/2, millivolts, off volts of drive).
+//
+// Temperature (typical, from memory; datasheets plot both): the rated
+// on-resistance rises linearly, Ron(T) = Ron·(1 + TcR·(T − 25 °C)) —
+// about 1.5× from 25 to 125 °C, mobility falling in the channel and
+// resistivity rising in the metal alike — and the threshold falls,
+// Vth(T) = Vth + TcVth·(T − 25 °C), a few mV/°C. K(T) is set so that the
+// rated on-resistance at Vref follows Ron(T) exactly; at low gate drive the
+// falling threshold offsets part of the rise. The body diode follows
+// Shockley with temperature.
 type FET struct {
-	// Ron is the rated on-resistance in ohms at |Vgs| = Vref. Above 0.
+	// Ron is the rated on-resistance in ohms at |Vgs| = Vref and 25 °C,
+	// channel and fixed part together. Above 0.
 	Ron float64
 	// Vref is the |Vgs| at which Ron is rated, volts. Above Vth.
 	Vref float64
-	// Vth is the gate threshold |Vgs| in volts. Above 0.
+	// Vth is the gate threshold |Vgs| in volts at 25 °C. Above 0.
 	Vth float64
 	// VgsMax is the gate-source limit in volts (typically 8, 12 or 20).
 	VgsMax float64
+	// Rfix is the part of Ron that does not depend on gate drive, ohms,
+	// at least 0 and below Ron.
+	Rfix float64
+	// TcR is the on-resistance's temperature coefficient per °C, from 0
+	// to 0.01.
+	TcR float64
+	// TcVth is the threshold's temperature coefficient in V/°C, from
+	// −0.01 to 0.
+	TcVth float64
 	// Body is the source-drain body diode, which points from pack to load.
 	Body Shockley
 }
 
-// Channel returns the channel resistance in ohms at gate drive vgs =
-// |Vgs|, or +Inf when the channel is off (vgs ≤ Vth).
+// RefC is the temperature at which FET ratings are given, °C.
+const RefC = 25
+
+// FETAt is a FET's conduction parameters at one junction temperature: the
+// Shichman–Hodges A = 1/K in V·A (V²/A·… the channel's volts·amperes
+// product), the threshold and the fixed resistance.
+type FETAt struct {
+	A, Vth, Rfix float64
+}
+
+// K is the square-law factor K = KP·W/L in A/V² (SPICE's KP with W = L).
+func (a FETAt) K() float64 { return 1 / a.A }
+
+// At returns the FET's parameters at junction temperature tempC. The
+// resistance factor is kept at 0.1 or more (a coefficient of 0.01/°C at
+// −65 °C would otherwise reach zero).
+func (f FET) At(tempC float64) FETAt {
+	dt := tempC - RefC
+	r := math.Max(0.1, 1+f.TcR*dt)
+	vth := math.Max(1e-3, f.Vth+f.TcVth*dt)
+	return FETAt{A: (f.Ron - f.Rfix) * r * (f.Vref - vth), Vth: vth, Rfix: f.Rfix * r}
+}
+
+// Channel returns the on-resistance in ohms at gate drive vgs = |Vgs| and
+// 25 °C at small current, channel and fixed part, or +Inf when the channel
+// is off (vgs ≤ Vth).
 func (f FET) Channel(vgs float64) float64 {
 	if !(vgs > f.Vth) {
 		return math.Inf(1)
 	}
-	return f.Ron * (f.Vref - f.Vth) / (vgs - f.Vth)
+	return f.Rfix + (f.Ron-f.Rfix)*(f.Vref-f.Vth)/(vgs-f.Vth)
 }
 
 // channelDrop returns the drop of a FET channel in parallel with its body
@@ -84,15 +128,15 @@ func channelDrop(ia, b, c, satIA, diode float64) float64 {
 	return diode
 }
 
-// slope is A = Ron·(Vref − Vth), the channel's volts·amperes product.
-func (f FET) slope() float64 { return f.Ron * (f.Vref - f.Vth) }
-
 func fetFields(f *FET) []field {
 	fs := []field{
 		{key: "ron", kind: units.Resistance, p: &f.Ron, lo: 0, hi: 1000, loOpen: true, what: "the rated on-resistance"},
 		{key: "vref", kind: units.Voltage, p: &f.Vref, lo: 0, hi: 100, loOpen: true, what: "the gate drive at which ron is rated"},
 		{key: "vth", kind: units.Voltage, p: &f.Vth, lo: 0, hi: 20, loOpen: true, what: "the gate threshold"},
 		{key: "vgsmax", kind: units.Voltage, p: &f.VgsMax, lo: 0, hi: 100, loOpen: true, what: "the gate-source limit"},
+		{key: "rfix", kind: units.Resistance, p: &f.Rfix, lo: 0, hi: 1000, what: "the part of ron that gate drive does not change"},
+		{key: "tcr", kind: plain, p: &f.TcR, lo: 0, hi: 0.01, what: "ron's temperature coefficient per °C"},
+		{key: "tcvth", kind: plain, p: &f.TcVth, lo: -0.01, hi: 0, what: "vth's temperature coefficient in V/°C"},
 	}
 	return append(fs, shockleyFields("b", &f.Body)...)
 }
@@ -102,14 +146,19 @@ func (f FET) check(kind string) error {
 		return specErrorf(kind, "vref", "%s must be above vth %s, where the channel turns on",
 			units.Format(f.Vref, units.Voltage), units.Format(f.Vth, units.Voltage))
 	}
+	if !(f.Rfix < f.Ron) {
+		return specErrorf(kind, "rfix", "%s must be below ron %s, which includes it",
+			units.Format(f.Rfix, units.Resistance), units.Format(f.Ron, units.Resistance))
+	}
 	return nil
 }
 
 // defaultFET is a generic small logic-level P-channel MOSFET in SOT-23
-// (typical, from memory): 45 mΩ at 4.5 V, threshold 0.8 V, ±12 V gate,
-// body diode about 0.65 V at 100 mA and 0.77 V at 1 A.
+// (typical, from memory): 45 mΩ at 4.5 V of which 8 mΩ leads and bond
+// wires, threshold 0.8 V, ±12 V gate, Ron +0.5 %/°C (1.5× at 125 °C),
+// Vth −3 mV/°C, body diode about 0.65 V at 100 mA and 0.77 V at 1 A.
 func defaultFET() FET {
-	return FET{Ron: 0.045, Vref: 4.5, Vth: 0.8, VgsMax: 12,
+	return FET{Ron: 0.045, Vref: 4.5, Vth: 0.8, VgsMax: 12, Rfix: 0.008, TcR: 0.005, TcVth: -0.003,
 		Body: Shockley{Is: 1e-11, N: 1.1, Rs: 0.05, Eg: 1.11, XTI: 3}}
 }
 
@@ -125,16 +174,14 @@ type PMOS struct {
 	FET
 	// Price is the unit cost in dollars, at least 0.
 	Price float64
-	// ThetaJA is junction-to-ambient thermal resistance in °C/W, above 0.
-	ThetaJA float64
-	// TjMax is the highest allowed junction temperature in °C.
-	TjMax float64
+	// Heat is the thermal network from junction to ambient.
+	Heat Thermal
 }
 
 // DefaultPMOS is the generic FET of defaultFET (from memory) in SOT-23:
 // θja 250 °C/W, Tj max 150 °C, $0.08.
 func DefaultPMOS() PMOS {
-	return PMOS{FET: defaultFET(), Price: 0.08, ThetaJA: 250, TjMax: 150}
+	return PMOS{FET: defaultFET(), Price: 0.08, Heat: sot23}
 }
 
 func (m PMOS) Kind() string { return "pmos" }
@@ -142,19 +189,22 @@ func (m PMOS) Spec() string { return specOf(m.Kind(), m.fields()) }
 
 // Drop solves the channel drop in closed form with the gate at ground, so
 // that |Vgs| = vin − drop at the load-side terminal (see channelDrop for
-// the law and how the body diode combines with it).
+// the law and how the body diode combines with it), at junction
+// temperature tempC, and adds the fixed part i·Rfix.
 func (m PMOS) Drop(i, vin, tempC float64) float64 {
 	if !(i > 0) {
 		return 0
 	}
-	b := vin - m.Vth
-	return channelDrop(i*m.slope(), b, 0.5, 0.5*b*b, m.Body.Drop(i, tempC))
+	f := m.At(tempC)
+	b := vin - f.Vth
+	return channelDrop(i*f.A, b, 0.5, 0.5*b*b, m.Body.Drop(i, tempC)) + i*f.Rfix
 }
 
 func (m PMOS) Quiescent(vin, tempC float64) float64 { return 0 }
 func (m PMOS) Limit(tempC float64) Limit            { return NoLimit }
 func (m PMOS) Cost() float64                        { return m.Price }
-func (m PMOS) Thermal() Thermal                     { return Thermal{ThetaJA: m.ThetaJA, TjMax: m.TjMax} }
+func (m PMOS) Thermal() Thermal                     { return m.Heat }
+func (m *PMOS) heat() *Thermal                      { return &m.Heat }
 
 func (m PMOS) Warnings(op Operating) []string {
 	var w []string
@@ -172,9 +222,14 @@ func (m PMOS) Reverse(p Pack) Reversal {
 
 func (m *PMOS) fields() []field {
 	fs := append(fetFields(&m.FET), costField(&m.Price))
-	return append(fs, thermalFields(&m.ThetaJA, &m.TjMax)...)
+	return append(fs, thermalFields(&m.Heat)...)
 }
-func (m *PMOS) check() error   { return m.FET.check(m.Kind()) }
+func (m *PMOS) check() error {
+	if err := m.FET.check(m.Kind()); err != nil {
+		return err
+	}
+	return m.Heat.check(m.Kind())
+}
 func (m *PMOS) value() Element { return *m }
 
 // PMOSClamp is a PMOS with a Zener diode from source to gate and a gate
@@ -201,22 +256,24 @@ func DefaultPMOSClamp() PMOSClamp {
 func (m PMOSClamp) Kind() string { return "pmos-clamp" }
 func (m PMOSClamp) Spec() string { return specOf(m.Kind(), m.fields()) }
 
-// Drop: while the clamp holds (vin − d ≥ Vz) the gate sits at vin − d −
-// Vz, so from the pack-side terminal the square law reads
-// i·A = (Vz − Vth)·d + d²/2 (channelDrop with c = −1/2, b = Vz − Vth; it
-// never pinches off). Otherwise the gate is at ground and the PMOS law
-// holds; the two meet where vin − d = Vz, so the drop is continuous.
+// Drop: while the clamp holds (vin − d ≥ Vz, d the whole drop) the gate
+// sits at vin − d − Vz, so from the pack-side terminal the square law for
+// the channel's part dc = d − i·Rfix reads i·A = (Vz + i·Rfix − Vth)·dc +
+// dc²/2 (channelDrop with c = −1/2; it never pinches off). Otherwise the
+// gate is at ground and the PMOS law holds; the two meet where vin − d =
+// Vz, so the drop is continuous.
 func (m PMOSClamp) Drop(i, vin, tempC float64) float64 {
 	if !(i > 0) {
 		return 0
 	}
-	ia := i * m.slope()
+	f := m.At(tempC)
+	ia, rf := i*f.A, i*f.Rfix
 	diode := m.Body.Drop(i, tempC)
-	if dc := channelDrop(ia, m.Vz-m.Vth, -0.5, math.Inf(1), math.Inf(1)); vin-dc >= m.Vz {
-		return math.Min(dc, diode)
+	if dc := channelDrop(ia, m.Vz+rf-f.Vth, -0.5, math.Inf(1), math.Inf(1)); vin-dc-rf >= m.Vz {
+		return math.Min(dc, diode) + rf
 	}
-	b := vin - m.Vth
-	return channelDrop(ia, b, 0.5, 0.5*b*b, diode)
+	b := vin - f.Vth
+	return channelDrop(ia, b, 0.5, 0.5*b*b, diode) + rf
 }
 
 // Quiescent is the Zener and gate-resistor current (vin − Vz)/Rg above Vz.
@@ -250,7 +307,7 @@ func (m *PMOSClamp) fields() []field {
 		field{key: "vz", kind: units.Voltage, p: &m.Vz, lo: 0, hi: 100, loOpen: true, what: "the Zener clamp voltage"},
 		field{key: "rg", kind: units.Resistance, p: &m.Rg, lo: 0, hi: 1e9, loOpen: true, what: "the gate resistor"},
 		costField(&m.Price))
-	return append(fs, thermalFields(&m.ThetaJA, &m.TjMax)...)
+	return append(fs, thermalFields(&m.Heat)...)
 }
 
 func (m *PMOSClamp) check() error {
@@ -261,7 +318,7 @@ func (m *PMOSClamp) check() error {
 		return specErrorf("pmos-clamp", "vz", "%s must be above vth %s, or the clamp holds the channel off",
 			units.Format(m.Vz, units.Voltage), units.Format(m.Vth, units.Voltage))
 	}
-	return nil
+	return m.Heat.check(m.Kind())
 }
 func (m *PMOSClamp) value() Element { return *m }
 

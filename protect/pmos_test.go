@@ -10,14 +10,17 @@ import (
 	"headroom/internal/spicetest"
 )
 
-// kp is the Shichman–Hodges K = KP·W/L matching a FET's rating: in the
-// linear region at small drain-source voltage Rch = 1/(K·(|Vgs| − Vth)),
-// so Ron at |Vgs| = Vref fixes K = 1/(Ron·(Vref − Vth)).
-func kp(f FET) float64 { return 1 / (f.Ron * (f.Vref - f.Vth)) }
+// kp is the Shichman–Hodges K = KP·W/L matching a FET's rating at 27 °C
+// (ngspice's nominal temperature): in the linear region at small
+// drain-source voltage Rch = 1/(K·(|Vgs| − Vth)), so the channel part of
+// Ron at |Vgs| = Vref fixes K = 1/((Ron − Rfix)·(Vref − Vth)), each at
+// its temperature (FET.At).
+func kp(f FET) float64 { return f.At(27).K() }
 
-// spiceFET writes a level-1 PMOS model with W = L, so that KP is K.
+// spiceFET writes a level-1 PMOS model with W = L, so that KP is K, and
+// the threshold at 27 °C.
 func spiceFET(name string, f FET) string {
-	return fmt.Sprintf(".model %s PMOS(LEVEL=1 VTO=%g KP=%.17g)\n", name, -f.Vth, kp(f))
+	return fmt.Sprintf(".model %s PMOS(LEVEL=1 VTO=%.17g KP=%.17g)\n", name, -f.At(27).Vth, kp(f))
 }
 
 // Shichman–Hodges against ngspice's level-1 PMOS with matching KP·W/L and
@@ -57,24 +60,30 @@ func TestPMOSAgainstNgspice(t *testing.T) {
 	li := DefaultLimiter()
 	pmosCkt := func(model string, vin, i float64) func(j int) string {
 		return func(j int) string {
-			return fmt.Sprintf("VIN%d a%d 0 DC %g\nM%d a%d 0 o%d o%d %s W=1u L=1u\nIL%d o%d 0 DC %g\n", j, j, vin, j, j, j, j, model, j, j, i)
+			// The channel, then Rfix on its load side.
+			return fmt.Sprintf("VIN%d a%d 0 DC %g\nM%d a%d 0 c%d c%d %s W=1u L=1u\nRF%d c%d o%d %.17g\nIL%d o%d 0 DC %g\n",
+				j, j, vin, j, j, j, j, model, j, j, j, fet.At(27).Rfix, j, j, i)
 		}
 	}
 	clampCkt := func(vin, i float64) func(j int) string {
 		return func(j int) string {
-			return fmt.Sprintf("VIN%d a%d 0 DC %g\nM%d a%d g%d o%d o%d PA W=1u L=1u\nB%d g%d 0 V = max(0, v(o%d) - %g)\nIL%d o%d 0 DC %g\n",
-				j, j, vin, j, j, j, j, j, j, j, j, cl.Vz, j, j, i)
+			return fmt.Sprintf("VIN%d a%d 0 DC %g\nM%d a%d g%d c%d c%d PA W=1u L=1u\nRF%d c%d o%d %.17g\nB%d g%d 0 V = max(0, v(o%d) - %g)\nIL%d o%d 0 DC %g\n",
+				j, j, vin, j, j, j, j, j, j, j, j, fet.At(27).Rfix, j, j, j, cl.Vz, j, j, i)
 		}
 	}
 	limCkt := func(vin, i float64) func(j int) string {
 		return func(j int) string {
-			// Blocking FET (drain at the pack, gate to ground), Rsh, pass
-			// FET (source and bulk on the pack side, drain to the load),
-			// divider from the pass source to its gate and on to ground.
-			// The PNP is left out: below the limit it is off.
-			return fmt.Sprintf("VIN%d a%d 0 DC %g\nMB%d a%d 0 n%d n%d PA W=1u L=1u\nRSH%d n%d m%d %g\n"+
-				"M%d o%d g%d m%d m%d PA W=1u L=1u\nR1_%d m%d g%d %g\nR2_%d g%d 0 %g\nIL%d o%d 0 DC %g\n",
-				j, j, vin, j, j, j, j, j, j, j, li.Rsh, j, j, j, j, j, j, j, j, li.R1, j, j, li.R2, j, j, i)
+			// Blocking FET (drain at the pack, gate to ground) and its
+			// Rfix, Rsh, pass FET (source and bulk on the pack side,
+			// drain to the load) and its Rfix, divider from the pass
+			// source to its gate and on to ground, and the PNP (emitter
+			// on the pack side of Rsh, base on the load side, collector
+			// on the pass gate): ngspice's own Gummel–Poon model with
+			// our saturation current and its defaults otherwise.
+			rf := fet.At(27).Rfix
+			return fmt.Sprintf("VIN%d a%d 0 DC %g\nMB%d a%d 0 bb%d bb%d PA W=1u L=1u\nRFB%d bb%d n%d %.17g\nRSH%d n%d m%d %g\n"+
+				"M%d c%d g%d m%d m%d PA W=1u L=1u\nRFP%d c%d o%d %.17g\nR1_%d m%d g%d %g\nR2_%d g%d 0 %g\nQ%d g%d m%d n%d QP\nIL%d o%d 0 DC %g\n",
+				j, j, vin, j, j, j, j, j, j, j, rf, j, j, j, li.Rsh, j, j, j, j, j, j, j, j, rf, j, j, j, li.R1, j, j, li.R2, j, j, j, j, j, j, i)
 		}
 	}
 	drops := []dropCase{
@@ -94,6 +103,7 @@ func TestPMOSAgainstNgspice(t *testing.T) {
 	b.WriteString("headroom P-channel MOSFET checks\n")
 	b.WriteString(spiceFET("PA", fet))
 	b.WriteString(spiceFET("PE", eol))
+	fmt.Fprintf(&b, ".model QP PNP(IS=%.17g)\n", li.PNP().Is)
 	for j, v := range vgs {
 		fmt.Fprintf(&b, "VG%d s%d 0 DC %g\nVX%d s%d d%d DC 1e-6\nMR%d d%d 0 s%d s%d PA W=1u L=1u\n", j, j, v, j, j, j, j, j, j, j)
 	}
@@ -120,7 +130,8 @@ func TestPMOSAgainstNgspice(t *testing.T) {
 			t.Fatalf("no current i(vx%d) in ngspice output", j)
 		}
 		want := 1e-6 / math.Abs(id)
-		got := fet.Channel(v)
+		f27 := fet.At(27)
+		got := f27.A / (v - f27.Vth) // the channel part at 27 °C
 		rel := got/want - 1
 		t.Logf("Rch at |Vgs| = %g V: ours %.6g Ω, ngspice %.6g Ω, rel %+.1e", v, got, want, rel)
 		if math.Abs(rel) > 1e-4 {
@@ -151,8 +162,11 @@ func TestPMOSAgainstNgspice(t *testing.T) {
 func TestPMOSEndOfLife(t *testing.T) {
 	m := DefaultPMOS()
 	m.Vth = 1.2
-	if r := m.Channel(1.9) / m.Ron; math.Abs(r-3.3/0.7) > 1e-12 || r < 3 {
-		t.Errorf("Rch(1.9 V)/Ron = %.4f, want 3.3/0.7 = 4.714", r)
+	// The channel part scales by (Vref − Vth)/(|Vgs| − Vth) = 3.3/0.7;
+	// the fixed part Rfix does not.
+	want := (m.Rfix + (m.Ron-m.Rfix)*3.3/0.7) / m.Ron
+	if r := m.Channel(1.9) / m.Ron; math.Abs(r-want) > 1e-12 || r < 3 {
+		t.Errorf("Ron(1.9 V)/Ron = %.4f, want %.4f", r, want)
 	}
 	for _, i := range []float64{1e-3, 0.1, 0.3} {
 		if r := m.Drop(i, 1.9, 25) / i / m.Ron; r < 3 {
@@ -161,7 +175,7 @@ func TestPMOSEndOfLife(t *testing.T) {
 	}
 	for _, vin := range []float64{0.5, 1.1, 1.2} {
 		for _, i := range []float64{1e-3, 0.1, 1} {
-			got, want := m.Drop(i, vin, 25), m.Body.Drop(i, 25)
+			got, want := m.Drop(i, vin, 25), m.Body.Drop(i, 25)+i*m.Rfix
 			if math.Abs(got-want) > 1e-12 {
 				t.Errorf("vin %g V, %g A: drop %.9f V, body diode %.9f V", vin, i, got, want)
 			}
@@ -178,27 +192,31 @@ func TestPMOSEndOfLife(t *testing.T) {
 // exceed the body diode's drop. (The limiter's two FETs: TestLimiterDropLaws.)
 func TestFETDropProperties(t *testing.T) {
 	pm, cl := DefaultPMOS(), DefaultPMOSClamp()
-	a := pm.slope()
+	f := pm.At(25)
+	a := f.A
 	for _, vin := range []float64{0.3, 0.9, 1.2, 1.9, 2.4, 3, 4.5, 5.1, 5.2, 6, 9, 13.5} {
 		for _, i := range []float64{1e-6, 1e-3, 0.05, 0.3, 1, 3, 10} {
+			// The die's drop (channel or body diode) is the whole drop
+			// less the fixed part i·Rfix on its load side.
+			rf := i * f.Rfix
 			d := pm.Drop(i, vin, 25)
 			diode := pm.Body.Drop(i, 25)
-			if d < diode { // the channel carries it: d·(vin − Vth − d/2) = i·A
-				if r := d*(vin-pm.Vth-d/2) - i*a; math.Abs(r) > 1e-9*i*a {
+			if dd := d - rf; dd < diode { // the channel carries it: dd·(vin − Vth − dd/2) = i·A
+				if r := dd*(vin-f.Vth-dd/2) - i*a; math.Abs(r) > 1e-9*i*a {
 					t.Errorf("pmos %g V %g A: law residual %g", vin, i, r)
 				}
 			}
-			if d > diode {
-				t.Errorf("pmos %g V %g A: drop %g above body diode %g", vin, i, d, diode)
+			if d > diode+rf*(1+1e-12) {
+				t.Errorf("pmos %g V %g A: drop %g above body diode %g + i·Rfix", vin, i, d, diode)
 			}
 			dc := cl.Drop(i, vin, 25)
-			if dc < diode && vin-dc >= cl.Vz { // clamped: i·A = (Vz − Vth)·d + d²/2
-				if r := (cl.Vz-cl.Vth)*dc + dc*dc/2 - i*a; math.Abs(r) > 1e-9*i*a {
+			if dd := dc - rf; dd < diode && vin-dc >= cl.Vz { // clamped: i·A = (Vz + i·Rfix − Vth)·dd + dd²/2
+				if r := (cl.Vz+rf-f.Vth)*dd + dd*dd/2 - i*a; math.Abs(r) > 1e-9*i*a {
 					t.Errorf("pmos-clamp %g V %g A: clamped law residual %g", vin, i, r)
 				}
 			}
-			if dc > diode {
-				t.Errorf("pmos-clamp %g V %g A: drop %g above body diode %g", vin, i, dc, diode)
+			if dc > diode+rf*(1+1e-12) {
+				t.Errorf("pmos-clamp %g V %g A: drop %g above body diode %g + i·Rfix", vin, i, dc, diode)
 			}
 			if vin < cl.Vz && dc != d {
 				t.Errorf("pmos-clamp below Vz at %g V %g A: %g, pmos gives %g", vin, i, dc, d)

@@ -76,16 +76,20 @@ func flipped(e Element, p Pack) Case {
 	return FlippedCell(p, e.Drop(lo, v, p.TempC))
 }
 
-// appendHeat adds a warning when the junction at op.PeakW runs above
-// TjMax.
+// appendHeat adds a warning when the junction runs above TjMax: at
+// op.PeakC, the peak of the hottest pulse from the thermal network, when
+// the caller worked it out, else at the steady Tamb + θja·PeakW.
 func appendHeat(w []string, t Thermal, op Operating) []string {
 	if !(op.PeakW > 0) {
 		return w
 	}
-	tj := t.Junction(op.PeakW, op.TempC)
+	tj, where := op.PeakC, "at the peak of the hottest pulse ("+units.Human(op.PeakW, units.Power, 3)+")"
+	if tj == 0 {
+		tj, where = t.Junction(op.PeakW, op.TempC), "at the peak "+units.Human(op.PeakW, units.Power, 3)
+	}
 	if tj > t.TjMax {
-		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" at the peak "+
-			units.Human(op.PeakW, units.Power, 3)+", above its "+units.Human(t.TjMax, units.Temperature, 3)+" limit: use a bigger package or more copper")
+		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" "+where+", above its "+
+			units.Human(t.TjMax, units.Temperature, 3)+" limit: use a bigger package or more copper")
 	}
 	return w
 }

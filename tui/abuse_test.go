@@ -93,7 +93,7 @@ func TestKnobsToBothEnds(t *testing.T) {
 				kn, _ := protect.Main(mm.vals.elem)
 				x = kn.Value
 			default:
-				x = *mm.floatOf(k)
+				x = mm.floatOf(k)
 			}
 			want := r.hi
 			if dir == "down" {

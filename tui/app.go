@@ -63,13 +63,17 @@ const (
 	modeSaveName         // typing a file name
 	modeSaveConfirm      // answering overwrite y/n
 	modeHelp             // the full help is open
+	modeNotes            // every warning and caution is open
+	modeProduct          // the product form is open
+	modeProductEdit      // typing a value in the product form
 )
 
 // Model is the root of the screen.
 type Model struct {
-	*shared
-	view     screen
-	showHelp bool
+	shared    // the state, held by value: a copy of the Model is a copy of it
+	view      screen
+	showHelp  bool
+	showNotes bool
 
 	knobs   knobsModel
 	chart   chartModel
@@ -80,7 +84,10 @@ type Model struct {
 	spread  spreadModel
 	pick    pickModel
 	save    saveModel
-	help    help.Model
+	product productModel
+	// laidW and laidH are the size layout last sized the parts for.
+	laidW, laidH int
+	help         help.Model
 }
 
 // New builds the screen for scenario s; nil means the built-in demo.
@@ -89,9 +96,9 @@ func New(s *scenario.Scenario) Model {
 		s = scenario.Demo()
 	}
 	sh := newShared(s)
-	m := Model{shared: sh,
-		knobs: newKnobs(sh), chart: chartModel{sh: sh}, verdict: verdictModel{sh: sh}, notes: notesModel{sh: sh},
-		lineup: lineupModel{sh: sh}, reverse: reverseModel{sh: sh}, spread: spreadModel{sh: sh}, pick: newPick(sh), save: newSave(sh), help: newHelp(sh.styles)}
+	m := Model{shared: *sh,
+		knobs: newKnobs(sh), chart: chartModel{}, verdict: verdictModel{}, notes: notesModel{},
+		lineup: lineupModel{}, reverse: reverseModel{}, spread: spreadModel{}, pick: newPick(sh), save: newSave(sh), product: newProduct(sh), help: newHelp(sh.styles)}
 	return m
 }
 
@@ -173,6 +180,12 @@ func (m Model) mode() mode {
 		return modeEdit
 	case m.showHelp:
 		return modeHelp
+	case m.showNotes:
+		return modeNotes
+	case m.product.editing:
+		return modeProductEdit
+	case m.product.open:
+		return modeProduct
 	}
 	return modeNone
 }
@@ -181,7 +194,9 @@ func (m Model) mode() mode {
 // has changed (off the key path, after a short pause: it fills in when
 // ready). A panic anywhere below it puts the knobs back as they were
 // before the message and says so on the status line: the screen stays
-// open and the design can still be saved.
+// open and the design can still be saved. The state is a value: each step
+// below changes m (or next) and then returns it, never a copy taken
+// before the change.
 func (m Model) Update(msg tea.Msg) (res tea.Model, cmd tea.Cmd) {
 	before := m.vals
 	defer func() {
@@ -199,17 +214,24 @@ func (m Model) Update(msg tea.Msg) (res tea.Model, cmd tea.Cmd) {
 	}()
 	switch sm := msg.(type) {
 	case spreadMsg:
-		return m, m.gotSpread(sm)
+		cmd = m.gotSpread(sm)
+		return m, cmd
 	case spreadTickMsg:
-		return m, m.gotTick(sm)
+		cmd = m.gotTick(sm)
+		return m, cmd
 	}
 	next, c := m.update(msg)
-	if c != nil {
-		// The message c brings back passes here again and starts the
-		// spread then; a command stays a single one for its callers.
+	nm, ok := next.(Model)
+	if !ok {
 		return next, c
 	}
-	return next, m.spreadCmd()
+	nm.layout()
+	// The message c brings back passes here again and starts the spread
+	// then; a command stays a single one for its callers.
+	if c == nil {
+		c = nm.spreadCmd()
+	}
+	return nm, c
 }
 
 func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
@@ -219,7 +241,7 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.width, m.height = max(0, msg.Width), max(0, msg.Height)
 		return m, nil
 	case savedMsg:
-		m.save, cmd = m.save.Update(msg)
+		m.save, cmd = m.save.Update(&m.shared, msg)
 		return m, cmd
 	case pickedMsg:
 		m.view = screenDesign
@@ -228,18 +250,19 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	case lineupMsg:
 		m.takeLineup(msg)
 		if m.view == screenLineup {
-			m.lineup.selectCurrent()
-			return m, m.lineupCmd() // the design changed meanwhile
+			m.lineup.selectCurrent(&m.shared)
+			cmd := m.lineupCmd() // the design changed meanwhile
+			return m, cmd
 		}
 		return m, nil
 	case pickDoneMsg:
-		m.pick, cmd = m.pick.Update(msg)
+		m.pick, cmd = m.pick.Update(&m.shared, msg)
 		return m, cmd
 	case tea.KeyMsg:
 		nm, cmd := m.key(msg)
 		if next, ok := nm.(Model); ok && next.view == screenPick && next.mode() == modeNone {
 			// Off the key path: the search runs in a command.
-			cmd = tea.Batch(cmd, next.pick.search())
+			cmd = tea.Batch(cmd, next.pick.search(&next.shared))
 			return next, cmd
 		}
 		return nm, cmd
@@ -247,9 +270,9 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	// Anything else (a cursor blink) goes to the text field in use.
 	switch {
 	case m.save.active():
-		m.save, cmd = m.save.Update(msg)
+		m.save, cmd = m.save.Update(&m.shared, msg)
 	case m.knobs.editing:
-		m.knobs, cmd = m.knobs.Update(msg)
+		m.knobs, cmd = m.knobs.Update(&m.shared, msg)
 	}
 	return m, cmd
 }
@@ -262,10 +285,10 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	}
 	switch m.mode() {
 	case modeSaveName, modeSaveConfirm:
-		m.save, cmd = m.save.Update(km)
+		m.save, cmd = m.save.Update(&m.shared, km)
 		return m, cmd
 	case modeEdit:
-		m.knobs, cmd = m.knobs.Update(km)
+		m.knobs, cmd = m.knobs.Update(&m.shared, km)
 		return m, cmd
 	case modeHelp:
 		switch {
@@ -273,6 +296,20 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 			return m, tea.Quit
 		case key.Matches(km, k.Help), key.Matches(km, k.Back):
 			m.showHelp = false
+		}
+		return m, nil
+	case modeProduct, modeProductEdit:
+		if m.mode() == modeProduct && key.Matches(km, k.Quit) {
+			return m, tea.Quit
+		}
+		m.product, cmd = m.product.Update(&m.shared, km)
+		return m, cmd
+	case modeNotes:
+		switch {
+		case key.Matches(km, k.Quit):
+			return m, tea.Quit
+		case key.Matches(km, k.Notes), key.Matches(km, k.Back):
+			m.showNotes = false
 		}
 		return m, nil
 	}
@@ -286,35 +323,48 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(km, k.Help):
 		m.showHelp = true
 		return m, nil
+	case key.Matches(km, k.Notes):
+		m.showNotes = true
+		return m, nil
+	case key.Matches(km, k.Product):
+		m.product.open = true
+		return m, nil
 	case key.Matches(km, k.Save):
-		m.save, cmd = m.save.Start()
+		m.save, cmd = m.save.Start(&m.shared)
 		return m, cmd
 	case key.Matches(km, k.NextView):
-		return m, m.show((m.view + 1) % screenCount)
+		cmd := m.show((m.view + 1) % screenCount)
+		return m, cmd
 	case key.Matches(km, k.PrevView):
-		return m, m.show((m.view + screenCount - 1) % screenCount)
+		cmd := m.show((m.view + screenCount - 1) % screenCount)
+		return m, cmd
 	case key.Matches(km, k.Design):
-		return m, m.show(screenDesign)
+		cmd := m.show(screenDesign)
+		return m, cmd
 	case key.Matches(km, k.Lineup):
-		return m, m.show(screenLineup)
+		cmd := m.show(screenLineup)
+		return m, cmd
 	case key.Matches(km, k.Reverse):
-		return m, m.show(screenReverse)
+		cmd := m.show(screenReverse)
+		return m, cmd
 	case key.Matches(km, k.Spread):
 		m.show(screenSpread)
 	case key.Matches(km, pickKeys.Open):
-		return m, m.show(screenPick)
+		cmd := m.show(screenPick)
+		return m, cmd
 	case key.Matches(km, k.Back):
-		return m, m.show(screenDesign)
+		cmd := m.show(screenDesign)
+		return m, cmd
 	}
 	switch m.view {
 	case screenLineup:
-		m.lineup, cmd = m.lineup.Update(km)
+		m.lineup, cmd = m.lineup.Update(&m.shared, km)
 	case screenReverse:
-		m.reverse, cmd = m.reverse.Update(km)
+		m.reverse, cmd = m.reverse.Update(&m.shared, km)
 	case screenPick:
-		m.pick, cmd = m.pick.Update(km)
+		m.pick, cmd = m.pick.Update(&m.shared, km)
 	default:
-		m.knobs, cmd = m.knobs.Update(km)
+		m.knobs, cmd = m.knobs.Update(&m.shared, km)
 	}
 	return m, cmd
 }
@@ -330,9 +380,9 @@ func (m *Model) show(s screen) tea.Cmd {
 	switch s {
 	case screenLineup:
 		cmd = m.lineupCmd()
-		m.lineup.selectCurrent()
+		m.lineup.selectCurrent(&m.shared)
 	case screenReverse:
-		m.reverse.selectCurrent()
+		m.reverse.selectCurrent(&m.shared)
 	}
 	return cmd
 }
@@ -356,30 +406,33 @@ func (m Model) draw() string {
 	if w < MinWidth || h < MinHeight {
 		return m.tooSmall()
 	}
+	if m.laidW != w || m.laidH != h {
+		m.layout() // a size set without a window-size message (tests)
+	}
 	bodyH := h - 3
 	var body []string
 	switch {
 	case m.showHelp:
 		body = fitLines(m.helpOverlay(w, bodyH), w, bodyH)
+	case m.showNotes:
+		body = fitLines(m.notesOverlay(w, bodyH), w, bodyH)
+	case m.product.open:
+		body = fitLines(m.product.View(&m.shared, w, bodyH), w, bodyH)
 	case m.view == screenLineup:
-		m.lineup.SetSize(w, bodyH)
-		body = fitLines(m.lineup.View(), w, bodyH)
+		body = fitLines(m.lineup.View(&m.shared), w, bodyH)
 	case m.view == screenReverse:
-		m.reverse.SetSize(w, bodyH)
-		body = fitLines(m.reverse.View(), w, bodyH)
+		body = fitLines(m.reverse.View(&m.shared), w, bodyH)
 	case m.view == screenSpread:
-		m.spread.SetSize(w, bodyH)
-		body = fitLines(m.spread.View(), w, bodyH)
+		body = fitLines(m.spread.View(&m.shared), w, bodyH)
 	case m.view == screenPick:
-		m.pick.SetSize(w, bodyH)
-		body = fitLines(m.pick.View(), w, bodyH)
+		body = fitLines(m.pick.View(&m.shared), w, bodyH)
 	default:
 		body = m.designView(w, bodyH)
 	}
 	out := make([]string, 0, h)
 	out = append(out, m.header(w))
 	out = append(out, body...)
-	status := m.save.View()
+	status := m.save.View(&m.shared)
 	if status == "" && m.err != nil && m.view == screenDesign {
 		status = m.styles.Bad.Render("This design cannot run; see the verdict.")
 	}
@@ -414,7 +467,7 @@ func (m Model) header(w int) string {
 	for s := range screenCount {
 		rw += len(fmt.Sprintf(" %d %s ", int(s)+1, s))
 	}
-	name := m.scen.Name
+	name := m.vals.name
 	if m.scen.Path != "" {
 		name += " (" + guard.Clean(m.scen.Path) + ")"
 	}
@@ -425,25 +478,10 @@ func (m Model) header(w int) string {
 // designView lays out knobs and verdict on the left, chart and notes on
 // the right.
 func (m Model) designView(w, h int) []string {
-	leftW := 45
-	if w >= 110 {
-		leftW = 48
-	}
-	rightW := w - leftW - 3
-	m.knobs.SetWidth(leftW)
-	m.verdict.SetWidth(leftW)
-	left := fitLines(m.knobs.View()+"\n\n"+m.verdict.View(), leftW, h)
-
-	m.notes.SetWidth(rightW)
-	notes := strings.Split(m.notes.View(), "\n")
-	if len(notes) == 1 && notes[0] == "" {
-		notes = nil
-	}
-	// The chart keeps at least 3/5 of the height; notes that do not fit
-	// below it end in a line saying how many more there are.
-	chartH := min(h, max(h*3/5, h-len(notes)-1))
-	m.chart.SetSize(rightW, chartH)
-	chart := m.chart.View()
+	leftW, rightW, chartH := m.knobs.width, m.notes.width, m.chart.height
+	left := fitLines(m.knobs.View(&m.shared)+"\n\n"+m.verdict.View(&m.shared), leftW, h)
+	notes := m.noteLines()
+	chart := m.chart.View(&m.shared)
 	chartH = min(chartH, strings.Count(chart, "\n")+1)
 	right := fitLines(chart, rightW, chartH)
 	room := h - chartH - 1
@@ -451,11 +489,66 @@ func (m Model) designView(w, h int) []string {
 		right = append(right, "")
 		if len(notes) > room {
 			more := len(notes) - room + 1
-			notes = append(notes[:room-1:room-1], m.styles.Dim.Render(fmt.Sprintf("… %d more lines in a taller window", more)))
+			notes = append(notes[:room-1:room-1], m.styles.Dim.Render(fmt.Sprintf("… %d more lines: press w to read them", more)))
 		}
 		right = append(right, fitLines(strings.Join(notes, "\n"), rightW, room)...)
 	}
 	return besides(left, leftW, right, 3)
+}
+
+// layout sizes every part of the screen for the terminal's size and the
+// current design: it runs in Update (on the window-size message and after
+// every change), so that View only draws.
+func (m *Model) layout() {
+	w, h := m.width, m.height
+	m.laidW, m.laidH = w, h
+	bodyH := max(h-3, 1)
+	m.lineup.SetSize(w, bodyH)
+	m.reverse.SetSize(w, bodyH)
+	m.spread.SetSize(w, bodyH)
+	m.pick.SetSize(w, bodyH)
+	leftW := 45
+	if w >= 110 {
+		leftW = 48
+	}
+	rightW := max(w-leftW-3, 1)
+	// A short terminal (80×24) gets the compact layout: the verdict one
+	// line a figure, so that every row shows; the selected knob's
+	// explanation and a count of the warnings beside the chart.
+	compact := bodyH < 27
+	m.knobs.SetWidth(leftW)
+	m.knobs.compact = compact
+	m.verdict.SetWidth(leftW)
+	m.verdict.compact = compact
+	m.notes.SetWidth(rightW)
+	m.notes.compact = compact
+	// The chart keeps at least 3/5 of the height; notes that do not fit
+	// below it end in a line saying how many more there are.
+	n := len(m.notesOnly())
+	m.chart.SetSize(rightW, min(bodyH, max(bodyH*3/5, bodyH-n-1)))
+}
+
+// notesOnly is the notes panel's lines (none when it is empty).
+func (m Model) notesOnly() []string {
+	notes := strings.Split(m.notes.View(&m.shared), "\n")
+	if len(notes) == 1 && notes[0] == "" {
+		return nil
+	}
+	return notes
+}
+
+// noteLines is what goes under the chart: the notes, and in the compact
+// layout the selected knob's explanation when it fits.
+func (m Model) noteLines() []string {
+	notes := m.notesOnly()
+	h := max(m.height-3, 1)
+	if m.knobs.compact && !m.knobs.editing {
+		detail := strings.Split(m.styles.Dim.Render(wrap(m.detail(m.knobs.sel), m.notes.width)), "\n")
+		if h-m.chart.height-1-len(notes) >= len(detail)+1 {
+			notes = append(append(notes, ""), detail...)
+		}
+	}
+	return notes
 }
 
 // viewKeys feeds bubbles' help.

@@ -133,7 +133,7 @@ func TestDiodeToPMOSRaisesRuntime(t *testing.T) {
 	// The kinds run none, diode, schottky, pmos: two steps from diode.
 	tm.Send(keyRight)
 	tm.Send(keyRight)
-	waitText(t, tm, "its Vth")
+	waitText(t, tm, "(Vth ")
 	end := finish(t, tm)
 	if k := end.vals.elem.Kind(); k != "pmos" {
 		t.Fatalf("protection after two steps: %q, want pmos", k)

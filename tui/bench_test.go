@@ -16,8 +16,8 @@ import (
 )
 
 // BenchmarkKnobStep is one adjust key on the load knob (which re-evaluates
-// the design, the whole line-up and the reverse view) plus one full redraw
-// at 120×40. The target is a median of at most 5 ms on the project's
+// the design; the line-up and the reverse view follow in a command, see
+// BenchmarkTables) plus one full redraw at 120×40. The target is a median of at most 5 ms on the project's
 // 2-core machine, so that a held-down arrow never lags.
 func BenchmarkKnobStep(b *testing.B) {
 	var m tea.Model = New(nil)

@@ -8,13 +8,13 @@ import (
 	"github.com/charmbracelet/lipgloss"
 
 	"headroom/discharge"
+	"headroom/internal/units"
 )
 
 // chartModel is the chart panel: pack and load voltage against hours of
 // use, drawn with braille dots (2 × 4 per character cell), with the floor
 // as a line and the cut-off marked.
 type chartModel struct {
-	sh            *shared
 	width, height int
 }
 
@@ -133,8 +133,8 @@ func (d *dots) render(r int, styles [6]lipgloss.Style) string {
 
 // View draws the chart: a heading with the legend, the plot with a volt
 // scale on the left and an hour scale below.
-func (m chartModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m chartModel) View(sh *shared) string {
+	st := &sh.styles
 	w, h := max(m.width, 20), max(m.height, 6)
 	var b strings.Builder
 	b.WriteString(st.Heading.Render("Voltage over hours of use") + "\n")
@@ -147,11 +147,16 @@ func (m chartModel) View() string {
 		return b.String()
 	}
 	r := sh.res
+	ylo, yhi, floorOff := chartRange(r.Trace, sh.vals.floor)
+	floorKey := st.FloorLine.Render("⠒⠒ floor")
+	if floorOff {
+		floorKey = st.FloorLine.Render("floor " + units.Eng(sh.vals.floor, units.Voltage, 3) + ", below the chart")
+	}
 	legend := []string{
 		st.PackLine.Render("⣿ pack V") + st.Dim.Render(" (upper line)"),
 		st.LoadLine.Render("⣿ load V") + st.Dim.Render(" (after the protection)"),
 		st.Dim.Render("both on the " + peakLabel(sh.profile()) + " peak"),
-		st.FloorLine.Render("⠒⠒ floor"),
+		floorKey,
 		st.CutoffLine.Render("⡇ cut-off"),
 	}
 	p10, p90, band := sh.spreadBand()
@@ -169,23 +174,14 @@ func (m chartModel) View() string {
 		return strings.TrimRight(b.String(), "\n")
 	}
 
-	// Ranges: hours from 0 to a little past the cut-off; volts from just
-	// under the lowest of floor and load to just over the fresh pack.
+	// Ranges: hours from 0 to a little past the cut-off; volts fitted to
+	// the curves drawn, with the floor in the range when it lies near them
+	// (within a quarter of their span below); a floor far below is named
+	// under the chart instead of leaving most of it empty.
 	xmax := r.RuntimeH * 1.06
 	if band {
 		xmax = max(xmax, p90*1.06)
 	}
-	ylo, yhi := sh.vals.floor, r.FreshV
-	for _, p := range r.Trace {
-		ylo = math.Min(ylo, p.LoadV)
-		yhi = math.Max(yhi, p.PackV)
-	}
-	span := yhi - ylo
-	if !(span > 0) {
-		span = 1
-	}
-	ylo = math.Max(0, ylo-0.06*span)
-	yhi += 0.06 * span
 	if !(xmax > 0) {
 		xmax = 1
 	}
@@ -277,4 +273,30 @@ func joinItems(items []string, w int, sep string) []string {
 		}
 	}
 	return append(out, line)
+}
+
+// chartRange is the voltage axis for a trace: the curves' own span with a
+// margin of 6 % each side, widened to take in the floor when it lies
+// within a quarter of that span below the lowest curve or inside it.
+// floorOff is true when the floor stays out of the range.
+func chartRange(tr []discharge.TracePoint, floor float64) (lo, hi float64, floorOff bool) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, p := range tr {
+		lo = math.Min(lo, math.Min(p.LoadV, p.PackV))
+		hi = math.Max(hi, math.Max(p.PackV, p.LoadV))
+	}
+	span := hi - lo
+	if !(span > 0) {
+		span = math.Max(0.1, 0.1*math.Abs(hi))
+	}
+	switch {
+	case floor >= lo-0.25*span && floor <= hi:
+		lo = math.Min(lo, floor)
+	case floor > hi:
+		hi = floor
+	default:
+		floorOff = true
+	}
+	span = math.Max(hi-lo, 1e-3)
+	return math.Max(0, lo-0.06*span), hi + 0.06*span, floorOff
 }

@@ -31,6 +31,15 @@ type values struct {
 	floor    float64 // volts at the load
 	tempC    float64
 	hours    float64 // hours of use a day, above 0, at most 24
+
+	// The product form's values (product.go). base is the load profile
+	// before the load level; it is replaced whole, never changed in place.
+	name       string
+	note       string
+	base       []discharge.Phase
+	standby    float64 // amperes
+	price      float64 // dollars for one pack
+	priceGiven bool    // price set on the screen (even 0), not the file's
 }
 
 // shared is the state every part of the screen reads: size, styles, keys,
@@ -67,7 +76,8 @@ func newShared(s *scenario.Scenario) *shared {
 		sh.addCell(c)
 	}
 	d := s.Design
-	v := values{series: d.Series, parallel: d.Parallel, scale: 1, floor: d.Floor, tempC: d.TempC, hours: d.HoursPerDay}
+	v := values{series: d.Series, parallel: d.Parallel, scale: 1, floor: d.Floor, tempC: d.TempC, hours: d.HoursPerDay,
+		name: s.Name, note: s.Note, base: d.Profile, standby: d.Standby, price: d.PackPrice}
 	v.cell = sh.addCell(d.Cell)
 	v.elem = d.Protect
 	if v.elem == nil {
@@ -109,7 +119,7 @@ func (sh *shared) cell() *curves.Cell { return sh.cells[sh.vals.cell] }
 
 // profile is the scenario's load profile at the current load level.
 func (sh *shared) profile() []discharge.Phase {
-	return scenario.ScaleProfile(sh.scen.Design.Profile, sh.vals.scale)
+	return scenario.ScaleProfile(sh.vals.base, sh.vals.scale)
 }
 
 // design is the current design, without a trace.
@@ -121,9 +131,13 @@ func (sh *shared) design() discharge.Design {
 	d.Protect = v.elem
 	d.Profile = sh.profile()
 	d.Floor, d.TempC, d.HoursPerDay = v.floor, v.tempC, v.hours
+	d.Standby = v.standby
 	d.TracePoints = 0
-	if sh.scen.Design.Cell != d.Cell || sh.scen.Design.Series != d.Series || sh.scen.Design.Parallel != d.Parallel {
-		d.PackPrice = 0 // a price given for the file's pack is not this pack's
+	switch {
+	case v.priceGiven:
+		d.PackPrice, d.PriceGiven = v.price, true
+	case sh.scen.Design.Cell != d.Cell || sh.scen.Design.Series != d.Series || sh.scen.Design.Parallel != d.Parallel:
+		d.PackPrice, d.PriceGiven = 0, false // a price given for the file's pack is not this pack's
 	}
 	return d
 }

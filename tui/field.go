@@ -1,123 +1,83 @@
 package tui
 
 import (
-	"strings"
-
+	"github.com/charmbracelet/bubbles/cursor"
+	"github.com/charmbracelet/bubbles/textinput"
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
 )
 
-// fieldModel is a one-line text field: a prompt, the text and a cursor.
-// (bubbles' textinput needs a clipboard module this project does not
-// carry; typing a value with units needs only this much.)
+// fieldModel is a one-line text field: bubbles' textinput (cursor
+// movement, word deletion and paste come with it) plus one thing it lacks,
+// a selected pre-filled value: the value a field starts with is shown
+// selected, and typing replaces it while an arrow key keeps it to edit.
 type fieldModel struct {
 	Prompt    string
 	CharLimit int
 	Width     int // columns for the text; 0 for no limit
-	value     []rune
-	pos       int
-	focused   bool
-	cursor    lipgloss.Style
+	in        textinput.Model
+	selected  bool // the whole value is selected: typing replaces it
+	selStyle  lipgloss.Style
 }
 
-func newField(prompt string, limit int, cursor lipgloss.Style) fieldModel {
-	return fieldModel{Prompt: prompt, CharLimit: limit, cursor: cursor}
+func newField(prompt string, limit int, cursorStyle lipgloss.Style) fieldModel {
+	in := textinput.New()
+	in.Prompt = prompt
+	in.CharLimit = limit
+	in.Cursor.Style = cursorStyle
+	// A steady cursor: no blink timer ticking through the program (and
+	// through tests that run every command the screen returns).
+	in.Cursor.SetMode(cursor.CursorStatic)
+	return fieldModel{Prompt: prompt, CharLimit: limit, in: in, selStyle: lipgloss.NewStyle().Reverse(true)}
 }
 
-// SetValue replaces the text and puts the cursor at its end.
+// SetValue replaces the text, puts the cursor at its end and selects it.
 func (f *fieldModel) SetValue(s string) {
-	f.value = []rune(s)
-	if f.CharLimit > 0 && len(f.value) > f.CharLimit {
-		f.value = f.value[:f.CharLimit]
-	}
-	f.pos = len(f.value)
+	f.in.SetValue(s)
+	f.in.CursorEnd()
+	f.selected = s != ""
 }
 
 // Value is the text.
-func (f fieldModel) Value() string { return string(f.value) }
+func (f fieldModel) Value() string { return f.in.Value() }
 
 // Focus lets the field take keys.
-func (f *fieldModel) Focus() { f.focused = true }
+func (f *fieldModel) Focus() { f.in.Focus() }
 
 // Blur stops the field taking keys.
-func (f *fieldModel) Blur() { f.focused = false }
+func (f *fieldModel) Blur() { f.in.Blur(); f.selected = false }
 
-// Update edits the text: typing, backspace, delete, ←/→, home/end,
-// ctrl+u (clear before the cursor), ctrl+k (clear after it).
+// Update edits the text. While the pre-filled value is selected, typed or
+// pasted text replaces it and backspace or delete clears it; any other key
+// (an arrow, home, end) drops the selection and acts as usual.
 func (f fieldModel) Update(msg tea.Msg) (fieldModel, tea.Cmd) {
-	km, ok := msg.(tea.KeyMsg)
-	if !ok || !f.focused {
-		return f, nil
+	if km, ok := msg.(tea.KeyMsg); ok && f.selected {
+		f.selected = false
+		switch km.Type {
+		case tea.KeyRunes, tea.KeySpace, tea.KeyCtrlV:
+			f.in.SetValue("")
+		case tea.KeyBackspace, tea.KeyDelete:
+			f.in.SetValue("")
+			return f, nil
+		}
 	}
-	switch km.Type {
-	case tea.KeyRunes, tea.KeySpace:
-		rs := km.Runes
-		if km.Type == tea.KeySpace {
-			rs = []rune{' '}
-		}
-		var clean []rune
-		for _, r := range rs {
-			if r >= ' ' && r != 0x7f {
-				clean = append(clean, r)
-			}
-		}
-		if f.CharLimit > 0 && len(f.value)+len(clean) > f.CharLimit {
-			clean = clean[:max(0, f.CharLimit-len(f.value))]
-		}
-		f.value = append(f.value[:f.pos], append(clean, f.value[f.pos:]...)...)
-		f.pos += len(clean)
-	case tea.KeyBackspace:
-		if f.pos > 0 {
-			f.value = append(f.value[:f.pos-1], f.value[f.pos:]...)
-			f.pos--
-		}
-	case tea.KeyDelete:
-		if f.pos < len(f.value) {
-			f.value = append(f.value[:f.pos], f.value[f.pos+1:]...)
-		}
-	case tea.KeyLeft:
-		f.pos = max(0, f.pos-1)
-	case tea.KeyRight:
-		f.pos = min(len(f.value), f.pos+1)
-	case tea.KeyHome, tea.KeyCtrlA:
-		f.pos = 0
-	case tea.KeyEnd, tea.KeyCtrlE:
-		f.pos = len(f.value)
-	case tea.KeyCtrlU:
-		f.value = append([]rune(nil), f.value[f.pos:]...)
-		f.pos = 0
-	case tea.KeyCtrlK:
-		f.value = f.value[:f.pos]
-	}
-	return f, nil
+	f.in.Width = f.Width
+	var cmd tea.Cmd
+	f.in, cmd = f.in.Update(msg)
+	return f, cmd
 }
 
-// View draws the prompt and the text with the cursor as a block; a text
-// longer than Width scrolls so that the cursor stays in view.
+// View draws the prompt and the text with its cursor; a selected value is
+// drawn reversed.
 func (f fieldModel) View() string {
-	v := f.value
-	start := 0
-	if f.Width > 0 && f.pos >= f.Width {
-		start = f.pos - f.Width + 1
-	}
-	end := len(v)
-	if f.Width > 0 {
-		end = min(len(v), start+f.Width)
-	}
-	var b strings.Builder
-	b.WriteString(f.Prompt)
-	b.WriteString(string(v[start:min(f.pos, end)]))
-	if f.focused {
-		c := " "
-		if f.pos < len(v) {
-			c = string(v[f.pos])
+	if f.selected {
+		v := []rune(f.in.Value())
+		if f.Width > 1 && len(v) > f.Width {
+			v = append(v[:f.Width-1:f.Width-1], '…')
 		}
-		b.WriteString(f.cursor.Render(c))
-		if f.pos < end {
-			b.WriteString(string(v[f.pos+1 : end]))
-		}
-	} else if f.pos < end {
-		b.WriteString(string(v[f.pos:end]))
+		return f.Prompt + f.selStyle.Render(string(v))
 	}
-	return b.String()
+	in := f.in
+	in.Width = f.Width
+	return in.View()
 }

@@ -21,28 +21,36 @@ func sized(w, h int, keys ...tea.Msg) tea.Model {
 	return m
 }
 
-// TestGolden compares views at 100×30, colour stripped, with
+// TestGolden compares views at 100×30 (and the smallest, 80×24), colour stripped, with
 // testdata/TestGolden/<case>.golden. Run with -update after a deliberate
 // change to the screen or the engine and read the diff.
 func TestGolden(t *testing.T) {
 	cases := []struct {
 		name string
 		keys []tea.Msg
+		w, h int // 0: 100×30
 	}{
-		{"design", nil},
-		{"design-floor-selected", []tea.Msg{keyUp, keyUp, keyUp}},
-		{"design-pmos", []tea.Msg{keyDown, keyDown, keyDown, keyRight, keyRight}},
-		{"typing-bad-floor", []tea.Msg{keyUp, keyUp, keyUp, keyEnter, tea.KeyMsg{Type: tea.KeyCtrlU}, runes("2 volts"), keyEnter}},
-		{"lineup", []tea.Msg{runes("2")}},
-		{"lineup-by-runtime", []tea.Msg{runes("2"), runes("o")}},
-		{"reverse", []tea.Msg{runes("3")}},
-		{"help", []tea.Msg{runes("?")}},
-		{"save-prompt", []tea.Msg{runes("s")}},
+		{"design-80x24", nil, 80, 24},
+		{"notes-80x24", []tea.Msg{runes("w")}, 80, 24},
+		{"typing-protection-80x24", []tea.Msg{keyDown, keyDown, keyDown, keyEnter}, 80, 24},
+		{"design", nil, 0, 0},
+		{"design-floor-selected", []tea.Msg{keyUp, keyUp, keyUp}, 0, 0},
+		{"design-pmos", []tea.Msg{keyDown, keyDown, keyDown, keyRight, keyRight}, 0, 0},
+		{"typing-bad-floor", []tea.Msg{keyUp, keyUp, keyUp, keyEnter, tea.KeyMsg{Type: tea.KeyCtrlU}, runes("2 volts"), keyEnter}, 0, 0},
+		{"lineup", []tea.Msg{runes("2")}, 0, 0},
+		{"lineup-by-runtime", []tea.Msg{runes("2"), runes("o")}, 0, 0},
+		{"reverse", []tea.Msg{runes("3")}, 0, 0},
+		{"help", []tea.Msg{runes("?")}, 0, 0},
+		{"save-prompt", []tea.Msg{runes("s")}, 0, 0},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			got := ansi.Strip(sized(100, 30, c.keys...).View())
-			checkSize(t, got, 100, 30)
+			w, h := c.w, c.h
+			if w == 0 {
+				w, h = 100, 30
+			}
+			got := ansi.Strip(sized(w, h, c.keys...).View())
+			checkSize(t, got, w, h)
 			goldentest.Check(t, filepath.Join("testdata", t.Name()+".golden"), got)
 		})
 	}

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/help"
@@ -32,7 +33,7 @@ func (m Model) hintLine() string {
 	switch m.mode() {
 	case modeNone:
 		tail = []string{one(m.keys.Help), one(m.keys.Quit)}
-	case modeHelp:
+	case modeHelp, modeNotes, modeProduct:
 		tail = []string{one(m.keys.Quit)}
 	}
 	const sep = "  "
@@ -60,9 +61,10 @@ func (m Model) helpOverlay(w, h int) string {
 	switch m.view {
 	case screenLineup:
 		about = []string{
-			"Every cell with the same series and parallel counts, load,",
-			"protection and floor; ● marks the cell in use. enter puts the",
-			"chosen row's cell into the design; o switches the order.",
+			"Every cell, each in the series count that suits this product's",
+			"voltage, with the same parallel count, load, protection and",
+			"floor; ● marks the cell in use. enter puts the chosen row's cell",
+			"into the design; o switches the order.",
 		}
 	case screenReverse:
 		about = []string{
@@ -77,6 +79,8 @@ func (m Model) helpOverlay(w, h int) string {
 			"Each knob row: name, value with its unit, and a slider.",
 			"← → move a knob in small steps, shift+← → or [ ] in big ones;",
 			"enter lets you type a value with its unit (1.8V, 10nA, 150%).",
+			"w lists every warning and caution; e edits the product itself:",
+			"its name, load phases, standby drain and pack price.",
 		}
 	}
 	about = append(about, "Press ? or esc to close this.")
@@ -84,6 +88,19 @@ func (m Model) helpOverlay(w, h int) string {
 		m.styles.Dim.Render(strings.Join(about, "\n"))
 	box := m.styles.Overlay.Render(body)
 	return lipgloss.Place(w, h, lipgloss.Center, lipgloss.Center, box)
+}
+
+// notesOverlay is every warning and caution of the design, wrapped to the
+// width, in the w × h body; what does not fit says how many lines are left.
+func (m Model) notesOverlay(w, h int) string {
+	m.notes.SetWidth(w - 2)
+	m.notes.compact = false // the overlay lists them all
+	lines := strings.Split(m.styles.Heading.Render("Warnings and cautions")+"\n\n"+m.notes.View(&m.shared), "\n")
+	if len(lines) > h {
+		more := len(lines) - h + 1
+		lines = append(lines[:h-1:h-1], m.styles.Dim.Render(fmt.Sprintf("… %d more lines: make the window taller to read them", more)))
+	}
+	return strings.Join(lines, "\n")
 }
 
 func (m Model) viewKeys() viewKeys { return viewKeys{k: m.keys, view: m.view, mode: m.mode()} }

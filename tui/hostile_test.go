@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"sync"
 	"syscall"
@@ -71,7 +72,7 @@ func TestUpdatePanicRecovers(t *testing.T) {
 	m.knobs.sel = knob(999) // a knob that does not exist
 	got, _ := m.Update(keyRight)
 	gm := got.(Model)
-	if gm.vals != before {
+	if !reflect.DeepEqual(gm.vals, before) {
 		t.Errorf("knobs after the recovered panic: %+v, want %+v", gm.vals, before)
 	}
 	if !strings.Contains(gm.View(), "the design is as it was") {
@@ -166,7 +167,7 @@ func TestHeavyLineupOffTheKeyPath(t *testing.T) {
 	// A result for an older design is not shown.
 	mm.evaluate()
 	m, _ = mm.Update(msg)
-	if m.(Model).lineupReady() != nil {
+	if lm := m.(Model); lm.lineupReady() != nil {
 		t.Error("a stale line-up was taken")
 	}
 }
@@ -186,7 +187,7 @@ func TestCellFieldRefusesDeepTOML(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), "refuses the file before reading it") {
 		t.Fatalf("cell field: %v", err)
 	}
-	if m.vals != before {
+	if !reflect.DeepEqual(m.vals, before) {
 		t.Error("the refused file changed the design")
 	}
 }

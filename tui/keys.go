@@ -21,6 +21,8 @@ type KeyMap struct {
 	Spread     key.Binding
 	Save       key.Binding
 	Help       key.Binding
+	Notes      key.Binding // every warning and caution
+	Product    key.Binding // the product form: name, load phases, standby, price
 	Back       key.Binding
 	Quit       key.Binding
 
@@ -51,6 +53,8 @@ func DefaultKeyMap() KeyMap {
 		Spread:     key.NewBinding(key.WithKeys("4"), key.WithHelp("4", "spread")),
 		Save:       key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save")),
 		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "help")),
+		Notes:      key.NewBinding(key.WithKeys("w"), key.WithHelp("w", "warnings")),
+		Product:    key.NewBinding(key.WithKeys("e"), key.WithHelp("e", "product")),
 		Back:       key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "back")),
 		Quit:       key.NewBinding(key.WithKeys("q", "ctrl+c"), key.WithHelp("q", "quit")),
 		Accept:     key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "accept")),
@@ -78,7 +82,7 @@ func (k KeyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type},
 		{k.Pick, k.Rank, k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, k.Spread},
-		{k.Save, k.Help, k.Back, k.Quit},
+		{k.Save, k.Notes, k.Product, k.Help, k.Back, k.Quit},
 	}
 }
 
@@ -99,6 +103,12 @@ func (v viewKeys) ShortHelp() []key.Binding {
 		return []key.Binding{k.Yes, k.No}
 	case modeHelp:
 		return []key.Binding{hint("?/esc", "close")}
+	case modeNotes:
+		return []key.Binding{hint("w/esc", "close")}
+	case modeProduct:
+		return []key.Binding{hint("↑/↓", "choose"), k.Type, hint("e/esc", "back")}
+	case modeProductEdit:
+		return []key.Binding{k.Accept, k.Cancel}
 	}
 	switch v.view {
 	case screenLineup:
@@ -110,13 +120,13 @@ func (v viewKeys) ShortHelp() []key.Binding {
 	case screenPick:
 		return pickShortHelp(k)
 	}
-	return k.ShortHelp()
+	return append(k.ShortHelp(), hint("e", "product"), hint("w", "warnings"))
 }
 
 func (v viewKeys) FullHelp() [][]key.Binding {
 	k := v.k
 	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, k.Spread, pickKeys.Open}
-	general := []key.Binding{k.Save, k.Help, k.Back, k.Quit}
+	general := []key.Binding{k.Save, k.Notes, k.Product, k.Help, k.Back, k.Quit}
 	switch v.view {
 	case screenLineup:
 		return [][]key.Binding{{k.Up, k.Down, k.Pick, k.Rank}, views, general}

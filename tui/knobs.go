@@ -46,22 +46,22 @@ const (
 // knobsModel is the knobs panel: one row per value, a selection, and a
 // text field for typing a value.
 type knobsModel struct {
-	sh      *shared
 	sel     knob
 	editing bool
 	input   fieldModel
 	errText string // why the typed value was refused
 	width   int
+	compact bool // no explanation line (a short terminal shows it beside)
 }
 
 func newKnobs(sh *shared) knobsModel {
-	return knobsModel{sh: sh, input: newField("new value: ", 200, sh.styles.Cursor)}
+	return knobsModel{input: newField("new value: ", 200, sh.styles.Cursor)}
 }
 
 // Update handles keys while the design view is active; a knob that moves
 // re-evaluates the design at once.
-func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
-	k := m.sh.keys
+func (m knobsModel) Update(sh *shared, msg tea.Msg) (knobsModel, tea.Cmd) {
+	k := sh.keys
 	km, isKey := msg.(tea.KeyMsg)
 	if m.editing {
 		if isKey {
@@ -71,7 +71,7 @@ func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
 				m.input.Blur()
 				return m, nil
 			case key.Matches(km, k.Accept):
-				if err := m.sh.setText(m.sel, m.input.Value()); err != nil {
+				if err := sh.setText(m.sel, m.input.Value()); err != nil {
 					m.errText = guard.Clean(err.Error())
 					return m, nil
 				}
@@ -93,16 +93,16 @@ func (m knobsModel) Update(msg tea.Msg) (knobsModel, tea.Cmd) {
 	case key.Matches(km, k.Down):
 		m.sel = (m.sel + 1) % knobCount
 	case key.Matches(km, k.Less):
-		m.sh.adjust(m.sel, -1, false)
+		sh.adjust(m.sel, -1, false)
 	case key.Matches(km, k.More):
-		m.sh.adjust(m.sel, +1, false)
+		sh.adjust(m.sel, +1, false)
 	case key.Matches(km, k.LessCoarse):
-		m.sh.adjust(m.sel, -1, true)
+		sh.adjust(m.sel, -1, true)
 	case key.Matches(km, k.MoreCoarse):
-		m.sh.adjust(m.sel, +1, true)
+		sh.adjust(m.sel, +1, true)
 	case key.Matches(km, k.Type):
 		m.editing, m.errText = true, ""
-		m.input.SetValue(m.sh.editText(m.sel))
+		m.input.SetValue(sh.editText(m.sel))
 		m.input.Focus()
 		return m, nil
 	}
@@ -120,35 +120,6 @@ type knobRange struct {
 
 func (sh *shared) floorHi() float64 {
 	return math.Max(1, math.Ceil(sh.cell().OpenCircuit(0, sh.vals.tempC)*float64(sh.vals.series)*10)/10)
-}
-
-// rangeOf gives the slider of a numeric knob; ok is false for the cycling
-// knobs and for a protection element without a main parameter.
-func (sh *shared) rangeOf(k knob) (r knobRange, ok bool) {
-	switch k {
-	case knobSeries:
-		return knobRange{lo: 1, hi: seriesHi, fine: 1, coarse: 4}, true
-	case knobParallel:
-		return knobRange{lo: 1, hi: parallelHi, fine: 1, coarse: 2}, true
-	case knobPart:
-		lo, hi, lg, ok := protect.MainRange(sh.vals.elem.Kind())
-		if !ok {
-			return r, false
-		}
-		if lg {
-			return knobRange{lo: lo, hi: hi, log: true, fine: math.Pow(hi/lo, 1.0/40), coarse: math.Pow(hi/lo, 1.0/8), sig: 2}, true
-		}
-		return knobRange{lo: lo, hi: hi, fine: niceStep((hi - lo) / 50), coarse: niceStep((hi - lo) / 10)}, true
-	case knobLoad:
-		return knobRange{lo: loadLo, hi: loadHi, log: true, fine: math.Pow(loadHi/loadLo, 1.0/40), coarse: math.Pow(loadHi/loadLo, 1.0/8), sig: 2}, true
-	case knobFloor:
-		return knobRange{lo: 0, hi: sh.floorHi(), fine: 0.05, coarse: 0.5}, true
-	case knobTemp:
-		return knobRange{lo: tempLo, hi: tempHi, fine: 1, coarse: 5}, true
-	case knobHours:
-		return knobRange{lo: hoursLo, hi: hoursHi, fine: 0.25, coarse: 2}, true
-	}
-	return r, false
 }
 
 // niceStep rounds x down to 1, 2 or 5 times a power of ten.
@@ -200,180 +171,7 @@ func (r knobRange) frac(v float64) float64 {
 	return math.Min(1, math.Max(0, f))
 }
 
-// adjust moves knob k one step and re-evaluates.
-func (sh *shared) adjust(k knob, dir int, coarse bool) {
-	v := &sh.vals
-	cycle := func(i, n int) int {
-		s := 1
-		if coarse {
-			s = 3
-		}
-		return ((i+dir*s)%n + n) % n
-	}
-	switch k {
-	case knobCell:
-		v.cell = cycle(v.cell, len(sh.cells))
-	case knobProtect:
-		for range len(sh.kinds) {
-			v.kind = cycle(v.kind, len(sh.kinds))
-			if e := protect.Default(sh.kinds[v.kind]); e != nil {
-				v.elem = e
-				break
-			}
-		}
-	case knobSeries, knobParallel:
-		r, _ := sh.rangeOf(k)
-		p := &v.series
-		if k == knobParallel {
-			p = &v.parallel
-		}
-		*p = int(r.step(float64(*p), dir, coarse))
-	case knobPart:
-		r, ok := sh.rangeOf(k)
-		if !ok {
-			return
-		}
-		kn, _ := protect.Main(v.elem)
-		e, err := protect.WithMain(v.elem, r.step(kn.Value, dir, coarse))
-		if err != nil {
-			return // the step left the element's valid range: stay put
-		}
-		v.elem = e
-	default:
-		r, _ := sh.rangeOf(k)
-		p := sh.floatOf(k)
-		*p = r.step(*p, dir, coarse)
-	}
-	sh.evaluate()
-}
-
-func (sh *shared) floatOf(k knob) *float64 {
-	switch k {
-	case knobLoad:
-		return &sh.vals.scale
-	case knobFloor:
-		return &sh.vals.floor
-	case knobTemp:
-		return &sh.vals.tempC
-	case knobHours:
-		return &sh.vals.hours
-	}
-	panic(fmt.Sprintf("tui: knob %d has no float value", k))
-}
-
-// editText is the text a knob's field starts with: its value in a form
-// the parser reads back.
-func (sh *shared) editText(k knob) string {
-	v := sh.vals
-	switch k {
-	case knobCell:
-		return sh.cell().ID
-	case knobSeries:
-		return fmt.Sprint(v.series)
-	case knobParallel:
-		return fmt.Sprint(v.parallel)
-	case knobProtect:
-		return v.elem.Spec()
-	case knobPart:
-		if kn, ok := protect.Main(v.elem); ok {
-			return units.Human(kn.Value, kn.Kind, 4)
-		}
-		return ""
-	case knobLoad:
-		return trimFloat(v.scale) + "x"
-	case knobFloor:
-		return trimFloat(v.floor) + " V"
-	case knobTemp:
-		return trimFloat(v.tempC) + " C"
-	case knobHours:
-		return trimFloat(v.hours) + " h"
-	}
-	return ""
-}
-
-func trimFloat(x float64) string { return fmt.Sprintf("%.4g", x) }
-
-// setText sets knob k from typed text with the parsers the command line's
-// flags use, and re-evaluates. The error says what was wrong.
-func (sh *shared) setText(k knob, s string) error {
-	s = strings.TrimSpace(s)
-	if s == "" {
-		return fmt.Errorf("empty: type a value or press esc")
-	}
-	v := &sh.vals
-	switch k {
-	case knobCell:
-		c, err := sh.scen.ResolveCell(s)
-		if err != nil {
-			// "LR6" for lr6; a file's own error stands when that fails too.
-			if lc, lerr := sh.scen.ResolveCell(strings.ToLower(s)); lerr == nil {
-				c, err = lc, nil
-			}
-		}
-		if err != nil {
-			return err
-		}
-		v.cell = sh.addCell(c)
-	case knobSeries:
-		n, err := scenario.ParseCount(s, scenario.CheckSeries)
-		if err != nil {
-			return err
-		}
-		v.series = n
-	case knobParallel:
-		n, err := scenario.ParseCount(s, scenario.CheckParallel)
-		if err != nil {
-			return err
-		}
-		v.parallel = n
-	case knobProtect:
-		e, err := protect.Parse(s)
-		if err != nil {
-			return err
-		}
-		v.kind, v.elem = sh.kindIndex(e.Kind()), e
-	case knobPart:
-		kn, ok := protect.Main(v.elem)
-		if !ok {
-			return fmt.Errorf("%s has no part value to set", v.elem.Kind())
-		}
-		x, err := units.Parse(s, kn.Kind, true)
-		if err != nil {
-			return err
-		}
-		e, err := protect.WithMain(v.elem, x)
-		if err != nil {
-			return err
-		}
-		v.elem = e
-	case knobLoad:
-		x, err := parseScale(s)
-		if err != nil {
-			return err
-		}
-		v.scale = x
-	case knobFloor:
-		x, err := scenario.ParseFloor(s)
-		if err != nil {
-			return err
-		}
-		v.floor = x
-	case knobTemp:
-		x, err := scenario.ParseTemp(s)
-		if err != nil {
-			return err
-		}
-		v.tempC = x
-	case knobHours:
-		x, err := scenario.ParseHoursPerDay(s)
-		if err != nil {
-			return err
-		}
-		v.hours = x
-	}
-	sh.evaluate()
-	return nil
-}
+func trimFloat(x float64) string { return units.Short(x, 4) }
 
 // parseScale reads a load level: "1.5", "1.5x", "1.5×" or "150%".
 func parseScale(s string) (float64, error) {
@@ -392,60 +190,6 @@ func parseScale(s string) (float64, error) {
 		return 0, err
 	}
 	return x, scenario.CheckScale(x)
-}
-
-// row is one knob as shown: its name, value with unit, a note, and where
-// the slider's marker sits (-1 for none).
-type row struct {
-	name, value string
-	frac        float64
-	steps       int // >0: a cycling knob with this many choices
-}
-
-func (sh *shared) row(k knob) row {
-	v := sh.vals
-	c := sh.cell()
-	r := row{frac: -1}
-	if kr, ok := sh.rangeOf(k); ok {
-		switch k {
-		case knobSeries:
-			r.frac = kr.frac(float64(v.series))
-		case knobParallel:
-			r.frac = kr.frac(float64(v.parallel))
-		case knobPart:
-			kn, _ := protect.Main(v.elem)
-			r.frac = kr.frac(kn.Value)
-		default:
-			r.frac = kr.frac(*sh.floatOf(k))
-		}
-	}
-	switch k {
-	case knobCell:
-		r.name, r.value = "Cell", cellLabel(c)
-		r.frac, r.steps = float64(v.cell)/math.Max(1, float64(len(sh.cells)-1)), len(sh.cells)
-	case knobSeries:
-		r.name, r.value = "In series", plural(v.series, "cell", "cells")
-	case knobParallel:
-		r.name, r.value = "In parallel", plural(v.parallel, "string", "strings")
-	case knobProtect:
-		r.name, r.value = "Protection", v.elem.Kind()
-		r.frac, r.steps = float64(v.kind)/math.Max(1, float64(len(sh.kinds)-1)), len(sh.kinds)
-	case knobPart:
-		if kn, ok := protect.Main(v.elem); ok {
-			r.name, r.value = " └ its "+partName(kn.Key), units.Human(kn.Value, kn.Kind, 3)
-		} else {
-			r.name, r.value = " └ its part", "nothing to set"
-		}
-	case knobLoad:
-		r.name, r.value = "Load level", fmt.Sprintf("%s× (%s peak)", trimFloat(v.scale), peakLabel(sh.profile()))
-	case knobFloor:
-		r.name, r.value = "Floor", fmt.Sprintf("%.2f V at load", v.floor)
-	case knobTemp:
-		r.name, r.value = "Ambient", units.Human(v.tempC, units.Temperature, 3)
-	case knobHours:
-		r.name, r.value = "Use a day", trimFloat(v.hours)+" h/day"
-	}
-	return r
 }
 
 func plural(n int, one, many string) string {
@@ -476,38 +220,35 @@ func partName(key string) string {
 	return key
 }
 
-// detail explains the selected knob in a sentence or two.
-func (sh *shared) detail(k knob) string {
+// peakDrop is the element's drop at the heaviest phase's current on the
+// fresh pack at the ambient, and that current: the part value in words a
+// designer reads (a resistive or LED load's current is taken at the pack's
+// open-circuit voltage, an estimate for a label).
+func (sh *shared) peakDrop() (drop, amps float64) {
 	v := sh.vals
-	c := sh.cell()
-	switch k {
-	case knobCell:
-		s := fmt.Sprintf("%s: %s, %s mAh rated, %.2f V nominal, $%.2f a cell", c.ID, c.Name, trimFloat(c.RatedMAh), c.NominalV, c.Price)
-		if c.Rechargeable {
-			s += fmt.Sprintf(", rechargeable (%d cycles)", c.CycleLife)
-		}
-		return s + fmt.Sprintf(". Cell %d of %d.", v.cell+1, len(sh.cells))
-	case knobSeries:
-		return fmt.Sprintf("Cells in each string; the pack is %d × %.2f V = %.2f V nominal.", v.series, c.NominalV, float64(v.series)*c.NominalV)
-	case knobParallel:
-		return "Strings side by side: more capacity, less sag on pulses."
-	case knobProtect:
-		return protect.Describe(v.elem.Kind()) + "."
-	case knobPart:
-		if kn, ok := protect.Main(v.elem); ok {
-			return kn.Detail
-		}
-		return "This element has no part value to set; pick another protection."
-	case knobLoad:
-		return "Multiplies every phase of the load: " + profileLabel(sh.profile()) + "."
-	case knobFloor:
-		return "The lowest voltage the product works at, measured at the load after the protection (brown-out, regulator dropout)."
-	case knobTemp:
-		return "Air temperature around the pack; cold cuts capacity and raises resistance."
-	case knobHours:
-		return "Hours of use a day; the rest of the day the product draws its standby current."
+	vin := sh.cell().OpenCircuit(0, v.tempC) * float64(v.series)
+	if sh.res != nil {
+		vin = sh.res.FreshV
 	}
-	return ""
+	best := -1.0
+	for _, p := range sh.profile() {
+		if p.Demand() <= best {
+			continue
+		}
+		best = p.Demand()
+		switch l := p.Load; l.Kind {
+		case discharge.ConstantCurrent:
+			amps = l.Amps
+		case discharge.ConstantPower:
+			amps = l.InputPower() / math.Max(vin, 1e-3)
+		case discharge.ConstantResistance:
+			amps = vin / l.Ohms
+		case discharge.LED:
+			amps = math.Max(0, vin-l.Vf) / l.Ohms
+		}
+	}
+	el := protect.Fixed(v.elem, v.tempC)
+	return el.Drop(amps, vin, v.tempC), amps
 }
 
 // cellLabel names a cell in a few words: its designation and name.
@@ -516,34 +257,6 @@ func cellLabel(c *curves.Cell) string {
 		return c.Name
 	}
 	return c.Designation + " " + c.Name
-}
-
-// typingHint says what a knob's text field accepts.
-func (sh *shared) typingHint(k knob) string {
-	switch k {
-	case knobCell:
-		return "a cell id (" + strings.Join(firstIDs(sh.cells, 4), ", ") + ", …) or a .csv/.toml cell file"
-	case knobSeries:
-		return fmt.Sprintf("a whole number from 1 to %d", seriesHi)
-	case knobParallel:
-		return fmt.Sprintf("a whole number from 1 to %d", parallelHi)
-	case knobProtect:
-		return "a kind (" + strings.Join(sh.kinds, ", ") + ") or a spec such as pmos:vth=1.2"
-	case knobPart:
-		if kn, ok := protect.Main(sh.vals.elem); ok {
-			return kn.Kind.String() + ", e.g. " + units.Human(kn.Value, kn.Kind, 3)
-		}
-		return "nothing: this element has no part value"
-	case knobLoad:
-		return "a factor such as 1.5 or 150%"
-	case knobFloor:
-		return "a voltage such as 1.8V"
-	case knobTemp:
-		return "a temperature such as -10C"
-	case knobHours:
-		return "hours such as 2 or 90min"
-	}
-	return ""
 }
 
 func firstIDs(cs []*curves.Cell, n int) []string {
@@ -559,8 +272,8 @@ func (m *knobsModel) SetWidth(w int) { m.width = w }
 
 // View draws the rows, then the selected knob's explanation or its text
 // field.
-func (m knobsModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m knobsModel) View(sh *shared) string {
+	st := &sh.styles
 	w := max(m.width, 20)
 	nameW := 13
 	barW := max(4, min(14, w/4))
@@ -575,16 +288,21 @@ func (m knobsModel) View() string {
 			mark = st.Selected.Render("▸ ")
 			name = st.Selected.Render(pad(r.name, nameW))
 		}
-		b.WriteString(mark + name + st.Value.Render(pad(r.value, valW)) + " " + m.slider(r, barW) + "\n")
+		b.WriteString(mark + name + st.Value.Render(pad(r.value, valW)) + " " + m.slider(sh, r, barW) + "\n")
 	}
 	if m.editing {
-		b.WriteString(st.Prompt.Render("Type "+strings.TrimSpace(strings.TrimPrefix(sh.row(m.sel).name, " └"))) + st.Dim.Render(": "+sh.typingHint(m.sel)) + "\n")
+		head := "Type " + strings.TrimSpace(strings.TrimPrefix(sh.row(m.sel).name, " └"))
+		hint := strings.SplitN(wrap(head+": "+sh.typingHint(m.sel), w), "\n", 2)
+		b.WriteString(st.Prompt.Render(hint[0][:len(head)]) + st.Dim.Render(hint[0][len(head):]) + "\n")
+		if len(hint) > 1 {
+			b.WriteString(st.Dim.Render(hint[1]) + "\n")
+		}
 		m.input.Width = max(5, w-len(m.input.Prompt)-2)
 		b.WriteString(m.input.View() + "\n")
 		if m.errText != "" {
 			b.WriteString(st.Bad.Render(wrap(m.errText, w)) + "\n")
 		}
-	} else {
+	} else if !m.compact {
 		b.WriteString(st.Dim.Render(wrap(sh.detail(m.sel), w)) + "\n")
 	}
 	return strings.TrimRight(b.String(), "\n")
@@ -592,8 +310,8 @@ func (m knobsModel) View() string {
 
 // slider draws a bar of width w with a marker where the value sits; a
 // cycling knob gets the marker on a dotted track.
-func (m knobsModel) slider(r row, w int) string {
-	st := &m.sh.styles
+func (m knobsModel) slider(sh *shared, r row, w int) string {
+	st := &sh.styles
 	if r.frac < 0 {
 		return st.SliderRest.Render(strings.Repeat("·", w))
 	}
@@ -602,9 +320,4 @@ func (m knobsModel) slider(r row, w int) string {
 		return st.SliderRest.Render(strings.Repeat("·", pos)) + st.SliderKnob.Render("◆") + st.SliderRest.Render(strings.Repeat("·", w-1-pos))
 	}
 	return st.SliderFill.Render(strings.Repeat("━", pos)) + st.SliderKnob.Render("◆") + st.SliderRest.Render(strings.Repeat("─", w-1-pos))
-}
-
-// name is the knob's row name, for messages.
-func (k knob) name() string {
-	return [...]string{"cell", "series", "parallel", "protection", "part", "load level", "floor", "ambient", "hours a day"}[k]
 }

@@ -86,7 +86,7 @@ func TestTypedCellAndProtection(t *testing.T) {
 	}
 }
 
-func (m Model) sh() *shared { return m.shared }
+func (m Model) sh() *shared { return &m.shared }
 
 // TestStepIsTidy: a ratio knob's steps land on two significant digits and
 // a linear knob's on whole steps.
@@ -114,7 +114,7 @@ func TestStepIsTidy(t *testing.T) {
 // the verdict is the engine's for it.
 func TestLineupPick(t *testing.T) {
 	m := press(sized(120, 40), runes("2"), keyDown, keyDown).(Model)
-	rows := m.lineup.rows()
+	rows := m.lineup.rows(m.sh())
 	want := rows[m.lineup.sel].cell
 	var tm tea.Model = m
 	tm, cmd := tm.Update(keyEnter)

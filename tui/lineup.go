@@ -15,7 +15,6 @@ import (
 // lineupModel is the line-up view: every cell for the same pack counts,
 // load, protection and floor, ranked by cost per hour or by runtime.
 type lineupModel struct {
-	sh            *shared
 	sel           int // row in the ranked order
 	byRuntime     bool
 	offset        int // first row shown
@@ -30,13 +29,13 @@ type pickedMsg struct{}
 
 // Update moves the selection, changes the order, or makes the selected
 // row's cell the current one.
-func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
+func (m lineupModel) Update(sh *shared, msg tea.Msg) (lineupModel, tea.Cmd) {
 	km, ok := msg.(tea.KeyMsg)
 	if !ok {
 		return m, nil
 	}
-	k := m.sh.keys
-	n := len(m.sh.lineupReady())
+	k := sh.keys
+	n := len(sh.lineupReady())
 	if n == 0 {
 		return m, nil // still being evaluated
 	}
@@ -46,39 +45,39 @@ func (m lineupModel) Update(msg tea.Msg) (lineupModel, tea.Cmd) {
 	case key.Matches(km, k.Down):
 		m.sel = (m.sel + 1) % max(n, 1)
 	case key.Matches(km, k.Rank):
-		cur := m.rows()[min(m.sel, n-1)].idx
+		cur := m.rows(sh)[min(m.sel, n-1)].idx
 		m.byRuntime = !m.byRuntime
-		for i, r := range m.rows() { // keep the same cell selected
+		for i, r := range m.rows(sh) { // keep the same cell selected
 			if r.idx == cur {
 				m.sel = i
 			}
 		}
 	case key.Matches(km, k.Pick):
-		rows := m.rows()
-		if m.sel < len(rows) && m.sh.vals.cell != rows[m.sel].idx {
-			m.sh.vals.cell = rows[m.sel].idx
-			m.sh.vals.series = rows[m.sel].series
-			m.sh.evaluate()
+		rows := m.rows(sh)
+		if m.sel < len(rows) && sh.vals.cell != rows[m.sel].idx {
+			sh.vals.cell = rows[m.sel].idx
+			sh.vals.series = rows[m.sel].series
+			sh.evaluate()
 		}
 		return m, func() tea.Msg { return pickedMsg{} }
 	}
 	return m, nil
 }
 
-func (m lineupModel) rows() []lineupRow { return ranked(m.sh.lineupReady(), m.byRuntime) }
+func (m lineupModel) rows(sh *shared) []lineupRow { return ranked(sh.lineupReady(), m.byRuntime) }
 
 // selectCurrent puts the selection on the current cell.
-func (m *lineupModel) selectCurrent() {
-	for i, r := range m.rows() {
-		if r.idx == m.sh.vals.cell {
+func (m *lineupModel) selectCurrent(sh *shared) {
+	for i, r := range m.rows(sh) {
+		if r.idx == sh.vals.cell {
 			m.sel = i
 		}
 	}
 }
 
 // View draws the ranked table and a line about the selected cell.
-func (m lineupModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m lineupModel) View(sh *shared) string {
+	st := &sh.styles
 	w, h := max(m.width, 40), max(m.height, 6)
 	v := sh.vals
 	var b strings.Builder
@@ -96,7 +95,7 @@ func (m lineupModel) View() string {
 	for _, l := range intro2 {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
-	rows := m.rows()
+	rows := m.rows(sh)
 	if rows == nil {
 		b.WriteString("\n" + st.Dim.Render(fmt.Sprintf("Evaluating %d cells for this design…", len(sh.cells))))
 		return b.String()
@@ -161,7 +160,7 @@ func (m lineupModel) View() string {
 	if len(rows) > room {
 		b.WriteString(st.Dim.Render(fmt.Sprintf("  rows %d–%d of %d; ↑/↓ scroll", off+1, min(len(rows), off+room), len(rows))) + "\n")
 	}
-	for _, l := range wrapLines("Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price ÷ its cycle life, plus charging energy.", w) {
+	for _, l := range wrapLines("Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price (and charger) ÷ the hours of its cycle life, cycles counted by the charge used, capacity fading to 80 %, plus charging energy.", w) {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	if m.sel < len(rows) {

@@ -17,7 +17,6 @@ import (
 // runs in a command, off the key path; a result for an older target or
 // design is dropped.
 type pickModel struct {
-	sh            *shared
 	need          float64 // the target, hours of use
 	lim           pick.Limits
 	limErr        error // a [pick] key the file got wrong
@@ -63,7 +62,7 @@ var pickAbout = []string{
 // newPick reads the file's [pick] table and starts the target at its
 // need, or at the current design's runtime.
 func newPick(sh *shared) pickModel {
-	m := pickModel{sh: sh, lim: pick.DefaultLimits()}
+	m := pickModel{lim: pick.DefaultLimits()}
 	m.lim.Budget = sh.scen.Budget
 	for _, s := range sh.scen.Pick {
 		k, _ := pick.LookupKey(s.Key)
@@ -108,32 +107,32 @@ func roundTarget(h float64) float64 {
 func (m *pickModel) SetSize(w, h int) { m.width, m.height = w, h }
 
 // signature names the search the view needs now.
-func (m pickModel) signature() string {
-	d := m.sh.design()
-	return fmt.Sprintf("%g|%g|%g|%g|%g", m.need, m.sh.vals.scale, d.Floor, d.TempC, d.HoursPerDay)
+func (m pickModel) signature(sh *shared) string {
+	d := sh.design()
+	return fmt.Sprintf("%g|%g|%g|%g|%g", m.need, sh.vals.scale, d.Floor, d.TempC, d.HoursPerDay)
 }
 
 // search returns the command that runs the search the view needs, or nil
 // when it has it (or is running it) already.
-func (m *pickModel) search() tea.Cmd {
-	sig := m.signature()
+func (m *pickModel) search(sh *shared) tea.Cmd {
+	sig := m.signature(sh)
 	if sig == m.started || m.limErr != nil {
 		return nil
 	}
 	m.started, m.running = sig, true
 	m.gen++
-	gen, lim, sh := m.gen, m.lim, m.sh
+	gen, lim, scen := m.gen, m.lim, sh.scen // the command reads these, not the screen's state
 	lim.Need = m.need
 	base := sh.design()
 	return func() tea.Msg {
-		sp, err := pick.SpaceOf(sh.scen, false)
+		sp, err := pick.SpaceOf(scen, false)
 		if err != nil {
 			return pickDoneMsg{gen: gen, err: err}
 		}
 		sp.Base = base
 		// The file's pack price belongs to the file's pack only.
-		sp.Base.PackPrice = sh.scen.Design.PackPrice
-		sp.Base.Cell, sp.Base.Series, sp.Base.Parallel = sh.scen.Design.Cell, sh.scen.Design.Series, sh.scen.Design.Parallel
+		sp.Base.PackPrice = scen.Design.PackPrice
+		sp.Base.Cell, sp.Base.Series, sp.Base.Parallel = scen.Design.Cell, scen.Design.Series, scen.Design.Parallel
 		out, err := pick.Search(sp, lim, pick.Nominal{}, nil)
 		return pickDoneMsg{gen: gen, out: out, space: sp, err: err}
 	}
@@ -141,7 +140,7 @@ func (m *pickModel) search() tea.Cmd {
 
 // Update moves the selection, changes the target, or puts the selected
 // design into the design view.
-func (m pickModel) Update(msg tea.Msg) (pickModel, tea.Cmd) {
+func (m pickModel) Update(sh *shared, msg tea.Msg) (pickModel, tea.Cmd) {
 	switch msg := msg.(type) {
 	case pickDoneMsg:
 		if msg.gen == m.gen {
@@ -150,7 +149,7 @@ func (m pickModel) Update(msg tea.Msg) (pickModel, tea.Cmd) {
 		}
 		return m, nil
 	case tea.KeyMsg:
-		k := m.sh.keys
+		k := sh.keys
 		n := 0
 		if m.out != nil {
 			n = len(m.out.Designs)
@@ -172,18 +171,18 @@ func (m pickModel) Update(msg tea.Msg) (pickModel, tea.Cmd) {
 			if m.running || m.sel >= n {
 				return m, nil
 			}
-			m.use(&m.out.Designs[m.sel])
+			m.use(sh, &m.out.Designs[m.sel])
 			return m, func() tea.Msg { return pickedMsg{} }
 		}
 		m.need = math.Min(math.Max(m.need, 0.1), 24*365*20)
-		return m, m.search()
+		cmd := m.search(sh)
+		return m, cmd
 	}
 	return m, nil
 }
 
 // use makes design d the current one.
-func (m *pickModel) use(d *pick.Design) {
-	sh := m.sh
+func (m *pickModel) use(sh *shared, d *pick.Design) {
 	sh.vals.cell = sh.addCell(d.Cell)
 	sh.vals.series, sh.vals.parallel = d.Series, d.Parallel
 	sh.vals.kind = sh.kindIndex(d.Element.Kind())
@@ -192,8 +191,8 @@ func (m *pickModel) use(d *pick.Design) {
 }
 
 // View draws the target, the ranked designs and a note on the selection.
-func (m pickModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m pickModel) View(sh *shared) string {
+	st := &sh.styles
 	w, h := max(m.width, 40), max(m.height, 6)
 	var b strings.Builder
 	b.WriteString(st.Heading.Render("Pick: the cheapest designs for a runtime target") + "\n")

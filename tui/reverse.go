@@ -15,7 +15,6 @@ import (
 // reverseModel is the reverse view: what every protection kind does when
 // the whole pack goes in backwards, and when one cell of it is flipped.
 type reverseModel struct {
-	sh            *shared
 	sel           int
 	width, height int
 }
@@ -24,24 +23,24 @@ type reverseModel struct {
 func (m *reverseModel) SetSize(w, h int) { m.width, m.height = w, h }
 
 // Update moves the selection.
-func (m reverseModel) Update(msg tea.Msg) (reverseModel, tea.Cmd) {
+func (m reverseModel) Update(sh *shared, msg tea.Msg) (reverseModel, tea.Cmd) {
 	km, ok := msg.(tea.KeyMsg)
 	if !ok {
 		return m, nil
 	}
-	n := max(1, len(m.sh.reverseRows))
+	n := max(1, len(sh.reverseRows))
 	switch {
-	case key.Matches(km, m.sh.keys.Up):
+	case key.Matches(km, sh.keys.Up):
 		m.sel = (m.sel + n - 1) % n
-	case key.Matches(km, m.sh.keys.Down):
+	case key.Matches(km, sh.keys.Down):
 		m.sel = (m.sel + 1) % n
 	}
 	return m, nil
 }
 
 // selectCurrent puts the selection on the protection in use.
-func (m *reverseModel) selectCurrent() {
-	for i, r := range m.sh.reverseRows {
+func (m *reverseModel) selectCurrent(sh *shared) {
+	for i, r := range sh.reverseRows {
 		if r.current {
 			m.sel = i
 		}
@@ -62,8 +61,8 @@ func caseText(c protect.Case) string {
 }
 
 // View draws one row per protection kind and the notes of the selected one.
-func (m reverseModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m reverseModel) View(sh *shared) string {
+	st := &sh.styles
 	w, h := max(m.width, 40), max(m.height, 6)
 	v := sh.vals
 	c := sh.cell()
@@ -87,7 +86,7 @@ func (m reverseModel) View() string {
 		if i == m.sel {
 			mark, name = st.Selected.Render("▸ "), st.Selected.Render(name)
 		}
-		b.WriteString(mark + name + " " + m.outcome(r.rev.WholePack, colW) + " " + m.outcome(r.rev.OneCell, colW) + "\n")
+		b.WriteString(mark + name + " " + m.outcome(sh, r.rev.WholePack, colW) + " " + m.outcome(sh, r.rev.OneCell, colW) + "\n")
 	}
 	b.WriteString(st.Dim.Render("● is the protection in use.") + "\n\n")
 	if m.sel < len(sh.reverseRows) {
@@ -106,8 +105,8 @@ func (m reverseModel) View() string {
 }
 
 // outcome colours a case by how bad it is for the product and the user.
-func (m reverseModel) outcome(c protect.Case, w int) string {
-	st := &m.sh.styles
+func (m reverseModel) outcome(sh *shared, c protect.Case, w int) string {
+	st := &sh.styles
 	s := pad(caseText(c), w)
 	switch c.Outcome {
 	case protect.Blocked:
@@ -118,18 +117,13 @@ func (m reverseModel) outcome(c protect.Case, w int) string {
 	return st.Bad.Render(s)
 }
 
-// amps writes a current with a prefix down to picoamperes.
-func amps(a float64) string {
-	if a > 0 && a < 1e-9 {
-		return fmt.Sprintf("%.2g pA", a*1e12)
-	}
-	return units.Human(a, units.Current, 2)
-}
+// amps writes a current for the reverse table (units.Eng, two digits).
+func amps(a float64) string { return units.Eng(a, units.Current, 2) }
 
-// seconds writes a time in ms below a second.
+// seconds writes a time for the reverse table: ms below a second.
 func seconds(s float64) string {
 	if s < 1 {
-		return fmt.Sprintf("%.2g ms", s*1e3)
+		return units.Prefixed(s, 2, "s")
 	}
-	return units.Human(s, units.Time, 2)
+	return units.Eng(s, units.Time, 2)
 }

@@ -2,6 +2,7 @@ package tui
 
 import (
 	"errors"
+	"os"
 	"path/filepath"
 	"strings"
 
@@ -28,7 +29,6 @@ const (
 // saveModel is the save flow: a file name, a yes/no question when the file
 // exists, and a line saying what happened.
 type saveModel struct {
-	sh     *shared
 	state  saveState
 	input  fieldModel
 	path   string
@@ -45,16 +45,20 @@ type savedMsg struct {
 }
 
 func newSave(sh *shared) saveModel {
-	return saveModel{sh: sh, input: newField("Save the design as: ", 4096, sh.styles.Cursor)}
+	return saveModel{input: newField("Save the design as: ", 4096, sh.styles.Cursor)}
 }
 
 // active reports whether the flow is waiting for the user or a write.
 func (m saveModel) active() bool { return m.state != saveIdle }
 
 // Start asks for a file name.
-func (m saveModel) Start() (saveModel, tea.Cmd) {
+func (m saveModel) Start(sh *shared) (saveModel, tea.Cmd) {
 	m.state, m.status, m.failed = saveName, "", false
-	m.input.SetValue(defaultSaveName)
+	name := defaultSaveName
+	if p := sh.scen.Path; p != "" {
+		name = p // saving over the source keeps what the screen did not change
+	}
+	m.input.SetValue(name)
 	m.input.Focus()
 	return m, nil
 }
@@ -67,8 +71,8 @@ func write(path string, data []byte, overwrite bool) tea.Cmd {
 }
 
 // Update takes the keys of the flow and the result of a write.
-func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
-	k := m.sh.keys
+func (m saveModel) Update(sh *shared, msg tea.Msg) (saveModel, tea.Cmd) {
+	k := sh.keys
 	if sm, ok := msg.(savedMsg); ok {
 		switch {
 		case sm.err == nil:
@@ -101,10 +105,15 @@ func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
 					m.status, m.failed = "Type a file name, or press esc.", true
 					return m, nil
 				}
-				if !filepath.IsAbs(name) && m.sh.saveDir != "" {
-					name = filepath.Join(m.sh.saveDir, name)
+				if !filepath.IsAbs(name) && sh.saveDir != "" {
+					name = filepath.Join(sh.saveDir, name)
 				}
-				m.path, m.data = name, m.sh.saved()
+				data, err := sh.savedFor(name)
+				if err != nil {
+					m.status, m.failed = "Not saved: "+err.Error(), true
+					return m, nil
+				}
+				m.path, m.data = name, data
 				m.state, m.status = saveWriting, ""
 				m.input.Blur()
 				return m, write(m.path, m.data, false)
@@ -129,8 +138,8 @@ func (m saveModel) Update(msg tea.Msg) (saveModel, tea.Cmd) {
 }
 
 // View is the flow's one status line.
-func (m saveModel) View() string {
-	st := &m.sh.styles
+func (m saveModel) View(sh *shared) string {
+	st := &sh.styles
 	switch m.state {
 	case saveName:
 		return m.input.View()
@@ -145,14 +154,43 @@ func (m saveModel) View() string {
 	return st.Status.Render(m.status)
 }
 
+// savedFor is the text to save at path: the scenario file the design came
+// from with the design's values rewritten in place (scenario.Update) when
+// path is that file, else the design on its own.
+func (sh *shared) savedFor(path string) ([]byte, error) {
+	src := sh.scen.Path
+	if src == "" || !samePath(path, src) {
+		return sh.saved(), nil
+	}
+	orig, err := os.ReadFile(src)
+	if err != nil {
+		return nil, err
+	}
+	d := sh.design()
+	return scenario.Update(orig, &sh.scen.Design, scenario.Saved{Name: sh.vals.name, Note: sh.vals.note, Design: d,
+		ProtectSpec: sh.vals.elem.Spec()}), nil
+}
+
+// samePath reports whether a and b name the same file.
+func samePath(a, b string) bool {
+	sa, errA := os.Stat(a)
+	sb, errB := os.Stat(b)
+	if errA == nil && errB == nil {
+		return os.SameFile(sa, sb)
+	}
+	x, e1 := filepath.Abs(a)
+	y, e2 := filepath.Abs(b)
+	return e1 == nil && e2 == nil && x == y
+}
+
 // saved is the current design as scenario file text.
 func (sh *shared) saved() []byte {
 	d := sh.design()
-	name := sh.scen.Name
+	name := sh.vals.name
 	if name == "" {
 		name = "headroom design"
 	}
-	return scenario.Format(scenario.Saved{Name: name, Note: sh.scen.Note, Design: d,
+	return scenario.Format(scenario.Saved{Name: name, Note: sh.vals.note, Design: d,
 		ProtectSpec: sh.vals.elem.Spec(), Budget: sh.scen.Budget,
 		Tolerances: sh.scen.Tolerances, Samples: sh.scen.Samples, Seed: sh.scen.Seed})
 }

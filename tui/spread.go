@@ -126,7 +126,6 @@ func (sh *shared) spreadVerdict(line func(label, value, note string)) {
 // spreadModel is the spread view: the corners, the quantiles and each
 // tolerance's sensitivity as a bar of the hours it can cost.
 type spreadModel struct {
-	sh            *shared
 	width, height int
 }
 
@@ -134,8 +133,8 @@ type spreadModel struct {
 func (m *spreadModel) SetSize(w, h int) { m.width, m.height = w, h }
 
 // View draws the spread view.
-func (m spreadModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m spreadModel) View(sh *shared) string {
+	st := &sh.styles
 	w := max(m.width, 40)
 	s := &sh.spread
 	var b strings.Builder

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"regexp"
 	"strings"
 	"unicode/utf8"
 
@@ -33,7 +34,7 @@ func wrapLines(s string, w int) []string {
 	var out []string
 	for _, para := range strings.Split(s, "\n") {
 		line, lw := "", 0
-		for _, word := range strings.Fields(para) {
+		for _, word := range glueUnits(strings.Fields(para)) {
 			ww := ansi.StringWidth(word)
 			for ww > w { // hard-break a word longer than a line
 				if lw > 0 {
@@ -61,6 +62,26 @@ func wrapLines(s string, w int) []string {
 			}
 		}
 		out = append(out, line)
+	}
+	return out
+}
+
+// unitWord is a unit symbol (with an SI prefix) as it follows a number,
+// with any punctuation after it: "V", "mA,", "°C)", "days".
+var unitWord = regexp.MustCompile(`^[fpnµmkMG]?(V|A|W|Ω|Wh|Ah|mAh|µAh|s|min|h|%|°C|days|months|years|cells?|strings?)[,.;:)]*$`)
+
+// glueUnits joins a unit to the number before it ("4.00", "V" → "4.00 V")
+// so that a line never breaks between them.
+func glueUnits(words []string) []string {
+	out := words[:0:0]
+	for _, w := range words {
+		if n := len(out); n > 0 && unitWord.MatchString(w) {
+			if p := out[n-1]; p != "" && p[len(p)-1] >= '0' && p[len(p)-1] <= '9' {
+				out[n-1] = p + " " + w
+				continue
+			}
+		}
+		out = append(out, w)
 	}
 	return out
 }

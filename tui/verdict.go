@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"math"
 	"strings"
 
 	"headroom/discharge"
@@ -12,16 +11,16 @@ import (
 // verdictModel is the verdict panel: what the engine made of the design,
 // every number with its unit and a label.
 type verdictModel struct {
-	sh    *shared
-	width int
+	width   int
+	compact bool // one line per figure, for a short terminal (80×24)
 }
 
 // SetWidth sets the panel's width in columns.
 func (m *verdictModel) SetWidth(w int) { m.width = w }
 
 // View draws the verdict's numbers.
-func (m verdictModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m verdictModel) View(sh *shared) string {
+	st := &sh.styles
 	w := max(m.width, 20)
 	var b strings.Builder
 	b.WriteString(st.Heading.Render("Verdict") + "\n")
@@ -35,44 +34,66 @@ func (m verdictModel) View() string {
 		s := st.Label.Render(pad(label, lw)) + st.Value.Render(value)
 		if note != "" {
 			used := lw + len([]rune(value)) + 1
-			if used+len([]rune(note)) > w {
+			switch {
+			case used+len([]rune(note)) > w && m.compact:
+				// One line a figure, whatever the figures: the note is cut.
+				s += " " + st.Dim.Render(pad(note, max(1, w-used)))
+			case used+len([]rune(note)) > w:
 				s += "\n" + strings.Repeat(" ", lw) + st.Dim.Render(wrapAfter(note, w, lw))
-			} else {
+			default:
 				s += " " + st.Dim.Render(note)
 			}
 		}
 		b.WriteString(s + "\n")
 	}
-	line("Runtime", hours(r.RuntimeH), "of use")
-	line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
+	_, started := r.StrandedShare()
+	if m.compact {
+		line("Runtime", hours(r.RuntimeH), "of use ("+days(r.RuntimeDays)+")")
+	} else {
+		line("Runtime", hours(r.RuntimeH), "of use")
+		line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
+	}
 	sh.spreadVerdict(line)
 	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
-	line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
-	line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")
-	line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
+	switch {
+	case !started:
+		line("Stranded", "—", "(never starts: no share is stranded)")
+	case m.compact:
+		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
+		// One short line whatever the figures: "1032 / 1187 mAh".
+		line(" drop / floor", units.Num(r.StrandedByProtectionMAh, 3)+" / "+mah(r.StrandedByFloorMAh), "")
+	default:
+		line("Stranded", mah(r.StrandedMAh), fmt.Sprintf("(%s of %s)", pct(r.StrandedMAh, r.ReferenceMAh), mah(r.ReferenceMAh)))
+		if r.StrandedByProtectionMAh < 0 {
+			line(" by protection", mah(r.StrandedByProtectionMAh), "(it lowers the current: the cells run longer)")
+		} else {
+			line(" by protection", mah(r.StrandedByProtectionMAh), "("+pct(r.StrandedByProtectionMAh, r.ReferenceMAh)+", its drop)")
+		}
+		line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
+	}
 	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
 	line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
-	line("Standby share", fmt.Sprintf("%.1f %%", 100*r.StandbyShare), "of all charge drawn")
-	if r.CostPerHour > 0 {
+	line("Standby share", units.Eng(r.StandbyShare, units.Fraction, 2), "of all charge drawn")
+	if r.RuntimeH > 0 {
 		line("Cost per hour", money(r.CostPerHour), "(pack "+money(r.PackPrice)+")")
 	} else {
-		line("Cost per hour", "—", "(no runtime; pack "+money(r.PackPrice)+")")
+		line("Cost per hour", "—", "(does not run; pack "+money(r.PackPrice)+")")
 	}
 	return strings.TrimRight(b.String(), "\n")
 }
 
 // notesModel is the cut-off sentence, the warnings and the cautions.
 type notesModel struct {
-	sh    *shared
-	width int
+	width   int
+	compact bool // the warnings and cautions counted, not listed
 }
 
 // SetWidth sets the panel's width in columns.
 func (m *notesModel) SetWidth(w int) { m.width = w }
 
 // View draws the notes, wrapped at word boundaries.
-func (m notesModel) View() string {
-	sh, st := m.sh, &m.sh.styles
+func (m notesModel) View(sh *shared) string {
+	st := &sh.styles
 	w := max(m.width, 20)
 	if sh.err != nil {
 		return ""
@@ -80,6 +101,17 @@ func (m notesModel) View() string {
 	r := sh.res
 	var b strings.Builder
 	b.WriteString(st.Label.Render("Stops because ") + st.Value.Render(wrapAfter(cutoffWords(r, sh.profile(), sh.vals.floor), w, 14)) + "\n")
+	if m.compact {
+		n := len(dedupeStrings(r.Cautions))
+		s := plural(n, "caution", "cautions") + ": press w to read them"
+		if len(r.Warnings) > 0 {
+			s = "⚠ " + plural(len(r.Warnings), "warning", "warnings") + " and " + s
+			b.WriteString(st.Warn.Render(wrap(s, w)))
+		} else {
+			b.WriteString(st.Caution.Render(wrap(s, w)))
+		}
+		return b.String()
+	}
 	for _, x := range r.Warnings {
 		b.WriteString(st.Warn.Render(wrap("⚠ "+x, w)) + "\n")
 	}
@@ -92,6 +124,19 @@ func (m notesModel) View() string {
 		b.WriteString(st.Caution.Render(wrap("· "+x, w)) + "\n")
 	}
 	return strings.TrimRight(b.String(), "\n")
+}
+
+// dedupeStrings drops repeated strings, keeping the first.
+func dedupeStrings(xs []string) []string {
+	seen := map[string]bool{}
+	var out []string
+	for _, x := range xs {
+		if !seen[x] {
+			seen[x] = true
+			out = append(out, x)
+		}
+	}
+	return out
 }
 
 // wrapAfter wraps s for a line that already has used columns taken.
@@ -135,50 +180,19 @@ func profileLabel(prof []discharge.Phase) string {
 	return strings.Join(parts, ", ")
 }
 
-func hours(h float64) string {
-	switch {
-	case h <= 0:
-		return "0 h"
-	case h < 1:
-		return fmt.Sprintf("%.0f min", h*60)
-	case h < 100:
-		return fmt.Sprintf("%.1f h", h)
-	}
-	return fmt.Sprintf("%.0f h", h)
-}
+// hours, days, mah, pct and money are the screen's names for the one
+// formatter (internal/units, eng.go).
+func hours(h float64) string { return units.Duration(h, 3) }
 
-func days(d float64) string {
-	switch {
-	case d < 10:
-		return fmt.Sprintf("%.1f days", d)
-	case d < 1000:
-		return fmt.Sprintf("%.0f days", d)
-	}
-	return fmt.Sprintf("%.1f years", d/365.25)
-}
+func days(d float64) string { return units.Duration(d*24, 3) }
 
-func mah(q float64) string {
-	if math.Abs(q) >= 10000 {
-		return fmt.Sprintf("%.1f Ah", q/1000)
-	}
-	return fmt.Sprintf("%.0f mAh", q)
-}
+func mah(q float64) string { return units.MAh(q, 3) }
 
 func pct(part, whole float64) string {
 	if !(whole > 0) {
 		return "— %"
 	}
-	return fmt.Sprintf("%.0f %%", 100*part/whole)
+	return units.Num(100*part/whole, 2) + " %"
 }
 
-func money(x float64) string {
-	switch {
-	case x == 0:
-		return "$0"
-	case x < 0.01:
-		return fmt.Sprintf("$%.4f", x)
-	case x < 1:
-		return fmt.Sprintf("$%.3f", x)
-	}
-	return fmt.Sprintf("$%.2f", x)
-}
+func money(x float64) string { return units.Dollars(x) }

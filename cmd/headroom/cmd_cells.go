@@ -145,7 +145,11 @@ func cellsShow(c *cli, args []string) error {
 	}
 	line("chemistry", "%s", cell.Chemistry)
 	line("nominal", "%s V", short(cell.NominalV))
-	line("rated", "%s mAh at %s to %s V", fixed(cell.RatedMAh, 0), human(cell.RatedCurrent, units.Current), short(cell.EndPoint))
+	if cell.RatedCurrent > 0 {
+		line("rated", "%s mAh at %s to %s V", fixed(cell.RatedMAh, 0), human(cell.RatedCurrent, units.Current), short(cell.EndPoint))
+	} else { // an imported cell: the rating is the curve's charge, at no stated current
+		line("rated", "%s mAh to %s V (no rating current given)", fixed(cell.RatedMAh, 0), short(cell.EndPoint))
+	}
 	line("end-point", "%s V", short(cell.EndPoint))
 	if cell.RefCurrent > 0 {
 		line("curve", "terminal voltage at %s, %g °C", human(cell.RefCurrent, units.Current), curves.RefTempC)
@@ -169,6 +173,16 @@ func cellsShow(c *cli, args []string) error {
 			rs = append(rs, fmt.Sprintf("%s %% → %s", fixed(100*r.Depth, 0), human(r.Ohm, units.Resistance)))
 		}
 		line("resistance", "%s (depth of discharge → ohms)", strings.Join(rs, ", "))
+	}
+	if len(cell.RC) > 0 {
+		var ps []string
+		for _, b := range cell.RC {
+			ps = append(ps, fmt.Sprintf("%s for %s", human(b.R, units.Resistance), human(b.Tau, units.Time)))
+		}
+		line("polarisation", "%s (RC branches: ohms, time constant)", strings.Join(ps, ", "))
+	}
+	if cell.CutoffV > 0 {
+		line("pack cut-off", "%s a cell, after %s below it", human(cell.CutoffV, units.Voltage), human(cell.CutoffDelay, units.Time))
 	}
 	if len(cell.Temperature) > 0 {
 		var ts []string

@@ -48,6 +48,8 @@ flags:
                     the spread's samples, seed and tolerances
   --format FORMAT   text, json, csv or md (default text)
 
+design flags (as in headroom run; compare then ranks every cell for it):
+` + designFlagHelp() + `
 examples:
   headroom compare
   headroom compare testdata/scenarios/example.toml --budget 2.50 --within-budget
@@ -69,6 +71,7 @@ type compareRow struct {
 
 func runCompare(c *cli, args []string) error {
 	fs := newFlags("compare")
+	addDesignFlags(fs)
 	budgetFlag := fs.String("budget", "", "")
 	within := fs.Bool("within-budget", false, "")
 	sortFlag := fs.String("sort", "cost", "")
@@ -94,6 +97,10 @@ func runCompare(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := applyDesignFlags(fs, s); err != nil {
+		return err
+	}
+	fromFlags(fs, s, pos)
 	if err := sf.apply(s); err != nil {
 		return err
 	}
@@ -128,7 +135,10 @@ func runCompare(c *cli, args []string) error {
 		return err
 	}
 	if ranked {
-		if err := rankRows(s, &d, rows, key); err != nil {
+		bar := newMeter(c.stderr, isTerminal(c.stderr), "cells through the spread", len(rows))
+		err := rankRows(s, &d, rows, key, bar)
+		bar.end()
+		if err != nil {
 			return err
 		}
 	}
@@ -298,7 +308,7 @@ func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, with
 
 // rankRows sets each row's worst-corner or p10 runtime (key) and ranks
 // the rows by it, longest first; designs that never start go last.
-func rankRows(s *scenario.Scenario, d *discharge.Design, rows []compareRow, key string) error {
+func rankRows(s *scenario.Scenario, d *discharge.Design, rows []compareRow, key string, bar *meter) error {
 	for i := range rows {
 		cd := *d
 		cd.Cell, cd.Series, cd.TracePoints = rows[i].cell, rows[i].series, 0
@@ -310,6 +320,7 @@ func rankRows(s *scenario.Scenario, d *discharge.Design, rows []compareRow, key 
 			return fmt.Errorf("--sort %s: %s: %w", key, rows[i].cell.ID, err)
 		}
 		rows[i].rank = v
+		bar.step(i + 1)
 	}
 	sort.SliceStable(rows, func(i, j int) bool {
 		a, b := rows[i], rows[j]

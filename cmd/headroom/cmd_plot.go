@@ -38,6 +38,8 @@ flags:
   --by AXIS      time (hours of use, the default) or charge (mAh drawn)
   --force        replace FILE if it exists
 
+design flags (as in headroom run; --protect draws that element alone):
+` + designFlagHelp() + `
 examples:
   headroom plot -o demo.svg
   headroom plot testdata/scenarios/example.toml -o example.png --by charge
@@ -67,6 +69,7 @@ const tracePoints = 200
 
 func runPlot(c *cli, args []string) error {
 	fs := newFlags("plot")
+	addDesignFlags(fs)
 	out := fs.String("o", "", "")
 	by := fs.String("by", "time", "")
 	force := fs.Bool("force", false, "")
@@ -96,6 +99,10 @@ func runPlot(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := applyDesignFlags(fs, s); err != nil {
+		return err
+	}
+	fromFlags(fs, s, pos)
 	if n := len(s.Protects); n > maxPlotLines {
 		return fmt.Errorf("plot: %d protection options; a chart draws at most %d (more could not be told apart): list fewer in [options] protect, or use headroom table", n, maxPlotLines)
 	}

@@ -82,6 +82,7 @@ func runReport(c *cli, args []string) error {
 	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
+	fromFlags(fs, s, pos)
 	rep, err := buildReport(s, "headroom "+shellJoin(append([]string{"report"}, args...)))
 	if err != nil {
 		return err
@@ -206,7 +207,7 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 			ph = money(row.r.CostPerHour)
 		}
 		rep.Lineup = append(rep.Lineup, lineupLine{Cell: row.cell.ID, Pack: fmt.Sprintf("%d×%d", row.series, row.par),
-			Runtime: sig(row.r.RuntimeH, 3) + " h", PerHour: ph, Stranded: fixed(strandedPct(row.r), 1) + " %",
+			Runtime: units.Duration(row.r.RuntimeH, 3), PerHour: ph, Stranded: fixed(strandedPct(row.r), 1) + " %",
 			Cost: money(row.partCost), Caution: curves.ShortCaution(row.cell),
 			Current: row.cell == d.Cell && row.series == d.Series})
 	}
@@ -270,13 +271,17 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 // summaryText is the verdict in the words run's text output uses.
 func summaryText(d *discharge.Design, r *discharge.Result) string {
 	var b strings.Builder
-	days := sig(r.RuntimeDays, 3) + " days"
+	days := units.Duration(24*r.RuntimeDays, 3)
 	if d.HoursPerDay > 0 {
 		days += " at " + short(d.HoursPerDay) + " h a day"
 	}
-	fmt.Fprintf(&b, "Runtime %s h of use (%s).\n", sig(r.RuntimeH, 3), days)
-	fmt.Fprintf(&b, "Stranded %s of a %s reference (%s %%): %s by the protection drop, %s by the floor.\n",
-		mAh(r.StrandedMAh), mAh(r.ReferenceMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
+	fmt.Fprintf(&b, "Runtime %s of use (%s).\n", units.Duration(r.RuntimeH, 3), days)
+	if _, ok := r.StrandedShare(); ok {
+		fmt.Fprintf(&b, "Stranded %s of a %s reference (%s %%): %s, %s by the floor.\n",
+			mAh(r.StrandedMAh), mAh(r.ReferenceMAh), fixed(strandedPct(r), 1), r.ProtectionShareText(), mAh(r.StrandedByFloorMAh))
+	} else {
+		fmt.Fprintf(&b, "Stranded: — (the product never starts, so no share of the charge is stranded).\n")
+	}
 	fmt.Fprintf(&b, "The product %s.\n", strings.TrimPrefix(d.CutoffText(r), "the product "))
 	return b.String()
 }

@@ -63,6 +63,7 @@ func runDesign(c *cli, args []string) error {
 	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
+	fromFlags(fs, s, pos)
 	if err := sf.apply(s); err != nil {
 		return err
 	}
@@ -76,7 +77,7 @@ func runDesign(c *cli, args []string) error {
 			changed = append(changed, "--"+fl.Name)
 		}
 	})
-	if len(changed) > 0 && s.Name != "" {
+	if len(changed) > 0 && s.Name != "" && s.Name != flagsDesignName {
 		s.Name += " with " + strings.Join(changed, ", ")
 	}
 	if spreadOnly != "" && !*spreadFlag {
@@ -119,11 +120,14 @@ func hoursPerDay(d *discharge.Design) float64 {
 	return d.HoursPerDay
 }
 
+// strandedPct is the stranded share in percent; NaN (written "—", null or
+// empty) when the design never starts and the share means nothing.
 func strandedPct(r *discharge.Result) float64 {
-	if r.ReferenceMAh <= 0 {
-		return 0
+	f, ok := r.StrandedShare()
+	if !ok {
+		return math.NaN()
 	}
-	return 100 * r.StrandedMAh / r.ReferenceMAh
+	return 100 * f
 }
 
 // dedupe drops repeated lines, keeping the first.
@@ -168,7 +172,8 @@ func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) [
 		{"protection_loss_Wh", "burnt in the protection element (Wh)", r.ProtectionLossWh},
 		{"cell_loss_Wh", "burnt in the cells' resistance (Wh)", r.CellLossWh},
 		{"protection_peak_W", "element peak dissipation (W)", r.ProtectionPeakW},
-		{"junction_C", "element junction at peak (°C)", r.JunctionC},
+		{"junction_C", "element junction at the peak of the hottest pulse (°C)", r.JunctionC},
+		{"junction_mean_C", "element junction over a profile cycle (°C)", r.JunctionMeanC},
 		{"quiescent_A", "element standing drain (A)", r.QuiescentA},
 		{"standby_mAh", "standby drain (mAh)", r.StandbyMAh},
 		{"self_discharge_mAh", "self-discharge (mAh)", r.SelfDischargeMAh},
@@ -221,7 +226,7 @@ func noise(x, scale float64) float64 {
 	return x
 }
 
-func mAh(x float64) string { return sig(x, 3) + " mAh" }
+func mAh(x float64) string { return units.MAh(x, 3) }
 
 // runText is the result for people: a short block to read or paste.
 func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []byte {
@@ -240,20 +245,23 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	line("conditions", "floor %s V, %s, %s, standby %s", fixed(d.Floor, 2), human(d.TempC, units.Temperature), use, human(d.Standby, units.Current))
 	b.WriteByte('\n')
 
-	days := sig(r.RuntimeDays, 3) + " days"
-	if d.HoursPerDay > 0 {
-		days += " at " + short(d.HoursPerDay) + " h a day"
+	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
+		line("runtime", "%s of use = %s at %s h a day", units.Duration(r.RuntimeH, 3), units.Duration(24*r.RuntimeDays, 3), short(d.HoursPerDay))
 	} else {
-		days += " of continuous use"
+		line("runtime", "%s of continuous use", units.Duration(r.RuntimeH, 3))
 	}
-	line("runtime", "%s h of use = %s", sig(r.RuntimeH, 3), days)
-	line("delivered", "%s from the pack, %s Wh into the load", mAh(r.DeliveredMAh), sig(r.DeliveredWh, 3))
+	line("delivered", "%s from the pack, %s into the load", mAh(r.DeliveredMAh), units.Prefixed(r.DeliveredWh, 3, "Wh"))
 	line("reference", "%s: the cells at this load to their %s V end-point, no element, no floor", mAh(r.ReferenceMAh), short(d.Cell.EndPoint))
-	line("stranded", "%s = %s %% of the reference: %s by the protection drop, %s by the floor",
-		mAh(r.StrandedMAh), fixed(strandedPct(r), 1), mAh(r.StrandedByProtectionMAh), mAh(r.StrandedByFloorMAh))
-	line("element", "%s Wh burnt in it; peak %s W, junction %s °C", sig(r.ProtectionLossWh, 3), sig(r.ProtectionPeakW, 3), fixed(r.JunctionC, 0))
-	line("cells", "%s Wh burnt in their internal resistance", sig(r.CellLossWh, 3))
-	line("standby", "%s %% of the charge goes to standby drain and self-discharge", fixed(100*r.StandbyShare, 1))
+	if _, ok := r.StrandedShare(); ok {
+		line("stranded", "%s = %s %% of the reference: %s, %s by the floor",
+			mAh(r.StrandedMAh), fixed(strandedPct(r), 1), r.ProtectionShareText(), mAh(r.StrandedByFloorMAh))
+	} else {
+		line("stranded", "— (the product never starts, so no share of the charge is stranded; see the cut-off)")
+	}
+	line("element", "%s burnt in it; peak %s, junction %s °C at the hottest pulse (%s °C over a cycle)",
+		units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0), fixed(r.JunctionMeanC, 0))
+	line("cells", "%s burnt in their internal resistance", units.Prefixed(r.CellLossWh, 3, "Wh"))
+	line("standby", "%s of the charge goes to standby drain and self-discharge", units.Eng(r.StandbyShare, units.Fraction, 2))
 	if r.RuntimeH > 0 {
 		line("cost", "%s per hour of use", money(r.CostPerHour))
 	} else {

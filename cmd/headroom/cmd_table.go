@@ -40,6 +40,8 @@ flags:
                    and worst
   --format FORMAT  text, json, csv or md (default text)
 
+design flags (each sets that value for every row, as in headroom run):
+` + designFlagHelp() + `
 examples:
   headroom table testdata/scenarios/example.toml
   headroom table --sort runtime --desc --format md
@@ -170,7 +172,9 @@ func tableColumns(s *scenario.Scenario) []column[tableRow] {
 		num("stranded_pct", "stranded %", 1, func(r tableRow) float64 { return r.stranded }),
 		num("protection_loss_Wh", "loss Wh", 3, func(r tableRow) float64 { return r.lossWh }),
 		num("protection_peak_W", "heat W", 3, func(r tableRow) float64 { return r.peakW }),
-		column[tableRow]{key: "cost_per_hour", head: "$/h", right: true, human: true, machine: true, width: 8,
+		// Eleven columns hold every units.Dollars text below $1000 an
+		// hour ("$0.0000010", "< $0.000001"), so a streamed table fits.
+		column[tableRow]{key: "cost_per_hour", head: "$/h", right: true, human: true, machine: true, width: 11,
 			text: func(r tableRow) string { return money(r.cost) }, val: func(r tableRow) any { return r.cost }},
 		column[tableRow]{key: "cutoff_cause", machine: true, val: func(r tableRow) any { return r.cause }},
 		column[tableRow]{key: "cutoff_phase", machine: true, val: func(r tableRow) any { return r.phase }},
@@ -182,6 +186,7 @@ func tableColumns(s *scenario.Scenario) []column[tableRow] {
 
 func runTable(c *cli, args []string) error {
 	fs := newFlags("table")
+	addDesignFlags(fs)
 	sortFlag := fs.String("sort", "", "")
 	desc := fs.Bool("desc", false, "")
 	formatFlag := fs.String("format", "text", "")
@@ -208,6 +213,10 @@ func runTable(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := applyDesignFlags(fs, s); err != nil {
+		return err
+	}
+	fromFlags(fs, s, pos)
 	if err := sf.apply(s); err != nil {
 		return err
 	}
@@ -247,6 +256,7 @@ func runTable(c *cli, args []string) error {
 	}
 	rows := make([]tableRow, 0, n)
 	var rankErr error
+	bar := newMeter(c.stderr, isTerminal(c.stderr), "rows", n)
 	s.Sweep(func(row scenario.Row) bool {
 		r := rowOf(row)
 		r.rank = math.NaN()
@@ -258,8 +268,10 @@ func runTable(c *cli, args []string) error {
 			}
 		}
 		rows = append(rows, r)
+		bar.step(len(rows))
 		return true
 	})
+	bar.end()
 	if rankErr != nil {
 		return rankErr
 	}

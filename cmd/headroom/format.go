@@ -52,47 +52,13 @@ func machineNum(x float64) string {
 	return strconv.FormatFloat(x, 'g', 6, 64)
 }
 
-// fixed writes x with d decimals for people; "—" when not finite.
-func fixed(x float64, d int) string {
-	if !finite(x) {
-		return "—"
-	}
-	if x == 0 || math.Abs(x) < 0.5*math.Pow(10, -float64(d)) {
-		x = 0 // no "-0.00"
-	}
-	return strconv.FormatFloat(x, 'f', d, 64)
-}
+// fixed, sig and money are the one formatter's (internal/units, eng.go)
+// plain-number forms: "—" when not finite, never "-0" or an exponent.
+func fixed(x float64, d int) string { return units.Fixed(x, d) }
 
-// sig writes x with about n significant digits and no exponent, for
-// people; "—" when not finite.
-func sig(x float64, n int) string {
-	if !finite(x) {
-		return "—"
-	}
-	if x == 0 {
-		return "0"
-	}
-	digits := func(x float64) int {
-		return max(0, min(n-1-int(math.Floor(math.Log10(math.Abs(x)))), 9))
-	}
-	d := digits(x)
-	// 0.99996 rounds to 1.000 at four decimals: count digits again.
-	if r := math.Round(x*math.Pow10(d)) / math.Pow10(d); r != 0 {
-		d = min(d, digits(r))
-	}
-	return fixed(x, d)
-}
+func sig(x float64, n int) string { return units.Num(x, n) }
 
-// money writes dollars for people: cents, or more digits below a cent.
-func money(x float64) string {
-	if !finite(x) {
-		return "—"
-	}
-	if x != 0 && math.Abs(x) < 0.1 {
-		return "$" + sig(x, 2)
-	}
-	return "$" + fixed(x, 2)
-}
+func money(x float64) string { return units.Dollars(x) }
 
 // field is one named value of a record: a float64, int, string, bool or
 // []string.

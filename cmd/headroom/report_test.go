@@ -246,6 +246,9 @@ func TestReportAndNetlistBadOutput(t *testing.T) {
 // 1 % (the acceptance bound) — one design per load law, a pulsed profile, and
 // one behind the current limiter. The demo's netlist is also kept as a
 // golden file.
+// The elements sit on an ideal heat sink (theta=0): the circuit has no
+// self-heating, so like is compared with like (the thermal network has its
+// own checks in protect).
 func TestNetlistRunsInNgspice(t *testing.T) {
 	spicetest.Require(t)
 	dir := t.TempDir()
@@ -253,12 +256,12 @@ func TestNetlistRunsInNgspice(t *testing.T) {
 		name string
 		args []string
 	}{
-		{"current", []string{"--load", "300mA", "--protect", "diode", "--floor", "2.0", "--hours-per-day", "24", "--standby", "0"}},
-		{"power", []string{"--load", "0.5W@85%", "--protect", "schottky", "--floor", "1.8", "--hours-per-day", "24", "--standby", "0"}},
-		{"resistance", []string{"--load", "8.2ohm", "--protect", "pmos", "--floor", "2.0", "--hours-per-day", "24", "--standby", "0"}},
+		{"current", []string{"--load", "300mA", "--protect", "diode:theta=0", "--floor", "2.0", "--hours-per-day", "24", "--standby", "0"}},
+		{"power", []string{"--load", "0.5W@85%", "--protect", "schottky:theta=0", "--floor", "1.8", "--hours-per-day", "24", "--standby", "0"}},
+		{"resistance", []string{"--load", "8.2ohm", "--protect", "pmos:theta=0", "--floor", "2.0", "--hours-per-day", "24", "--standby", "0"}},
 		{"led", []string{"--load", "led:vf=1.9,r=10", "--protect", "none", "--floor", "2.1", "--hours-per-day", "24", "--standby", "0"}},
-		{"pulsed demo", nil},
-		{"limiter", []string{"--load", "400mA/20s,100mA/40s", "--protect", "limiter", "--floor", "2.0"}},
+		{"pulsed demo", []string{"--protect", "diode:theta=0"}},
+		{"limiter", []string{"--load", "400mA/20s,100mA/40s", "--protect", "limiter:theta=0", "--floor", "2.0"}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			out := filepath.Join(dir, strings.ReplaceAll(c.name, " ", "-")+".cir")

@@ -168,6 +168,9 @@ func (c *cli) dispatch(args []string) error {
 	case "-h", "-help", "--help":
 		c.usage(c.stdout)
 		return nil
+	case "-version", "--version":
+		fmt.Fprintln(c.stdout, version())
+		return nil
 	}
 	if cmd := lookupCommand(first); cmd != nil {
 		err := cmd.run(c, args[1:])
@@ -226,6 +229,7 @@ commands:
 "headroom COMMAND -h" shows a command's flags and examples. Flags may be written
 -flag or --flag, before or after the file. Errors in what you give (flags,
 arguments, files, values) exit with status 2; other failures with status 1.
+"headroom --version" prints the version.
 `)
 }
 
@@ -309,6 +313,21 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 		pos = append(pos, rest[0])
 		args = rest[1:]
 	}
+}
+
+// isUnit reports whether s is a unit symbol on its own, with or without an
+// SI prefix ("A", "mA", "V", "ohm", "s", "%"), that is: what a number
+// followed by it would parse as.
+func isUnit(s string) bool {
+	if s == "" || s[0] >= '0' && s[0] <= '9' || s[0] == '-' || s[0] == '.' {
+		return false
+	}
+	for k := units.Voltage; k <= units.Money; k++ {
+		if _, err := units.Parse("1"+s, k, false); err == nil {
+			return true
+		}
+	}
+	return false
 }
 
 // flagError rewrites the flag package's messages in our one-line style.

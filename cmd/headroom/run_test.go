@@ -74,7 +74,9 @@ func TestFlagsOverrideFile(t *testing.T) {
 // in the SI (SI Brochure, 9th edition, 2019) at T = 300.15 K. The product
 // stops at the charge q where 2·V(q) − Vd = 1.8 V on the piecewise-linear
 // curve. package protect states Is at Tnom = 300.15 K (27 °C), so no
-// temperature correction applies. A CSV cell has no resistance column here
+// temperature correction applies; the diode sits on an ideal heat sink
+// (theta=0), so its junction stays at 27 °C as the hand formula takes it.
+// A CSV cell has no resistance column here
 // (V is the terminal voltage at any current), Peukert 1, no temperature
 // table and no self-discharge, so the charge is all the load's.
 //
@@ -120,7 +122,7 @@ func TestHandCheckDiodeCSV(t *testing.T) {
 	if math.IsNaN(qcut) {
 		t.Fatalf("the floor is not crossed on the test curve (target %v V per cell)", target)
 	}
-	args := []string{"run", "--cell", path, "--series", "2", "--protect", "diode:is=2.5n,n=1.75,rs=0.1",
+	args := []string{"run", "--cell", path, "--series", "2", "--protect", "diode:is=2.5n,n=1.75,rs=0.1,theta=0",
 		"--load", "100mA", "--floor", "1.8", "--temp", "27"}
 	for _, c := range []struct {
 		name  string

@@ -523,7 +523,7 @@ protect = ["pmos", "limiter:rsh=0.47"]
 	if len(sp.Cells) != 2 || !slices.Equal(sp.Parallel, []int{1, 2}) || sp.Series != nil || len(sp.Elements) != len(pm)+1 {
 		t.Fatalf("cells %d, parallel %v, series %v, elements %d", len(sp.Cells), sp.Parallel, sp.Series, len(sp.Elements))
 	}
-	if last := protect.Short(sp.Elements[len(sp.Elements)-1]); last != "limiter:rsh=0.47ohm" {
+	if last := protect.Short(sp.Elements[len(sp.Elements)-1]); last != "limiter:rsh=470mohm" {
 		t.Errorf("the exact part became %q", last)
 	}
 	all, _ := SpaceOf(s, true)

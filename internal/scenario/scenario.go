@@ -147,6 +147,11 @@ type fileDef struct {
 	Standby     units.Raw        `toml:"standby"`
 	Price       units.Raw        `toml:"price"`
 	Electricity units.Raw        `toml:"electricity_price"`
+	Charger     units.Raw        `toml:"charger_price"`
+	Toy         bool             `toml:"toy"`
+	MaxInput    units.Raw        `toml:"max_input"`
+	LEDMin      units.Raw        `toml:"led_min_current"`
+	LEDMax      units.Raw        `toml:"led_max_current"`
 	Budget      units.Raw        `toml:"budget"`
 	Options     optionsDef       `toml:"options"`
 	Sweep       sweepDef         `toml:"sweep"`
@@ -485,6 +490,10 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		{"standby", f.Standby, units.Current, true, &d.Standby, 0, CheckStandby},
 		{"price", f.Price, units.Money, true, &d.PackPrice, 0, CheckPrice},
 		{"electricity_price", f.Electricity, units.Money, true, &d.ElectricityPrice, 0, CheckPrice},
+		{"charger_price", f.Charger, units.Money, true, &d.ChargerPrice, 0, CheckPrice},
+		{"max_input", f.MaxInput, units.Voltage, true, &d.MaxInputV, 0, CheckMaxInput},
+		{"led_min_current", f.LEDMin, units.Current, false, &d.MinLEDAmps, 0, CheckLEDCurrent},
+		{"led_max_current", f.LEDMax, units.Current, false, &d.MaxLEDAmps, 0, CheckLEDCurrent},
 		{"budget", f.Budget, units.Money, true, &s.Budget, 0, CheckPrice},
 	}
 	for _, fl := range fields {
@@ -509,6 +518,9 @@ func Parse(data []byte, name, dir string) (*Scenario, error) {
 		}
 		*fl.dst = v
 	}
+
+	d.PriceGiven = f.Price.Set()
+	d.Toy = f.Toy
 
 	sweep := func(key string, sv sweepValues, kind units.Kind, def float64, chk func(float64) error) ([]float64, error) {
 		if !sv.set {
@@ -716,6 +728,9 @@ func ParseFloor(s string) (float64, error) { return parseChecked(s, units.Voltag
 
 // ParseTemp reads an ambient temperature ("20C", "-10°C" or "20").
 func ParseTemp(s string) (float64, error) { return parseChecked(s, units.Temperature, CheckTemp) }
+
+func CheckMaxInput(v float64) error   { return discharge.CheckMaxInput(v) }
+func CheckLEDCurrent(v float64) error { return discharge.CheckLEDCurrent(v) }
 
 // ParseStandby reads a standby current ("30uA"; a bare number is amperes).
 func ParseStandby(s string) (float64, error) { return parseChecked(s, units.Current, CheckStandby) }

@@ -176,6 +176,49 @@ func TestWriteFileNeverClobbers(t *testing.T) {
 	}
 }
 
+// A scenario can name a charger's price; it reaches the design and survives
+// a save.
+func TestChargerPrice(t *testing.T) {
+	s, err := Parse([]byte("cell = \"hr6\"\ncharger_price = 12.5\n"), "c.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Design.ChargerPrice != 12.5 {
+		t.Fatalf("charger price %v, want 12.5", s.Design.ChargerPrice)
+	}
+	back, err := Parse(Format(Saved{Name: "x", Design: s.Design, ProtectSpec: "none"}), "saved.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Design.ChargerPrice != 12.5 {
+		t.Errorf("saved and read back: charger price %v, want 12.5", back.Design.ChargerPrice)
+	}
+	if _, err := Parse([]byte("charger_price = -1\n"), "c.toml", ""); err == nil {
+		t.Error("a negative charger price parses")
+	}
+}
+
+// A saved file writes quantities as an engineer types them (30uA, not
+// 3e-05A) and reads them back exactly.
+func TestSavedQuantitiesInEngineeringUnits(t *testing.T) {
+	s := Demo()
+	s.Design.Standby = 3e-5
+	s.Design.Floor = 0.0018
+	data := string(Format(Saved{Name: "x", Design: s.Design, ProtectSpec: "none"}))
+	for _, want := range []string{`standby = "30uA"`, `floor = "1.8mV"`} {
+		if !strings.Contains(data, want) {
+			t.Errorf("saved file lacks %s:\n%s", want, data)
+		}
+	}
+	back, err := Parse([]byte(data), "saved.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Design.Standby != 3e-5 || back.Design.Floor != 0.0018 {
+		t.Errorf("read back standby %v, floor %v", back.Design.Standby, back.Design.Floor)
+	}
+}
+
 // A bad element spec in a file names the file, line and key once, and the
 // error still unwraps to protect's *SpecError (no prefix cut off the text).
 func TestProtectErrorKeepsItsType(t *testing.T) {

@@ -12,6 +12,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/units"
 	"headroom/protect"
 	"headroom/tolerance"
 )
@@ -40,11 +41,11 @@ func Format(s Saved) []byte {
 	var b bytes.Buffer
 	d := s.Design
 	fmt.Fprintf(&b, "# headroom scenario, saved from the interactive screen.\n")
-	fmt.Fprintf(&b, "name = %q\n", s.Name)
+	fmt.Fprintf(&b, "name = %s\n", tomlString(s.Name))
 	if s.Note != "" {
-		fmt.Fprintf(&b, "note = %q\n", s.Note)
+		fmt.Fprintf(&b, "note = %s\n", tomlString(s.Note))
 	}
-	fmt.Fprintf(&b, "cell = %q\n", d.Cell.ID)
+	fmt.Fprintf(&b, "cell = %s\n", tomlString(d.Cell.ID))
 	fmt.Fprintf(&b, "series = %d\nparallel = %d\n", d.Series, d.Parallel)
 	spec := s.ProtectSpec
 	if d.Protect != nil {
@@ -53,18 +54,33 @@ func Format(s Saved) []byte {
 	if spec == "" {
 		spec = "none"
 	}
-	fmt.Fprintf(&b, "protect = %q\n", spec)
-	fmt.Fprintf(&b, "floor = \"%sV\"\n", g(d.Floor))
+	fmt.Fprintf(&b, "protect = %s\n", tomlString(spec))
+	fmt.Fprintf(&b, "floor = %s\n", tomlString(units.Format(d.Floor, units.Voltage)))
 	fmt.Fprintf(&b, "temp = \"%sC\"\n", g(d.TempC))
 	if d.HoursPerDay > 0 {
 		fmt.Fprintf(&b, "hours_per_day = %s\n", g(d.HoursPerDay))
 	}
-	fmt.Fprintf(&b, "standby = \"%sA\"\n", g(d.Standby))
-	if d.PackPrice > 0 {
+	fmt.Fprintf(&b, "standby = %s\n", tomlString(units.Format(d.Standby, units.Current)))
+	if d.PackPrice > 0 || d.PriceGiven {
 		fmt.Fprintf(&b, "price = %s\n", g(d.PackPrice))
 	}
 	if d.ElectricityPrice > 0 {
 		fmt.Fprintf(&b, "electricity_price = %s\n", g(d.ElectricityPrice))
+	}
+	if d.Toy {
+		fmt.Fprintf(&b, "toy = true\n")
+	}
+	if d.MaxInputV > 0 {
+		fmt.Fprintf(&b, "max_input = %s\n", tomlString(units.Format(d.MaxInputV, units.Voltage)))
+	}
+	if d.MinLEDAmps > 0 {
+		fmt.Fprintf(&b, "led_min_current = %s\n", tomlString(units.Format(d.MinLEDAmps, units.Current)))
+	}
+	if d.MaxLEDAmps > 0 {
+		fmt.Fprintf(&b, "led_max_current = %s\n", tomlString(units.Format(d.MaxLEDAmps, units.Current)))
+	}
+	if d.ChargerPrice > 0 {
+		fmt.Fprintf(&b, "charger_price = %s\n", g(d.ChargerPrice))
 	}
 	if s.Budget > 0 {
 		fmt.Fprintf(&b, "budget = %s\n", g(s.Budget))
@@ -72,9 +88,9 @@ func Format(s Saved) []byte {
 	for _, p := range d.Profile {
 		fmt.Fprintf(&b, "\n[[phase]]\n")
 		if p.Name != "" {
-			fmt.Fprintf(&b, "name = %q\n", p.Name)
+			fmt.Fprintf(&b, "name = %s\n", tomlString(p.Name))
 		}
-		fmt.Fprintf(&b, "load = %q\nduration = \"%ss\"\n", p.Load.String(), g(p.Seconds))
+		fmt.Fprintf(&b, "load = %s\nduration = \"%ss\"\n", tomlString(p.Load.String()), g(p.Seconds))
 	}
 	writeTolerances(&b, s)
 	if lib, ok := curves.Lookup(d.Cell.ID); !ok || lib != d.Cell {
@@ -84,9 +100,9 @@ func Format(s Saved) []byte {
 }
 
 func writeCell(b *bytes.Buffer, c *curves.Cell) {
-	fmt.Fprintf(b, "\n[[define_cell]]\nid = %q\nname = %q\nchemistry = %q\n", c.ID, c.Name, orDefault(c.Chemistry, "custom"))
+	fmt.Fprintf(b, "\n[[define_cell]]\nid = %s\nname = %s\nchemistry = %s\n", tomlString(c.ID), tomlString(c.Name), tomlString(orDefault(c.Chemistry, "custom")))
 	if c.Designation != "" {
-		fmt.Fprintf(b, "designation = %q\n", c.Designation)
+		fmt.Fprintf(b, "designation = %s\n", tomlString(c.Designation))
 	}
 	fmt.Fprintf(b, "nominal = %s\nend_point = %s\nrated_mAh = %s\nrated_current = %s\nref_current = %s\n",
 		g(c.NominalV), g(c.EndPoint), g(c.RatedMAh), g(c.RatedCurrent), g(c.RefCurrent))
@@ -95,7 +111,7 @@ func writeCell(b *bytes.Buffer, c *curves.Cell) {
 		fmt.Fprintf(b, "rechargeable = true\ncycle_life = %d\ncharge_efficiency = %s\n", c.CycleLife, g(c.ChargeEfficiency))
 	}
 	if c.Source != "" {
-		fmt.Fprintf(b, "source = %q\n", c.Source)
+		fmt.Fprintf(b, "source = %s\n", tomlString(c.Source))
 	}
 	var pts []string
 	for i := 0; i < c.Curve.Len(); i++ {

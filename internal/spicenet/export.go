@@ -42,6 +42,18 @@ func Export(d *discharge.Design, o Options, runtimeH float64, title string) (str
 	} {
 		b.WriteString(strings.TrimRight("* "+line, " ") + "\n")
 	}
+	if e := d.Protect; e != nil && e.Thermal().ThetaJA > 0 {
+		// The circuit has no self-heating; the engine's element does.
+		for _, line := range []string{
+			"",
+			"Heat: here the element runs at the ambient temperature throughout. headroom also",
+			"heats it through its thermal network and takes each phase's drop at the junction",
+			"temperature that heat sets, so its runtime differs; give the element theta=0 (an",
+			"ideal heat sink) in headroom to compare like with like.",
+		} {
+			b.WriteString(strings.TrimRight("* "+line, " ") + "\n")
+		}
+	}
 	lines := strings.Split(net, "\n")
 	for _, line := range lines[1:] { // Build's own title line is replaced by ours
 		if c := partComment(line); c != "" {

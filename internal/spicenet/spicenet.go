@@ -103,14 +103,38 @@ func Build(d *discharge.Design, o Options) (string, error) {
 	selfA := c.SelfDischarge * c.RatedMAh * P / 730.5 * math.Pow(2, (T-curves.RefTempC)/10) / 1000
 	fmt.Fprintf(&b, "Fq 0 qs Vsense 1\nCq qs 0 %s\nIself 0 qs DC %s\n.ic v(qs)=0\n", g(1e-3*P*o.CapacityFactor), g(selfA))
 
-	// The pack: E = S·(Vcurve + Iref·R), Rp = S·R/P, both pwl() of v(qs).
-	// ngspice extends pwl() linearly beyond its end points, so each table
-	// gets flat extensions to hold its end values, as the cell does.
+	// The pack: E = S·(Vcurve + Iref·(R0 + ΣRᵢ)) with the resistances at
+	// the reference temperature (curves.Cell.OpenCircuit), R0 at the
+	// ambient in series, R0p = S·R0/P, both pwl() of v(qs). ngspice
+	// extends pwl() linearly beyond its end points, so each table gets
+	// flat extensions to hold its end values, as the cell does.
 	vq, vv := curveTable(c)
 	rq, rv := resistanceTable(c, T)
+	r20q, r20v := resistanceTable(c, curves.RefTempC)
+	if _, fr := c.TempFactors(curves.RefTempC); fr != 1 {
+		for i := range r20v { // the table's own ohms, not scaled by a factor at 20 °C
+			r20v[i] /= fr
+		}
+	}
 	vpwl := pwl("v(qs)", vq, vv, end)
 	rpwl := pwl("v(qs)", rq, rv, end)
-	fmt.Fprintf(&b, "Bpack pk 0 V = %s*(%s + %s*%s) - i(Vsense)*%s*%s\n", g(S), vpwl, g(c.RefCurrent), rpwl, g(S/P), rpwl)
+	r20pwl := pwl("v(qs)", r20q, r20v, end)
+	// The polarisation branches, each its own state: a current-controlled
+	// source copies the pack current into 1 kΩ ∥ τᵢ/(3600·1 kΩ), so the
+	// node's voltage is 1000 × the pack current filtered by the branch
+	// (time scaled as above), and the pack subtracts S·Rᵢ/P (ohms at the
+	// ambient) times that current. Kept apart from the pack's current
+	// loop because farad-sized capacitors there leave ngspice's absolute
+	// current tolerance out of reach. They start discharged (the load
+	// ramps up from zero).
+	_, fr := c.TempFactors(T)
+	var pol strings.Builder
+	for i, st := range c.RC {
+		rb := S * st.R * fr / P
+		fmt.Fprintf(&b, "Frc%d 0 x%d Vsense 1\nRrc%d x%d 0 1000\nCrc%d x%d 0 %s\n", i+1, i+1, i+1, i+1, i+1, i+1, g(st.Tau/3600/1000))
+		fmt.Fprintf(&pol, " - v(x%d)*%s", i+1, g(rb/1000))
+	}
+	fmt.Fprintf(&b, "Bpack pk 0 V = %s*(%s + %s*(%s + %s)) - i(Vsense)*%s*%s%s\n", g(S), vpwl, g(c.RefCurrent), r20pwl, g(c.PolarisationOhms()), g(S/P), rpwl, pol.String())
 	b.WriteString("Vsense pk a DC 0\n")
 
 	// The protection element from a (pack terminal) to ld (load).
@@ -215,9 +239,12 @@ func element(b *strings.Builder, e protect.Element, tempC float64) error {
 		// (ngspice's level-1 model is symmetric and takes the higher
 		// terminal as the source, as the engine does); bulk tied to the
 		// load side so that the body diode points from pack to load.
-		b.WriteString("Mser a 0 ld ld pser W=1u L=1u temp=27\n")
-		b.WriteString(fetModel("pser", el.FET))
-		b.WriteString("Dbody a ld dbody\n")
+		// The fixed part of the on-resistance sits on the channel's load
+		// side (protect.FET), with the body diode across the channel.
+		b.WriteString("Mser a 0 lc lc pser W=1u L=1u\n")
+		fmt.Fprintf(b, "Rfix lc ld %s\n", g(el.At(tempC).Rfix))
+		b.WriteString(fetModel("pser", el.FET, tempC))
+		b.WriteString("Dbody a lc dbody\n")
 		b.WriteString(diodeModel("dbody", el.Body))
 	case protect.Limiter:
 		writeLimiter(b, el, tempC)
@@ -229,14 +256,15 @@ func element(b *strings.Builder, e protect.Element, tempC float64) error {
 
 // fetModel is a level-1 PMOS with W = L, so that KP is K = KP·W/L, the
 // Shichman–Hodges (1968) factor that makes the linear-region channel
-// resistance 1/(K·(|Vgs| − Vth)) equal Ron at |Vgs| = Vref. The model's
-// own drain and source junctions are made negligible (IS 1e-30 A): the
-// body diode is a separate diode with the element's parameters. The
-// instances run at 27 °C, the model's nominal temperature, because the
-// engine takes Ron and Vth as independent of temperature (protect.FET).
-func fetModel(name string, f protect.FET) string {
-	k := 1 / (f.Ron * (f.Vref - f.Vth))
-	return fmt.Sprintf(".model %s PMOS(LEVEL=1 VTO=%s KP=%s IS=1e-30)\n", name, g(-f.Vth), g(k))
+// resistance 1/(K·(|Vgs| − Vth)) equal the channel part of Ron at |Vgs| =
+// Vref. The model's own drain and source junctions are made negligible
+// (IS 1e-30 A): the body diode is a separate diode with the element's
+// parameters. K and Vth are the element's at tempC (protect.FET.At, its
+// own temperature law), and the model's TNOM is tempC, so that ngspice,
+// running at .temp tempC, scales nothing.
+func fetModel(name string, f protect.FET, tempC float64) string {
+	a := f.At(tempC)
+	return fmt.Sprintf(".model %s PMOS(LEVEL=1 VTO=%s KP=%s IS=1e-30 TNOM=%s)\n", name, g(-a.Vth), g(a.K()), g(tempC))
 }
 
 // diodeModel is ngspice's junction diode with the element's Shockley
@@ -245,25 +273,16 @@ func diodeModel(name string, s protect.Shockley) string {
 	return fmt.Sprintf(".model %s D(IS=%s N=%s RS=%s EG=%s XTI=%s)\n", name, g(s.Is), g(s.N), g(s.Rs), g(s.Eg), g(s.XTI))
 }
 
-// LimiterOnCurrent is the PNP collector current, amperes, at which the
-// limiter circuit is taken to begin clamping. At the clamp the pass FET is
-// saturated at Ilim, so its |Vgs| is Vth + sqrt(2·Ilim/K), 1.26 V for the
-// default part at 0.65 A; from a fresh 2×AA pack its source sits near
-// 2.27 V, its gate near 1.01 V, and the PNP must feed R2's 10.1 µA less
-// R1's 1.3 µA: about 9 µA (more from a bigger pack, some 23 µA from 3×AA).
-// The PNP's IS is chosen so that it carries 10 µA at the engine's Vbe(T);
-// since Ic grows e-fold per 26 mV, a factor of two error here moves the
-// clamp by Vt·ln 2 ≈ 18 mV of 0.65 V, under 3 % (measured with 2×AA: the
-// circuit clamps at 0.643 A, 0.5 % below Vbe/Rsh).
-const LimiterOnCurrent = 10e-6
-
 // writeLimiter writes the discrete current limiter as two P-channel
 // MOSFETs in the rail (protect.Limiter):
 //
 //   - the blocking FET, as PMOS: drain at the pack (a), gate to ground,
 //     source and bulk at n, body diode from a to n (pack to load);
+//   - each FET's fixed resistance Rfix on its load side;
 //   - Rsh from n to m, and a PNP with its emitter at n (pack side of Rsh),
-//     its base at m and its collector on the pass FET's gate gt;
+//     its base at m and its collector on the pass FET's gate gt: ngspice's
+//     own Gummel–Poon model with the element's saturation current
+//     (protect.Limiter.PNP) and its own temperature law at .temp;
 //   - the pass FET turned the other way: source and bulk at m (pack side),
 //     drain at the load ld, body diode from ld to m (load to pack), so
 //     that with its channel off no forward current passes;
@@ -276,20 +295,21 @@ const LimiterOnCurrent = 10e-6
 //     resistor gives the node a path to ground and draws 30 nA from 3 V,
 //     1e-7 of a 300 mA load.
 //
-// The engine's limiter is the idealised form of this circuit: it passes
-// any current below Vbe/Rsh untouched and none above; the PNP here starts
-// to conduct gradually, which the tests allow for.
+// The engine's limiter is this circuit's law (protect.Limiter: the PNP
+// by Ebers–Moll, the FETs by Shichman–Hodges) less the PNP's base current
+// and the divider's current through Rsh.
 func writeLimiter(b *strings.Builder, l protect.Limiter, tempC float64) {
-	vt := protect.ThermalVoltage(protect.NominalK)
-	is := LimiterOnCurrent * math.Exp(-l.VbeAt(tempC)/vt)
-	b.WriteString("Mblk a 0 n n pser W=1u L=1u temp=27\n")
-	b.WriteString("Dblk a n dbody\n")
+	rf := g(l.At(tempC).Rfix)
+	b.WriteString("Mblk a 0 nb nb pser W=1u L=1u\n")
+	b.WriteString("Dblk a nb dbody\n")
+	fmt.Fprintf(b, "Rfixb nb n %s\n", rf)
 	fmt.Fprintf(b, "Rsh n m %s\n", g(l.Rsh))
-	b.WriteString("Qlim gt m n qlim temp=27\n")
-	fmt.Fprintf(b, ".model qlim PNP(IS=%s BF=100)\n", g(is))
-	b.WriteString("Mpass ld gt m m pser W=1u L=1u temp=27\n")
-	b.WriteString("Dpass ld m dbody\n")
-	b.WriteString(fetModel("pser", l.FET))
+	b.WriteString("Qlim gt m n qlim\n")
+	fmt.Fprintf(b, ".model qlim PNP(IS=%s BF=100)\n", g(l.PNP().Is))
+	b.WriteString("Mpass lp gt m m pser W=1u L=1u\n")
+	b.WriteString("Dpass lp m dbody\n")
+	fmt.Fprintf(b, "Rfixp lp ld %s\n", rf)
+	b.WriteString(fetModel("pser", l.FET, tempC))
 	b.WriteString(diodeModel("dbody", l.Body))
 	fmt.Fprintf(b, "R1 m gt %s\nR2 gt 0 %s\n", g(l.R1), g(l.R2))
 	b.WriteString("Rld ld 0 100e6\n")

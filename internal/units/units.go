@@ -252,8 +252,32 @@ func splitUnit(tail string) (scale float64, kind Kind, ok bool) {
 var baseSymbol = [...]string{"V", "A", "W", "ohm", "s", "%", "C", "Ah", "$"}
 
 // Format writes v (in the base unit of k) so that Parse(Format(v,k), k, false)
-// returns v exactly: the shortest decimal that round-trips, no prefix.
+// returns v exactly: the shortest decimal that round-trips, with an SI
+// prefix for volts, amperes, watts, ohms and ampere-hours so that it reads
+// as an engineer writes it ("30uA", not "3e-05A"; Parse moves the decimal
+// exponent, so the prefix loses nothing).
 func Format(v float64, k Kind) string {
+	switch k {
+	case Voltage, Current, Power, Resistance, Charge:
+		if v == 0 {
+			return "0" + baseSymbol[k] // also −0
+		}
+		if !math.IsNaN(v) && !math.IsInf(v, 0) {
+			neg := v < 0
+			mant, e, _ := strings.Cut(strconv.FormatFloat(math.Abs(v), 'e', -1, 64), "e")
+			exp, _ := strconv.Atoi(e)
+			// Only the prefixes the kind takes (sensible), so that Parse
+			// reads the text back.
+			lo, hi := 0, 0
+			for _, p := range sensible[k] {
+				e := int(math.Round(math.Log10(prefixes[p])))
+				lo, hi = min(lo, e), max(hi, e)
+			}
+			e3 := min(max(int(math.Floor(float64(exp)/3))*3, lo), hi)
+			pre := map[int]string{-12: "p", -9: "n", -6: "u", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}[e3]
+			return place(neg, strings.Replace(mant, ".", "", 1), exp-e3) + pre + baseSymbol[k]
+		}
+	}
 	switch k {
 	case Fraction:
 		// v·100 rounds; when its shortest text does not read back as v
@@ -273,53 +297,9 @@ func Format(v float64, k Kind) string {
 }
 
 // Human writes v with an engineering prefix and about sig significant
-// digits, for people: 0.12 A → "120 mA", 47000 ohm → "47 kΩ".
-func Human(v float64, k Kind, sig int) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return "—"
-	}
-	sym := [...]string{"V", "A", "W", "Ω", "s", "%", "°C", "Ah", "$"}[k]
-	switch k {
-	case Fraction:
-		return trimFloat(v*100, sig) + " %"
-	case Temperature:
-		return trimFloat(v, sig) + " °C"
-	case Money:
-		return "$" + strconv.FormatFloat(v, 'f', 2, 64)
-	case Time:
-		return trimFloat(v, sig) + " s"
-	}
-	a := math.Abs(v)
-	pre, f := "", 1.0
-	switch {
-	case a == 0:
-	case a < 1e-6:
-		pre, f = "n", 1e9
-	case a < 1e-3:
-		pre, f = "µ", 1e6
-	case a < 1:
-		pre, f = "m", 1e3
-	case a >= 1e6:
-		pre, f = "M", 1e-6
-	case a >= 1e3:
-		pre, f = "k", 1e-3
-	}
-	return trimFloat(v*f, sig) + " " + pre + sym
-}
-
-func trimFloat(v float64, sig int) string {
-	if math.IsInf(v, 0) { // a huge fraction times 100
-		return "—"
-	}
-	if v == 0 {
-		return "0"
-	}
-	digits := sig - 1 - int(math.Floor(math.Log10(math.Abs(v))))
-	if digits < 0 {
-		digits = 0
-	}
-	return strconv.FormatFloat(v, 'f', digits, 64)
-}
+// digits, for people: 0.12 A → "120 mA", 47000 ohm → "47.0 kΩ". It is Eng,
+// the one formatter (eng.go).
+func Human(v float64, k Kind, sig int) string { return Eng(v, k, sig) }
 
 // Raw is a quantity read from a file before its kind is known: either a
 // number or a string with units. It decodes from TOML numbers and strings.

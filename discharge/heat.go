@@ -1,0 +1,296 @@
+package discharge
+
+import (
+	"math"
+
+	"headroom/protect"
+)
+
+// heat is the protection element's electro-thermal state for one
+// evaluation: each phase's junction temperature, and the element with its
+// temperature terms worked out there (protect.Fixed), so that the drop of
+// phase k is taken at the temperature phase k's heat holds it at.
+//
+// The temperatures come from the element's thermal network in the
+// periodic steady state of the profile (protect.Heating), solved together
+// with the drops that cause them (protect.Heating.Settle). They depend on
+// charge only through the pack voltage and the load's current, and slowly:
+// they are solved at the cut-off — the charge where the drop decides the
+// runtime — and held there for the whole run (the cut-off is searched
+// again with them until they move less than 0.05 °C). Behind a constant-
+// current load and an element whose drop does not depend on the pack
+// (diodes, polyfuse, protector, fuse) they do not depend on charge at all,
+// and this is exact. Where they do (a MOSFET whose gate drive sags with
+// the pack, a resistive load), the early run is taken at the end's
+// temperatures; the error in energy is the drop's temperature slope times
+// the change, a few mV.
+type heat struct {
+	h     *protect.Heating
+	base  protect.Element   // the element as given
+	tj    []float64         // per phase: junction temperature, °C (mean over the phase)
+	els   []protect.Element // per phase: base with its terms at tj
+	st    protect.Settled   // the last solve
+	peakC float64           // the reported junction peak, °C
+	meanC float64           // the cycle mean at the same point, °C
+	ok    bool              // every solve settled
+	// solved is set once a solve has run; p holds each phase's
+	// dissipation at its temperature then, W.
+	solved             bool
+	p, scratch         []float64
+	scratch2, scratch3 []float64
+	// fresh is each phase's heat with the fresh pack, W (freshHeat).
+	fresh []float64
+	// still is set when the temperatures cannot move with charge:
+	// every phase a constant current behind an element whose drop and
+	// drain ignore the pack's voltage (evaluator.linear). One solve, with
+	// the fresh pack, is then exact for the whole run.
+	still bool
+}
+
+// freshHeat keeps each phase's heat with the fresh pack, nd solved there
+// for variant v: reportHeat solves the fresh pack again only when some
+// phase heats more there than at the cut-off.
+func (s *heat) freshHeat(e *evaluator, v *variant, nd *node) {
+	s.fresh = s.fresh[:0]
+	for k, o := range nd.mean {
+		s.fresh = append(s.fresh, e.heatOf(o, v, s.tj[k]))
+	}
+}
+
+// newHeat prepares the electro-thermal state of element el for the
+// evaluator's profile, all phases at ambient; nil for an element with an
+// ideal heat sink (θja 0: the junction stays at ambient) or none.
+func (e *evaluator) newHeat(el protect.Element) *heat {
+	th := el.Thermal()
+	if _, none := el.(protect.None); none || th.ThetaJA == 0 {
+		return nil
+	}
+	n := len(e.loads)
+	buf := make([]float64, 6*n) // one backing array, made once per evaluation
+	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
+	s := &heat{h: protect.NewHeating(th, e.secs), base: el, tj: cut(), els: make([]protect.Element, n), ok: true,
+		p: cut(), scratch: cut(), scratch2: cut(), scratch3: cut(), fresh: cut()[:0]}
+	fixed := protect.Fixed(el, e.T)
+	for k := range s.tj {
+		s.tj[k], s.els[k] = e.T, fixed
+	}
+	return s
+}
+
+// phaseElement returns the element and its junction temperature for
+// phase k of variant v: the per-phase state when v carries heat, else the
+// element at ambient.
+func (e *evaluator) phaseElement(v *variant, k int) (protect.Element, float64) {
+	if v.heat != nil {
+		return v.heat.els[k], v.heat.tj[k]
+	}
+	return v.el, e.T
+}
+
+// settle solves the electro-thermal operating point of variant v at
+// scaled charge qs: every phase's junction temperature such that the
+// phases' dissipations — drop times current, plus the standing drain's
+// heat — produce those temperatures through the network. Each phase is
+// solved against the source its mean operating point sees at qs (the
+// pack and, with polarisation, the other phases' share of it held), so
+// a solve costs a few single-phase solves. It leaves the temperatures
+// and fixed elements in v.heat (nd solved at qs before they moved) and returns
+// the largest change of a phase's temperature, °C. When every phase
+// dissipates what it did at the last solve (to 1e-12) the temperatures
+// cannot have moved and nothing is solved: behind constant currents and a
+// drop that ignores the pack voltage that is every solve after the first.
+func (e *evaluator) settle(v *variant, qs float64, nd *node) float64 {
+	e.solveNode(math.Min(qs, e.end*(1-1e-12)), v, nd)
+	return e.settleAt(v, qs, nd)
+}
+
+// settleAt is settle with nd already solved at qs for v.
+func (e *evaluator) settleAt(v *variant, qs float64, nd *node) float64 {
+	s := v.heat
+	if s.solved {
+		same := true
+		for k, o := range nd.mean {
+			p := e.heatOf(o, v, s.tj[k])
+			if math.Abs(p-s.p[k]) > 1e-12*math.Max(p, 1e-9) {
+				same = false
+				break
+			}
+		}
+		if same {
+			return 0
+		}
+	}
+	n := len(e.loads)
+	src, res := s.scratch2[:n], s.scratch3[:n]
+	for k := range e.loads {
+		src[k], res[k] = nd.Epack, nd.Rp
+		if e.pol != nil {
+			self := nd.pol.self[k]
+			other := nd.pol.mean[k] - self*nd.icell[k]
+			src[k], res[k] = e.S*(nd.E-other), nd.Rp+e.S*self/e.P
+		}
+	}
+	power := func(k int, t float64) float64 {
+		el0, t0 := s.els[k], s.tj[k]
+		if t == t0 {
+			return e.heatOf(nd.mean[k], v, t)
+		}
+		s.els[k], s.tj[k] = s.base, t // the element's own law at t
+		o := e.solve(e.loads[k], k, v, src[k], res[k])
+		s.els[k], s.tj[k] = el0, t0
+		return e.heatOf(o, v, t)
+	}
+	tj := append(s.scratch[:0], s.tj...)
+	s.st = s.h.Settle(e.T, power, tj)
+	s.ok = s.ok && s.st.OK
+	s.solved = true
+	moved := 0.0
+	for k, t := range tj {
+		moved = math.Max(moved, math.Abs(t-s.tj[k]))
+		s.tj[k], s.els[k] = t, protect.Fixed(s.base, t)
+	}
+	// The heat at the settled temperatures, against the same sources: the
+	// next call compares its phases with these (a constant current behind
+	// a drop that ignores the pack matches exactly, whatever the sources).
+	// A still state has no next call.
+	for k := range e.loads {
+		if s.still {
+			break
+		}
+		o := e.solve(e.loads[k], k, v, src[k], res[k])
+		s.p[k] = e.heatOf(o, v, s.tj[k])
+	}
+	return moved
+}
+
+// heatOf is the heat an operating point puts into the element at junction
+// temperature t, W: drop times current and the standing drain across the
+// pack; at a current limit the clamped current across the whole input
+// (the load collapsed), and nothing at a collapse (no operating point).
+func (e *evaluator) heatOf(o op, v *variant, t float64) float64 {
+	p := o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
+	switch o.Fail {
+	case CauseLimit:
+		clamp := v.lim.Clamp
+		if c, ok := v.heat.base.(protect.Clamper); ok {
+			clamp = c.ClampAt(o.Vin, t)
+		}
+		p = o.Vin * math.Min(clamp, o.I)
+	case CauseCollapse:
+		p = 0
+	}
+	if !(p >= 0) {
+		p = 0
+	}
+	return p
+}
+
+// heatCutoff finds the cut-off of the real variant with its junctions at
+// the temperatures their own heat sets there: the cut-off at the current
+// temperatures, then the temperatures at that cut-off, until they move by
+// less than 0.05 °C (a drop's temperature slope of 2 mV/°C makes that
+// 0.1 mV; each round takes the change down some thirtyfold on a constant-
+// power load, the hardest case), at most four rounds. The temperatures
+// move a little between rounds, and the cut-off with them: each new search
+// starts at the last cut-off and brackets the new one nearby (recut).
+func (e *evaluator) heatCutoff(v *variant, nd *node) float64 {
+	q := e.cutoff(v, nd, 0)
+	if v.heat == nil || v.heat.still {
+		return q
+	}
+	for range 4 {
+		if e.settle(v, q, nd) < 0.05 {
+			break
+		}
+		q = e.recut(v, nd, q)
+	}
+	return q
+}
+
+// recut finds the first failure of v near q, its cut-off before the
+// junction temperatures last moved: steps of 1e-4 of the curve, growing
+// fourfold, away from q until the margin changes sign, then narrow. A
+// bracket that runs to either end of the curve, or a margin without a
+// sign (a collapse), falls back to the full search.
+func (e *evaluator) recut(v *variant, nd *node, q float64) float64 {
+	f, m := e.margin(q, v, nd)
+	if math.IsNaN(m) {
+		return e.cutoff(v, nd, 0)
+	}
+	d := 1e-4 * e.end
+	for range 12 {
+		if !f { // still works at q: the cut-off lies later
+			hi := math.Min(q+d, e.end)
+			f2, m2 := e.margin(hi, v, nd)
+			if f2 {
+				if math.IsNaN(m2) {
+					return e.cutoff(v, nd, q)
+				}
+				return e.narrow(v, nd, q, m, hi, m2)
+			}
+			if hi >= e.end {
+				break
+			}
+			q, m = hi, m2
+		} else { // fails at q: the cut-off lies earlier
+			lo := math.Max(q-d, 0)
+			f2, m2 := e.margin(lo, v, nd)
+			if !f2 {
+				return e.narrow(v, nd, lo, m2, q, m)
+			}
+			if lo <= 0 || math.IsNaN(m2) {
+				break
+			}
+			q, m = lo, m2
+		}
+		d *= 4
+	}
+	return e.cutoff(v, nd, 0)
+}
+
+// reportHeat works out the junction's peak and cycle mean for the result:
+// the hotter of the fresh pack and the cut-off (a resistive load heats
+// most when fresh, a MOSFET on a sagging pack at the end), each from the
+// profile's periodic steady state. The fresh pack is solved only when some
+// phase dissipates more there than at the cut-off. The run's temperatures
+// (those at the cut-off) are left in place.
+func (e *evaluator) reportHeat(v *variant, nd *node) {
+	s := v.heat
+	cut := s.st.Cycle
+	s.peakC, s.meanC = cut.PeakC, cut.MeanC
+	if s.still {
+		return
+	}
+	keepP := append([]float64(nil), s.p...)
+	hotter := false
+	for k, p := range s.fresh {
+		if p > keepP[k]*(1+1e-9) {
+			hotter = true
+			break
+		}
+	}
+	if !hotter {
+		return
+	}
+	keep := append([]float64(nil), s.tj...)
+	keepEls := append([]protect.Element(nil), s.els...)
+	keepSt, keepOK := s.st, s.ok
+	e.settle(v, 0, nd)
+	if fresh := s.st.Cycle; fresh.PeakC > cut.PeakC {
+		s.peakC, s.meanC = fresh.PeakC, fresh.MeanC
+	}
+	copy(s.tj, keep)
+	copy(s.els, keepEls)
+	copy(s.p, keepP)
+	s.st = keepSt
+	s.ok = keepOK && s.st.OK
+}
+
+// heatWarning is the warning for a junction whose temperature did not
+// settle, naming the element; "" when it did.
+func heatWarning(s *heat) string {
+	if s == nil || s.ok {
+		return ""
+	}
+	return "the " + s.base.Kind() + "'s junction does not settle: its dissipation rises with temperature faster than its package sheds the heat (thermal runaway, or no operating point); figures are at the last step the solve reached — use a bigger part, more copper or less current"
+}

@@ -1,0 +1,456 @@
+// Operating points: each phase's current and voltages at one charge.
+
+package discharge
+
+import (
+	"math"
+	"slices"
+
+	"headroom/protect"
+)
+
+// solve finds the operating point of load l with the pack source (E, Rp)
+// behind element v.
+func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
+	el, T := e.phaseElement(v, k)
+	iq := el.Quiescent(E, T)
+	vin := func(i float64) float64 { return E - (i+iq)*Rp }
+	vload := func(i float64) float64 {
+		x := vin(i)
+		return x - el.Drop(i, x, T)
+	}
+	var i float64
+	switch l.Kind {
+	case ConstantCurrent:
+		i = l.Amps
+	case ConstantResistance:
+		g := func(i float64) float64 { return i*l.Ohms - vload(i) }
+		if vload(0) <= 0 {
+			i = 0
+		} else {
+			i = e.warmRoot(g, k, E/l.Ohms)
+		}
+	case LED:
+		g := func(i float64) float64 { return i*l.Ohms + l.Vf - vload(i) }
+		if vload(0) <= l.Vf {
+			i = 0
+		} else {
+			i = e.warmRoot(g, k, (E-l.Vf)/l.Ohms)
+		}
+	case ConstantPower:
+		pin := l.InputPower()
+		if pin > 0 {
+			var ok bool
+			// Behind an element whose drop jumps (a MOSFET handing over
+			// to its body diode) i·vload(i) is not concave and meets pin
+			// twice; a warm start from the upper branch would find the
+			// upper root. Behind a steady element (none, a diode, a
+			// resistance) it is always concave.
+			hint := e.hint[k]
+			_, none := v.el.(protect.None)
+			if !v.steady {
+				hint = 0
+			}
+			i, ok = powerPoint(vload, pin, E, hint)
+			if !ok && !none {
+				i, ok = scanPower(vload, pin, i)
+			}
+			if ok {
+				e.hint[k] = i
+			} else {
+				return op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: CauseCollapse}
+			}
+		}
+	}
+	o := op{I: i, Ipack: i + iq}
+	o.Vin = vin(i)
+	o.Vdrop = el.Drop(i, o.Vin, T)
+	o.Vload = o.Vin - o.Vdrop
+	// A resistive or LED load sets its own voltage, i·R (+ Vf). Where the
+	// element's drop jumps (a FET out of gate drive hands over to its
+	// body diode) the root sits on the jump and vin − Drop(i) reads the
+	// far side of it; the element takes up the difference, as a
+	// saturated FET does.
+	if i > 0 && (l.Kind == ConstantResistance || l.Kind == LED) {
+		o.Vload = i * l.Ohms
+		if l.Kind == LED {
+			o.Vload += l.Vf
+		}
+		o.Vdrop = math.Max(o.Vin-o.Vload, 0) // not −1e-17 from rounding
+	}
+	switch {
+	case i > v.lim.Trip:
+		o.Fail = CauseFuse
+	case i > v.lim.Clamp:
+		o.Fail = CauseLimit
+	case o.Vload <= 0 && i > 0:
+		// The pack cannot push this current at all: no voltage is left
+		// for the load.
+		o.Fail = CauseCollapse
+	case o.Vload < v.floor:
+		o.Fail = CauseFloor
+	case dim(l, i, v): // limits.go
+		o.Fail = CauseDim
+	}
+	// A limiter whose clamp depends on the pack (protect.Clamper) has no
+	// operating point above it: its drop takes the whole input. That is
+	// its current limit, not a collapse of the source.
+	if o.Fail == CauseCollapse || o.Fail == CauseFloor {
+		if _, ok := el.(protect.Clamper); ok && i > 0 && el.Drop(i, o.Vin, T) >= o.Vin {
+			o.Fail = CauseLimit
+		}
+	}
+	return o
+}
+
+// warmRoot finds the root of an increasing g on [0, hi] for phase k,
+// first within 1 % of the phase's last current: successive solves come at
+// nearby charges, so that narrow bracket usually holds the root and saves
+// half the iterations. Otherwise it searches the whole range.
+func (e *evaluator) warmRoot(g func(float64) float64, k int, hi float64) float64 {
+	if h := e.hint[k]; h > 0 {
+		a, b := 0.9*h, min(1.1*h, hi)
+		if a < b {
+			if fa, fb := g(a), g(b); fa <= 0 && fb >= 0 {
+				i := bracketRootF(g, a, b, fa, fb)
+				e.hint[k] = i
+				return i
+			}
+		}
+	}
+	i := bracketRoot(g, 0, hi)
+	e.hint[k] = i
+	return i
+}
+
+// powerPoint finds the lower (stable) current at which i·vload(i) = pin by
+// Newton's method from zero current. i·vload(i) is concave for every element
+// headroom models, so the iterates rise monotonically to the root without
+// overshooting; if the slope turns non-positive first there is no operating
+// point: the load collapses (docs/loads.md: Voc²/(4·R) < Pin for a resistive
+// source).
+//
+// A warm start i0 > 0 (the phase's last current) is tried first, from just
+// below it. Where the slope there is positive, the first Newton step lands
+// at or below the lower root (a concave function lies under its tangent),
+// and the iterates rise from there as from zero; any failure on the warm
+// path falls back to the start from zero, so a collapse is only ever
+// declared from there.
+func powerPoint(vload func(float64) float64, pin, E, i0 float64) (float64, bool) {
+	if i0 > 0 {
+		if i, ok := newtonPower(vload, pin, E, 0.99*i0); ok {
+			return i, true
+		}
+	}
+	return newtonPower(vload, pin, E, 0)
+}
+
+// scanPower looks again for the lowest current at which i·vload(i) = pin
+// after Newton gave up at current at: behind an element whose drop jumps
+// the product is not concave, and Newton can stop at a false peak or at
+// the jump. It scans from zero to where the load voltage runs out and
+// brackets the first crossing; false when there is none (a collapse).
+func scanPower(vload func(float64) float64, pin, at float64) (float64, bool) {
+	hi := math.Max(at, 1e-9)
+	for k := 0; k < 60 && vload(hi) > 0; k++ {
+		hi *= 2
+	}
+	const n = 128
+	P := func(x float64) float64 { return x*vload(x) - pin }
+	lo, flo := 0.0, -pin
+	for j := 1; j <= n; j++ {
+		x := hi * float64(j) / n
+		fx := P(x)
+		if fx >= 0 {
+			return bracketRootF(P, lo, x, flo, fx), true
+		}
+		lo, flo = x, fx
+	}
+	return at, false
+}
+
+// newtonPower is powerPoint's Newton iteration from current i.
+func newtonPower(vload func(float64) float64, pin, E, i float64) (float64, bool) {
+	for k := 0; k < 200; k++ {
+		v := vload(i)
+		f := i*v - pin
+		if v <= 0 {
+			return i, false
+		}
+		h := 1e-7 * math.Max(i, pin/E)
+		v2 := vload(i + h)
+		df := ((i+h)*v2 - i*v) / h
+		if df <= 0 {
+			return i, false
+		}
+		step := -f / df
+		if i+step < 0 { // a warm start above the root stepped past zero
+			step = -i
+		}
+		i += step
+		if math.Abs(step) <= 1e-13*i {
+			return i, i*vload(i) >= pin*(1-1e-9)
+		}
+	}
+	v := vload(i)
+	return i, math.Abs(i*v-pin) <= 1e-9*pin
+}
+
+// node is what one charge gives for one variant: the cells' source and
+// every phase's operating points, at the polarisation the whole periodic
+// history gives (see polarisation.go). The caller owns it and passes it
+// in; it is reused from charge to charge to save allocations, and its
+// currents are the starting guess of the next solve.
+type node struct {
+	E, R0     float64 // one cell: open-circuit voltage and instant resistance
+	Epack, Rp float64 // the pack: S·E and S·R0/P
+	// mean holds each phase at its mean polarisation: the charge it
+	// draws and the power it delivers. worst holds each phase at its
+	// worst instant: what the floor, a limit or a fuse sees.
+	mean, worst []op
+	// cellAvg is one cell's voltage averaged over the time it delivers
+	// current in a day's use (each phase at its mean polarisation; rests
+	// weigh nothing, see activeAverage): what the end-point, a rating
+	// convention, applies to — never the bottom of a pulse. An explicit
+	// rest phase and the daily pattern's rest give the same.
+	cellAvg float64
+	// late is one cell's voltage the cut-off delay before the end of each
+	// phase (the worst cycle); NaN where the phase is shorter than the
+	// delay or the cell has no cut-off.
+	late  []float64
+	icell []float64 // per-cell phase currents driving the RC branches, A
+	pol   *polState
+	// polI, polRest and polT are the currents and the time pol was
+	// worked out for: a node where none has moved reuses it.
+	polI          []float64
+	polRest, polT float64
+}
+
+func (e *evaluator) newNode() *node {
+	n := len(e.loads)
+	return &node{mean: make([]op, n), worst: make([]op, n), late: make([]float64, n), icell: make([]float64, n),
+		pol: newPolState(n), polI: make([]float64, n), polRest: math.NaN()}
+}
+
+// maxPasses bounds the fixed-point passes per charge: a phase's current
+// sets the branches' voltages, which set every voltage-dependent phase's
+// current. The map contracts by about ΣRᵢ·I/V per pass; near a collapse
+// it may oscillate, so later passes are damped; where it still does not
+// settle, the evaluation warns.
+const maxPasses = 40
+
+// dampFrom is the pass from which the currents move half way only.
+const dampFrom = 4
+
+// solveNode solves every phase of variant v at scaled charge qs into nd.
+func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
+	c := e.cell
+	nd.E = c.OpenCircuit(qs, e.T)
+	nd.R0 = c.ResistanceAt(qs, e.T)
+	nd.Epack, nd.Rp = e.S*nd.E, e.S*nd.R0/e.P
+	if e.pol == nil {
+		for k, l := range e.loads {
+			o := e.solve(l, k, v, nd.Epack, nd.Rp)
+			o.CellV = (nd.Epack - o.Ipack*nd.Rp) / e.S
+			nd.mean[k], nd.worst[k] = o, o
+			nd.late[k] = math.NaN()
+			if e.cutoffV > 0 && e.pLate[k] {
+				nd.late[k] = o.CellV
+			}
+		}
+		nd.cellAvg = e.activeAverage(nd.mean)
+		return
+	}
+	// The rest between sessions carries the standby drain and the
+	// element's standing drain, shared by the strings; t is the seconds
+	// of use since the fresh pack at this charge.
+	irest := (e.d.Standby + v.el.Quiescent(nd.Epack, e.T)) / e.P
+	t := qs * e.usePerQ
+	if e.pol.periodicOnly || t >= e.pol.hs {
+		t = math.Inf(1) // day-periodic: the time no longer matters (and pol is reused)
+	}
+	fresh := true
+	for _, x := range nd.icell {
+		fresh = fresh && x == 0
+	}
+	if fresh { // no guess yet: the currents without polarisation
+		for k, l := range e.loads {
+			nd.icell[k] = e.solve(l, k, v, nd.Epack, nd.Rp).Ipack / e.P
+		}
+	}
+	settled := false
+	for pass := 0; pass < maxPasses && !settled; pass++ {
+		if irest != nd.polRest || t != nd.polT || !slices.Equal(nd.icell, nd.polI) {
+			e.pol.state(nd.icell, irest, t, nd.pol)
+			copy(nd.polI, nd.icell)
+			nd.polRest, nd.polT = irest, t
+		}
+		change, failed := 0.0, false
+		for k, l := range e.loads {
+			// Phase k's own share of its polarisation acts as a series
+			// resistance (self[k] per cell); only the other phases' share
+			// is held from the last pass.
+			self := nd.pol.self[k]
+			other := nd.pol.mean[k] - self*nd.icell[k]
+			src := e.S * (nd.E - other)
+			o := e.solve(l, k, v, src, nd.Rp+e.S*self/e.P)
+			o.CellV = (src-o.Ipack*nd.Rp)/e.S - self*o.Ipack/e.P
+			nd.mean[k] = o
+			ic := o.Ipack / e.P
+			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
+			if pass >= dampFrom {
+				// Not settling by plain passes (phases pulling each other
+				// near a collapse or a MOSFET's handover): take half steps.
+				ic = 0.5 * (ic + nd.icell[k])
+			}
+			nd.icell[k] = ic
+			failed = failed || o.Fail == CauseCollapse
+		}
+		// A collapse has no current to settle on: the phase fails
+		// whatever the branches do. A lone phase settles in one pass:
+		// its own polarisation is solved with it, and nothing else moves;
+		// the branches then only need its final current.
+		settled = change <= 1e-10 || failed
+		if !settled && len(e.loads) == 1 {
+			e.pol.state(nd.icell, irest, t, nd.pol)
+			copy(nd.polI, nd.icell)
+			nd.polRest, nd.polT = irest, t
+			settled = true
+		}
+	}
+	if !settled {
+		e.unsettled++
+	}
+	for k, l := range e.loads {
+		if w, m := nd.pol.worst[k], nd.pol.mean[k]; math.Abs(w-m) <= 1e-12*math.Abs(m) {
+			// A steady load: its worst instant is its mean (up to
+			// rounding), and so is its operating point.
+			nd.worst[k] = nd.mean[k]
+			nd.late[k] = math.NaN()
+			if e.cutoffV > 0 && e.pLate[k] {
+				nd.late[k] = nd.E - nd.icell[k]*nd.R0 - nd.pol.late[k]
+			}
+			continue
+		}
+		src := e.S * (nd.E - nd.pol.worst[k])
+		o := e.solve(l, k, v, src, nd.Rp)
+		o.CellV = (src - o.Ipack*nd.Rp) / e.S
+		nd.worst[k] = o
+		nd.late[k] = math.NaN()
+		if e.cutoffV > 0 && e.pLate[k] {
+			nd.late[k] = nd.E - nd.icell[k]*nd.R0 - nd.pol.late[k]
+		}
+	}
+	nd.cellAvg = e.activeAverage(nd.mean)
+}
+
+// activeAverage is the cell voltage of the phases ops averaged over the
+// time they draw current: each phase whose load draws any, weighted by
+// its duration; a phase that draws none (a rest written into the
+// profile, a dark LED) does not count, as the day's rest does not. The
+// plain duty-weighted mean where none draws any. A heavier load lowers
+// every phase's voltage and can only darken a phase, never light one, so
+// the average never rises with the load.
+func (e *evaluator) activeAverage(ops []op) float64 {
+	var tv, t, v float64
+	for k, o := range ops {
+		v += e.w[k] * o.CellV
+		if o.I > 0 {
+			tv += e.w[k] * o.CellV
+			t += e.w[k]
+		}
+	}
+	if t > 0 {
+		return tv / t
+	}
+	return v
+}
+
+// judge says whether variant v fails at the charge nd was solved at, and
+// gives the smallest margin: load voltage above the floor, current below
+// the clamp and the trip (each phase at its worst instant), the cycle's
+// average cell voltage above the end-point, each long-enough phase's cell
+// voltage above the pack's cut-off. The margin is continuous in charge
+// and crosses zero where the first rule fails, except where a
+// constant-power load collapses (no operating point, no margin): there it
+// is NaN. phase is the failing phase (-1 when none fails).
+func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float64) {
+	fail, phase, m = "", -1, math.Inf(1)
+	note := func(c Cause, k int) {
+		if fail == "" || rank(c) < rank(fail) {
+			fail, phase = c, k
+		}
+	}
+	low := 0 // the phase whose cell voltage dips lowest: named for an end-point
+	for k, o := range nd.worst {
+		if nd.mean[k].Fail == CauseCollapse {
+			// No operating point with the phase's polarisation following
+			// its own current: it cannot be sustained, whatever the worst
+			// instant alone would give.
+			o.Fail = CauseCollapse
+		}
+		if o.Fail != "" {
+			note(o.Fail, k)
+		}
+		if o.Fail == CauseCollapse {
+			m = math.NaN()
+		} else if !math.IsNaN(m) {
+			m = min(m, o.Vload-v.floor, v.lim.Clamp-o.I, v.lim.Trip-o.I)
+		}
+		if o.CellV < nd.worst[low].CellV {
+			low = k
+		}
+		if v.cutoff && !math.IsNaN(nd.late[k]) {
+			d := nd.late[k] - e.cutoffV
+			if d < 0 {
+				note(CauseCutoff, k)
+			}
+			if !math.IsNaN(m) {
+				m = min(m, d)
+			}
+		}
+	}
+	if v.over != nil {
+		// A polyfuse opens on the profile as a whole: its heating over
+		// the cycle, each phase at its mean current.
+		for k, o := range nd.mean {
+			e.cur[k] = o.I
+		}
+		load, k := v.over.Overload(e.cur, e.secs, e.T)
+		if load >= 1 {
+			note(CauseFuse, k)
+		}
+		if !math.IsNaN(m) {
+			m = min(m, 1-load)
+		}
+	}
+	if d := nd.cellAvg - e.cell.EndPoint; d < 0 {
+		note(CauseEndPoint, low)
+		if !math.IsNaN(m) {
+			m = min(m, d)
+		}
+	} else if !math.IsNaN(m) {
+		m = min(m, d)
+	}
+	if fail != "" && m > 0 || fail == "" && m < 0 { // a rule the margin does not see
+		m = math.NaN()
+	}
+	return fail, phase, m
+}
+
+// rank orders causes when several phases fail at once: the most telling first.
+func rank(c Cause) int {
+	switch c {
+	case CauseFuse:
+		return 0
+	case CauseLimit:
+		return 1
+	case CauseCollapse:
+		return 2
+	case CauseFloor, CauseDim:
+		return 3
+	case CauseCutoff:
+		return 4
+	}
+	return 5
+}

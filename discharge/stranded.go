@@ -1,0 +1,182 @@
+package discharge
+
+import (
+	"math"
+
+	"headroom/internal/units"
+	"headroom/protect"
+)
+
+// Stranded charge and its split between the protection element and the
+// floor.
+//
+// Four runs of the same cells and load are compared, each to its own
+// cut-off, in pack mAh:
+//
+//	qEF  with the element and the floor (the design as built: delivered)
+//	q0F  without the element, with the floor
+//	qE0  with the element, without the floor
+//	q00  with neither: the reference
+//
+// Stranded = q00 − qEF. Removing the element first and then the floor gives
+// (q0F − qEF) to the element and (q00 − q0F) to the floor; removing the
+// floor first gives (qE0 − qEF) to the floor and (q00 − qE0) to the
+// element. The two orders disagree whenever the causes interact (a drop
+// that makes the floor bite sooner), so headroom gives each cause the mean
+// of its two shares (the Shapley value of a two-player game, Shapley 1953):
+//
+//	by protection = ½·[(q0F − qEF) + (q00 − qE0)]
+//	by the floor  = ½·[(qE0 − qEF) + (q00 − q0F)]
+//
+// which add up to q00 − qEF exactly and do not depend on an order. Nothing
+// is clamped: an element that lowers a resistive load's current can let
+// the cells run longer, and then its share is negative (it recovers
+// charge), as can the stranded total.
+//
+// Each run's charge is its cut-off on the curve times its own capacity
+// scale (parallel strings times the rate and temperature factor at the
+// currents that run draws), so the reference depends on the cells, the
+// load, the ambient and nothing the designer puts between them.
+
+// strandedSplit computes the three cut-offs other than the design's own
+// (real, cut off at qsCut, scaled charge; scale, pack mAh per scaled mAh)
+// and fills the delivered, reference and stranded charges of r.
+func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result, nd *node) {
+	d := e.d
+	_, none := real.el.(protect.None)
+	// The floor, the least LED current and the pack's own under-voltage
+	// cut-off are the product's stops: the reference leaves them all out,
+	// so they go together as "the floor".
+	noEl := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
+	noFloor := *real
+	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
+	noFloor.heat = e.heatCopy(real.heat) // its own junctions: the design's stay as they were
+	neither := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0, steady: true}
+
+	// Each scan resumes near a cut-off already found; cutoff starts over
+	// from zero when the run it is given does not work there (removing
+	// the element can shorten a run). With no stop to remove the runs
+	// without the floor are the runs with it; with no element, the runs
+	// without the element are the runs with it.
+	noStop := d.Floor == 0 && d.MinLEDAmps == 0 && d.Cell.CutoffV == 0
+	qs0F, qsE0 := qsCut, qsCut
+	if !noStop {
+		// From the design's own cut-off, with its junctions as they stand
+		// there, then settled where this run ends (as heatCutoff does,
+		// from a nearer start).
+		qsE0 = e.cutoff(&noFloor, nd, qsCut)
+		if h := noFloor.heat; h != nil && !h.still {
+			for range 4 {
+				if e.settle(&noFloor, qsE0, nd) < 0.05 {
+					break
+				}
+				qsE0 = e.recut(&noFloor, nd, qsE0)
+			}
+		}
+	}
+	if !none {
+		qs0F = e.cutoff(noEl, nd, qsCut)
+	}
+	qs00 := qsE0
+	switch {
+	case noStop:
+		qs00 = qs0F
+	case !none:
+		qs00 = e.cutoff(neither, nd, qs0F)
+	}
+
+	// Removing a stop can never end a run sooner: it only takes a way to
+	// fail away. Where a search says otherwise (the junctions settled at a
+	// different point, the cell's rested start) the run without the stop
+	// is taken to end where the run with it does. The element, unlike the
+	// stops, may shorten or lengthen a run, and is never held so.
+	qsE0, qs00 = math.Max(qsE0, qsCut), math.Max(qs00, qs0F)
+
+	scale0 := scale
+	if !none {
+		scale0 = e.capacityScale(neither, nd)
+	}
+	qEF, qE0 := qsCut*scale, qsE0*scale
+	q0F, q00 := qs0F*scale0, qs00*scale0
+
+	// Differences of cut-offs that agree to the search's resolution (1e-12
+	// of the curve, times a few roundings) are no charge anyone stranded:
+	// they are set to zero, and the reference is then delivered + stranded
+	// exactly (it moves by at most 2e-9 of the curve).
+	tiny := 1e-9 * math.Max(q00, e.end*scale)
+	snap := func(x float64) float64 {
+		if math.Abs(x) <= tiny {
+			return 0
+		}
+		return x
+	}
+	byEl := snap(0.5 * ((q0F - qEF) + (q00 - qE0)))
+	byFloor := snap(q00 - qEF - byEl)
+	r.DeliveredMAh = qEF
+	r.StrandedByProtectionMAh = byEl
+	r.StrandedByFloorMAh = byFloor
+	r.StrandedMAh = byEl + byFloor
+	// Never below zero: the reference can be nothing (the bare cells cannot
+	// run the load at all) while the element lets the design run, and then
+	// the sum above cancels to rounding.
+	r.ReferenceMAh = math.Max(0, qEF+r.StrandedMAh)
+}
+
+// capacityScale is pack mAh per scaled cell mAh for variant v: parallel
+// strings times the cell's capacity factor at the Peukert-weighted mean
+// per-cell current over the day, the fresh pack's phases for the hours of
+// use and the standby drain for the rest (the rule evaluate uses).
+func (e *evaluator) capacityScale(v *variant, nd *node) float64 {
+	d := e.d
+	k := d.Cell.Peukert
+	e.solveNode(0, v, nd)
+	sum := 0.0
+	for j, o := range nd.mean {
+		sum += e.duty * e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
+	}
+	sum += (1 - e.duty) * math.Pow((d.Standby+v.el.Quiescent(nd.Epack, d.TempC))/e.P, k)
+	return e.P * d.Cell.CapacityFactor(math.Pow(sum, 1/k), d.TempC)
+}
+
+// heatCopy is a junction state of its own for a variant of the same
+// element, starting where h stands; nil for none.
+func (e *evaluator) heatCopy(h *heat) *heat {
+	if h == nil {
+		return nil
+	}
+	c := e.newHeat(h.base)
+	if c == nil {
+		return nil
+	}
+	copy(c.tj, h.tj)
+	copy(c.els, h.els)
+	c.still = h.still
+	c.fresh = append(c.fresh, h.fresh...)
+	return c
+}
+
+// Started reports whether the design ran at all: false when it fails on
+// the fresh pack, and then a stranded share means nothing.
+func (r *Result) Started() bool { return r.RuntimeH > 0 && r.DeliveredMAh > 0 }
+
+// StrandedShare is the stranded charge as a fraction of the reference, and
+// false when it has no meaning: the design never starts (CutoffText says
+// why) or the reference is empty.
+func (r *Result) StrandedShare() (float64, bool) {
+	if !r.Started() || !(r.ReferenceMAh > 0) {
+		return 0, false
+	}
+	return r.StrandedMAh / r.ReferenceMAh, true
+}
+
+// ProtectionShareText is the element's share of the stranded charge in
+// words, for reports and the screen: "924 mAh by the protection drop", or
+// when the element lengthens the run, "−300 mAh by the protection (it
+// lowers the load's current, so the cells run longer)".
+func (r *Result) ProtectionShareText() string {
+	x := r.StrandedByProtectionMAh
+	if x < 0 {
+		return units.MAh(x, 3) + " by the protection (it lowers the load's current, so the cells run longer)"
+	}
+	return units.MAh(x, 3) + " by the protection drop"
+}
