@@ -25,8 +25,8 @@ func settlePhases(t *testing.T, e Element, amps, vin, secs []float64, tambC floa
 }
 
 // Diode and MOSFET drops at the junction temperature the solve settles on,
-// against ngspice (Debian package) run at that temperature (
-// within 1 mV for the diode, 2 % for the MOSFET).
+// against ngspice (Debian package) run at that temperature
+// (within 1 mV for the diode, 2 % for the MOSFET).
 //
 // The diode is the demo toy's (450 mA for 3 s, 120 mA for 2 s, 15 mA for
 // 25 s at 20 °C): ngspice's own diode model and temperature law (IS, N,
