@@ -142,7 +142,7 @@ func TestWorstBoundsSamples(t *testing.T) {
 }
 
 // Same seed → the same numbers; another seed → p50 within 1 % at 5,000
-// samples (Latin hypercube on the demo; the bound).
+// samples (Latin hypercube on the demo; the acceptance bound).
 func TestSpreadSeed(t *testing.T) {
 	d := demo(t, "diode")
 	a, err := Spread(d, Defaults(), 5000, 11)
