@@ -297,7 +297,6 @@ type rateGrid struct {
 	cref float64
 	x    float64   // the next grid current
 	raw  []float64 // rawRate at the grid's currents so far
-	src  *SourceTable
 }
 
 // rateInputs are the cell's fields RateFactor reads (the curve's points
@@ -355,7 +354,7 @@ func (gc *rateGridCache) of(c *Cell) *rateGrid {
 	iref := c.rateRef()
 	in := inputsOf(c)
 	in.res, in.rc, in.temp = slices.Clone(in.res), slices.Clone(in.rc), slices.Clone(in.temp)
-	g := &rateGrid{in: in, cref: c.EndCharge(iref, RefTempC), x: iref / LightLoadSpan, src: newSourceTable(c)}
+	g := &rateGrid{in: in, cref: c.EndCharge(iref, RefTempC), x: iref / LightLoadSpan}
 	gc.m[c] = g
 	return g
 }
@@ -430,12 +429,7 @@ func (c *Cell) SteadyResistance(qs, tempC float64) float64 {
 // (from memory), which headroom leaves out; the cold acts through the
 // resistances and ColdFactor.
 func (c *Cell) OpenCircuit(qs, tempC float64) float64 {
-	return c.openCircuit(qs, c.resistanceTable(qs))
-}
-
-// openCircuit is OpenCircuit with the resistance table read at qs given.
-func (c *Cell) openCircuit(qs, table float64) float64 {
-	return c.Curve.At(qs) + c.RefCurrent*(table+c.PolarisationOhms())
+	return c.Curve.At(qs) + c.RefCurrent*(c.resistanceTable(qs)+c.PolarisationOhms())
 }
 
 // Terminal is the cell's steady terminal voltage at scaled charge qs,

@@ -65,10 +65,6 @@ type evaluator struct {
 	// every solve converges to the same root from any start.
 	hint   []float64
 	breaks []float64
-	// src is the cell's open-circuit voltage and resistance table
-	// (curves.SourceTable); fr the cold's resistance factor.
-	src *curves.SourceTable
-	fr  float64
 	// steepEnd is set when a phase is a constant-power or LED load, whose
 	// current can turn steep just before the cut-off.
 	steepEnd bool
@@ -287,8 +283,6 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	e.secs, e.cur = dur, make([]float64, n)
 	e.breaks = breakpoints(c)
-	e.src = c.SourceTable()
-	_, e.fr = c.TempFactors(d.TempC)
 	e.duty = 1.0
 	if d.HoursPerDay > 0 {
 		e.duty = d.HoursPerDay / 24

@@ -246,8 +246,9 @@ const dampFrom = 4
 
 // solveNode solves every phase of variant v at scaled charge qs into nd.
 func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
-	E, rt := e.src.At(qs) // OpenCircuit and the resistance table
-	nd.E, nd.R0 = E, rt*e.fr
+	c := e.cell
+	nd.E = c.OpenCircuit(qs, e.T)
+	nd.R0 = c.ResistanceAt(qs, e.T)
 	nd.Epack, nd.Rp = e.S*nd.E, e.S*nd.R0/e.P
 	if e.pol == nil {
 		for k, l := range e.loads {
