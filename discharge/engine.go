@@ -65,6 +65,8 @@ type evaluator struct {
 	// every solve converges to the same root from any start.
 	hint   []float64
 	breaks []float64
+	// drops is each phase's last diode drop (operating.go, drop).
+	drops []dropMemo
 	// steepEnd is set when a phase is a constant-power or LED load, whose
 	// current can turn steep just before the cut-off.
 	steepEnd bool
@@ -274,6 +276,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	n := len(d.Profile)
 	e.w, e.loads, e.hint = make([]float64, 0, n), make([]Load, 0, n), make([]float64, n)
+	e.drops = make([]dropMemo, n)
 	dur := make([]float64, 0, n)
 	for _, p := range d.Profile {
 		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED

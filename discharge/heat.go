@@ -65,15 +65,22 @@ func (e *evaluator) newHeat(el protect.Element) *heat {
 	if _, none := el.(protect.None); none || th.ThetaJA == 0 {
 		return nil
 	}
-	n := len(e.loads)
-	buf := make([]float64, 6*n) // one backing array, made once per evaluation
-	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
-	s := &heat{h: protect.NewHeating(th, e.secs), base: el, tj: cut(), els: make([]protect.Element, n), ok: true,
-		p: cut(), scratch: cut(), scratch2: cut(), scratch3: cut(), fresh: cut()[:0]}
+	s := e.heatWith(el, protect.NewHeating(th, e.secs))
 	fixed := protect.Fixed(el, e.T)
 	for k := range s.tj {
 		s.tj[k], s.els[k] = e.T, fixed
 	}
+	return s
+}
+
+// heatWith is a junction state for el with its thermal model h already
+// made for the profile; the caller sets the temperatures and elements.
+func (e *evaluator) heatWith(el protect.Element, h *protect.Heating) *heat {
+	n := len(e.loads)
+	buf := make([]float64, 6*n) // one backing array, made once per evaluation
+	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
+	s := &heat{h: h, base: el, tj: cut(), els: make([]protect.Element, n), ok: true,
+		p: cut(), scratch: cut(), scratch2: cut(), scratch3: cut(), fresh: cut()[:0]}
 	return s
 }
 

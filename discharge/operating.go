@@ -64,7 +64,7 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 	}
 	o := op{I: i, Ipack: i + iq}
 	o.Vin = vin(i)
-	o.Vdrop = el.Drop(i, o.Vin, T)
+	o.Vdrop = e.drop(v, k, el, i, o.Vin, T)
 	o.Vload = o.Vin - o.Vdrop
 	// A resistive or LED load sets its own voltage, i·R (+ Vf). Where the
 	// element's drop jumps (a FET out of gate drive hands over to its
@@ -101,6 +101,38 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 		}
 	}
 	return o
+}
+
+// dropMemo is the last drop worked out for one phase: variant v's element
+// at current i and junction temperature t gave drop.
+type dropMemo struct {
+	v       *variant
+	i, t    float64
+	drop    float64
+	present bool
+}
+
+// drop is el.Drop(i, vin, t) for phase k of variant v, el being that
+// phase's element (phaseElement). A diode's drop is a function of the
+// current and the temperature alone (protect.Shockley.Drop), and within
+// one variant the phase's element at a temperature is always the same
+// junction (fixed there or not: the same arithmetic), so when v, i and t
+// are those of the phase's last call the drop is that call's, to the last
+// bit. Behind a constant current with the temperatures held that is every
+// call after the first: a Log1p saved per phase per charge.
+func (e *evaluator) drop(v *variant, k int, el protect.Element, i, vin, t float64) float64 {
+	switch el.(type) {
+	case protect.Diode, protect.Schottky:
+	default:
+		return el.Drop(i, vin, t)
+	}
+	m := &e.drops[k]
+	if m.present && m.v == v && m.i == i && m.t == t {
+		return m.drop
+	}
+	d := el.Drop(i, vin, t)
+	*m = dropMemo{v: v, i: i, t: t, drop: d, present: true}
+	return d
 }
 
 // warmRoot finds the root of an increasing g on [0, hi] for phase k,

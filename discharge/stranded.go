@@ -139,15 +139,15 @@ func (e *evaluator) capacityScale(v *variant, nd *node) float64 {
 }
 
 // heatCopy is a junction state of its own for a variant of the same
-// element, starting where h stands; nil for none.
+// element, starting where h stands; nil for none. It shares h's thermal
+// model (protect.Heating): that holds the network's factors for the
+// profile and only scratch besides, which a solve writes before it reads
+// it, and solves of the two states never run at once.
 func (e *evaluator) heatCopy(h *heat) *heat {
 	if h == nil {
 		return nil
 	}
-	c := e.newHeat(h.base)
-	if c == nil {
-		return nil
-	}
+	c := e.heatWith(h.base, h.h)
 	copy(c.tj, h.tj)
 	copy(c.els, h.els)
 	c.still = h.still
