@@ -67,6 +67,9 @@ type evaluator struct {
 	breaks []float64
 	// drops is each phase's last diode drop (operating.go, drop).
 	drops []dropMemo
+	// cellAt holds the cell's source at recent charges (operating.go,
+	// source).
+	cellAt [32]cellAt
 	// steepEnd is set when a phase is a constant-power or LED load, whose
 	// current can turn steep just before the cut-off.
 	steepEnd bool

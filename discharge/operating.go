@@ -278,9 +278,7 @@ const dampFrom = 4
 
 // solveNode solves every phase of variant v at scaled charge qs into nd.
 func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
-	c := e.cell
-	nd.E = c.OpenCircuit(qs, e.T)
-	nd.R0 = c.ResistanceAt(qs, e.T)
+	nd.E, nd.R0 = e.source(qs)
 	nd.Epack, nd.Rp = e.S*nd.E, e.S*nd.R0/e.P
 	if e.pol == nil {
 		for k, l := range e.loads {
@@ -380,6 +378,30 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		}
 	}
 	nd.cellAvg = e.activeAverage(nd.mean)
+}
+
+// cellAt is one cell's open-circuit voltage and instant resistance at
+// one scaled charge.
+type cellAt struct {
+	qs, E, R0 float64
+	present   bool
+}
+
+// source returns one cell's open-circuit voltage and instant resistance
+// at scaled charge qs and the evaluation's ambient. The searches of the
+// four runs (stranded.go) and the quadrature come back to the same
+// charges (the curve's breakpoints, above all): a small table keyed by
+// the charge's bits keeps the last answer at each slot, the same to the
+// last bit as working it out again.
+func (e *evaluator) source(qs float64) (E, R0 float64) {
+	b := math.Float64bits(qs)
+	m := &e.cellAt[(b^b>>17^b>>31)%uint64(len(e.cellAt))]
+	if m.present && m.qs == qs {
+		return m.E, m.R0
+	}
+	E, R0 = e.cell.OpenCircuit(qs, e.T), e.cell.ResistanceAt(qs, e.T)
+	*m = cellAt{qs: qs, E: E, R0: R0, present: true}
+	return E, R0
 }
 
 // activeAverage is the cell voltage of the phases ops averaged over the

@@ -218,6 +218,13 @@ func (e *evaluator) linear(v *variant) bool {
 // pack's voltage: tried at a milliampere, the phases' currents and an
 // ampere, at the fresh pack's voltage and at a half and a tenth of it.
 func (e *evaluator) steadyElement(el protect.Element) bool {
+	switch el.(type) {
+	case protect.None, protect.Diode, protect.Schottky:
+		// A junction's drop is a function of its current and temperature
+		// alone, and it draws nothing standing (protect.Diode): the trials
+		// below could only agree.
+		return true
+	}
 	vin := e.S * e.cell.OpenCircuit(0, e.T)
 	amps := []float64{1e-3, 1}
 	for _, l := range e.loads {
