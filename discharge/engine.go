@@ -24,7 +24,38 @@ type op struct {
 	Vload float64 // load voltage, V
 	Vdrop float64 // element drop, V
 	CellV float64 // one cell's terminal voltage, V
-	Fail  Cause   // "" while the phase works
+	Fail  failure // failNone while the phase works
+}
+
+// failure is why one phase's operating point fails, as a small code: an
+// op then holds no pointer, so the nodes' many copies of ops cost no
+// write barriers. cause names it.
+type failure uint8
+
+const (
+	failNone failure = iota
+	failFloor
+	failCollapse
+	failLimit
+	failFuse
+	failDim
+)
+
+// cause is f as a Cause ("" for failNone).
+func (f failure) cause() Cause {
+	switch f {
+	case failFloor:
+		return CauseFloor
+	case failCollapse:
+		return CauseCollapse
+	case failLimit:
+		return CauseLimit
+	case failFuse:
+		return CauseFuse
+	case failDim:
+		return CauseDim
+	}
+	return ""
 }
 
 // variant is the design seen with a given element and floor: the real one,

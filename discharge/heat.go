@@ -177,13 +177,13 @@ func (e *evaluator) settleAt(v *variant, qs float64, nd *node) float64 {
 func (e *evaluator) heatOf(o op, v *variant, t float64) float64 {
 	p := o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
 	switch o.Fail {
-	case CauseLimit:
+	case failLimit:
 		clamp := v.lim.Clamp
 		if c, ok := v.heat.base.(protect.Clamper); ok {
 			clamp = c.ClampAt(o.Vin, t)
 		}
 		p = o.Vin * math.Min(clamp, o.I)
-	case CauseCollapse:
+	case failCollapse:
 		p = 0
 	}
 	if !(p >= 0) {

@@ -58,7 +58,7 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 			if ok {
 				e.hint[k] = i
 			} else {
-				return op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: CauseCollapse}
+				return op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: failCollapse}
 			}
 		}
 	}
@@ -80,24 +80,24 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 	}
 	switch {
 	case i > v.lim.Trip:
-		o.Fail = CauseFuse
+		o.Fail = failFuse
 	case i > v.lim.Clamp:
-		o.Fail = CauseLimit
+		o.Fail = failLimit
 	case o.Vload <= 0 && i > 0:
 		// The pack cannot push this current at all: no voltage is left
 		// for the load.
-		o.Fail = CauseCollapse
+		o.Fail = failCollapse
 	case o.Vload < v.floor:
-		o.Fail = CauseFloor
+		o.Fail = failFloor
 	case dim(l, i, v): // limits.go
-		o.Fail = CauseDim
+		o.Fail = failDim
 	}
 	// A limiter whose clamp depends on the pack (protect.Clamper) has no
 	// operating point above it: its drop takes the whole input. That is
 	// its current limit, not a collapse of the source.
-	if o.Fail == CauseCollapse || o.Fail == CauseFloor {
+	if o.Fail == failCollapse || o.Fail == failFloor {
 		if _, ok := el.(protect.Clamper); ok && i > 0 && el.Drop(i, o.Vin, T) >= o.Vin {
-			o.Fail = CauseLimit
+			o.Fail = failLimit
 		}
 	}
 	return o
@@ -336,7 +336,7 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 				ic = 0.5 * (ic + nd.icell[k])
 			}
 			nd.icell[k] = ic
-			failed = failed || o.Fail == CauseCollapse
+			failed = failed || o.Fail == failCollapse
 		}
 		// A collapse has no current to settle on: the phase fails
 		// whatever the branches do. A lone phase settles in one pass:
@@ -443,16 +443,16 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 	}
 	low := 0 // the phase whose cell voltage dips lowest: named for an end-point
 	for k, o := range nd.worst {
-		if nd.mean[k].Fail == CauseCollapse {
+		if nd.mean[k].Fail == failCollapse {
 			// No operating point with the phase's polarisation following
 			// its own current: it cannot be sustained, whatever the worst
 			// instant alone would give.
-			o.Fail = CauseCollapse
+			o.Fail = failCollapse
 		}
-		if o.Fail != "" {
-			note(o.Fail, k)
+		if o.Fail != failNone {
+			note(o.Fail.cause(), k)
 		}
-		if o.Fail == CauseCollapse {
+		if o.Fail == failCollapse {
 			m = math.NaN()
 		} else if !math.IsNaN(m) {
 			m = min(m, o.Vload-v.floor, v.lim.Clamp-o.I, v.lim.Trip-o.I)
