@@ -17,7 +17,7 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 	vin := func(i float64) float64 { return E - (i+iq)*Rp }
 	vload := func(i float64) float64 {
 		x := vin(i)
-		return x - e.drop(v, k, el, i, x, T)
+		return x - el.Drop(i, x, T)
 	}
 	var i float64
 	switch l.Kind {
@@ -119,9 +119,7 @@ type dropMemo struct {
 // junction (fixed there or not: the same arithmetic), so when v, i and t
 // are those of the phase's last call the drop is that call's, to the last
 // bit. Behind a constant current with the temperatures held that is every
-// call after the first: a Log1p saved per phase per charge. Behind a
-// constant power the Newton search ends on the current it returns, so the
-// operating point's own drop is the search's last.
+// call after the first: a Log1p saved per phase per charge.
 func (e *evaluator) drop(v *variant, k int, el protect.Element, i, vin, t float64) float64 {
 	switch el.(type) {
 	case protect.Diode, protect.Schottky:
