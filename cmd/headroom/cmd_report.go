@@ -426,6 +426,8 @@ h1 { font-size: 1.5rem; margin-bottom: .2rem; }
 h2 { font-size: 1.15rem; border-bottom: 1px solid #bbb; margin-top: 1.6rem; }
 table { border-collapse: collapse; width: 100%; margin: .4rem 0; }
 th, td { text-align: left; padding: .2rem .5rem; border-bottom: 1px solid #e2e2e2; vertical-align: top; }
+th { white-space: nowrap; }
+td { overflow-wrap: anywhere; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
 tr.this { background: #eef4fa; font-weight: 600; }
 .job { color: #444; }
