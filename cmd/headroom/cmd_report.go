@@ -301,7 +301,7 @@ func caseWords(c protect.Case) string {
 		s += ", " + human(c.Current, units.Current)
 	}
 	if c.Seconds > 0 {
-		s += " for " + short(c.Seconds) + " s"
+		s += " for " + human(c.Seconds, units.Time)
 	}
 	return s
 }

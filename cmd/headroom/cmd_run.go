@@ -197,7 +197,7 @@ func loadWords(d *discharge.Design) string {
 	}
 	var parts []string
 	for _, p := range d.Profile {
-		t := trimZeros(p.Load.Label()) + " for " + short(p.Seconds) + " s"
+		t := trimZeros(p.Load.Label()) + " for " + human(p.Seconds, units.Time)
 		if p.Name != "" {
 			t = p.Name + " " + t
 		}
