@@ -76,17 +76,14 @@ func TestImportLogErrors(t *testing.T) {
 	}
 }
 
-// sharedData opens a file of ../shared/data in place (never copied into
-// the project), skipping the test when it is absent outside CI.
-func sharedData(t *testing.T, name string) *os.File {
+// measuredData opens a file of the repository's measured data
+// (testdata/measured at the module root, copied there with its source note
+// so that a fresh clone runs this check).
+func measuredData(t *testing.T, name string) *os.File {
 	t.Helper()
-	path := filepath.Join("..", "..", "shared", "data", name)
-	f, err := os.Open(path)
+	f, err := os.Open(filepath.Join("..", "testdata", "measured", name))
 	if err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("measured data missing in CI: %v", err)
-		}
-		t.Skipf("measured data not found (%v); it lives beside the project in ../shared/data", err)
+		t.Fatal(err)
 	}
 	t.Cleanup(func() { f.Close() })
 	return f
@@ -95,10 +92,10 @@ func sharedData(t *testing.T, name string) *os.File {
 // TestImportLogNASA imports a measured 2 A discharge of a 2 Ah Li-ion
 // cylindrical cell (source: NASA Ames Prognostics Center of Excellence,
 // Battery Data Set, cell B0005, first discharge; check values from
-// ../shared/data/README.md, derived there by linear interpolation of the
+// testdata/measured/README.md, derived there by linear interpolation of the
 // raw samples).
 func TestImportLogNASA(t *testing.T) {
-	f := sharedData(t, "li-ion-2A-discharge.csv")
+	f := measuredData(t, "li-ion-2A-discharge.csv")
 	c, err := ImportLog(f, "li-ion-2A-discharge.csv", 2)
 	if err != nil {
 		t.Fatal(err)

@@ -150,28 +150,21 @@ func TestRatedCapacityIEC(t *testing.T) {
 	}
 }
 
-// sharedData finds a file in ../shared/data; outside CI it skips when the
-// folder is absent.
-func sharedData(t *testing.T, name string) string {
-	p := filepath.Join("..", "..", "shared", "data", name)
-	if _, err := os.Stat(p); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("measured data %s missing in CI: %v", p, err)
-		}
-		t.Skipf("measured data %s not found (it lives in ../shared beside the project): %v", p, err)
-	}
-	return p
+// measuredData is the path of a file of the repository's measured data
+// (testdata/measured at the module root, copied there with its source note).
+func measuredData(name string) string {
+	return filepath.Join("..", "testdata", "measured", name)
 }
 
 // Measured data: NASA Ames Prognostics Center of Excellence battery data
-// set, cell B0005, first discharge at 2 A (../shared/data/README.md gives
+// set, cell B0005, first discharge at 2 A (testdata/measured/README.md gives
 // the check values, by linear interpolation of the file): 3335.0 s to 2.7 V,
 // 3079.5 s to 3.3 V; a 3.0 V floor behind a 0.3 V drop stops at 3.3 V cell
 // voltage, 1710.8 of 1852.8 mAh: 7.7 % stranded. Tolerances are the acceptance
 // bounds (0.5 %, ±0.2 points); the import's running minimum moves a crossing by
 // less than one ~19 s sample.
 func TestMeasuredLiIon(t *testing.T) {
-	p := sharedData(t, "li-ion-2A-discharge.csv")
+	p := measuredData("li-ion-2A-discharge.csv")
 	f, err := os.Open(p)
 	if err != nil {
 		t.Fatal(err)

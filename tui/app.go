@@ -106,14 +106,18 @@ func New(s *scenario.Scenario) Model {
 // alternate screen and returns when the user quits. A hangup, quit,
 // terminate or interrupt signal closes the screen, restores the terminal
 // (main screen, cursor, line mode) and returns a *SignalError.
-func Run(s *scenario.Scenario) error {
-	return run(s)
+func Run(s *scenario.Scenario, opts ...Option) error {
+	return run(s, opts)
 }
 
 // run is Run with the program's options added (tests give it pipes).
-func run(s *scenario.Scenario, opts ...tea.ProgramOption) error {
+func run(s *scenario.Scenario, screenOpts []Option, opts ...tea.ProgramOption) error {
 	opts = append([]tea.ProgramOption{tea.WithAltScreen(), tea.WithoutSignalHandler()}, opts...)
-	p := tea.NewProgram(New(s), opts...)
+	m := New(s)
+	for _, o := range screenOpts {
+		o(&m)
+	}
+	p := tea.NewProgram(m, opts...)
 	sigs := make(chan os.Signal, 1)
 	signal.Notify(sigs, closingSignals...)
 	defer signal.Stop(sigs)
@@ -243,6 +247,9 @@ func (m Model) update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	case savedMsg:
 		m.save, cmd = m.save.Update(&m.shared, msg)
 		return m, cmd
+	case reportMsg:
+		m.reported(msg)
+		return m, nil
 	case pickedMsg:
 		m.view = screenDesign
 		m.knobs.sel = knobCell
@@ -332,6 +339,13 @@ func (m Model) key(km tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(km, k.Save):
 		m.save, cmd = m.save.Start(&m.shared)
 		return m, cmd
+	case key.Matches(km, k.Report):
+		if m.writeReport == nil {
+			m.save.status, m.save.failed = "No report writer here: use headroom report on the command line.", true
+			return m, nil
+		}
+		m.save.status, m.save.failed = "Writing the report…", false
+		return m, reportCmd(m.writeReport, m.currentScenario(), m.reportBase())
 	case key.Matches(km, k.NextView):
 		cmd := m.show((m.view + 1) % screenCount)
 		return m, cmd

@@ -54,6 +54,9 @@ type shared struct {
 	kinds   []string
 	vals    values
 	saveDir string // folder a relative save name is written in; "" is the working folder
+	// writeReport writes the one-file report of a scenario to a new file
+	// (never over one); the command line gives it, nil means none.
+	writeReport ReportWriter
 
 	res           *discharge.Result // nil when err is set
 	err           error

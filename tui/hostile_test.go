@@ -107,7 +107,7 @@ func TestSignalsRestoreTheTerminal(t *testing.T) {
 		in, inW := io.Pipe()
 		out := &syncBuffer{}
 		errc := make(chan error, 1)
-		go func() { errc <- run(nil, tea.WithInput(in), tea.WithOutput(out)) }()
+		go func() { errc <- run(nil, nil, tea.WithInput(in), tea.WithOutput(out)) }()
 		// Wait for the alternate screen: by then the signals are caught.
 		deadline := time.Now().Add(10 * time.Second)
 		for !strings.Contains(out.String(), "\x1b[?1049h") {

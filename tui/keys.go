@@ -20,6 +20,7 @@ type KeyMap struct {
 	Reverse    key.Binding
 	Spread     key.Binding
 	Save       key.Binding
+	Report     key.Binding // write the one-file report of the current design
 	Help       key.Binding
 	Notes      key.Binding // every warning and caution
 	Product    key.Binding // the product form: name, load phases, standby, price
@@ -52,6 +53,7 @@ func DefaultKeyMap() KeyMap {
 		Reverse:    key.NewBinding(key.WithKeys("3"), key.WithHelp("3", "reversed cells")),
 		Spread:     key.NewBinding(key.WithKeys("4"), key.WithHelp("4", "spread")),
 		Save:       key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save")),
+		Report:     key.NewBinding(key.WithKeys("r"), key.WithHelp("r", "write report")),
 		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "help")),
 		Notes:      key.NewBinding(key.WithKeys("w"), key.WithHelp("w", "warnings")),
 		Product:    key.NewBinding(key.WithKeys("e"), key.WithHelp("e", "product")),
@@ -74,7 +76,7 @@ func hint(keys, desc string) key.Binding {
 // which the hint line always ends with.
 func (k KeyMap) ShortHelp() []key.Binding {
 	return []key.Binding{hint("↑/↓", "choose knob"), hint("←/→", "adjust"), hint("[/]", "big steps"),
-		k.Type, hint("tab", "views"), k.Save}
+		k.Type, hint("tab", "views"), k.Save, k.Report}
 }
 
 // FullHelp lists every binding, grouped.
@@ -82,7 +84,7 @@ func (k KeyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Up, k.Down, k.Less, k.More, k.LessCoarse, k.MoreCoarse, k.Type},
 		{k.Pick, k.Rank, k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, k.Spread},
-		{k.Save, k.Notes, k.Product, k.Help, k.Back, k.Quit},
+		{k.Save, k.Report, k.Notes, k.Product, k.Help, k.Back, k.Quit},
 	}
 }
 
@@ -126,7 +128,7 @@ func (v viewKeys) ShortHelp() []key.Binding {
 func (v viewKeys) FullHelp() [][]key.Binding {
 	k := v.k
 	views := []key.Binding{k.NextView, k.PrevView, k.Design, k.Lineup, k.Reverse, k.Spread, pickKeys.Open}
-	general := []key.Binding{k.Save, k.Notes, k.Product, k.Help, k.Back, k.Quit}
+	general := []key.Binding{k.Save, k.Report, k.Notes, k.Product, k.Help, k.Back, k.Quit}
 	switch v.view {
 	case screenLineup:
 		return [][]key.Binding{{k.Up, k.Down, k.Pick, k.Rank}, views, general}

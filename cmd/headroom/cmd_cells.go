@@ -18,8 +18,8 @@ import (
 var cellsCmd = &command{
 	name:  "cells",
 	run:   runCells,
-	args:  "[show ID|FILE | check FILE | import LOG.csv --current I -o CELL.csv] [flags]",
-	short: "list the cell library, show a cell, check a cell file, import a discharge log",
+	args:  "[show ID|FILE | check FILE | import LOG.csv --current I -o CELL.csv | fit LOG.csv... -o CELL.toml] [flags]",
+	short: "list the cell library, show a cell, check a cell file, import or fit bench logs",
 	help: `
   headroom cells [--format text|json|csv|md]
       lists the built-in cells: typical values from memory, no maker's data.
@@ -32,11 +32,28 @@ var cellsCmd = &command{
       turns a time-voltage log (seconds, volts) recorded at the constant
       current I into a cell curve. The output is written whole or not at
       all, and an existing file is kept unless --force is given.
+  headroom cells fit LOG.csv [LOG.csv ...] -o CELL.toml [--chemistry ID]
+                 [--temp T] [--end-point V] [--plot FIT.svg] [--force]
+                 [--format text|json]
+      fits a cell model to bench logs of one cell type: CSV with a header
+      naming time (t_s, time or s), current (I_A, current or A; positive
+      discharges) and voltage (V or voltage), optionally temperature (T_C
+      or temp). Rests before, between and after loads carry the
+      polarisation. The model is an open-circuit curve and R0 against
+      charge and up to two RC branches, fitted to every sample of every log
+      together; the report gives each log's residual (RMS and worst, mV),
+      its charge, the fitted values and what the logs cannot show.
+      --chemistry borrows a library cell's temperature, self-discharge and
+      cycle terms (and cautions); --temp is the logs' temperature (default:
+      their first sample's, else 20 °C); --end-point the cell's end-point
+      (default: the borrowed cell's, else the lowest logged voltage under
+      load); --plot draws measured against fitted voltage (.svg or .png).
 
 examples:
   headroom cells
   headroom cells show hr6-lsd
   headroom cells check testdata/cells/example-cell.csv
+  headroom cells fit testdata/measured/nasa-li-ion/cc-4A-B0034.csv testdata/measured/nasa-li-ion/cc-2A-B0036.csv -o nasa.toml
 `,
 }
 
@@ -49,6 +66,8 @@ func runCells(c *cli, args []string) error {
 			return cellsCheck(c, args[1:])
 		case "import":
 			return cellsImport(c, args[1:])
+		case "fit":
+			return cellsFit(c, args[1:])
 		case "list":
 			args = args[1:]
 		}
@@ -60,7 +79,7 @@ func runCells(c *cli, args []string) error {
 		return err
 	}
 	if len(pos) > 0 {
-		return fmt.Errorf("cells: unknown action %q: expected show, check or import (or nothing for the list)", pos[0])
+		return fmt.Errorf("cells: unknown action %q: expected show, check, import or fit (or nothing for the list)", pos[0])
 	}
 	f, err := parseFormat(*formatFlag)
 	if err != nil {
