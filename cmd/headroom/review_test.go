@@ -54,3 +54,16 @@ func TestNetlistSpanCoversHotElement(t *testing.T) {
 		t.Errorf("ngspice %.6g h, headroom on a heat sink %.6g h: %.3g %% apart (1 %% allowed)", got, want, 100*rel)
 	}
 }
+
+// plot's closing line is a sentence: "1 protection option", and what the
+// axes are, not the bare flag value ("1 protection options, time").
+func TestPlotSaysWhatItDrew(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "c.svg")
+	code, stdout, errs := runCLI(t, "plot", "--protect", "pmos", "-o", out)
+	if code != 0 {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	if want := "1 protection option, voltage against hours of use"; !strings.Contains(stdout, want) {
+		t.Errorf("got %q, want it to say %q", stdout, want)
+	}
+}
