@@ -100,7 +100,7 @@ func (m notesModel) View(sh *shared) string {
 	}
 	r := sh.res
 	var b strings.Builder
-	b.WriteString(st.Label.Render("Stops because ") + st.Value.Render(wrapAfter(cutoffWords(r, sh.profile(), sh.vals.floor), w, 14)) + "\n")
+	b.WriteString(st.Label.Render("Cut-off       ") + st.Value.Render(wrapAfter(cutoffWords(r, sh.profile(), sh.vals.floor), w, 14)) + "\n")
 	if m.compact {
 		n := len(dedupeStrings(r.Cautions))
 		s := plural(n, "caution", "cautions") + ": press w to read them"
