@@ -47,11 +47,12 @@ func (m verdictModel) View(sh *shared) string {
 		b.WriteString(s + "\n")
 	}
 	_, started := r.StrandedShare()
+	cal := (&discharge.Design{HoursPerDay: sh.vals.hours}).CalendarText(r)
 	if m.compact {
-		line("Runtime", hours(r.RuntimeH), "of use ("+days(r.RuntimeDays)+")")
+		line("Runtime", hours(r.RuntimeH), "of use ("+cal+")")
 	} else {
 		line("Runtime", hours(r.RuntimeH), "of use")
-		line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
+		line("", cal, fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
 	}
 	sh.spreadVerdict(line)
 	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
@@ -183,8 +184,6 @@ func profileLabel(prof []discharge.Phase) string {
 // hours, days, mah, pct and money are the screen's names for the one
 // formatter (internal/units, eng.go).
 func hours(h float64) string { return units.Duration(h, 3) }
-
-func days(d float64) string { return units.Duration(d*24, 3) }
 
 func mah(q float64) string { return units.MAh(q, 3) }
 

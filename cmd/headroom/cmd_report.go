@@ -271,7 +271,7 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 // summaryText is the verdict in the words run's text output uses.
 func summaryText(d *discharge.Design, r *discharge.Result) string {
 	var b strings.Builder
-	days := units.Duration(24*r.RuntimeDays, 3)
+	days := d.CalendarText(r)
 	if d.HoursPerDay > 0 {
 		days += " at " + short(d.HoursPerDay) + " h a day"
 	}

@@ -67,3 +67,18 @@ func TestPlotSaysWhatItDrew(t *testing.T) {
 		t.Errorf("got %q, want it to say %q", stdout, want)
 	}
 }
+
+// A product that stops before one day's use is over: 18650 at 3 A runs
+// under an hour, used 1 h a day. It was "51.9 min of use = 19.6 h at 1 h a
+// day" (19.6 h of calendar time, which it never reaches); it stops within
+// the first day's session.
+func TestRunWithinFirstDay(t *testing.T) {
+	code, out, errs := runCLI(t, "run", "--cell", "li-ion-18650", "--series", "1", "--load", "3A",
+		"--protect", "none", "--floor", "2.5V", "--hours-per-day", "1")
+	if code != 0 {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "of use, within the first day at 1 h a day") {
+		t.Errorf("the runtime line does not say it stops within the first day:\n%s", out)
+	}
+}
