@@ -247,7 +247,7 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 
 	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
 		sep := " = "
-		if r.RuntimeH < d.HoursPerDay {
+		if r.RuntimeH > 0 && r.RuntimeH < d.HoursPerDay {
 			sep = ", " // "49.0 min of use, within the first day"
 		}
 		line("runtime", "%s of use%s%s at %s h a day", units.Duration(r.RuntimeH, 3), sep, d.CalendarText(r), short(d.HoursPerDay))
