@@ -82,3 +82,21 @@ func TestRunWithinFirstDay(t *testing.T) {
 		t.Errorf("the runtime line does not say it stops within the first day:\n%s", out)
 	}
 }
+
+// A log whose middle points lie on a straight line is thinned without any
+// error; the message said "none dropped more than 0 V off".
+func TestImportThinnedWords(t *testing.T) {
+	dir := t.TempDir()
+	log := filepath.Join(dir, "log.csv")
+	// 2 A for 600 s is 333 mAh a row; 1.40, 1.30, 1.20 V lie on one line.
+	if err := os.WriteFile(log, []byte("s,V\n0,1.55\n600,1.40\n1200,1.30\n1800,1.20\n2400,1.05\n3000,0.90\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCLI(t, "cells", "import", log, "--current", "2A", "-o", filepath.Join(dir, "c.csv"))
+	if code != 0 {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	if strings.Contains(out, "0 V off") || !strings.Contains(out, "the points left out on the line between those kept") {
+		t.Errorf("thinning without error reads %q", out)
+	}
+}
