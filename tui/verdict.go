@@ -185,6 +185,10 @@ func profileLabel(prof []discharge.Phase) string {
 // formatter (internal/units, eng.go).
 func hours(h float64) string { return units.Duration(h, 3) }
 
+// runtimeW is the width of a runtime column: the longest hours() writes,
+// "23.9 months" (a column of 8 cut "83.9 days" to "83.9 da…").
+const runtimeW = 11
+
 func mah(q float64) string { return units.MAh(q, 3) }
 
 func pct(part, whole float64) string {
