@@ -8,6 +8,7 @@ import (
 
 	"headroom/internal/spice"
 	"headroom/internal/spicetest"
+	"headroom/internal/units"
 )
 
 // A coin-cell remote's 5 ms radio burst reads "5 ms" in the load line,
@@ -98,5 +99,22 @@ func TestImportThinnedWords(t *testing.T) {
 	}
 	if strings.Contains(out, "0 V off") || !strings.Contains(out, "the points left out on the line between those kept") {
 		t.Errorf("thinning without error reads %q", out)
+	}
+}
+
+// spread's text gives its runtimes in the units run and the screen use:
+// the demo's worst corner is under an hour and read "0.731 h" here while
+// the screen said "43.9 min". Checked against spread's own JSON.
+func TestSpreadTextDurations(t *testing.T) {
+	code, out, errs := runCLI(t, "spread", "--protect", "diode")
+	if code != 0 {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	worst := num(t, runJSON(t, "spread", "--protect", "diode"), "worst_h")
+	if worst >= 1 {
+		t.Skipf("worst corner %g h: not under an hour any more", worst)
+	}
+	if want := "worst      " + units.Duration(worst, 3) + ":"; !strings.Contains(out, want) || !strings.Contains(want, " min:") {
+		t.Errorf("want %q in:\n%s", want, out)
 	}
 }
