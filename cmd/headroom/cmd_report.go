@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"errors"
+	"flag"
 	"fmt"
 	"html/template"
 	"path/filepath"
@@ -12,6 +13,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -41,7 +43,7 @@ Files are written whole or not at all; an existing file is kept unless
 
 flags:
 ` + designFlagHelp() + `  -o FILE                         the report to write
-  --format html|md                the report's format (default html)
+  --format html|md                the report's format (default html; md when -o ends in .md)
   --force                         replace existing files
 
 examples:
@@ -74,6 +76,18 @@ func runReport(c *cli, args []string) error {
 		md = true
 	default:
 		return fmt.Errorf("--format: %q is not a report format: expected html or md", *formatFlag)
+	}
+	// A name ending in .md asks for Markdown; a format given that
+	// contradicts the name is refused rather than written under it.
+	given := false
+	fs.Visit(func(f *flag.Flag) { given = given || f.Name == "format" })
+	switch ext := strings.ToLower(filepath.Ext(*out)); {
+	case !given && (ext == ".md" || ext == ".markdown"):
+		md = true
+	case given && md && (ext == ".html" || ext == ".htm"):
+		return fmt.Errorf("-o: %s: --format md writes Markdown: name the file .md", guard.Clean(*out))
+	case given && !md && (ext == ".md" || ext == ".markdown"):
+		return fmt.Errorf("-o: %s: --format html writes HTML: name the file .html, or give --format md", guard.Clean(*out))
 	}
 	s, err := loadScenario(pos)
 	if err != nil {

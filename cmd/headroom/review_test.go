@@ -118,3 +118,26 @@ func TestSpreadTextDurations(t *testing.T) {
 		t.Errorf("want %q in:\n%s", want, out)
 	}
 }
+
+// report -o NAME.md writes Markdown without --format md (it wrote HTML
+// under a .md name), and a format that contradicts the name is refused
+// with one line, status 2 and nothing written.
+func TestReportFormatFromName(t *testing.T) {
+	dir := t.TempDir()
+	md := filepath.Join(dir, "r.md")
+	if code, _, errs := runCLI(t, "report", "-o", md); code != 0 {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	if b, _ := os.ReadFile(md); !strings.HasPrefix(string(b), "# ") {
+		t.Errorf("r.md does not start as Markdown: %.40q", b)
+	}
+	for _, c := range [][]string{{"--format", "md", "-o", filepath.Join(dir, "x.html")}, {"--format", "html", "-o", filepath.Join(dir, "x.md")}} {
+		code, _, errs := runCLI(t, append([]string{"report"}, c...)...)
+		if code != 2 || strings.Count(strings.TrimSpace(errs), "\n") != 0 || !strings.Contains(errs, "-o: ") {
+			t.Errorf("%v: status %d, %q; want status 2 and one line about -o", c, code, errs)
+		}
+		if _, err := os.Stat(c[3]); err == nil {
+			t.Errorf("%v: wrote %s anyway", c, c[3])
+		}
+	}
+}
