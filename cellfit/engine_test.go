@@ -13,7 +13,7 @@ import (
 // tester's cut-off as the floor, at the logs' 24 °C. The engine keeps the
 // charge-domain quadrature and puts each branch in its periodic steady
 // state; the fit's model steps the same train exactly from rest. Checks:
-// the measured charges within the bounds (2 % for the records the
+// the measured charges within the acceptance bounds (2 % for the records the
 // cell was fitted to, 3.5 % for the square wave of a sister cell), and
 // engine against the fit's stepping within 0.5 % (two independent
 // computations of one model; a few early pulses differ while the slow

@@ -16,7 +16,7 @@ func TestReadLogColumns(t *testing.T) {
 	if l.Len() != 4 || l.I[2] != 2.01 || l.V[1] != 3.9 || l.TempC[3] != 26 || l.Line[2] != 6 {
 		t.Errorf("read %+v", l)
 	}
-	// Header names the issue lists, any order, extra columns ignored.
+	// Header names the command accepts, any order, extra columns ignored.
 	in = "step,t_s,I_A,V,T_C\n1,0,0,4.1,20\n2,5,1,3.9,20\n"
 	if l, err = ReadLog(strings.NewReader(in), "c.csv"); err != nil || l.I[1] != 1 || l.TempC == nil {
 		t.Errorf("t_s,I_A,V,T_C: %v %+v", err, l)
@@ -64,7 +64,7 @@ func (r *rowsReader) Read(p []byte) (int, error) {
 	return k, nil
 }
 
-// Each kind of bad input the issue lists gets one line naming the file and
+// Each kind of bad input a bench log can hold gets one line naming the file and
 // the line (or the reason).
 func TestReadLogBadInput(t *testing.T) {
 	cases := []struct{ name, in, want string }{

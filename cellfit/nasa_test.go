@@ -86,7 +86,7 @@ func cutoffCharge(t *testing.T, m *Model, l *Log, volts float64) float64 {
 }
 
 // Fitted on the two constant-current records only (4 A with its rest, and
-// 2 A). Bounds are the issue's: RMS ≤ 15 mV on each; each record's charge
+// 2 A). Acceptance bounds: RMS ≤ 15 mV on each; each record's charge
 // to its cut-off within 2 %; the square wave on a sister cell within 3.5 %
 // of its measured 1.858 Ah (the cells' own spread — first-pulse
 // resistance about 0.117 Ω against 0.15 Ω — bounds any prediction).
@@ -142,7 +142,7 @@ func TestNASAFitConstantCurrent(t *testing.T) {
 
 // Fitted on all three records together (three different cells): RMS ≤
 // 50 mV on each and each record's charge to its cut-off within 5 % (the
-// issue's bounds).
+// acceptance bounds).
 func TestNASAFitAllThree(t *testing.T) {
 	cc4, cc2, sq := nasaLog(t, cc4File), nasaLog(t, cc2File), nasaLog(t, sqFile)
 	r, cell, _ := fitAndWrite(t, []*Log{cc4, cc2, sq})

@@ -75,7 +75,7 @@ func ccLog(dt float64) *Log {
 
 // A cell with two RC branches (closed-form response) is fitted back from
 // a pulse test and a constant-current log with its rest: every branch
-// resistance and time constant within 2 % (the bound), R0 at
+// resistance and time constant within 2 % (the acceptance bound), R0 at
 // every knot within 2 %, the open-circuit voltage at every knot within
 // 1 mV, and the residual RMS below 1 mV on each log. With exact data the
 // fit is limited only by the optimiser's stopping rule.

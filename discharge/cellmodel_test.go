@@ -150,7 +150,7 @@ func crossing(h, m []float64) float64 {
 
 // The periodic-steady-state engine against the time-stepped reference
 // above on randomised pulsed designs, daily patterns among them. The
-// issue's bound is 0.3 %. What differs: the engine holds the cells' E and
+// acceptance bound is 0.3 %. What differs: the engine holds the cells' E and
 // R0 still over a day and assumes the day-periodic state from the start;
 // the reference drifts with them and starts rested.
 func TestAgainstTimeStepped(t *testing.T) {
@@ -224,7 +224,7 @@ func sortF(x []float64) {
 }
 
 // --hours-per-day H and the same rest written into the profile as a phase
-// are the same use: within 1 % for every library chemistry (the issue's
+// are the same use: within 1 % for every library chemistry (the acceptance
 // bound), one cell, a steady current of twice the reference and 2 h a day.
 func TestHoursPerDayMatchesRestPhase(t *testing.T) {
 	for _, c := range curves.Library() {
@@ -246,7 +246,7 @@ func TestHoursPerDayMatchesRestPhase(t *testing.T) {
 // primary alkaline or zinc-carbon AA delivers clearly more charge when it
 // rests (handbooks of primary cells show it; common practice, from
 // memory: we ask at least 10 % more at a tenth of the hour's use), a
-// Li-ion cell a little more and less than 10 % (the issue's bound). The
+// Li-ion cell a little more and less than 10 % (the acceptance bound). The
 // load is 2.5 × the cell's reference current, run to the end-point.
 func TestIntermittentBeatsContinuous(t *testing.T) {
 	cases := []struct {
@@ -271,7 +271,7 @@ func TestIntermittentBeatsContinuous(t *testing.T) {
 
 // The effective Peukert exponent measured as two constant-current runs
 // would (k = 1 + ln(C1/C2)/ln(I2/I1), to the end-point, no element, no
-// floor) equals the cell's stated one within 0.03 (the issue's bound),
+// floor) equals the cell's stated one within 0.03 (the acceptance bound),
 // between the reference current and twice it, for every library cell.
 func TestEffectivePeukert(t *testing.T) {
 	for _, c := range curves.Library() {
@@ -291,7 +291,7 @@ func TestEffectivePeukert(t *testing.T) {
 // Cold: a design never runs longer when only the ambient is colder
 // (randomised library designs, none or a PN diode; 1e-9 for the cut-off
 // search's resolution), and a fresh cell's open-circuit voltage at −20 °C
-// is within 30 mV of its 20 °C value (the issue's bound; the reversible
+// is within 30 mV of its 20 °C value (the acceptance bound; the reversible
 // temperature coefficient is well under 1 mV/K, from memory). A cell at a
 // light load keeps more of its charge in the cold than at a heavy one.
 func TestColdNeverLonger(t *testing.T) {
@@ -341,7 +341,7 @@ func mustParse(t *testing.T, s string) protect.Element {
 	return el
 }
 
-// The ride-on car of the issue: 4×LR20 behind a P-MOSFET, 5 A for 0.3 s,
+// A ride-on car: 4×LR20 behind a P-MOSFET, 5 A for 0.3 s,
 // 2 A for 20 s, 0.1 A for 10 s, floor 3.0 V. The start pulse must not end
 // the run at the cells' end-point: the end-point is a rating convention
 // applied to the voltage over the cycle. The run ends near the steady
@@ -398,7 +398,7 @@ func TestCutoffDelay(t *testing.T) {
 
 // Issue 12: runtime never rises with the load scale, for constant-power
 // and LED profiles too (randomised library designs; a 1e-9 slack for the
-// cut-off search's resolution), and the issue's own reproduction.
+// cut-off search's resolution), and the reported reproduction.
 func TestRuntimeFallsWithLoadScale(t *testing.T) {
 	c, _ := curves.Lookup("lr14")
 	prev := math.Inf(1)

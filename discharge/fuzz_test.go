@@ -295,7 +295,7 @@ func FuzzLoadScale(f *testing.F) {
 		scale, rcR, rcT  float64
 	}
 	for _, sd := range []seed{
-		// The reproduction: 2×LR14, 4.8 W at 90 % for 1 s, a
+		// The reported reproduction: 2×LR14, 4.8 W at 90 % for 1 s, a
 		// microampere for a minute (near enough in the fuzzer's scales).
 		{2, 1, 0, 0, 0, 1, [3]uint8{1, 0, 0}, [3]float64{0.93, 0.01, 0}, [3]float64{0.27, 0.6, 0}, 0, 0.48, 0, 0, 0.02, 0.5, 0.5},
 		{0, 1, 0, 1, 0.5, 2, [3]uint8{1, 3, 1}, [3]float64{0.7, 0.4, 0.2}, [3]float64{0.1, 0.3, 0.9}, 0.6, 0.4, 0.3, 0.7, 0.5, 0.9, 0.1},

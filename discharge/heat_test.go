@@ -37,12 +37,12 @@ func finiteResult(t *testing.T, r *Result) {
 	}
 }
 
-// theta=0 (an ideal heat sink, issue 13) keeps the junction at ambient:
+// theta=0 (an ideal heat sink) keeps the junction at ambient:
 // the result's junction is the ambient exactly, and the drop is the one at
 // ambient — the demo with theta=0 runs exactly as long as with a package
 // whose whole network is zero, and shorter than with its heat (the
 // diode's drop falls about 1.2 mV/°C at 450 mA, so heat lengthens the run:
-// the issue's check on the demo's direction).
+// the acceptance check on the demo's direction).
 func TestHeatDemoDiode(t *testing.T) {
 	cold := heatDesign(t, "lr6", 2, "diode:theta=0", "450mA/3s,120mA/2s,15mA/25s", 1.8, 20)
 	hot := heatDesign(t, "lr6", 2, "diode", "450mA/3s,120mA/2s,15mA/25s", 1.8, 20)
@@ -73,7 +73,7 @@ func TestHeatDemoDiode(t *testing.T) {
 		rc.RuntimeH, rh.RuntimeH, 100*(rh.RuntimeH/rc.RuntimeH-1), rh.JunctionC, rh.JunctionMeanC)
 }
 
-// The 4×D ride-on car of issue 13 with a P-MOSFET and a 5 A, 0.3 s start
+// A 4×D ride-on car with a P-MOSFET and a 5 A, 0.3 s start
 // pulse: steady θja at the pulse peak made it 414 °C. From the network the
 // junction's peak lies well below that steady figure and below the part's
 // 150 °C limit, above the cycle mean; and at least the single pulse's
@@ -129,7 +129,7 @@ func TestHeatPolyfuseStart(t *testing.T) {
 
 // A junction that cannot settle (a FET on a huge θja at a steady 1.5 A:
 // the loop gain θ·I²·Ron·TcR is above 1) says so in a warning naming the
-// element, with finite figures (issue 13, bad input).
+// element, with finite figures (bad input).
 func TestHeatRunawayWarns(t *testing.T) {
 	d := heatDesign(t, "lr20", 4, "pmos:theta=4000,thetaf=100", "1.5A", 3.0, 20)
 	r, err := Evaluate(d)
@@ -146,7 +146,7 @@ func TestHeatRunawayWarns(t *testing.T) {
 	}
 }
 
-// The limiter's soft knee in the engine (issue 13): a 0.6 A load from
+// The limiter's soft knee in the engine: a 0.6 A load from
 // 2×AA, under the old hard clamp of Vbe/Rsh = 0.65 A, is past the
 // Ebers–Moll limit (about 0.53 A at 3 V) and stops on the current limit.
 func TestHeatLimiterKnee(t *testing.T) {

@@ -5,7 +5,6 @@ package discharge
 import (
 	"fmt"
 	"math"
-	"strings"
 
 	"headroom/curves"
 	"headroom/protect"
@@ -85,19 +84,9 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	}
 }
 
-// Cautions are the usual cautions for a pack of n cells of cell c: the
-// chemistry's own (curves.Cautions), without the mixing warning for a
-// single cell. A toy's result adds ToyCaution.
-func Cautions(c *curves.Cell, n int) []string {
-	var out []string
-	for _, s := range curves.Cautions(c) {
-		if n == 1 && strings.HasPrefix(s, "Never mix") {
-			continue
-		}
-		out = append(out, s)
-	}
-	return out
-}
+// Cautions are the usual cautions for a pack of n cells of cell c
+// (curves.PackCautions, their one home). A toy's result adds ToyCaution.
+func Cautions(c *curves.Cell, n int) []string { return curves.PackCautions(c, n) }
 
 // ToyCaution is the toy-safety reminder for a product that is a toy
 // (Design.Toy).

@@ -43,7 +43,7 @@ import (
 // load) a branch lags it by about its time constant τ, which shifts the
 // cut-off by a fraction of τ/runtime: those cases get 0.1·τ/runtime on
 // top (measured: 0.04·τ/runtime for the constant-power case, 1.9e-3).
-// Every case stays within the issue's 1 %.
+// Every case stays within the acceptance bound of 1 %.
 func TestRuntimeAgainstNgspice(t *testing.T) {
 	spicetest.Require(t)
 	cases, err := spicenet.Cases()
@@ -169,7 +169,7 @@ func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	}
 	// ngspice's pulse current is held at the limit: the laws are the
 	// same, so what differs is the pack voltage above and the PNP's base
-	// current; the issue asks 3 % (measured: see the log).
+	// current; the acceptance bound is 3 % (measured: see the log).
 	if math.Abs(s.PeakA/clamp-1) > 0.03 {
 		t.Errorf("ngspice passes %.4f A during the %.3f A pulse; want the %.4f A limit within 3 %%", s.PeakA, pulse, clamp)
 	}

@@ -25,14 +25,14 @@ func settlePhases(t *testing.T, e Element, amps, vin, secs []float64, tambC floa
 }
 
 // Diode and MOSFET drops at the junction temperature the solve settles on,
-// against ngspice (Debian package) run at that temperature (issue 13:
-// within 1 mV for the diode, 2 % for the MOSFET).
+// against ngspice (Debian package) run at that temperature
+// (within 1 mV for the diode, 2 % for the MOSFET).
 //
 // The diode is the demo toy's (450 mA for 3 s, 120 mA for 2 s, 15 mA for
 // 25 s at 20 °C): ngspice's own diode model and temperature law (IS, N,
 // RS, EG, XTI as ours, instance temp = each phase's settled Tj). Measured
 // agreement: under 1 µV, ngspice's CODATA-2014 Boltzmann constant (see
-// TestDiodeAgainstNgspice); we hold the issue's 1 mV.
+// TestDiodeAgainstNgspice); we hold 1 mV (acceptance bound).
 //
 // The MOSFET is the 4×D ride-on car's (5 A for 0.3 s, then 1.5 A for 30 s,
 // at 25 °C, the pack sagging to 5.2 and 5.9 V): ngspice's level-1 PMOS
@@ -41,7 +41,7 @@ func settlePhases(t *testing.T, e Element, amps, vin, secs []float64, tambC floa
 // resistor on the load side, and ngspice's own diode law for the body
 // diode at Tj. This checks the circuit law at the temperature; the
 // temperature law itself is checked against common practice
-// (TestMOSFETRonTempco). Measured: 1e-10 relative; we hold the issue's 2 %.
+// (TestMOSFETRonTempco). Measured: 1e-10 relative; we hold 2 % (acceptance bound).
 func TestSettledDropsAgainstNgspice(t *testing.T) {
 	spicetest.Require(t)
 	type phase struct {
@@ -138,7 +138,7 @@ func limiterNet(b *strings.Builder, j int, l Limiter, vin, tempC float64) {
 	fmt.Fprintf(b, "Q%d g%d m%d n%d QL%d temp=%.12g\n", j, j, j, j, j, tempC)
 }
 
-// The limiter with ngspice's own PNP and MOSFET models (issue 13): the
+// The limiter with ngspice's own PNP and MOSFET models: the
 // engine's limit current (ClampAt: the output shorted, the pass FET
 // saturated at the gate drive the PNP leaves it) and its knee (the drop at
 // 50, 80, 90 and 95 % of that limit) within 3 % of ngspice at 0, 25 and

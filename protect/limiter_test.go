@@ -11,7 +11,7 @@ import (
 // is about Vbe/Rsh, and halving Rsh doubles it. The Ebers–Moll knee sits
 // lower than the rule of thumb: the PNP needs only the tens of µA that pull
 // the pass gate down through R1∥R2, at Vbe ≈ 0.53–0.56 V, so the limit lies
-// 10–25 % below Vbe(1 mA)/Rsh (issue 13); halving Rsh doubles it to within
+// 10–25 % below Vbe(1 mA)/Rsh; halving Rsh doubles it to within
 // 1 % from a 6 V pack (the PNP's Vbe moves by Vt·ln of the collector-
 // current ratio only; from 3 V the FETs' own drops at 2.4 A eat enough
 // gate drive to take 2 % off).
@@ -46,7 +46,7 @@ func TestLimiterLimit(t *testing.T) {
 }
 
 // BJT Vbe falls about 2 mV/°C (Sedra and Smith, Microelectronic Circuits,
-// quote −2 mV/°C; DESIGN §3 −2.1). Here it follows from the PNP's Is(T)
+// quote −2 mV/°C; docs/protection.md −2.1). Here it follows from the PNP's Is(T)
 // (Eg 1.11 eV, XTI 3, SPICE's defaults): at 1 mA from −20 to 60 °C the
 // slope must be −2 ± 0.3 mV/°C (one figure in the rule), and the limit
 // must fall with it: about 0.3 %/°C.

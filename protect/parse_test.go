@@ -110,7 +110,7 @@ func TestParseErrors(t *testing.T) {
 		{"ic:iq=1e400", []string{`"iq"`}},
 		{"none:x=1", []string{`"x"`, "no parameters"}},
 		{"diode:cost=-1", []string{`"cost"`}},
-		// Thermal keys (issue 13): θ below 0, τ at or below 0, a package
+		// Thermal keys: θ below 0, τ at or below 0, a package
 		// stage above θja. theta=0 itself is an ideal heat sink and valid.
 		{"diode:theta=-1", []string{`"theta"`}},
 		{"pmos:tau=0", []string{`"tau"`, "above 0"}},

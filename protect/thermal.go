@@ -15,7 +15,7 @@ import (
 //
 //	Tj(t) = Tamb + Σ stage values, each stage dv/dt = (Rᵢ·P − v)/τᵢ
 //
-// (DESIGN §7; JEDEC JESD51-14 describes parts by the same network). A pulse
+// (docs/references.md; JEDEC JESD51-14 describes parts by the same network). A pulse
 // much shorter than the board stage's τ heats the junction by a fraction
 // of θja·P — Zth(t)·P — not by θja·P.
 type Thermal struct {

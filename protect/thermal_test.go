@@ -5,7 +5,7 @@ import (
 	"testing"
 )
 
-// theta=0 is an ideal heat sink (issue 13): accepted, the package stage
+// theta=0 is an ideal heat sink: accepted, the package stage
 // follows it down, and the junction stays at ambient whatever it carries.
 func TestThetaZeroIsIdealHeatSink(t *testing.T) {
 	for _, k := range []string{"diode", "schottky", "pmos", "pmos-clamp", "limiter", "pptc", "crowbar", "ic"} {
@@ -31,7 +31,7 @@ func TestThetaZeroIsIdealHeatSink(t *testing.T) {
 }
 
 // The electro-thermal fixed point on a linearised diode has a closed form
-// (issue 13): drop = V0 − a·ΔT with ΔT = θ·I·drop gives
+// : drop = V0 − a·ΔT with ΔT = θ·I·drop gives
 // ΔT = θ·I·V0 / (1 + θ·I·a). One phase (a steady current): the network's
 // mean is θ·P exactly. Checked to 1e-6 °C; the solve stops when a step
 // moves less than 1e-4 °C (Newton: the error left is of its square).
@@ -96,7 +96,7 @@ func TestSettleTwoPhaseLinear(t *testing.T) {
 
 // A dissipation that grows faster with temperature than the network sheds
 // it has no operating point (thermal runaway): Settle says so and returns
-// finite temperatures, never NaN (issue 13, bad input).
+// finite temperatures, never NaN (bad input).
 func TestSettleRunaway(t *testing.T) {
 	h := NewHeating(sot23, []float64{30})
 	tj := []float64{0}
@@ -115,7 +115,7 @@ func TestSettleRunaway(t *testing.T) {
 }
 
 // A short pulse heats a small package by Zth(t)·P, a fraction of θja·P
-// (DESIGN §7; issue 13's 0.3 s, 1.58 W pulse on SOT-23). The periodic
+// (docs/references.md; a 0.3 s, 1.58 W start pulse on SOT-23). The periodic
 // junction peaks at the end of the pulse, above the single pulse from
 // ambient by the leftover heat of earlier cycles, and below the steady
 // figure. The cycle mean is Tamb + θja·P̄ exactly (a linear network's

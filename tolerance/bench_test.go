@@ -4,7 +4,7 @@ import "testing"
 
 // BenchmarkSpread2000: 2,000 Latin-hypercube samples of the demo (pulsed
 // profile, series diode) with the default tolerances, on every core. Goal
-// (issue 14): at most 100 ms on this 2-core machine.
+// at most 100 ms on this 2-core machine.
 func BenchmarkSpread2000(b *testing.B) {
 	d := demo(b, "diode")
 	tols := Defaults()
@@ -16,7 +16,7 @@ func BenchmarkSpread2000(b *testing.B) {
 }
 
 // BenchmarkWorstCorner: both corners and every sensitivity of the demo
-// (pulsed profile, series diode). Goal (issue 14): at most 1 ms.
+// (pulsed profile, series diode). Goal: at most 1 ms.
 func BenchmarkWorstCorner(b *testing.B) {
 	d := demo(b, "diode")
 	tols := Defaults()

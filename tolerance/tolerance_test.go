@@ -51,7 +51,7 @@ func linearCell() *curves.Cell {
 // 10 h × the normal's. The cut-off at ±3σ moves p10 by 0.03 % of the
 // mean; Latin-hypercube sampling at 20,000 samples puts the empirical
 // quantile within 1/20000 in probability (≪ 0.1 %); the 1 % bound is the
-// issue's.
+// acceptance bound.
 func TestSpreadClosedFormNormalCapacity(t *testing.T) {
 	d := &discharge.Design{Cell: linearCell(), Series: 1, Parallel: 1,
 		Profile: []discharge.Phase{{Load: discharge.Load{Kind: discharge.ConstantCurrent, Amps: 0.1}, Seconds: 1}},
@@ -142,7 +142,7 @@ func TestWorstBoundsSamples(t *testing.T) {
 }
 
 // Same seed → the same numbers; another seed → p50 within 1 % at 5,000
-// samples (Latin hypercube on the demo; the bound).
+// samples (Latin hypercube on the demo; the acceptance bound).
 func TestSpreadSeed(t *testing.T) {
 	d := demo(t, "diode")
 	a, err := Spread(d, Defaults(), 5000, 11)

@@ -22,7 +22,7 @@ func runOK(t *testing.T, args ...string) string {
 	return out.String()
 }
 
-// spread --format json gives the keys the issue names, in order worst ≤
+// spread --format json gives the keys its users script against, in order worst ≤
 // p10 ≤ p50 ≤ p90 ≤ best, and the same output for the same seed.
 func TestSpreadJSON(t *testing.T) {
 	out := runOK(t, "spread", "--samples", "400", "--format", "json")

@@ -15,7 +15,7 @@ import (
 
 // The checks here compare the pruned search with plain enumeration: every
 // candidate evaluated by discharge.Evaluate and judged by the constraints
-// as written in the issue, restated below without the search's code. The
+// as the command's help states them, restated below without the search's code. The
 // reference is the definition (brute force), not a number from memory.
 
 type bruteDesign struct {

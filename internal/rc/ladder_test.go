@@ -10,7 +10,7 @@ import (
 var testLadder = Ladder{{R: 75, Tau: 0.3}, {R: 175, Tau: 30}}
 
 // The step response of a Foster ladder is Zth(t)·P = Σ Rᵢ·P·(1 − e^(−t/τᵢ))
-// (DESIGN §7, thermal; JEDEC JESD51-14's network), to 1e-9 relative: the
+// (docs/references.md, thermal; JEDEC JESD51-14's network), to 1e-9 relative: the
 // same closed form written out by hand; rounding is ~1e-15.
 func TestLadderStepClosedForm(t *testing.T) {
 	p := 1.58
@@ -24,7 +24,7 @@ func TestLadderStepClosedForm(t *testing.T) {
 	if r := testLadder.R(); r != 250 {
 		t.Errorf("R = %g, want θ = 250 K/W", r)
 	}
-	// Zth tends to θ (DESIGN §7): after 100 slow time constants, within 1e-12.
+	// Zth tends to θ (docs/references.md): after 100 slow time constants, within 1e-12.
 	if z := testLadder.Z(3000); math.Abs(z-250) > 1e-9 {
 		t.Errorf("Z(3000 s) = %.12g, want θ = 250", z)
 	}
