@@ -217,15 +217,20 @@ func (e *evaluator) heatCutoff(v *variant, nd *node) float64 {
 // and the temperatures at the cut-off's edge jump with the operating
 // point), where they stopped would depend on where they started — on the
 // floor's last digits — and a higher floor could run longer. The cut-off
-// is then searched directly (heatScan).
+// is then searched directly (heatScan). A solve that found no settled
+// state (protect.Settled.OK false: runaway, or a heat that jumps with
+// temperature) leaves the temperatures where they were, which reads as
+// no move: it never counts as settled (it stopped the rounds at the
+// temperatures of wherever they started, the fresh pack's or the last
+// round's, and a higher floor ran 6 % longer).
 func (e *evaluator) heatSettle(v *variant, nd *node, q float64) float64 {
 	for range 4 {
-		if e.settle(v, q, nd) < 0.05 {
+		if e.settle(v, q, nd) < 0.05 && v.heat.st.OK {
 			return q
 		}
 		q = e.recut(v, nd, q)
 	}
-	if e.settle(v, q, nd) < 0.05 {
+	if e.settle(v, q, nd) < 0.05 && v.heat.st.OK {
 		return q
 	}
 	return e.heatScan(v, nd)
@@ -274,7 +279,9 @@ func (e *evaluator) heatScan(v *variant, nd *node) float64 {
 		save(last)
 		e.settle(v, q, nd)
 		if !s.st.OK {
+			ok := s.ok
 			load(last)
+			s.ok = ok // the warning stays
 		}
 		if q >= e.end {
 			s.cause, s.phase = CauseEndPoint, 0
