@@ -3,6 +3,8 @@ package curves
 import (
 	"fmt"
 	"math"
+	"slices"
+	"sync"
 
 	"headroom/internal/guard"
 	"headroom/internal/rc"
@@ -247,34 +249,114 @@ func (c *Cell) RateFactor(i float64) float64 {
 	if c.Peukert <= 1 || iref <= 0 || !(i > 0) {
 		return 1
 	}
-	cref := c.EndCharge(iref, RefTempC)
-	raw := func(j float64) float64 {
-		p := math.Pow(iref/j, c.Peukert-1)
-		q := c.EndCharge(j, RefTempC)
-		if !(q > 0) || !(cref > 0) {
-			return p
-		}
-		return math.Min(math.Max(p*cref/q, math.Min(1, p)), math.Max(1, p))
-	}
 	// Where the sag grows faster than Peukert asks, raw rises again
 	// towards 1 (no extra loss). The factor is the running minimum of raw
 	// on a grid of half-doublings from the light-load span, interpolated
 	// in log current between grid points: exact on the grid (Iref and
-	// 2·Iref among them), never rising with the current.
+	// 2·Iref among them), never rising with the current. The grid's raw
+	// values are the cell's alone: worked out once (rateGrids).
+	g := rateGrids.of(c)
+	g.mu.Lock()
+	defer g.mu.Unlock()
 	lo := iref / LightLoadSpan
 	if i <= lo {
-		return raw(lo)
+		return g.at(c, 0)
 	}
 	const step = math.Sqrt2
-	run := raw(lo)
-	for g := lo; ; g *= step {
-		next := math.Min(run, raw(g*step))
-		if i <= g*step {
-			w := math.Log(i/g) / math.Log(step)
+	run := g.at(c, 0)
+	x := lo
+	for k := 0; ; k++ {
+		next := math.Min(run, g.at(c, k+1))
+		if i <= x*step {
+			w := math.Log(i/x) / math.Log(step)
 			return run + w*(next-run)
 		}
 		run = next
+		x *= step
 	}
+}
+
+// rawRate is RateFactor's factor at current j before the running
+// minimum: Peukert's capacity over the sag's own, cref the capacity at
+// the reference current iref, held between 1 and (iref/j)^(k−1).
+func (c *Cell) rawRate(j, iref, cref float64) float64 {
+	p := math.Pow(iref/j, c.Peukert-1)
+	q := c.EndCharge(j, RefTempC)
+	if !(q > 0) || !(cref > 0) {
+		return p
+	}
+	return math.Min(math.Max(p*cref/q, math.Min(1, p)), math.Max(1, p))
+}
+
+// rateGrid is RateFactor's grid for one cell: rawRate at lo·√2ᵏ (lo the
+// light-load span's current), grown as higher currents ask for more,
+// with the inputs it was worked out from.
+type rateGrid struct {
+	mu   sync.Mutex
+	in   rateInputs
+	cref float64
+	x    float64   // the next grid current
+	raw  []float64 // rawRate at the grid's currents so far
+}
+
+// rateInputs are the cell's fields RateFactor reads (the curve's points
+// are never changed once made: its pointer stands for them).
+type rateInputs struct {
+	curve                                 *Curve
+	refCurrent, ratedCurrent, peukert, ep float64
+	res                                   []ResistancePoint
+	rc                                    []rc.Stage
+	temp                                  []TempPoint
+}
+
+func inputsOf(c *Cell) rateInputs {
+	return rateInputs{c.Curve, c.RefCurrent, c.RatedCurrent, c.Peukert, c.EndPoint, c.Resistance, c.RC, c.Temperature}
+}
+
+// same reports whether c still has the fields the grid was made from.
+func (in *rateInputs) same(c *Cell) bool {
+	return in.curve == c.Curve && in.refCurrent == c.RefCurrent && in.ratedCurrent == c.RatedCurrent &&
+		in.peukert == c.Peukert && in.ep == c.EndPoint && slices.Equal(in.res, c.Resistance) &&
+		slices.Equal(in.rc, c.RC) && slices.Equal(in.temp, c.Temperature)
+}
+
+// at is the grid's k-th value, working out those missing (g.mu held).
+func (g *rateGrid) at(c *Cell, k int) float64 {
+	for len(g.raw) <= k {
+		g.raw = append(g.raw, c.rawRate(g.x, c.rateRef(), g.cref))
+		g.x *= math.Sqrt2
+	}
+	return g.raw[k]
+}
+
+// rateGridCache holds the grids of the cells RateFactor has seen, at
+// most rateGridMax of them (then it starts afresh). A grid is used only
+// while the cell's fields equal the ones it was made from, so a cell
+// changed in place gets a new one.
+type rateGridCache struct {
+	mu sync.Mutex
+	m  map[*Cell]*rateGrid
+}
+
+const rateGridMax = 256
+
+var rateGrids = &rateGridCache{m: map[*Cell]*rateGrid{}}
+
+func (gc *rateGridCache) of(c *Cell) *rateGrid {
+	gc.mu.Lock()
+	defer gc.mu.Unlock()
+	if g, ok := gc.m[c]; ok && g.in.same(c) {
+		return g
+	}
+	if len(gc.m) >= rateGridMax {
+		clear(gc.m)
+	}
+	iref := c.rateRef()
+	in := inputsOf(c)
+	in.res, in.rc, in.temp = slices.Clone(in.res), slices.Clone(in.rc), slices.Clone(in.temp)
+	g := &rateGrid{in: in, cref: c.EndCharge(iref, RefTempC), x: iref / LightLoadSpan}
+	gc.m[c] = g
+	return g
 }
 
 // ColdFactor is the share of the charge the cold leaves at current i (A)

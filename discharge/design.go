@@ -66,7 +66,9 @@ func (d *Design) Validate() error {
 		what string
 		err  error
 	}
-	checks := []check{
+	// A fixed array, not a growing slice: Validate runs with every
+	// evaluation and should not allocate.
+	checks := [...]check{
 		{"series", CheckSeries(d.Series)},
 		{"parallel", CheckParallel(d.Parallel)},
 		{"floor", CheckFloor(d.Floor)},
@@ -78,9 +80,10 @@ func (d *Design) Validate() error {
 		{"maximum input voltage", CheckMaxInput(d.MaxInputV)},
 		{"minimum LED current", CheckLEDCurrent(d.MinLEDAmps)},
 		{"maximum LED current", CheckLEDCurrent(d.MaxLEDAmps)},
+		{"hours per day", nil},
 	}
 	if d.HoursPerDay != 0 {
-		checks = append(checks, check{"hours per day", CheckHoursPerDay(d.HoursPerDay)})
+		checks[len(checks)-1].err = CheckHoursPerDay(d.HoursPerDay)
 	}
 	switch {
 	case d.Cell == nil:

@@ -228,8 +228,10 @@ type node struct {
 
 func (e *evaluator) newNode() *node {
 	n := len(e.loads)
-	return &node{mean: make([]op, n), worst: make([]op, n), late: make([]float64, n), icell: make([]float64, n),
-		pol: newPolState(n), polI: make([]float64, n), polRest: math.NaN()}
+	ops := make([]op, 2*n)
+	f := make([]float64, 3*n)
+	return &node{mean: ops[:n:n], worst: ops[n:], late: f[:n:n], icell: f[n : 2*n : 2*n],
+		pol: newPolState(n), polI: f[2*n:], polRest: math.NaN()}
 }
 
 // maxPasses bounds the fixed-point passes per charge: a phase's current
@@ -312,9 +314,13 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		// the branches then only need its final current.
 		settled = change <= 1e-10 || failed
 		if !settled && len(e.loads) == 1 {
-			e.pol.state(nd.icell, irest, t, nd.pol)
-			copy(nd.polI, nd.icell)
-			nd.polRest, nd.polT = irest, t
+			// (A constant current comes back unchanged: the state just
+			// worked out, or kept from the last charge, is already its.)
+			if irest != nd.polRest || t != nd.polT || !slices.Equal(nd.icell, nd.polI) {
+				e.pol.state(nd.icell, irest, t, nd.pol)
+				copy(nd.polI, nd.icell)
+				nd.polRest, nd.polT = irest, t
+			}
 			settled = true
 		}
 	}

@@ -6,6 +6,8 @@ package discharge
 
 import (
 	"math"
+	"slices"
+	"sync"
 
 	"headroom/internal/rc"
 )
@@ -88,13 +90,105 @@ type polState struct {
 }
 
 func newPolState(n int) *polState {
-	return &polState{worst: make([]float64, n), mean: make([]float64, n), late: make([]float64, n), self: make([]float64, n), cand: make([]float64, 6*n)}
+	f := make([]float64, 10*n)
+	return &polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n:]}
 }
 
 // newPolarisation prepares the branches for phases of durations dur (s,
 // weights w), a daily session of hours h (0 or 24: continuous use) and a
 // cut-off delay (s, 0: none). stages carry R at the ambient.
+//
+// The branches' decay factors depend on nothing else, and a sweep
+// evaluates the same cell on the same profile many times: they are
+// worked out once per set of inputs (polMemo) and shared, read-only;
+// each call gets its own scratch and flags.
 func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *polarisation {
+	key := polKey(stages, dur, w, h, delay)
+	p := polMemo.find(key, stages, dur, w, h, delay)
+	if p == nil {
+		p = buildPolarisation(stages, dur, w, h, delay)
+		polMemo.keep(key, stages, dur, w, h, delay, p)
+	}
+	n := len(dur)
+	q := *p
+	q.w = w
+	f := make([]float64, 2*n)
+	q.vs, q.ve = f[:n:n], f[n:]
+	q.periodicOnly = false
+	return &q
+}
+
+// polInputs are the inputs one set of shared branches was built from.
+type polInputs struct {
+	stages   []rc.Stage
+	dur, w   []float64
+	h, delay float64
+	p        *polarisation // shared: its br and late are never written
+}
+
+// polCache keeps the branches of recent inputs, by a hash of their bits;
+// an entry is used only when every input is equal (no collision can
+// change a result). It holds at most polCacheMax entries, then starts
+// afresh: a sweep uses a few, a fuzzer many.
+type polCache struct {
+	mu sync.RWMutex
+	m  map[uint64][]polInputs
+	n  int
+}
+
+const polCacheMax = 512
+
+var polMemo = &polCache{m: map[uint64][]polInputs{}}
+
+// polKey hashes the inputs' bits (FNV-1a).
+func polKey(stages []rc.Stage, dur, w []float64, h, delay float64) uint64 {
+	x := uint64(14695981039346656037)
+	mix := func(f float64) {
+		x ^= math.Float64bits(f)
+		x *= 1099511628211
+	}
+	for _, st := range stages {
+		mix(st.R)
+		mix(st.Tau)
+	}
+	mix(float64(len(dur)))
+	for k := range dur {
+		mix(dur[k])
+		mix(w[k])
+	}
+	mix(h)
+	mix(delay)
+	return x
+}
+
+func (c *polCache) find(key uint64, stages []rc.Stage, dur, w []float64, h, delay float64) *polarisation {
+	c.mu.RLock()
+	defer c.mu.RUnlock()
+	for _, in := range c.m[key] {
+		if slices.Equal(in.stages, stages) && slices.Equal(in.dur, dur) && slices.Equal(in.w, w) &&
+			sameBits(in.h, h) && sameBits(in.delay, delay) {
+			return in.p
+		}
+	}
+	return nil
+}
+
+func (c *polCache) keep(key uint64, stages []rc.Stage, dur, w []float64, h, delay float64, p *polarisation) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.n >= polCacheMax {
+		clear(c.m)
+		c.n = 0
+	}
+	c.m[key] = append(c.m[key], polInputs{stages: slices.Clone(stages), dur: slices.Clone(dur), w: slices.Clone(w), h: h, delay: delay, p: p})
+	c.n++
+}
+
+// sameBits is equality that also holds for two NaNs of the same bits.
+func sameBits(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }
+
+// buildPolarisation is newPolarisation without the memo.
+func buildPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *polarisation {
 	n := len(dur)
 	p := &polarisation{w: w, late: make([]bool, n), vs: make([]float64, n), ve: make([]float64, n)}
 	tp := 0.0

@@ -4,6 +4,7 @@ package discharge
 
 import (
 	"math"
+	"slices"
 	"sort"
 
 	"gonum.org/v1/gonum/integrate/quad"
@@ -31,12 +32,16 @@ var gaussX, gaussW = func() ([]float64, []float64) {
 // table has a corner, sorted, from 0 to the curve's end.
 func breakpoints(c *curves.Cell) []float64 {
 	end := c.Curve.End()
-	b := []float64{0, end}
-	b = append(b, c.Curve.Charges()...)
+	b := make([]float64, 0, 2+c.Curve.Len()+len(c.Resistance))
+	b = append(b, 0, end)
+	for i := range c.Curve.Len() {
+		q, _ := c.Curve.Point(i)
+		b = append(b, q)
+	}
 	for _, r := range c.Resistance {
 		b = append(b, r.Depth*end)
 	}
-	sort.Float64s(b)
+	slices.Sort(b)
 	out := b[:0]
 	for _, x := range b {
 		if x < 0 || x > end || len(out) > 0 && x-out[len(out)-1] <= 1e-12*end {
@@ -251,12 +256,17 @@ type quadrature struct {
 	// bufs[d] holds the sampled rates of the span being judged at depth
 	// d of the halving: a span reads its own only until it recurses.
 	bufs [maxSplit + 2][]rates
+	buf0 [gaussN]rates // depth 0's, in place: most spans are never halved
 }
 
 // buf is the node buffer for depth d, made on first use.
 func (q *quadrature) buf(d int) []rates {
 	if q.bufs[d] == nil {
-		q.bufs[d] = make([]rates, len(q.e.gx))
+		if d == 0 && len(q.e.gx) <= len(q.buf0) {
+			q.bufs[0] = q.buf0[:len(q.e.gx)]
+		} else {
+			q.bufs[d] = make([]rates, len(q.e.gx))
+		}
 	}
 	return q.bufs[d]
 }
