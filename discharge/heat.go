@@ -246,7 +246,9 @@ func (e *evaluator) heatSettle(v *variant, nd *node, q float64) float64 {
 // the same steps until one fails where the other works, so a higher floor
 // never ends later. Where the junctions find no settled state at a charge
 // (the heat jumps with the operating point across a handover), they stay
-// where they last settled. The temperatures are left settled at the
+// where they last settled, and the search's steps past the result do not
+// raise the warning of a junction that does not settle (heatWarning): the
+// rounds before it do. The temperatures are left settled at the
 // result, where the run still works; the cause and phase of the last step
 // that failed are kept in cause and phase for the report, since at those
 // temperatures the run may go on a little past the result.
@@ -279,9 +281,7 @@ func (e *evaluator) heatScan(v *variant, nd *node) float64 {
 		save(last)
 		e.settle(v, q, nd)
 		if !s.st.OK {
-			ok := s.ok
 			load(last)
-			s.ok = ok // the warning stays
 		}
 		if q >= e.end {
 			s.cause, s.phase = CauseEndPoint, 0
