@@ -67,7 +67,12 @@ func (e *evaluator) narrow(v *variant, nd *node, lo, mlo, hi, mhi float64) float
 	side := 0
 	for k := 0; k < 200 && hi-lo > tol; k++ {
 		x := 0.5 * (lo + hi)
-		if mlo > 0 && mhi <= 0 {
+		// A failing end with no margin (a limiter's clamp taking the
+		// whole input with the floor at zero: 0 V above a 0 V floor) says
+		// nothing of where the failure starts: the step would land on hi
+		// every time and the bracket shrink by a quarter of tol a step.
+		// Bisect then.
+		if mlo > 0 && mhi < 0 {
 			x = lo + (hi-lo)*mlo/(mlo-mhi)
 			// Keep a little inside the bracket, so that it shrinks from
 			// both ends once the estimate is good.

@@ -225,6 +225,8 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		e.solveNode(past, real, nd)
 		if f, p, _ := e.judge(nd, real); f != "" {
 			fail, ph = f, p
+		} else if h := real.heat; h != nil && h.cause != "" {
+			fail, ph = h.cause, h.phase // the junctions' search (heatScan)
 		}
 	}
 	r.CutoffCause = fail

@@ -131,6 +131,7 @@ func fuzzDesign(cell, s, p, kind uint8, knob float64, n uint8, ks [3]uint8, as, 
 		if d.HoursPerDay == 0 {
 			d.HoursPerDay = 24
 		}
+		d.HoursPerDay = math.Max(d.HoursPerDay, 1.0/3600) // Validate: at least 1 s a day
 	}
 	if sb := frac(standby); sb >= 0.5 {
 		d.Standby = logSpan(2*(sb-0.5), 1e-7, 0.01)

@@ -40,6 +40,12 @@ type heat struct {
 	scratch2, scratch3 []float64
 	// fresh is each phase's heat with the fresh pack, W (freshHeat).
 	fresh []float64
+	// cause and phase are why and where the run failed at the last
+	// failing step of heatScan ("" when it has not run): with the
+	// junctions settled at the cut-off itself the run may still work
+	// just past it.
+	cause Cause
+	phase int
 	// still is set when the temperatures cannot move with charge:
 	// every phase a constant current behind an element whose drop and
 	// drain ignore the pack's voltage (evaluator.linear). One solve, with
@@ -193,25 +199,157 @@ func (e *evaluator) heatOf(o op, v *variant, t float64) float64 {
 }
 
 // heatCutoff finds the cut-off of the real variant with its junctions at
-// the temperatures their own heat sets there: the cut-off at the current
-// temperatures, then the temperatures at that cut-off, until they move by
-// less than 0.05 °C (a drop's temperature slope of 2 mV/°C makes that
-// 0.1 mV; each round takes the change down some thirtyfold on a constant-
-// power load, the hardest case), at most four rounds. The temperatures
-// move a little between rounds, and the cut-off with them: each new search
-// starts at the last cut-off and brackets the new one nearby (recut).
+// the temperatures their own heat sets there (heatSettle), from the
+// cut-off at the current temperatures.
 func (e *evaluator) heatCutoff(v *variant, nd *node) float64 {
 	q := e.cutoff(v, nd, 0)
 	if v.heat == nil || v.heat.still {
 		return q
 	}
+	return e.heatSettle(v, nd, q)
+}
+
+// heatSettle moves cut-off q of variant v, found at its junctions' current
+// temperatures, to where the junctions are at the temperatures their own
+// heat sets there: the temperatures at the cut-off, then the cut-off at
+// those temperatures, until they move by less than 0.05 °C (a drop's
+// temperature slope of 2 mV/°C makes that 0.1 mV; each round takes the
+// change down some thirtyfold on a constant-power load, the hardest
+// case), at most four rounds and a check. The temperatures move a little
+// between rounds, and the cut-off with them: each new search starts at the
+// last cut-off and brackets the new one nearby (recut).
+//
+// Where the rounds do not settle (a MOSFET near its handover to the body
+// diode: a warmer junction conducts better, runs longer and warms further,
+// and the temperatures at the cut-off's edge jump with the operating
+// point), where they stopped would depend on where they started — on the
+// floor's last digits — and a higher floor could run longer. The cut-off
+// is then searched directly (heatScan). A solve that found no settled
+// state (protect.Settled.OK false: runaway, or a heat that jumps with
+// temperature) leaves the temperatures where they were, which reads as
+// no move: it never counts as settled (it stopped the rounds at the
+// temperatures of wherever they started, the fresh pack's or the last
+// round's, and a higher floor ran 6 % longer).
+func (e *evaluator) heatSettle(v *variant, nd *node, q float64) float64 {
 	for range 4 {
-		if e.settle(v, q, nd) < 0.05 {
-			break
+		if e.settle(v, q, nd) < 0.05 && v.heat.st.OK {
+			return q
 		}
 		q = e.recut(v, nd, q)
 	}
-	return q
+	if e.settle(v, q, nd) < 0.05 && v.heat.st.OK {
+		return q
+	}
+	return e.heatScan(v, nd)
+}
+
+// heatScan returns the first charge at which variant v fails with its
+// junctions at the temperatures settled at that same charge: the
+// breakpoints in order, then the first span that fails in 64 steps, then
+// bisection of the first step that fails, to 1e-12 of the curve. Each step
+// settles the junctions (several solves), so it is kept for the runs whose
+// rounds do not settle. Its steps depend only on whether v works, never
+// on how much margin it has: two runs that differ only in their floor take
+// the same steps until one fails where the other works, so a higher floor
+// never ends later. Where the junctions find no settled state at a charge
+// (the heat jumps with the operating point across a handover), they stay
+// where they last settled, and the search's steps past the result do not
+// raise the warning of a junction that does not settle (heatWarning): the
+// rounds before it do. The temperatures are left settled at the
+// result, where the run still works; the cause and phase of the last step
+// that failed are kept in cause and phase for the report, since at those
+// temperatures the run may go on a little past the result.
+func (e *evaluator) heatScan(v *variant, nd *node) float64 {
+	s := v.heat
+	type state struct {
+		tj, p []float64
+		els   []protect.Element
+		st    protect.Settled
+		ok    bool
+	}
+	n := len(s.tj)
+	mk := func() *state {
+		return &state{tj: make([]float64, n), p: make([]float64, n), els: make([]protect.Element, n)}
+	}
+	save := func(x *state) {
+		copy(x.tj, s.tj)
+		copy(x.p, s.p)
+		copy(x.els, s.els)
+		x.st, x.ok = s.st, s.ok
+	}
+	load := func(x *state) {
+		copy(s.tj, x.tj)
+		copy(s.p, x.p)
+		copy(s.els, x.els)
+		s.st, s.ok = x.st, x.ok
+	}
+	last, at := mk(), mk()
+	works := func(q float64) bool {
+		save(last)
+		e.settle(v, q, nd)
+		if !s.st.OK {
+			load(last)
+		}
+		if q >= e.end {
+			s.cause, s.phase = CauseEndPoint, 0
+			return false
+		}
+		e.solveNode(q, v, nd)
+		f, k, _ := e.judge(nd, v)
+		if f != "" {
+			s.cause, s.phase = f, k
+		}
+		return f == ""
+	}
+	s.cause = ""
+	if !works(0) {
+		return 0
+	}
+	lo, hi := 0.0, e.end
+	found := false
+	for _, b := range e.breaks[1:] {
+		if works(b) {
+			lo = b
+			continue
+		}
+		hi, found = b, true
+		break
+	}
+	if !found {
+		return lo
+	}
+	// The run may fail and work again within the span (the junctions
+	// settle on either side of a handover): the span is stepped in 64ths
+	// before the bisection, so that the search lands near the first
+	// failure rather than on whichever the halving meets.
+	const steps = 64
+	for j, a := 1, lo; j < steps; j++ {
+		x := a + (hi-a)*float64(j)/steps
+		if !works(x) {
+			hi = x
+			break
+		}
+		lo = x
+	}
+	tol := 1e-12 * e.end
+	for k := 0; k < 200 && hi-lo > tol; k++ {
+		x := 0.5 * (lo + hi)
+		if !(x > lo && x < hi) {
+			break
+		}
+		if works(x) {
+			lo = x
+		} else {
+			hi = x
+		}
+	}
+	cause, phase := s.cause, s.phase
+	save(at)
+	if !works(lo) {
+		load(at) // the path's state, as the search found it
+	}
+	s.cause, s.phase = cause, phase
+	return lo
 }
 
 // recut finds the first failure of v near q, its cut-off before the

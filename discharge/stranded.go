@@ -66,12 +66,7 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 		// from a nearer start).
 		qsE0 = e.cutoff(&noFloor, nd, qsCut)
 		if h := noFloor.heat; h != nil && !h.still {
-			for range 4 {
-				if e.settle(&noFloor, qsE0, nd) < 0.05 {
-					break
-				}
-				qsE0 = e.recut(&noFloor, nd, qsE0)
-			}
+			qsE0 = e.heatSettle(&noFloor, nd, qsE0)
 		}
 	}
 	if !none {

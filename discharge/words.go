@@ -99,3 +99,14 @@ func (p Phase) Demand() float64 {
 	}
 	return 0
 }
+
+// CalendarText is how long the product lasts on the calendar at its daily
+// use: "10.2 days", or "within the first day" when it stops before one
+// day's use is over (49 min of use at 1 h a day is not "19.6 h" of
+// calendar time: it stops 49 min into the first session).
+func (d *Design) CalendarText(r *Result) string {
+	if d.HoursPerDay > 0 && r.RuntimeH > 0 && r.RuntimeH < d.HoursPerDay {
+		return "within the first day"
+	}
+	return units.Duration(24*r.RuntimeDays, 3)
+}

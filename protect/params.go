@@ -483,5 +483,27 @@ func Short(e Element) string {
 			keep[i] = true
 		}
 	}
+	// A key that the others derive exactly is left out too
+	// ("pptc:hold=1.1A", not "pptc:r=105.15847704228555mohm,hold=1.1A,...").
+	same := func() bool {
+		b, err := parse(short())
+		if err != nil {
+			return false
+		}
+		for i, f := range b.fields() {
+			if *f.p != *fs[i].p {
+				return false
+			}
+		}
+		return true
+	}
+	for i := range keep {
+		if keep[i] {
+			keep[i] = false
+			if !same() {
+				keep[i] = true
+			}
+		}
+	}
 	return short()
 }

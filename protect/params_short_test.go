@@ -24,3 +24,24 @@ func TestShortRoundTrips(t *testing.T) {
 		}
 	}
 }
+
+// A value the others derive exactly is not written: a polyfuse given only
+// its hold reads back as just its hold, not with a 17-digit resistance and
+// a trip that the hold sets anyway (pick's ladder showed
+// "pptc:r=105.15847704228555mohm,hold=1.1A,trip=2.2A").
+func TestShortLeavesOutDerivedKeys(t *testing.T) {
+	for spec, want := range map[string]string{
+		"pptc:hold=1.1":          "pptc:hold=1.1A",
+		"pptc:hold=0.5":          "pptc:hold=500mA",
+		"pptc:hold=0.5,trip=1.5": "pptc:hold=500mA,trip=1.5A",
+		"crowbar:fuse=1":         "crowbar:fuse=1A",
+	} {
+		e, err := Parse(spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := Short(e); got != want {
+			t.Errorf("Short(%s) = %q, want %q", spec, got, want)
+		}
+	}
+}

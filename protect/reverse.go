@@ -87,9 +87,19 @@ func appendHeat(w []string, t Thermal, op Operating) []string {
 	if tj == 0 {
 		tj, where = t.Junction(op.PeakW, op.TempC), "at the peak "+units.Human(op.PeakW, units.Power, 3)
 	}
-	if tj > t.TjMax {
+	switch {
+	case tj > t.TjMax:
 		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" "+where+", above its "+
 			units.Human(t.TjMax, units.Temperature, 3)+" limit: use a bigger package or more copper")
+	case tj > t.TjMax-tjMargin:
+		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" "+where+", within "+
+			units.Human(tjMargin, units.Temperature, 2)+" of its "+units.Human(t.TjMax, units.Temperature, 3)+
+			" limit: a hot day or a weaker part takes it over; use a bigger package or more copper")
 	}
 	return w
 }
+
+// tjMargin is the headroom under TjMax below which a junction is warned
+// about: designers keep a junction some 20 °C under its rating for hot
+// ambients and part spread (common practice, from memory).
+const tjMargin = 20.0

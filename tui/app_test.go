@@ -80,7 +80,7 @@ func mustResult(t *testing.T, m Model) float64 {
 
 func TestDemoOpensWithRuntime(t *testing.T) {
 	tm := startTest(t, New(nil), 120, 40)
-	waitText(t, tm, "Tumble Pup", "Runtime", "h of use", "Stops because")
+	waitText(t, tm, "Tumble Pup", "Runtime", "h of use", "Cut-off")
 	m := finish(t, tm)
 	h := mustResult(t, m)
 	if !(h > 0) {

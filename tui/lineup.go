@@ -106,7 +106,7 @@ func (m lineupModel) View(sh *shared) string {
 			maxRun = math.Max(maxRun, r.res.RuntimeH)
 		}
 	}
-	const cellW, runW, barW, costW, strW = 30, 9, 12, 10, 9
+	const cellW, runW, barW, costW, strW = 30, runtimeW, 12, 10, 9
 	causeW := max(0, w-(5+cellW+1+runW+1+barW+1+costW+1+strW+1))
 	head := "   # " + pad("Cell", cellW) + " " + pad("Runtime", runW+1+barW) + " " +
 		pad("Cost/hour", costW) + " " + pad("Stranded", strW) + " " + pad("Stops because", causeW)

@@ -244,7 +244,7 @@ func (m pickModel) View(sh *shared) string {
 		}
 		return strings.TrimRight(b.String(), "\n")
 	}
-	const packW, costW, runW, strW, revW = 16, 7, 8, 8, 12
+	const packW, costW, runW, strW, revW = 16, 7, runtimeW, 8, 12
 	protW := max(10, w-(6+packW+1+costW+1+runW+1+strW+1+revW))
 	b.WriteString(st.Label.Render(pad("   # "+pad("Pack", packW)+" "+pad("Protection", protW)+" "+pad("Cost", costW)+" "+
 		pad("Runtime", runW)+" "+pad("Stranded", strW)+" "+"Reversed", w)) + "\n")

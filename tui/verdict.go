@@ -47,11 +47,12 @@ func (m verdictModel) View(sh *shared) string {
 		b.WriteString(s + "\n")
 	}
 	_, started := r.StrandedShare()
+	cal := (&discharge.Design{HoursPerDay: sh.vals.hours}).CalendarText(r)
 	if m.compact {
-		line("Runtime", hours(r.RuntimeH), "of use ("+days(r.RuntimeDays)+")")
+		line("Runtime", hours(r.RuntimeH), "of use ("+cal+")")
 	} else {
 		line("Runtime", hours(r.RuntimeH), "of use")
-		line("", days(r.RuntimeDays), fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
+		line("", cal, fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
 	}
 	sh.spreadVerdict(line)
 	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
@@ -100,7 +101,7 @@ func (m notesModel) View(sh *shared) string {
 	}
 	r := sh.res
 	var b strings.Builder
-	b.WriteString(st.Label.Render("Stops because ") + st.Value.Render(wrapAfter(cutoffWords(r, sh.profile(), sh.vals.floor), w, 14)) + "\n")
+	b.WriteString(st.Label.Render("Cut-off       ") + st.Value.Render(wrapAfter(cutoffWords(r, sh.profile(), sh.vals.floor), w, 14)) + "\n")
 	if m.compact {
 		n := len(dedupeStrings(r.Cautions))
 		s := plural(n, "caution", "cautions") + ": press w to read them"
@@ -184,7 +185,9 @@ func profileLabel(prof []discharge.Phase) string {
 // formatter (internal/units, eng.go).
 func hours(h float64) string { return units.Duration(h, 3) }
 
-func days(d float64) string { return units.Duration(d*24, 3) }
+// runtimeW is the width of a runtime column: the longest hours() writes,
+// "23.9 months" (a column of 8 cut "83.9 days" to "83.9 da…").
+const runtimeW = 11
 
 func mah(q float64) string { return units.MAh(q, 3) }
 

@@ -222,7 +222,7 @@ func cellsCheck(c *cli, args []string) error {
 	q1, v1 := cell.Curve.Point(n - 1)
 	thinned := ""
 	if t := cell.Thinned; t != nil {
-		thinned = fmt.Sprintf(" (thinned on load from %d, none dropped more than %s off)", t.From, human(t.ErrV, units.Voltage))
+		thinned = " (thinned on load " + thinnedWords(t.From, t.ErrV) + ")"
 	}
 	_, err = fmt.Fprintf(c.stdout, "ok: %s: cell %q, %d points%s from %s to %s mAh, %s V down to %s V; end-point %s V, rated %s mAh, nominal %s V\n",
 		guard.Clean(pos[0]), cell.ID, n, thinned, sig(q0, 4), sig(q1, 4), fixed(v0, 3), fixed(v1, 3), short(cell.EndPoint), sig(cell.RatedMAh, 4), short(cell.NominalV))
@@ -278,9 +278,20 @@ func cellsImport(c *cli, args []string) error {
 	q, v := cell.Curve.Point(cell.Curve.Len() - 1)
 	thinned := ""
 	if t := cell.Thinned; t != nil {
-		thinned = fmt.Sprintf(" (thinned from %d, none dropped more than %s off)", t.From, human(t.ErrV, units.Voltage))
+		thinned = " (thinned " + thinnedWords(t.From, t.ErrV) + ")"
 	}
 	_, err = fmt.Fprintf(c.stdout, "wrote %s: %d points%s, %s mAh at %s down to %s V\n",
 		guard.Clean(*out), cell.Curve.Len(), thinned, sig(q, 4), human(amps, units.Current), fixed(v, 3))
 	return err
+}
+
+// thinnedWords says how a curve was thinned: "from 6, none dropped more
+// than 2 mV off", or, when every point left out lay on the line between
+// its neighbours kept, "from 6, the points left out on the line between
+// those kept" (not "more than 0 V off").
+func thinnedWords(from int, errV float64) string {
+	if errV < 0.5e-6 {
+		return fmt.Sprintf("from %d, the points left out on the line between those kept", from)
+	}
+	return fmt.Sprintf("from %d, none dropped more than %s off", from, human(errV, units.Voltage))
 }

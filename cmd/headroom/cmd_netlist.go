@@ -4,10 +4,12 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"regexp"
 
 	"headroom/discharge"
 	"headroom/internal/scenario"
 	"headroom/internal/spicenet"
+	"headroom/protect"
 )
 
 var netlistCmd = &command{
@@ -104,8 +106,17 @@ func netlistFor(s *scenario.Scenario) (net, note string, err error) {
 	}
 	// The span: past the engine's cut-off by a fifth, and at least one
 	// cycle of a pulsed profile past it, so the crossing falls inside.
-	stop := 1.2*r.RuntimeH + spicenet.Period(&d)
-	net, err = spicenet.Export(&d, spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: stop, Steps: steps(r.RuntimeH, &d)}, r.RuntimeH, title)
+	// The circuit's element stays at the ambient temperature; a part that
+	// heat slows in headroom runs longer there, so the span covers the
+	// runtime on an ideal heat sink too (else tfloor falls outside it).
+	span := r.RuntimeH
+	if cold, ok := onHeatSink(d); ok {
+		if rc, err := discharge.Evaluate(&cold); err == nil && rc.RuntimeH > span {
+			span = rc.RuntimeH
+		}
+	}
+	stop := 1.2*span + spicenet.Period(&d)
+	net, err = spicenet.Export(&d, spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: stop, Steps: steps(span, &d)}, r.RuntimeH, title)
 	if err != nil {
 		return "", "", fmt.Errorf("netlist: %w", err)
 	}
@@ -120,4 +131,24 @@ func steps(runtimeH float64, d *discharge.Design) int {
 		n = math.Max(n, 8*float64(len(d.Profile))*runtimeH/p)
 	}
 	return int(math.Min(n, 2e6))
+}
+
+var (
+	thetaRE  = regexp.MustCompile(`\btheta=[^,]*`)
+	thetafRE = regexp.MustCompile(`,thetaf=[^,]*`) // left out: theta=0 takes it to 0
+)
+
+// onHeatSink returns the design with its element's theta set to 0 (an
+// ideal heat sink), or false when the element has no theta.
+func onHeatSink(d discharge.Design) (discharge.Design, bool) {
+	if d.Protect == nil || !thetaRE.MatchString(d.Protect.Spec()) {
+		return d, false
+	}
+	spec := thetafRE.ReplaceAllString(d.Protect.Spec(), "")
+	e, err := protect.Parse(thetaRE.ReplaceAllString(spec, "theta=0"))
+	if err != nil {
+		return d, false
+	}
+	d.Protect = e
+	return d, true
 }

@@ -116,7 +116,7 @@ func runPlot(c *cli, args []string) error {
 		}
 		return err
 	}
-	_, err = fmt.Fprintf(c.stdout, "wrote %s: %d protection options, %s\n", *out, len(s.Protects), strings.ToLower(*by))
+	_, err = fmt.Fprintf(c.stdout, "wrote %s: %s\n", *out, plotWords(len(s.Protects), byCharge))
 	return err
 }
 
@@ -234,4 +234,17 @@ func chart(s *scenario.Scenario, byCharge bool, ext string) ([]byte, error) {
 		return nil, fmt.Errorf("plot: %w", err)
 	}
 	return b.Bytes(), nil
+}
+
+// plotWords says what the chart drew: "1 protection option, voltage
+// against hours of use".
+func plotWords(n int, byCharge bool) string {
+	s := fmt.Sprintf("%d protection options", n)
+	if n == 1 {
+		s = "1 protection option"
+	}
+	if byCharge {
+		return s + ", voltage against the charge drawn"
+	}
+	return s + ", voltage against hours of use"
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"errors"
+	"flag"
 	"fmt"
 	"html/template"
 	"path/filepath"
@@ -12,6 +13,7 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
+	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -41,7 +43,7 @@ Files are written whole or not at all; an existing file is kept unless
 
 flags:
 ` + designFlagHelp() + `  -o FILE                         the report to write
-  --format html|md                the report's format (default html)
+  --format html|md                the report's format (default html; md when -o ends in .md)
   --force                         replace existing files
 
 examples:
@@ -74,6 +76,18 @@ func runReport(c *cli, args []string) error {
 		md = true
 	default:
 		return fmt.Errorf("--format: %q is not a report format: expected html or md", *formatFlag)
+	}
+	// A name ending in .md asks for Markdown; a format given that
+	// contradicts the name is refused rather than written under it.
+	given := false
+	fs.Visit(func(f *flag.Flag) { given = given || f.Name == "format" })
+	switch ext := strings.ToLower(filepath.Ext(*out)); {
+	case !given && (ext == ".md" || ext == ".markdown"):
+		md = true
+	case given && md && (ext == ".html" || ext == ".htm"):
+		return fmt.Errorf("-o: %s: --format md writes Markdown: name the file .md", guard.Clean(*out))
+	case given && !md && (ext == ".md" || ext == ".markdown"):
+		return fmt.Errorf("-o: %s: --format html writes HTML: name the file .html, or give --format md", guard.Clean(*out))
 	}
 	s, err := loadScenario(pos)
 	if err != nil {
@@ -271,7 +285,7 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 // summaryText is the verdict in the words run's text output uses.
 func summaryText(d *discharge.Design, r *discharge.Result) string {
 	var b strings.Builder
-	days := units.Duration(24*r.RuntimeDays, 3)
+	days := d.CalendarText(r)
 	if d.HoursPerDay > 0 {
 		days += " at " + short(d.HoursPerDay) + " h a day"
 	}
@@ -301,7 +315,7 @@ func caseWords(c protect.Case) string {
 		s += ", " + human(c.Current, units.Current)
 	}
 	if c.Seconds > 0 {
-		s += " for " + short(c.Seconds) + " s"
+		s += " for " + human(c.Seconds, units.Time)
 	}
 	return s
 }
@@ -426,6 +440,8 @@ h1 { font-size: 1.5rem; margin-bottom: .2rem; }
 h2 { font-size: 1.15rem; border-bottom: 1px solid #bbb; margin-top: 1.6rem; }
 table { border-collapse: collapse; width: 100%; margin: .4rem 0; }
 th, td { text-align: left; padding: .2rem .5rem; border-bottom: 1px solid #e2e2e2; vertical-align: top; }
+th { white-space: nowrap; }
+td { overflow-wrap: anywhere; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
 tr.this { background: #eef4fa; font-weight: 600; }
 .job { color: #444; }

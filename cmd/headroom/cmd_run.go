@@ -197,7 +197,7 @@ func loadWords(d *discharge.Design) string {
 	}
 	var parts []string
 	for _, p := range d.Profile {
-		t := trimZeros(p.Load.Label()) + " for " + short(p.Seconds) + " s"
+		t := trimZeros(p.Load.Label()) + " for " + human(p.Seconds, units.Time)
 		if p.Name != "" {
 			t = p.Name + " " + t
 		}
@@ -246,7 +246,11 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	b.WriteByte('\n')
 
 	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
-		line("runtime", "%s of use = %s at %s h a day", units.Duration(r.RuntimeH, 3), units.Duration(24*r.RuntimeDays, 3), short(d.HoursPerDay))
+		sep := " = "
+		if r.RuntimeH > 0 && r.RuntimeH < d.HoursPerDay {
+			sep = ", " // "49.0 min of use, within the first day"
+		}
+		line("runtime", "%s of use%s%s at %s h a day", units.Duration(r.RuntimeH, 3), sep, d.CalendarText(r), short(d.HoursPerDay))
 	} else {
 		line("runtime", "%s of continuous use", units.Duration(r.RuntimeH, 3))
 	}

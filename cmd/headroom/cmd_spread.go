@@ -9,6 +9,7 @@ import (
 
 	"headroom/discharge"
 	"headroom/internal/scenario"
+	"headroom/internal/units"
 	"headroom/tolerance"
 )
 
@@ -221,12 +222,13 @@ func tolText(tols []tolerance.Tol, name string) string {
 	return ""
 }
 
-// hoursWords is a runtime for people: "6.2 h", "0 h (does not start)".
+// hoursWords is a runtime for people: "6.2 h", "43.9 min", "0 h (does not
+// start)".
 func hoursWords(h float64) string {
 	if h == 0 {
 		return "0 h (does not start)"
 	}
-	return sig(h, 3) + " h"
+	return units.Duration(h, 3)
 }
 
 // spreadText writes the spread block: the three runtimes, the quantiles,
@@ -236,11 +238,11 @@ func spreadText(b *bytes.Buffer, s *scenario.Scenario, rep *tolerance.Report) {
 	line := func(k, format string, a ...any) { fmt.Fprintf(b, "%-10s %s\n", k, fmt.Sprintf(format, a...)) }
 	line("nominal", "%s of use", hoursWords(c.NominalH()))
 	if st.P10H > 0 {
-		line("p10", "at least %s h in 9 of 10 products", sig(st.P10H, 3))
+		line("p10", "at least %s in 9 of 10 products", units.Duration(st.P10H, 3))
 	} else {
 		line("p10", "0 h: more than 1 product in 10 does not start")
 	}
-	line("spread", "p10 %s h, p50 %s h, p90 %s h (%d samples, seed %d, Latin hypercube)", sig(st.P10H, 3), sig(st.P50H, 3), sig(st.P90H, 3), st.Samples, st.Seed)
+	line("spread", "p10 %s, p50 %s, p90 %s (%d samples, seed %d, Latin hypercube)", units.Duration(st.P10H, 3), units.Duration(st.P50H, 3), units.Duration(st.P90H, 3), st.Samples, st.Seed)
 	line("delivered", "p10 %s, p50 %s, p90 %s", mAh(st.P10MAh), mAh(st.P50MAh), mAh(st.P90MAh))
 	line("worst", "%s: every tolerance at the limit that shortens the runtime", hoursWords(c.WorstH()))
 	line("best", "%s: every tolerance at the other limit", hoursWords(c.BestH()))

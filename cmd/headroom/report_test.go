@@ -294,3 +294,31 @@ func TestNetlistRunsInNgspice(t *testing.T) {
 		})
 	}
 }
+
+// A protection spec with every parameter spelled out is one long word; the
+// table cells must be allowed to break it, or it runs off the page (it did,
+// in the demo's report, at a 900 px window and on A4).
+func TestReportCellsWrapLongSpecs(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "r.html")
+	if code, _, errs := runCLI(t, "report", "-o", out); code != 0 {
+		t.Fatal(errs)
+	}
+	page, _ := os.ReadFile(out)
+	var css string
+	walk(parseHTML(t, page), func(n *html.Node) {
+		if n.Type == html.ElementNode && n.Data == "style" {
+			css += text(n)
+		}
+	})
+	found := false
+	for _, rule := range strings.Split(css, "}") {
+		sel, body, ok := strings.Cut(rule, "{")
+		if ok && strings.Contains(sel, "td") && strings.Contains(body, "overflow-wrap: anywhere") {
+			found = true
+		}
+	}
+	if !found {
+		t.Error("no style rule lets a table cell break a long word (overflow-wrap: anywhere)")
+	}
+}

@@ -161,7 +161,7 @@ const (
 )
 
 // Duration writes a span of hours in the unit that suits it, with about
-// sig significant digits: "12.0 s", "45.0 min", "6.20 h", "115 days",
+// sig significant digits: "5.00 ms", "12.0 s", "45.0 min", "6.20 h", "115 days",
 // "14.0 months", "6.91 years". Hours are kept below 100 h, days below a
 // year and months below two years.
 func Duration(hours float64, sig int) string {
@@ -172,6 +172,8 @@ func Duration(hours float64, sig int) string {
 	switch {
 	case a == 0:
 		return "0 h"
+	case a < 1.0/3600: // under a second: "5.00 ms", not "0.00500 s"
+		return Prefixed(hours*3600, sig, "s")
 	case a < 1.0/60:
 		return Num(hours*3600, sig) + " s"
 	case a < 1:

@@ -43,7 +43,7 @@ func TestEngAwkwardValues(t *testing.T) {
 		{math.NaN(), Voltage, 3, "—"},
 		{math.Inf(-1), Current, 3, "—"},
 		{90, Time, 2, "1.5 min"},
-		{0.5, Time, 2, "0.50 s"},
+		{0.5, Time, 2, "500 ms"},
 	}
 	for _, c := range cases {
 		if got := Eng(c.v, c.k, c.sig); got != c.want {
@@ -82,11 +82,16 @@ func TestNumMAhDollarsDuration(t *testing.T) {
 		{Dollars(-0.05), "-$0.050"},
 		{Dollars(1e9), "$1000000000.00"},
 		{Duration(6.2009, 3), "6.20 h"},
+		// A 5 ms radio burst was written "0.00500 s"; under a second
+		// takes an SI prefix (BIPM 2019 §3), at one second plain seconds.
+		{Duration(0.005/3600, 3), "5.00 ms"},
+		{Duration(0.995/3600, 3), "995 ms"},
+		{Duration(1.0/3600, 3), "1.00 s"},
 		{Duration(0.75, 2), "45 min"},
 		{Duration(2768, 3), "115 days"},
 		{Duration(60565, 3), "6.91 years"},
 		{Duration(24*500, 2), "16 months"},
-		{Duration(1e-6, 2), "0.0036 s"},
+		{Duration(1e-6, 2), "3.6 ms"},
 		{Duration(negZero, 3), "0 h"},
 		{Short(1.8, 4), "1.8"},
 		{Short(20, 4), "20"},
