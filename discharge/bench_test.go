@@ -24,7 +24,7 @@ func benchDesign(b *testing.B, load string) *Design {
 }
 
 // BenchmarkEvaluateConstant: 2×LR6 behind a series diode, one constant
-// current. Goal (issue): median ≤ 20 µs per evaluation.
+// current. Goal: median ≤ 10 µs per evaluation (not met: about 17–20 µs, README §Performance).
 func BenchmarkEvaluateConstant(b *testing.B) {
 	d := benchDesign(b, "120mA")
 	b.ReportAllocs()
@@ -36,7 +36,7 @@ func BenchmarkEvaluateConstant(b *testing.B) {
 }
 
 // BenchmarkEvaluatePulsed: the same pack on a three-phase toy profile.
-// Goal (issue): median ≤ 100 µs per evaluation.
+// Goal: median ≤ 25 µs per evaluation (not met: about 30–37 µs, README §Performance).
 func BenchmarkEvaluatePulsed(b *testing.B) {
 	d := benchDesign(b, "450mA/3s,120mA/2s,15mA/25s")
 	b.ReportAllocs()
