@@ -269,10 +269,7 @@ func cellsImport(c *cli, args []string) error {
 	if err := curves.WriteCSV(&b, cell); err != nil {
 		return fmt.Errorf("%s: %w", *out, err)
 	}
-	if err := scenario.WriteFile(*out, b.Bytes(), *force); err != nil {
-		if errors.Is(err, scenario.ErrExists) {
-			return fmt.Errorf("-o: %s exists: add --force to replace it", *out)
-		}
+	if err := writeOutput("-o", *out, b.Bytes(), *force); err != nil {
 		return err
 	}
 	q, v := cell.Curve.Point(cell.Curve.Len() - 1)

@@ -71,11 +71,8 @@ func runNetlist(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := scenario.WriteFile(*out, []byte(net), *force); err != nil {
-		if errors.Is(err, scenario.ErrExists) {
-			return fmt.Errorf("-o: %s exists: add --force to replace it", *out)
-		}
-		return fmt.Errorf("-o: %w", err)
+	if err := writeOutput("-o", *out, []byte(net), *force); err != nil {
+		return err
 	}
 	if note != "" {
 		fmt.Fprintf(c.stderr, "headroom: note: %s\n", note)

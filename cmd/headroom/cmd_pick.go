@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -189,10 +188,7 @@ func runPick(c *cli, args []string) error {
 		if err != nil {
 			return err
 		}
-		if err := scenario.WriteFile(*plotTo, data, *force); err != nil {
-			if errors.Is(err, scenario.ErrExists) {
-				return fmt.Errorf("--plot: %s exists: add --force to replace it", *plotTo)
-			}
+		if err := writeOutput("--plot", *plotTo, data, *force); err != nil {
 			return err
 		}
 	}

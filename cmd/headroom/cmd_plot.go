@@ -110,10 +110,7 @@ func runPlot(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := scenario.WriteFile(*out, data, *force); err != nil {
-		if errors.Is(err, scenario.ErrExists) {
-			return fmt.Errorf("-o: %s exists: add --force to replace it", *out)
-		}
+	if err := writeOutput("-o", *out, data, *force); err != nil {
 		return err
 	}
 	_, err = fmt.Fprintf(c.stdout, "wrote %s: %s\n", *out, plotWords(len(s.Protects), byCharge))

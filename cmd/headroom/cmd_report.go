@@ -101,15 +101,7 @@ func runReport(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
-	write := func(path string, data []byte) error {
-		if err := scenario.WriteFile(path, data, *force); err != nil {
-			if errors.Is(err, scenario.ErrExists) {
-				return fmt.Errorf("-o: %s exists: add --force to replace it", path)
-			}
-			return fmt.Errorf("-o: %w", err)
-		}
-		return nil
-	}
+	write := func(path string, data []byte) error { return writeOutput("-o", path, data, *force) }
 	if md {
 		chartPath := strings.TrimSuffix(*out, filepath.Ext(*out)) + "-chart.svg"
 		text := rep.markdown(filepath.Base(chartPath))

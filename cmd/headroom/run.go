@@ -380,3 +380,16 @@ func loadScenario(pos []string) (*scenario.Scenario, error) {
 // oneLine puts a message on one line fit for a terminal: a file name or a
 // value quoted in it may hold control characters.
 func oneLine(s string) string { return strings.Join(strings.Fields(guard.Clean(s)), " ") }
+
+// writeOutput writes data to path for the flag that named it, atomically
+// (scenario.WriteFile), never over an existing file unless force: the one
+// rule every command that writes a file follows.
+func writeOutput(flagName, path string, data []byte, force bool) error {
+	if err := scenario.WriteFile(path, data, force); err != nil {
+		if errors.Is(err, scenario.ErrExists) {
+			return fmt.Errorf("%s: %s exists: add --force to replace it", flagName, path)
+		}
+		return fmt.Errorf("%s: %w", flagName, err)
+	}
+	return nil
+}
