@@ -51,7 +51,18 @@ type heat struct {
 	// drain ignore the pack's voltage (evaluator.linear). One solve, with
 	// the fresh pack, is then exact for the whole run.
 	still bool
+	// steps is the iterations a solve may take before it counts as not
+	// settling: 0 for protect.Heating.Settle's, scanSteps in heatScan.
+	steps int
 }
+
+// scanSteps is the iterations a junction solve may take within heatScan.
+// The scan keeps only the solves that settle, and those take a few
+// iterations (seven or fewer in nearly all the 14,000 solves of the
+// 10,080-combination benchmark sweep, a handful 11–43); the ones that
+// never settle (a limiter's heat jumping across its current limit) ran
+// all 50 and were most of the scan's cost.
+const scanSteps = 16
 
 // freshHeat keeps each phase's heat with the fresh pack, nd solved there
 // for variant v: reportHeat solves the fresh pack again only when some
@@ -154,7 +165,7 @@ func (e *evaluator) settleAt(v *variant, qs float64, nd *node) float64 {
 		return e.heatOf(o, v, t)
 	}
 	tj := append(s.scratch[:0], s.tj...)
-	s.st = s.h.Settle(e.T, power, tj)
+	s.st = s.h.SettleWithin(e.T, power, tj, s.steps)
 	s.ok = s.ok && s.st.OK
 	s.solved = true
 	moved := 0.0
@@ -284,6 +295,8 @@ func (e *evaluator) heatScan(v *variant, nd *node) float64 {
 		s.st, s.ok = x.st, x.ok
 	}
 	last, at := mk(), mk()
+	s.steps = scanSteps
+	defer func() { s.steps = 0 }()
 	works := func(q float64) bool {
 		save(last)
 		e.settle(v, q, nd)

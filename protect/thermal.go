@@ -260,6 +260,19 @@ const settleCapC = 1000
 // a temperature passes 1000 °C (runaway: OK false, temperatures left at
 // the last finite step).
 func (h *Heating) Settle(tambC float64, power func(k int, tjC float64) float64, tj []float64) Settled {
+	return h.SettleWithin(tambC, power, tj, 0)
+}
+
+// SettleWithin is Settle giving up (OK false) after at most steps
+// iterations instead of 50; steps ≤ 0 or above 50 means Settle's 50. A
+// search that solves many times and keeps only the solves that settle
+// (discharge's junction scan) spends most of its time in the solves that
+// never do, a heat that jumps with temperature across a current limit
+// running all 50 steps; those that do settle take a few.
+func (h *Heating) SettleWithin(tambC float64, power func(k int, tjC float64) float64, tj []float64, steps int) Settled {
+	if steps <= 0 || steps > 50 {
+		steps = 50
+	}
 	n := len(h.secs)
 	for k := range tj[:n] {
 		if tj[k] == 0 || math.IsNaN(tj[k]) || math.IsInf(tj[k], 0) {
@@ -268,7 +281,7 @@ func (h *Heating) Settle(tambC float64, power func(k int, tjC float64) float64, 
 	}
 	const dT = 0.01
 	var st Settled
-	for st.Steps = 1; st.Steps <= 50; st.Steps++ {
+	for st.Steps = 1; st.Steps <= steps; st.Steps++ {
 		for k := 0; k < n; k++ {
 			p := power(k, tj[k])
 			if !isFinite(p) {
