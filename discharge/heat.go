@@ -243,8 +243,15 @@ func (e *evaluator) heatCutoff(v *variant, nd *node) float64 {
 // round's, and a higher floor ran 6 % longer).
 func (e *evaluator) heatSettle(v *variant, nd *node, q float64) float64 {
 	for range 4 {
-		if e.settle(v, q, nd) < 0.05 && v.heat.st.OK {
+		moved := e.settle(v, q, nd)
+		if moved < 0.05 && v.heat.st.OK {
 			return q
+		}
+		if moved == 0 && !v.heat.st.OK {
+			// The solve found no settled state and left the temperatures
+			// exactly where the cut-off was searched: the next rounds
+			// would search the same cut-off again and solve the same.
+			return e.heatScan(v, nd)
 		}
 		q = e.recut(v, nd, q)
 	}
