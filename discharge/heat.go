@@ -53,7 +53,7 @@ type heat struct {
 	still bool
 	// steps is the iterations a solve may take before it counts as not
 	// settling: 0 for protect.Heating.Settle's, scanSteps in heatScan.
-	steps int
+	steps uint8
 }
 
 // scanSteps is the iterations a junction solve may take within heatScan.
@@ -165,7 +165,7 @@ func (e *evaluator) settleAt(v *variant, qs float64, nd *node) float64 {
 		return e.heatOf(o, v, t)
 	}
 	tj := append(s.scratch[:0], s.tj...)
-	s.st = s.h.SettleWithin(e.T, power, tj, s.steps)
+	s.st = s.h.SettleWithin(e.T, power, tj, int(s.steps))
 	s.ok = s.ok && s.st.OK
 	s.solved = true
 	moved := 0.0
