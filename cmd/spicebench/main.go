@@ -58,7 +58,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 			return 1
 		}
 		hTime := medianEval(&d, *batches, *batchTime)
-		opt := spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: 1.2 * r.RuntimeH}
+		opt := spicenet.Options{CapacityFactor: r.CapacityFactor, StopHours: 1.2 * r.RuntimeH}
 		if r.RuntimeH == 0 { // fails at once: simulate three cycles and see
 			opt.StopHours, opt.NoStop = 3*spicenet.Period(&d), true
 		}
