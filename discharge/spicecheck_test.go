@@ -46,7 +46,7 @@ import (
 // Every case stays within the acceptance bound of 1 %.
 func TestRuntimeAgainstNgspice(t *testing.T) {
 	spicetest.Require(t)
-	cases, err := spicenet.Cases()
+	cases, err := spicenet.Checks()
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -43,7 +43,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "spicebench: ngspice not found; "+spice.InstallHint)
 		return 1
 	}
-	cases, err := spicenet.Cases()
+	cases, err := spicenet.Checks()
 	if err != nil {
 		fmt.Fprintln(stderr, "spicebench:", err)
 		return 1
