@@ -110,13 +110,13 @@ func fuzzDesign(cell, s, p, kind uint8, knob float64, n uint8, ks [3]uint8, as, 
 	kinds := protect.Kinds()
 	k := kinds[int(kind)%len(kinds)]
 	d.Protect = protect.Default(k)
-	if lo, hi, log, ok := protect.MainRange(k); ok {
+	if lo, hi, log, ok := protect.PrimaryRange(k); ok {
 		x := frac(knob)
 		v := lo + x*(hi-lo)
 		if log {
 			v = logSpan(x, lo, hi)
 		}
-		if el, err := protect.WithMain(d.Protect, v); err == nil {
+		if el, err := protect.WithPrimary(d.Protect, v); err == nil {
 			d.Protect = el
 		}
 	}
