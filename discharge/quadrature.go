@@ -339,7 +339,7 @@ func (q *quadrature) span(a, b float64, depth int, last bool) sums {
 	// so a span whose samples look like a step (one gap between
 	// neighbouring nodes holding most of the span's change) is halved
 	// until the step is pinned down.
-	if stepLike(nodes) {
+	if looksLikeJump(nodes) {
 		q.splits++
 		return q.span(a, mid, depth+1, false).add(q.span(mid, b, depth+1, last))
 	}
@@ -411,26 +411,26 @@ const maxSplit = 16
 // does: a few steps pinned to 2⁻¹⁶ each.
 const maxSplits = 96
 
-// stepLike reports whether the samples at the nodes (in order of charge)
+// looksLikeJump reports whether the samples at the nodes (in order of charge)
 // change mostly across one gap — the mark of a jump, not of a smooth curve,
 // whose change spreads over several gaps — in the integrand 1/calendar or
 // in the power into the element or the load (a jump in one phase can hide
 // in the sum of the currents but not in the element's heat).
-func stepLike(nodes []rates) bool {
+func looksLikeJump(nodes []rates) bool {
 	// The powers are judged against the total power, so rounding noise in
 	// a near-zero element loss (no element) never looks like a step.
 	power := 0.0
 	for j := range nodes {
 		power = math.Max(power, math.Abs(nodes[j].loadW)+math.Abs(nodes[j].protW))
 	}
-	return steppy(nodes, 0, func(r *rates) float64 { return 1 / r.calendar }) ||
-		steppy(nodes, power, func(r *rates) float64 { return r.protW }) ||
-		steppy(nodes, power, func(r *rates) float64 { return r.loadW })
+	return jumpsInOneGap(nodes, 0, func(r *rates) float64 { return 1 / r.calendar }) ||
+		jumpsInOneGap(nodes, power, func(r *rates) float64 { return r.protW }) ||
+		jumpsInOneGap(nodes, power, func(r *rates) float64 { return r.loadW })
 }
 
-// steppy is stepLike for one quantity; changes below 1e-9 of scale (or of
+// jumpsInOneGap is looksLikeJump for one quantity; changes below 1e-9 of scale (or of
 // the quantity itself when scale is 0) count as no change.
-func steppy(nodes []rates, scale float64, g func(*rates) float64) bool {
+func jumpsInOneGap(nodes []rates, scale float64, g func(*rates) float64) bool {
 	lo, hi := math.Inf(1), math.Inf(-1)
 	maxGap, prev := 0.0, 0.0
 	for j := range nodes {

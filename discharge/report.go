@@ -41,11 +41,11 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	// warnings (at the fresh pack and at cut-off; currents are monotone in
 	// charge for every load law).
 	cur := make([]float64, len(e.loads))
-	for _, q := range []float64{0, math.Max(0, r.DeliveredMAh/(e.P*r.CapacityFac)*(1-1e-9))} {
+	for _, q := range []float64{0, math.Max(0, r.DeliveredMAh/(e.P*r.CapacityFactor)*(1-1e-9))} {
 		if q >= e.end {
 			continue
 		}
-		v := &variant{el: el, lim: protect.NoLimit, floor: 0, heat: e.heat}
+		v := &variant{el: el, lim: protect.NoLimit(), floor: 0, heat: e.heat}
 		e.solveNode(q, v, nd)
 		for j, o := range nd.worst {
 			cur[j] = math.Max(cur[j], o.I)

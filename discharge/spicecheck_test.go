@@ -46,7 +46,7 @@ import (
 // Every case stays within the acceptance bound of 1 %.
 func TestRuntimeAgainstNgspice(t *testing.T) {
 	spicetest.Require(t)
-	cases, err := spicenet.Cases()
+	cases, err := spicenet.Checks()
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -65,7 +65,7 @@ func TestRuntimeAgainstNgspice(t *testing.T) {
 				limiterPulse(t, &d, r)
 				return
 			}
-			net, err := spicenet.Build(&d, spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: 1.2 * r.RuntimeH})
+			net, err := spicenet.Build(&d, spicenet.Options{CapacityFactor: r.CapacityFactor, StopHours: 1.2 * r.RuntimeH})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -135,7 +135,7 @@ func limiterPulse(t *testing.T, d *discharge.Design, r *discharge.Result) {
 	if period == 0 {
 		t.Fatal("the limiter case needs a pulsed profile")
 	}
-	net, err := spicenet.Build(d, spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: 3 * period, NoStop: true})
+	net, err := spicenet.Build(d, spicenet.Options{CapacityFactor: r.CapacityFactor, StopHours: 3 * period, NoStop: true})
 	if err != nil {
 		t.Fatal(err)
 	}

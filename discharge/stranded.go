@@ -47,11 +47,11 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// The floor, the least LED current and the pack's own under-voltage
 	// cut-off are the product's stops: the reference leaves them all out,
 	// so they go together as "the floor".
-	noEl := &variant{el: protect.None{}, lim: protect.NoLimit, floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
+	noEl := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
 	noFloor := *real
 	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
 	noFloor.heat = e.heatCopy(real.heat) // its own junctions: the design's stay as they were
-	neither := &variant{el: protect.None{}, lim: protect.NoLimit, floor: 0, steady: true}
+	neither := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
 
 	// Each scan resumes near a cut-off already found; cutoff starts over
 	// from zero when the run it is given does not work there (removing

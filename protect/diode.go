@@ -118,7 +118,7 @@ func (d Diode) Kind() string                         { return "diode" }
 func (d Diode) Spec() string                         { return specOf(d.Kind(), d.fields()) }
 func (d Diode) Drop(i, vin, tempC float64) float64   { return d.Junction.Drop(i, tempC) }
 func (d Diode) Quiescent(vin, tempC float64) float64 { return 0 }
-func (d Diode) Limit(tempC float64) Limit            { return NoLimit }
+func (d Diode) Limit(tempC float64) Limit            { return NoLimit() }
 func (d Diode) Cost() float64                        { return d.Price }
 func (d Diode) Thermal() Thermal                     { return d.Heat }
 func (d Diode) Warnings(op Operating) []string       { return appendHeat(nil, d.Thermal(), op) }

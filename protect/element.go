@@ -49,8 +49,9 @@ type Limit struct {
 	Trip  float64
 }
 
-// NoLimit is a Limit with neither a clamp nor a trip.
-var NoLimit = Limit{Clamp: math.Inf(1), Trip: math.Inf(1)}
+// NoLimit is a Limit with neither a clamp nor a trip: a function, not a
+// variable, so that no caller can change it for every other.
+func NoLimit() Limit { return Limit{Clamp: math.Inf(1), Trip: math.Inf(1)} }
 
 // Operating describes normal use for Warnings.
 type Operating struct {
@@ -157,7 +158,7 @@ func (None) Kind() string                         { return "none" }
 func (None) Spec() string                         { return "none" }
 func (None) Drop(i, vin, tempC float64) float64   { return 0 }
 func (None) Quiescent(vin, tempC float64) float64 { return 0 }
-func (None) Limit(tempC float64) Limit            { return NoLimit }
+func (None) Limit(tempC float64) Limit            { return NoLimit() }
 func (None) Cost() float64                        { return 0 }
 func (None) Thermal() Thermal                     { return Thermal{TjMax: math.Inf(1), TauFast: 1, Tau: 1} }
 func (None) Warnings(op Operating) []string       { return nil }

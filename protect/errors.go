@@ -5,7 +5,7 @@ import (
 	"fmt"
 )
 
-// SpecError is what Parse and WithMain return for a spec or a value they
+// SpecError is what Parse and WithPrimary return for a spec or a value they
 // refuse. Its message starts "protect: "; callers that name the place
 // themselves (a flag, a file and line) take Detail, or Unprefixed for an
 // error that still unwraps to the SpecError and its cause.

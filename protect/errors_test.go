@@ -55,7 +55,7 @@ func TestSpecError(t *testing.T) {
 	if Unprefixed(plain) != plain {
 		t.Errorf("Unprefixed changed an error that is not protect's")
 	}
-	if _, err := WithMain(None{}, 1); !errors.As(err, new(*SpecError)) {
-		t.Errorf("WithMain on a kind with no knob: %v, want a *SpecError", err)
+	if _, err := WithPrimary(None{}, 1); !errors.As(err, new(*SpecError)) {
+		t.Errorf("WithPrimary on a kind with no knob: %v, want a *SpecError", err)
 	}
 }

@@ -40,12 +40,12 @@ func ExampleElement_Reverse() {
 	// not seen
 }
 
-func ExampleWithMain() {
+func ExampleWithPrimary() {
 	l := protect.Default("limiter")
-	k, _ := protect.Main(l)
+	k, _ := protect.PrimaryOf(l)
 	// The limit from a 2×AA pack (3 V) at 25 °C.
 	fmt.Printf("%s = %g, limit %.3f A\n", k.Key, k.Value, l.(protect.Limiter).ClampAt(3, 25))
-	l, _ = protect.WithMain(l, k.Value/2)
+	l, _ = protect.WithPrimary(l, k.Value/2)
 	fmt.Printf("halved: limit %.3f A\n", l.(protect.Limiter).ClampAt(3, 25))
 	// Output:
 	// rsh = 1, limit 0.535 A

@@ -54,13 +54,13 @@ func FuzzParse(f *testing.F) {
 				t.Fatalf("Parse(%q): %s parses back as %s, want %s", spec, text, back.Spec(), full)
 			}
 		}
-		if k, ok := Main(e); ok {
-			same, err := WithMain(e, k.Value)
+		if k, ok := PrimaryOf(e); ok {
+			same, err := WithPrimary(e, k.Value)
 			if err != nil {
-				t.Fatalf("%s: WithMain(%s=%v), its own value: %v", full, k.Key, k.Value, err)
+				t.Fatalf("%s: WithPrimary(%s=%v), its own value: %v", full, k.Key, k.Value, err)
 			}
 			if same.Spec() != full {
-				t.Fatalf("%s: WithMain to its own %s gives %s", full, k.Key, same.Spec())
+				t.Fatalf("%s: WithPrimary to its own %s gives %s", full, k.Key, same.Spec())
 			}
 		}
 		// The models must stay finite at ordinary and odd operating points

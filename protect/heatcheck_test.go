@@ -251,12 +251,12 @@ func TestPPTCScaling(t *testing.T) {
 			t.Errorf("hold %g A: R = %g Ω, want %g (and within %g–%g)", c.hold, f.R, want, c.lo, c.hi)
 		}
 		// The slider keeps the same scaling.
-		g, err := WithMain(DefaultPPTC(), c.hold)
+		g, err := WithPrimary(DefaultPPTC(), c.hold)
 		if err != nil {
 			t.Fatal(err)
 		}
 		if r := g.(PPTC).R; math.Abs(r-want) > 1e-12*want {
-			t.Errorf("WithMain hold %g A: R = %g Ω, want %g", c.hold, r, want)
+			t.Errorf("WithPrimary hold %g A: R = %g Ω, want %g", c.hold, r, want)
 		}
 	}
 }

@@ -19,7 +19,7 @@ func Param(e Element, key string) (v float64, ok bool) {
 
 // WithParam returns a copy of e with the spec parameter key set to v,
 // checked as Parse would check it (the key's range and the element's own
-// rules). Unlike WithMain, no other parameter moves with it. It is an
+// rules). Unlike WithPrimary, no other parameter moves with it. It is an
 // error when e has no such key.
 func WithParam(e Element, key string, v float64) (Element, error) {
 	s, isOurs := settableOf(e)

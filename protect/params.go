@@ -343,9 +343,10 @@ func Validate(e Element) error {
 	return validate(s)
 }
 
-// Knob is an element's main parameter, the one an interactive screen
-// offers as a slider.
-type Knob struct {
+// Primary is an element's primary parameter: the one value that sets how
+// the part behaves (a diode's saturation current, a limiter's sense
+// resistor), which a caller may step through its range.
+type Primary struct {
 	Key    string     // the spec key, e.g. "rsh"
 	Value  float64    // current value in the base unit of Kind
 	Kind   units.Kind // what the value is, for parsing and display
@@ -359,23 +360,23 @@ type Knob struct {
 // pmos-clamp, Rsh for limiter, the hold current for pptc, the fuse rating
 // for crowbar and the current limit for ic. ok is false when e has none
 // (none, or an element of another package).
-func Main(e Element) (k Knob, ok bool) {
+func PrimaryOf(e Element) (k Primary, ok bool) {
 	s, isOurs := settableOf(e)
 	if !isOurs {
-		return Knob{}, false
+		return Primary{}, false
 	}
 	info, _ := lookup(s.Kind())
 	if info.main == "" {
-		return Knob{}, false
+		return Primary{}, false
 	}
 	f, _ := findField(s.fields(), info.main)
-	return Knob{Key: f.key, Value: *f.p, Kind: f.kind, Min: info.lo, Max: info.hi, Log: info.log, Detail: f.what}, true
+	return Primary{Key: f.key, Value: *f.p, Kind: f.kind, Min: info.lo, Max: info.hi, Log: info.log, Detail: f.what}, true
 }
 
-// MainRange gives the slider range of a kind's main knob in base units,
+// PrimaryRange gives the slider range of a kind's main knob in base units,
 // and whether it moves in ratios; ok is false for a kind without a knob or
 // an unknown kind. Values outside the range may still be valid in a spec.
-func MainRange(kind string) (lo, hi float64, log, ok bool) {
+func PrimaryRange(kind string) (lo, hi float64, log, ok bool) {
 	info, found := lookup(kind)
 	if !found || info.main == "" {
 		return 0, 0, false, false
@@ -383,12 +384,12 @@ func MainRange(kind string) (lo, hi float64, log, ok bool) {
 	return info.lo, info.hi, info.log, true
 }
 
-// WithMain returns a copy of e with its main knob set to v, checked as
+// WithPrimary returns a copy of e with its main knob set to v, checked as
 // Parse would check it. Parameters that follow the main one move with it:
 // a polyfuse keeps its trip/hold ratio; a crowbar fuse's resistance scales
 // as 1/rating and its I²t as rating² (a bigger fuse has a thicker wire).
 // It is an error when e has no knob.
-func WithMain(e Element, v float64) (Element, error) {
+func WithPrimary(e Element, v float64) (Element, error) {
 	s, ok := settableOf(e)
 	if !ok {
 		return nil, specErrorf(e.Kind(), "", "no main parameter to set")

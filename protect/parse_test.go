@@ -170,14 +170,14 @@ func TestMainKnob(t *testing.T) {
 		"limiter": "rsh", "pptc": "hold", "crowbar": "fuse", "ic": "ilim"}
 	for _, k := range Kinds() {
 		e := Default(k)
-		knob, ok := Main(e)
-		lo, hi, logScale, rok := MainRange(k)
+		knob, ok := PrimaryOf(e)
+		lo, hi, logScale, rok := PrimaryRange(k)
 		if k == "none" {
 			if ok || rok {
 				t.Errorf("none has a knob")
 			}
-			if _, err := WithMain(e, 1); err == nil {
-				t.Errorf("WithMain(none) gave no error")
+			if _, err := WithPrimary(e, 1); err == nil {
+				t.Errorf("WithPrimary(none) gave no error")
 			}
 			continue
 		}
@@ -193,32 +193,32 @@ func TestMainKnob(t *testing.T) {
 		if logScale {
 			v = lo * math.Pow(hi/lo, 0.37)
 		}
-		e2, err := WithMain(e, v)
+		e2, err := WithPrimary(e, v)
 		if err != nil {
-			t.Errorf("%s: WithMain(%g): %v", k, v, err)
+			t.Errorf("%s: WithPrimary(%g): %v", k, v, err)
 			continue
 		}
-		if k2, _ := Main(e2); k2.Value != v {
+		if k2, _ := PrimaryOf(e2); k2.Value != v {
 			t.Errorf("%s: set %g, read %g", k, v, k2.Value)
 		}
 		if _, err := Parse(e2.Spec()); err != nil {
 			t.Errorf("%s: moved element does not re-parse: %v", k, err)
 		}
-		if _, err := WithMain(e, -1); err == nil || !strings.Contains(err.Error(), knob.Key) {
-			t.Errorf("%s: WithMain(-1) = %v, want an error naming %q", k, err, knob.Key)
+		if _, err := WithPrimary(e, -1); err == nil || !strings.Contains(err.Error(), knob.Key) {
+			t.Errorf("%s: WithPrimary(-1) = %v, want an error naming %q", k, err, knob.Key)
 		}
 	}
 	// Followers: a polyfuse keeps trip/hold, a bigger fuse has less
 	// resistance and more I²t. Ratios of exact decimals: 1e-12.
-	p, _ := WithMain(DefaultPPTC(), 0.9)
+	p, _ := WithPrimary(DefaultPPTC(), 0.9)
 	if r := p.(PPTC).Trip / p.(PPTC).Hold; math.Abs(r-2) > 1e-12 {
 		t.Errorf("pptc trip/hold after the knob = %g, want 2", r)
 	}
-	c, _ := WithMain(DefaultCrowbar(), 1)
+	c, _ := WithPrimary(DefaultCrowbar(), 1)
 	if cb := c.(Crowbar); math.Abs(cb.RFuse-0.1) > 1e-12 || math.Abs(cb.I2t-0.5) > 1e-12 {
 		t.Errorf("1 A crowbar: %g Ω, %g A²s; want 0.1 Ω, 0.5 A²s", cb.RFuse, cb.I2t)
 	}
-	if k, _ := Main(DefaultLimiter()); k.Kind != units.Resistance {
+	if k, _ := PrimaryOf(DefaultLimiter()); k.Kind != units.Resistance {
 		t.Errorf("limiter knob kind %v", k.Kind)
 	}
 }

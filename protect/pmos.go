@@ -201,7 +201,7 @@ func (m PMOS) Drop(i, vin, tempC float64) float64 {
 }
 
 func (m PMOS) Quiescent(vin, tempC float64) float64 { return 0 }
-func (m PMOS) Limit(tempC float64) Limit            { return NoLimit }
+func (m PMOS) Limit(tempC float64) Limit            { return NoLimit() }
 func (m PMOS) Cost() float64                        { return m.Price }
 func (m PMOS) Thermal() Thermal                     { return m.Heat }
 func (m *PMOS) heat() *Thermal                      { return &m.Heat }

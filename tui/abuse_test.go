@@ -49,8 +49,8 @@ func checkSane(t *testing.T, m Model, where string) {
 	in("ambient", v.tempC, tempLo, tempHi)
 	in("hours a day", v.hours, hoursLo, hoursHi)
 	in("cell index", float64(v.cell), 0, float64(len(m.cells)-1))
-	if kn, ok := protect.Main(v.elem); ok {
-		lo, hi, _, _ := protect.MainRange(v.elem.Kind())
+	if kn, ok := protect.PrimaryOf(v.elem); ok {
+		lo, hi, _, _ := protect.PrimaryRange(v.elem.Kind())
 		// The defaults sit inside their ranges (protect's own tests).
 		in(v.elem.Kind()+" "+kn.Key, kn.Value, lo, hi)
 	}
@@ -90,7 +90,7 @@ func TestKnobsToBothEnds(t *testing.T) {
 			case knobParallel:
 				x = float64(mm.vals.parallel)
 			case knobPart:
-				kn, _ := protect.Main(mm.vals.elem)
+				kn, _ := protect.PrimaryOf(mm.vals.elem)
 				x = kn.Value
 			default:
 				x = mm.floatOf(k)

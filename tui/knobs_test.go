@@ -42,8 +42,8 @@ func TestTypedValues(t *testing.T) {
 		{knobLoad, "2x", func(m Model) float64 { return m.vals.scale }, 2, false},
 		{knobLoad, "0", func(m Model) float64 { return m.vals.scale }, 1, true},
 		{knobLoad, "lots", func(m Model) float64 { return m.vals.scale }, 1, true},
-		{knobPart, "20n", func(m Model) float64 { k, _ := protect.Main(m.vals.elem); return k.Value }, 20e-9, false},
-		{knobPart, "5V", func(m Model) float64 { k, _ := protect.Main(m.vals.elem); return k.Value }, 10e-9, true},
+		{knobPart, "20n", func(m Model) float64 { k, _ := protect.PrimaryOf(m.vals.elem); return k.Value }, 20e-9, false},
+		{knobPart, "5V", func(m Model) float64 { k, _ := protect.PrimaryOf(m.vals.elem); return k.Value }, 10e-9, true},
 	}
 	for _, c := range cases {
 		m := sized(120, 40, repeat(keyDown, int(c.k))...)
@@ -81,7 +81,7 @@ func TestTypedCellAndProtection(t *testing.T) {
 	if m.vals.elem.Kind() != "pmos" || m.sh().kinds[m.vals.kind] != "pmos" {
 		t.Fatalf("typed pmos:vth=1.2: element %q", m.vals.elem.Spec())
 	}
-	if k, _ := protect.Main(m.vals.elem); k.Value != 1.2 {
+	if k, _ := protect.PrimaryOf(m.vals.elem); k.Value != 1.2 {
 		t.Errorf("typed vth=1.2: Vth %v", k.Value)
 	}
 }

@@ -86,7 +86,7 @@ func cycleStep(i, n, dir int, coarse bool) int {
 
 // partSlider is the range of the element's main part value.
 func partSlider(sh *shared) (knobRange, bool) {
-	lo, hi, lg, ok := protect.MainRange(sh.vals.elem.Kind())
+	lo, hi, lg, ok := protect.PrimaryRange(sh.vals.elem.Kind())
 	switch {
 	case !ok:
 		return knobRange{}, false
@@ -186,7 +186,7 @@ var knobTable = [knobCount]knobSpec{
 		name: "part", label: " └ its drop",
 		slider: partSlider,
 		pos: func(v values) float64 {
-			kn, _ := protect.Main(v.elem)
+			kn, _ := protect.PrimaryOf(v.elem)
 			return kn.Value
 		},
 		step: func(sh *shared, v *values, dir int, coarse bool) bool {
@@ -194,8 +194,8 @@ var knobTable = [knobCount]knobSpec{
 			if !ok {
 				return false
 			}
-			kn, _ := protect.Main(v.elem)
-			e, err := protect.WithMain(v.elem, r.step(kn.Value, dir, coarse))
+			kn, _ := protect.PrimaryOf(v.elem)
+			e, err := protect.WithPrimary(v.elem, r.step(kn.Value, dir, coarse))
 			if err != nil {
 				return false // the step left the element's valid range: stay put
 			}
@@ -203,7 +203,7 @@ var knobTable = [knobCount]knobSpec{
 			return true
 		},
 		parse: func(sh *shared, s string) (func(*values), error) {
-			kn, ok := protect.Main(sh.vals.elem)
+			kn, ok := protect.PrimaryOf(sh.vals.elem)
 			if !ok {
 				return nil, fmt.Errorf("%s has no part value to set", sh.vals.elem.Kind())
 			}
@@ -211,14 +211,14 @@ var knobTable = [knobCount]knobSpec{
 			if err != nil {
 				return nil, err
 			}
-			e, err := protect.WithMain(sh.vals.elem, x)
+			e, err := protect.WithPrimary(sh.vals.elem, x)
 			if err != nil {
 				return nil, err
 			}
 			return func(v *values) { v.elem = e }, nil
 		},
 		text: func(sh *shared) string {
-			if kn, ok := protect.Main(sh.vals.elem); ok {
+			if kn, ok := protect.PrimaryOf(sh.vals.elem); ok {
 				return units.Human(kn.Value, kn.Kind, 4)
 			}
 			return ""
@@ -226,7 +226,7 @@ var knobTable = [knobCount]knobSpec{
 		// The part in plain words first (the drop it gives at the load's
 		// peak), the model's key beside it.
 		show: func(sh *shared) string {
-			kn, ok := protect.Main(sh.vals.elem)
+			kn, ok := protect.PrimaryOf(sh.vals.elem)
 			if !ok {
 				return "nothing to set"
 			}
@@ -234,7 +234,7 @@ var knobTable = [knobCount]knobSpec{
 			return units.Eng(drop, units.Voltage, 2) + " (" + partName(kn.Key) + " " + units.Eng(kn.Value, kn.Kind, 2) + ")"
 		},
 		about: func(sh *shared) string {
-			kn, ok := protect.Main(sh.vals.elem)
+			kn, ok := protect.PrimaryOf(sh.vals.elem)
 			if !ok {
 				return "This element has no part value to set; pick another protection."
 			}
@@ -243,7 +243,7 @@ var knobTable = [knobCount]knobSpec{
 				units.Eng(at, units.Current, 3), sh.vals.elem.Kind(), units.Eng(drop, units.Voltage, 3), partName(kn.Key), kn.Detail, units.Eng(kn.Value, kn.Kind, 3))
 		},
 		hint: func(sh *shared) string {
-			if kn, ok := protect.Main(sh.vals.elem); ok {
+			if kn, ok := protect.PrimaryOf(sh.vals.elem); ok {
 				return partName(kn.Key) + ": " + kn.Kind.String() + ", e.g. " + units.Human(kn.Value, kn.Kind, 3)
 			}
 			return "nothing: this element has no part value"

@@ -113,7 +113,7 @@ func netlistFor(s *scenario.Scenario) (net, note string, err error) {
 		}
 	}
 	stop := 1.2*span + spicenet.Period(&d)
-	net, err = spicenet.Export(&d, spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: stop, Steps: steps(span, &d)}, r.RuntimeH, title)
+	net, err = spicenet.Export(&d, spicenet.Options{CapacityFactor: r.CapacityFactor, StopHours: stop, Steps: steps(span, &d)}, r.RuntimeH, title)
 	if err != nil {
 		return "", "", fmt.Errorf("netlist: %w", err)
 	}

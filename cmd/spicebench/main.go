@@ -43,7 +43,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "spicebench: ngspice not found; "+spice.InstallHint)
 		return 1
 	}
-	cases, err := spicenet.Cases()
+	cases, err := spicenet.Checks()
 	if err != nil {
 		fmt.Fprintln(stderr, "spicebench:", err)
 		return 1
@@ -58,7 +58,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 			return 1
 		}
 		hTime := medianEval(&d, *batches, *batchTime)
-		opt := spicenet.Options{CapacityFactor: r.CapacityFac, StopHours: 1.2 * r.RuntimeH}
+		opt := spicenet.Options{CapacityFactor: r.CapacityFactor, StopHours: 1.2 * r.RuntimeH}
 		if r.RuntimeH == 0 { // fails at once: simulate three cycles and see
 			opt.StopHours, opt.NoStop = 3*spicenet.Period(&d), true
 		}

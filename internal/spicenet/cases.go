@@ -8,9 +8,9 @@ import (
 	"headroom/protect"
 )
 
-// Case is one design compared with ngspice. All cases run continuously
+// Check is one design compared with ngspice. All cases run continuously
 // (no daily pattern, no standby), which is what the circuit models.
-type Case struct {
+type Check struct {
 	Name   string
 	Design discharge.Design
 }
@@ -44,8 +44,8 @@ var caseDefs = []caseDef{
 }
 
 // Cases returns the designs the cross-check and the speed comparison run.
-func Cases() ([]Case, error) {
-	out := make([]Case, 0, len(caseDefs))
+func Checks() ([]Check, error) {
+	out := make([]Check, 0, len(caseDefs))
 	for _, c := range caseDefs {
 		cell, ok := curves.Lookup(c.cell)
 		if !ok {
@@ -59,7 +59,7 @@ func Cases() ([]Case, error) {
 		if err != nil {
 			return nil, fmt.Errorf("spicenet: case %q: %w", c.name, err)
 		}
-		out = append(out, Case{Name: c.name, Design: discharge.Design{
+		out = append(out, Check{Name: c.name, Design: discharge.Design{
 			Cell: cell, Series: c.series, Parallel: c.parallel, Protect: el,
 			Profile: ph, Floor: c.floor, TempC: c.tempC,
 		}})

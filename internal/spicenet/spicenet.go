@@ -57,7 +57,7 @@ const (
 type Options struct {
 	// CapacityFactor is Ceff/Cref, the fraction of the curve's charge the
 	// cells deliver at this load and temperature: the engine's
-	// Result.CapacityFac (Peukert and temperature; headroom's own model,
+	// Result.CapacityFactor (Peukert and temperature; headroom's own model,
 	// which a circuit simulator has no notion of). Above 0.
 	CapacityFactor float64
 	// StopHours is the longest span to simulate, hours. Above 0.
