@@ -195,7 +195,7 @@ func (m productModel) Update(sh *shared, msg tea.Msg) (productModel, tea.Cmd) {
 				return m, nil
 			case key.Matches(km, k.Accept):
 				if err := sh.setProduct(m.sel, m.input.Value()); err != nil {
-					m.errText = err.Error()
+					m.errText = guard.Clean(err.Error())
 					return m, nil
 				}
 				m.editing, m.errText = false, ""

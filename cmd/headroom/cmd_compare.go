@@ -93,11 +93,8 @@ func runCompare(c *cli, args []string) error {
 	if key != "cost" && key != "runtime" && !ranked {
 		return fmt.Errorf("--sort: %q is not a compare column: expected cost, runtime, worst or p10", *sortFlag)
 	}
-	s, err := loadScenario(pos)
+	s, err := designScenario(fs, pos)
 	if err != nil {
-		return err
-	}
-	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
 	fromFlags(fs, s, pos)

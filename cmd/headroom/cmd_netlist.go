@@ -60,11 +60,8 @@ func runNetlist(c *cli, args []string) error {
 	if *out == "" {
 		return errors.New("netlist: -o is required: the netlist to write, e.g. -o design.cir")
 	}
-	s, err := loadScenario(pos)
+	s, err := designScenario(fs, pos)
 	if err != nil {
-		return err
-	}
-	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
 	net, note, err := netlistFor(s)

@@ -95,11 +95,8 @@ func runPlot(c *cli, args []string) error {
 	default:
 		return fmt.Errorf("--by: %q: expected time or charge", *by)
 	}
-	s, err := loadScenario(pos)
+	s, err := designScenario(fs, pos)
 	if err != nil {
-		return err
-	}
-	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
 	fromFlags(fs, s, pos)

@@ -89,11 +89,8 @@ func runReport(c *cli, args []string) error {
 	case given && !md && (ext == ".md" || ext == ".markdown"):
 		return fmt.Errorf("-o: %s: --format html writes HTML: name the file .html, or give --format md", guard.Clean(*out))
 	}
-	s, err := loadScenario(pos)
+	s, err := designScenario(fs, pos)
 	if err != nil {
-		return err
-	}
-	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
 	fromFlags(fs, s, pos)

@@ -56,11 +56,8 @@ func runDesign(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
-	s, err := loadScenario(pos)
+	s, err := designScenario(fs, pos)
 	if err != nil {
-		return err
-	}
-	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
 	fromFlags(fs, s, pos)

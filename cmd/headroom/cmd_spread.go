@@ -115,11 +115,8 @@ func runSpread(c *cli, args []string) error {
 	if err != nil {
 		return err
 	}
-	s, err := loadScenario(pos)
+	s, err := designScenario(fs, pos)
 	if err != nil {
-		return err
-	}
-	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
 	if err := sf.apply(s); err != nil {

@@ -209,11 +209,8 @@ func runTable(c *cli, args []string) error {
 	if *desc && key == "" {
 		return fmt.Errorf("--desc: sorts descending, so it needs --sort COLUMN")
 	}
-	s, err := loadScenario(pos)
+	s, err := designScenario(fs, pos)
 	if err != nil {
-		return err
-	}
-	if err := applyDesignFlags(fs, s); err != nil {
 		return err
 	}
 	fromFlags(fs, s, pos)

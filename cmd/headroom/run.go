@@ -368,6 +368,20 @@ func wantArgs(name string, pos []string, lo, hi int, what string) error {
 	return nil
 }
 
+// designScenario is the scenario named in pos (or the demo) with the design
+// flags given on the command line set over it: what every command that
+// evaluates one design starts from.
+func designScenario(fs *flag.FlagSet, pos []string) (*scenario.Scenario, error) {
+	s, err := loadScenario(pos)
+	if err != nil {
+		return nil, err
+	}
+	if err := applyDesignFlags(fs, s); err != nil {
+		return nil, err
+	}
+	return s, nil
+}
+
 // loadScenario reads the scenario file named, or gives the built-in demo
 // when none is.
 func loadScenario(pos []string) (*scenario.Scenario, error) {
