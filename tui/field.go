@@ -2,9 +2,12 @@ package tui
 
 import (
 	"github.com/charmbracelet/bubbles/cursor"
+	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/textinput"
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
+
+	"headroom/internal/guard"
 )
 
 // fieldModel is a one-line text field: bubbles' textinput (cursor
@@ -80,4 +83,38 @@ func (f fieldModel) View() string {
 	in := f.in
 	in.Width = f.Width
 	return in.View()
+}
+
+// editor is a value being typed into a form: the field, whether it is
+// open, and why the last value typed was refused. The knobs and the
+// product form share it.
+type editor struct {
+	editing bool
+	input   fieldModel
+	errText string // why the typed value was refused
+}
+
+// update takes a key (or any message for the field) while the editor is
+// open: esc closes it, enter hands the value to accept and closes it unless
+// accept refuses it (its reason is kept, cleaned for the terminal).
+func (e editor) update(k KeyMap, msg tea.Msg, accept func(string) error) (editor, tea.Cmd) {
+	if km, ok := msg.(tea.KeyMsg); ok {
+		switch {
+		case key.Matches(km, k.Cancel):
+			e.editing, e.errText = false, ""
+			e.input.Blur()
+			return e, nil
+		case key.Matches(km, k.Accept):
+			if err := accept(e.input.Value()); err != nil {
+				e.errText = guard.Clean(err.Error())
+				return e, nil
+			}
+			e.editing, e.errText = false, ""
+			e.input.Blur()
+			return e, nil
+		}
+	}
+	var cmd tea.Cmd
+	e.input, cmd = e.input.Update(msg)
+	return e, cmd
 }

@@ -10,7 +10,6 @@ import (
 
 	"headroom/curves"
 	"headroom/discharge"
-	"headroom/internal/guard"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
 	"headroom/protect"
@@ -46,16 +45,14 @@ const (
 // knobsModel is the knobs panel: one row per value, a selection, and a
 // text field for typing a value.
 type knobsModel struct {
-	sel     knob
-	editing bool
-	input   fieldModel
-	errText string // why the typed value was refused
+	sel knob
+	editor
 	width   int
 	compact bool // no explanation line (a short terminal shows it beside)
 }
 
 func newKnobs(sh *shared) knobsModel {
-	return knobsModel{input: newField("new value: ", 200, sh.styles.Cursor)}
+	return knobsModel{editor: editor{input: newField("new value: ", 200, sh.styles.Cursor)}}
 }
 
 // Update handles keys while the design view is active; a knob that moves
@@ -64,24 +61,8 @@ func (m knobsModel) Update(sh *shared, msg tea.Msg) (knobsModel, tea.Cmd) {
 	k := sh.keys
 	km, isKey := msg.(tea.KeyMsg)
 	if m.editing {
-		if isKey {
-			switch {
-			case key.Matches(km, k.Cancel):
-				m.editing, m.errText = false, ""
-				m.input.Blur()
-				return m, nil
-			case key.Matches(km, k.Accept):
-				if err := sh.setText(m.sel, m.input.Value()); err != nil {
-					m.errText = guard.Clean(err.Error())
-					return m, nil
-				}
-				m.editing, m.errText = false, ""
-				m.input.Blur()
-				return m, nil
-			}
-		}
 		var cmd tea.Cmd
-		m.input, cmd = m.input.Update(msg)
+		m.editor, cmd = m.editor.update(k, msg, func(v string) error { return sh.setText(m.sel, v) })
 		return m, cmd
 	}
 	if !isKey {

@@ -47,15 +47,13 @@ func (f productField) hint() string {
 
 // productModel is the form: a selection, and a text field while typing.
 type productModel struct {
-	open    bool
-	sel     productField
-	editing bool
-	input   fieldModel
-	errText string
+	open bool
+	sel  productField
+	editor
 }
 
 func newProduct(sh *shared) productModel {
-	return productModel{input: newField("new value: ", 2000, sh.styles.Cursor)}
+	return productModel{editor: editor{input: newField("new value: ", 2000, sh.styles.Cursor)}}
 }
 
 // text is a product field's value as the user types it.
@@ -187,24 +185,8 @@ func (m productModel) Update(sh *shared, msg tea.Msg) (productModel, tea.Cmd) {
 	k := sh.keys
 	km, isKey := msg.(tea.KeyMsg)
 	if m.editing {
-		if isKey {
-			switch {
-			case key.Matches(km, k.Cancel):
-				m.editing, m.errText = false, ""
-				m.input.Blur()
-				return m, nil
-			case key.Matches(km, k.Accept):
-				if err := sh.setProduct(m.sel, m.input.Value()); err != nil {
-					m.errText = guard.Clean(err.Error())
-					return m, nil
-				}
-				m.editing, m.errText = false, ""
-				m.input.Blur()
-				return m, nil
-			}
-		}
 		var cmd tea.Cmd
-		m.input, cmd = m.input.Update(msg)
+		m.editor, cmd = m.editor.update(k, msg, func(v string) error { return sh.setProduct(m.sel, v) })
 		return m, cmd
 	}
 	if !isKey {
