@@ -135,6 +135,11 @@ type evaluator struct {
 	// heat is the real variant's junction state, for the report (nil
 	// with an ideal heat sink).
 	heat *heat
+	// peak0 and peakCut are the real variant's highest element
+	// dissipation with the fresh pack and at the cut-off, W, from the
+	// solves evaluate makes there with the element as integrate sees it;
+	// NaN when not known (integrate then solves again).
+	peak0, peakCut float64
 }
 
 // Evaluate computes runtime, capacity and losses for design d.
@@ -190,7 +195,16 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	ieff := e.effectiveAmps(real, nd)
 	F := d.Cell.CapacityFactor(ieff, d.TempC)
 	scale := e.P * F // pack mAh per scaled cell mAh
-	e.clock(real, scale, nd)
+	// Behind constant currents and a steady element (linear) a node
+	// solves to the same figures from any start, so the element's peak
+	// with the fresh pack is kept for integrate, when the junctions hold
+	// where they are now for the whole run and the fresh pack's
+	// polarisation is the rested start's, as clock solves it (not when
+	// the run is taken as day-periodic from the start).
+	keep := e.linear(real)
+	if fresh := e.clock(real, scale, nd); keep && (real.heat == nil || real.heat.still) && !real.periodicOnly {
+		e.peak0 = fresh.peakW
+	}
 
 	// The cut-offs, in scaled charge. Each variant
 	// asks less of the pack than the one before, so its scan resumes near
@@ -220,6 +234,9 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	r.CutoffPhase = d.Profile[ph].Label()
 	r.CutoffIndex = ph
 	e.solveNode(math.Min(qsCut, e.end), real, nd)
+	if keep && qsCut < e.end {
+		e.peakCut = peakOf(nd)
+	}
 	o := nd.worst[ph]
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = o.Vload, o.Vin, o.I
 	switch fail {
@@ -272,10 +289,12 @@ func (e *evaluator) effectiveAmps(v *variant, nd *node) float64 {
 // v.periodicOnly) from its drain on the fresh pack over a calendar hour
 // and the share of it in use; scale is v's pack mAh per scaled mAh. Each
 // variant keeps its own, so that the stranded split's runs are the runs
-// a separate evaluation of each would make.
-func (e *evaluator) clock(v *variant, scale float64, nd *node) {
+// a separate evaluation of each would make. It returns what it solved
+// there (the rates with the fresh pack).
+func (e *evaluator) clock(v *variant, scale float64, nd *node) rates {
 	v.usePerQ, v.periodicOnly = 0, false
-	if rate := e.rates(0, v, nd).calendar; rate > 0 {
+	fresh := e.rates(0, v, nd)
+	if rate := fresh.calendar; rate > 0 {
 		v.usePerQ = scale / rate * e.duty * 3600
 		// A run that could span twenty sessions or more: the first one's
 		// rested start is a small part of it and is taken as
@@ -284,6 +303,7 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) {
 			v.periodicOnly = true
 		}
 	}
+	return fresh
 }
 
 // transientBreaks returns the breakpoints with those added where a pack
@@ -325,7 +345,8 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		panic("discharge: quadrature rule above maxGauss nodes")
 	}
 	c := d.Cell
-	e := &evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw}
+	e := &evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
+		peak0: math.NaN(), peakCut: math.NaN()}
 	e.end = c.Curve.End()
 	total := 0.0
 	for _, p := range d.Profile {

@@ -83,9 +83,7 @@ func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 		// mean of I·v (per cell, times the S·P cells).
 		cellW += w * (o.Ipack*o.Ipack*nd.Rp + e.S*o.Ipack*nd.pol.mean[j])
 	}
-	for _, o := range nd.worst {
-		r.peakW = math.Max(r.peakW, o.Vdrop*o.I+o.Vin*(o.Ipack-o.I))
-	}
+	r.peakW = peakOf(nd)
 	iq := v.el.Quiescent(nd.Epack, e.T)
 	idle := d.Standby + iq
 	r.standby = (1 - f) * idle * 1000
@@ -95,6 +93,16 @@ func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 	r.protW = f*protW + (1-f)*nd.Epack*iq
 	r.cellW = f*cellW + (1-f)*idle*idle*nd.Rp
 	return r
+}
+
+// peakOf is the highest element dissipation among the phases of nd at
+// their worst instants, W.
+func peakOf(nd *node) float64 {
+	p := 0.0
+	for _, o := range nd.worst {
+		p = math.Max(p, o.Vdrop*o.I+o.Vin*(o.Ipack-o.I))
+	}
+	return p
 }
 
 // selfDischarge is the pack's self-discharge as a steady drain in mA: the
@@ -133,10 +141,16 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	}
 	cal, loadWh, protWh, cellWh, stby, self, peak := tot.h, tot.loadWh, tot.protWh, tot.cellWh, tot.stby, tot.self, tot.peak
 	// The element's peak dissipation can sit at either end of the run.
-	for _, x := range []float64{0, qsCut} {
-		if x < e.end {
-			peak = math.Max(peak, e.rates(x, v, nd).peakW)
+	// (Known from evaluate's own solves there, for the real variant.)
+	for i, x := range [2]float64{0, qsCut} {
+		if x >= e.end {
+			continue
 		}
+		p := [2]float64{e.peak0, e.peakCut}[i]
+		if math.IsNaN(p) || v.heat != e.heat {
+			p = e.rates(x, v, nd).peakW
+		}
+		peak = math.Max(peak, p)
 	}
 	r.RuntimeDays = cal / 24
 	r.RuntimeH = cal * f
