@@ -8,12 +8,47 @@ import "sort"
 // smallest margin (see judge); past the curve's end the margin is the
 // charge left, negative.
 func (e *evaluator) margin(qs float64, v *variant, nd *node) (bool, float64) {
+	f, m := e.marginWhy(qs, v, nd)
+	return f != "", m
+}
+
+// causeSpent is marginWhy's cause past the curve's end: the charge has
+// run out, whatever the variant.
+const causeSpent Cause = "spent"
+
+// marginWhy is margin with the first-ranked failing rule (judge), ""
+// when v works at qs.
+func (e *evaluator) marginWhy(qs float64, v *variant, nd *node) (Cause, float64) {
 	if qs >= e.end {
-		return true, e.end - qs
+		return causeSpent, e.end - qs
 	}
 	e.solveNode(qs, v, nd)
 	fail, _, m := e.judge(nd, v)
-	return fail != "", m
+	return fail, m
+}
+
+// found is what a cut-off search of variant v found: v works at lo and
+// fails at hi, hi − lo within the search's resolution (lo = hi = 0 when
+// v fails on the fresh pack); why is the first-ranked rule failing at hi
+// (judge; causeSpent past the curve's end; "" when not known).
+type found struct {
+	v      *variant
+	lo, hi float64
+	why    Cause
+}
+
+// hard reports whether a rule other than the product's stops (the floor,
+// the least LED current, the pack's own cut-off) fails at f.hi, so that
+// v with its stops removed fails there too: judge ranks the stops after
+// the fuse, the limit and a collapse but before the end-point, so a
+// stop ranked first may hide an end-point failing as well, and is taken
+// as not hard.
+func (f found) hard() bool {
+	switch f.why {
+	case "", CauseFloor, CauseDim, CauseCutoff:
+		return false
+	}
+	return true
 }
 
 // cutoff returns the scaled charge at which variant v first fails. It
@@ -22,6 +57,12 @@ func (e *evaluator) margin(qs float64, v *variant, nd *node) (bool, float64) {
 // fails. Failure is taken to be permanent once it starts, as the scan
 // always has.
 func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
+	return e.search(v, nd, from).lo
+}
+
+// search is cutoff with what it found at the failing side; the last
+// search is kept in e.last.
+func (e *evaluator) search(v *variant, nd *node, from float64) found {
 	first := 1
 	lo, mlo := 0.0, 0.0
 	if from > 0 {
@@ -36,9 +77,10 @@ func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 		}
 	}
 	if first == 1 {
-		f, m := e.margin(0, v, nd)
-		if f {
-			return 0
+		f, m := e.marginWhy(0, v, nd)
+		if f != "" {
+			e.last = found{v: v, why: f}
+			return e.last
 		}
 		mlo = m
 	}
@@ -46,15 +88,18 @@ func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 	// bisection over them would be faster but could step over a span
 	// where a rule fails and then holds again (a MOSFET handing over to
 	// its body diode), which the first failure must not miss.
+	e.last = found{v: v, lo: lo, hi: lo}
 	for _, b := range e.breaks[first:] {
-		f, m := e.margin(b, v, nd)
-		if !f {
+		f, m := e.marginWhy(b, v, nd)
+		if f == "" {
 			lo, mlo = b, m
 			continue
 		}
-		return e.narrow(v, nd, lo, mlo, b, m)
+		e.last = e.narrowWhy(v, nd, lo, mlo, b, m, f)
+		return e.last
 	}
-	return lo
+	e.last = found{v: v, lo: lo, hi: lo}
+	return e.last
 }
 
 // narrow finds the first failure in [lo, hi], where v works at lo with
@@ -63,6 +108,12 @@ func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 // ends have one, and bisects otherwise; the result is the last charge
 // found to work. About ten evaluations instead of bisection's forty.
 func (e *evaluator) narrow(v *variant, nd *node, lo, mlo, hi, mhi float64) float64 {
+	return e.narrowWhy(v, nd, lo, mlo, hi, mhi, "").lo
+}
+
+// narrowWhy is narrow with what it found at the failing side, why being
+// the rule failing at hi as given.
+func (e *evaluator) narrowWhy(v *variant, nd *node, lo, mlo, hi, mhi float64, why Cause) found {
 	tol := 1e-12 * e.end
 	side := 0
 	for k := 0; k < 200 && hi-lo > tol; k++ {
@@ -81,15 +132,15 @@ func (e *evaluator) narrow(v *variant, nd *node, lo, mlo, hi, mhi float64) float
 		if !(x > lo && x < hi) {
 			x = 0.5 * (lo + hi)
 		}
-		f, m := e.margin(x, v, nd)
-		if !f && m == 0 {
+		f, m := e.marginWhy(x, v, nd)
+		if f == "" && m == 0 {
 			// A step that lands on the root: x works with nothing to
 			// spare, so it is the cut-off. (Kept as lo with mlo = 0, the
 			// next step could only bisect, about 37 more times.)
-			return x
+			return found{v: v, lo: x, hi: hi, why: why}
 		}
-		if f {
-			hi, mhi = x, m
+		if f != "" {
+			hi, mhi, why = x, m, f
 			if side == 1 {
 				mlo /= 2
 			}
@@ -102,5 +153,5 @@ func (e *evaluator) narrow(v *variant, nd *node, lo, mlo, hi, mhi float64) float
 			side = -1
 		}
 	}
-	return lo
+	return found{v: v, lo: lo, hi: hi, why: why}
 }

@@ -140,6 +140,8 @@ type evaluator struct {
 	// solves evaluate makes there with the element as integrate sees it;
 	// NaN when not known (integrate then solves again).
 	peak0, peakCut float64
+	// last is the last cut-off search's outcome (cutoff.go, search).
+	last found
 }
 
 // Evaluate computes runtime, capacity and losses for design d.

@@ -71,23 +71,46 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// without the element are the runs with it.
 	noStop := d.Floor == 0 && d.MinLEDAmps == 0 && d.Cell.CutoffV == 0
 	qs0F, qsE0 := qsCut, qsCut
+	// What the design's own search found where it failed (heatCutoff),
+	// when its junctions hold: a run found to fail at the same charge
+	// by the same rule (found.hard, bareFails) need not be searched.
+	own := e.last
+	if own.v != real || own.lo != qsCut || real.heat != nil && !real.heat.still {
+		own = found{}
+	}
+	var fE0, f0F found
 	if !noStop {
 		// From the design's own cut-off, with its junctions as they stand
 		// there, then settled where this run ends (as heatCutoff does,
 		// from a nearer start).
-		qsE0 = e.cutoff(&noFloor, nd, qsCut)
-		if h := noFloor.heat; h != nil && !h.still {
-			qsE0 = e.heatSettle(&noFloor, nd, qsE0)
+		if own.hard() {
+			// The design fails there by a rule that is not a stop: so
+			// does this run (the same rule ranks first), which works
+			// wherever the design does.
+			fE0 = own
+			fE0.v = &noFloor
+		} else {
+			fE0 = e.search(&noFloor, nd, qsCut)
+			qsE0 = fE0.lo
+			if h := noFloor.heat; h != nil && !h.still {
+				qsE0, fE0 = e.heatSettle(&noFloor, nd, qsE0), found{}
+			}
 		}
 	}
 	if !none {
-		qs0F = e.cutoff(noEl, nd, qsCut)
+		if !e.bareFails(real, noEl, own) {
+			f0F = e.search(noEl, nd, qsCut)
+			qs0F = f0F.lo
+		}
 	}
 	qs00 := qsE0
 	switch {
 	case noStop:
 		qs00 = qs0F
-	case !none:
+	case none:
+	case f0F.hard():
+		qs00 = qs0F
+	case !e.bareFails(&noFloor, neither, fE0):
 		qs00 = e.cutoff(neither, nd, qs0F)
 	}
 
@@ -122,6 +145,47 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// run the load at all) while the element lets the design run, and then
 	// the sum above cancels to rounding.
 	r.ReferenceMAh = math.Max(0, qEF+r.StrandedMAh)
+}
+
+// bareFails reports whether variant bare, variant v without its element
+// (protect.None, no limit) and with no stop v lacks, fails where v's
+// search f found v to fail and works wherever v works, so that its
+// cut-off is v's. So it is when the element leaves the cells' side of
+// every node as it is: every phase a constant current (its own at every
+// charge), an element that draws nothing standing and drops nothing
+// below zero (a junction), and the same clock. bare's load then sees at
+// least v's voltage through the same cells, so it fails only where v
+// does; and where v fails first by a rule of the cells' own (the
+// end-point, the charge running out, the pack's cut-off when bare keeps
+// it) bare fails too.
+func (e *evaluator) bareFails(v, bare *variant, f found) bool {
+	switch f.why {
+	case CauseEndPoint, causeSpent:
+	case CauseCutoff:
+		if !bare.cutoff {
+			return false
+		}
+	default:
+		return false
+	}
+	if f.v != v || bare.usePerQ != v.usePerQ || bare.periodicOnly != v.periodicOnly ||
+		bare.floor > v.floor || bare.minLED > v.minLED || bare.cutoff && !v.cutoff {
+		return false
+	}
+	if _, ok := bare.el.(protect.None); !ok {
+		return false
+	}
+	switch v.el.(type) {
+	case protect.None, protect.Diode, protect.Schottky:
+	default:
+		return false
+	}
+	for _, l := range e.loads {
+		if l.Kind != ConstantCurrent {
+			return false
+		}
+	}
+	return true
 }
 
 // capacityScale is pack mAh per scaled cell mAh for variant v — parallel
