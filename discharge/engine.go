@@ -142,15 +142,30 @@ type evaluator struct {
 	peak0, peakCut float64
 	// last is the last cut-off search's outcome (cutoff.go, search).
 	last found
+	// general is set to take no shortcut (evaluateWith); skipped counts
+	// the cut-off searches the shortcuts saved, for the tests.
+	general bool
+	skipped int
 }
 
 // Evaluate computes runtime, capacity and losses for design d.
 func Evaluate(d *Design) (*Result, error) { return evaluate(d, gaussX, gaussW) }
 
-// evaluate is Evaluate with the quadrature rule given.
+// evaluate is Evaluate with the quadrature rule given. A finer rule than
+// the default is a reference (the convergence test): it takes no
+// shortcut.
 func evaluate(d *Design, gx, gw []float64) (*Result, error) {
+	r, _, err := evaluateWith(d, gx, gw, len(gx) > gaussN)
+	return r, err
+}
+
+// evaluateWith is evaluate, taking none of the shortcuts that give the
+// same figures for less work when general is set (the tests' reference,
+// TestShortcutsMatchGeneral). It returns the evaluator too, for the
+// tests to see which shortcuts were taken.
+func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluator, error) {
 	if err := d.Validate(); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	el := d.Protect
 	if el == nil {
@@ -160,6 +175,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// temperature terms once.
 	el = protect.Fixed(el, d.TempC)
 	e := newEvaluator(d, gx, gw)
+	e.general = general
 
 	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps}
 	if o, ok := el.(protect.Overloader); ok {
@@ -203,7 +219,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// where they are now for the whole run and the fresh pack's
 	// polarisation is the rested start's, as clock solves it (not when
 	// the run is taken as day-periodic from the start).
-	keep := e.linear(real)
+	keep := e.linear(real) && !e.general
 	if fresh := e.clock(real, scale, nd); keep && (real.heat == nil || real.heat.still) && !real.periodicOnly {
 		e.peak0 = fresh.peakW
 	}
@@ -262,13 +278,13 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		// an LED below its forward voltage, with no standby and a cell with
 		// no self-discharge. Time to empty is unbounded; say so rather
 		// than print an infinite runtime.
-		return nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
+		return nil, nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
 	}
 	if real.heat != nil {
 		e.reportHeat(real, nd)
 	}
 	e.priceAndNotes(el, r, nd)
-	return r, nil
+	return r, e, nil
 }
 
 // effectiveAmps is the one per-cell current the rate and cold factors

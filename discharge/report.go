@@ -48,7 +48,7 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 		cur[j] = l.Amps
 		allCC = allCC && l.Kind == ConstantCurrent
 	}
-	if !allCC {
+	if !allCC || e.general {
 		clear(cur)
 		v := &variant{el: el, lim: protect.NoLimit(), floor: 0, heat: e.heat}
 		for _, q := range []float64{0, math.Max(0, r.DeliveredMAh/(e.P*r.CapacityFactor)*(1-1e-9))} {

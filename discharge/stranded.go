@@ -75,7 +75,7 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// when its junctions hold: a run found to fail at the same charge
 	// by the same rule (found.hard, bareFails) need not be searched.
 	own := e.last
-	if own.v != real || own.lo != qsCut || real.heat != nil && !real.heat.still {
+	if e.general || own.v != real || own.lo != qsCut || real.heat != nil && !real.heat.still {
 		own = found{}
 	}
 	var fE0, f0F found
@@ -89,6 +89,7 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 			// wherever the design does.
 			fE0 = own
 			fE0.v = &noFloor
+			e.skipped++
 		} else {
 			fE0 = e.search(&noFloor, nd, qsCut)
 			qsE0 = fE0.lo
@@ -98,9 +99,13 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 		}
 	}
 	if !none {
-		if !e.bareFails(real, noEl, own) {
+		if e.general || !e.bareFails(real, noEl, own) {
 			f0F = e.search(noEl, nd, qsCut)
 			qs0F = f0F.lo
+		} else {
+			// It fails there by the same rule, one of the cells' own.
+			f0F, f0F.v = own, noEl
+			e.skipped++
 		}
 	}
 	qs00 := qsE0
@@ -108,10 +113,13 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	case noStop:
 		qs00 = qs0F
 	case none:
-	case f0F.hard():
+	case !e.general && f0F.hard():
 		qs00 = qs0F
-	case !e.bareFails(&noFloor, neither, fE0):
+		e.skipped++
+	case e.general || !e.bareFails(&noFloor, neither, fE0):
 		qs00 = e.cutoff(neither, nd, qs0F)
+	default:
+		e.skipped++
 	}
 
 	// Removing a stop can never end a run sooner: it only takes a way to
