@@ -12,6 +12,13 @@ import (
 // solve finds the operating point of load l with the pack source (E, Rp)
 // behind element v.
 func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
+	var o op
+	e.solveTo(&o, l, k, v, E, Rp)
+	return o
+}
+
+// solveTo is solve into o (no copy of an op on the nodes' hot path).
+func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	el, T := e.phaseElement(v, k)
 	iq := el.Quiescent(E, T)
 	vin := func(i float64) float64 { return E - (i+iq)*Rp }
@@ -58,11 +65,12 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 			if ok {
 				e.hint[k] = i
 			} else {
-				return op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: failCollapse}
+				*o = op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: failCollapse}
+				return
 			}
 		}
 	}
-	o := op{I: i, Ipack: i + iq}
+	*o = op{I: i, Ipack: i + iq}
 	o.Vin = vin(i)
 	o.Vdrop = e.drop(v, k, el, i, o.Vin, T)
 	o.Vload = o.Vin - o.Vdrop
@@ -100,7 +108,6 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 			o.Fail = failLimit
 		}
 	}
-	return o
 }
 
 // dropMemo is the last drop worked out for one phase: variant v's element
@@ -325,9 +332,9 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			self := nd.pol.self[k]
 			other := nd.pol.mean[k] - self*nd.icell[k]
 			src := e.S * (nd.E - other)
-			o := e.solve(l, k, v, src, nd.Rp+e.S*self/e.P)
+			o := &nd.mean[k]
+			e.solveTo(o, l, k, v, src, nd.Rp+e.S*self/e.P)
 			o.CellV = (src-o.Ipack*nd.Rp)/e.S - self*o.Ipack/e.P
-			nd.mean[k] = o
 			ic := o.Ipack / e.P
 			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
 			if pass >= dampFrom {
@@ -369,9 +376,9 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			continue
 		}
 		src := e.S * (nd.E - nd.pol.worst[k])
-		o := e.solve(l, k, v, src, nd.Rp)
+		o := &nd.worst[k]
+		e.solveTo(o, l, k, v, src, nd.Rp)
 		o.CellV = (src - o.Ipack*nd.Rp) / e.S
-		nd.worst[k] = o
 		nd.late[k] = math.NaN()
 		if e.cutoffV > 0 && e.pLate[k] {
 			nd.late[k] = nd.E - nd.icell[k]*nd.R0 - nd.pol.late[k]
