@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"sync"
 
 	"headroom/curves"
 	"headroom/internal/rc"
@@ -142,6 +143,8 @@ type evaluator struct {
 	peak0, peakCut float64
 	// last is the last cut-off search's outcome (cutoff.go, search).
 	last found
+	// quad is the quadrature's working memory (integrate).
+	quad quadrature
 	// general is set to take no shortcut (evaluateWith); skipped counts
 	// the cut-off searches the shortcuts saved, for the tests.
 	general bool
@@ -155,9 +158,19 @@ func Evaluate(d *Design) (*Result, error) { return evaluate(d, gaussX, gaussW) }
 // the default is a reference (the convergence test): it takes no
 // shortcut.
 func evaluate(d *Design, gx, gw []float64) (*Result, error) {
-	r, _, err := evaluateWith(d, gx, gw, len(gx) > gaussN)
+	r, e, err := evaluateWith(d, gx, gw, len(gx) > gaussN)
+	if e != nil {
+		evaluators.Put(e) // the Result holds nothing of it
+	}
 	return r, err
 }
+
+// evaluators recycles the evaluators' memory (the source cache and the
+// quadrature's node buffers are most of it), which at a few kilobytes an
+// evaluation otherwise sets the garbage collector going every few
+// hundred evaluations. newEvaluator sets every field of the one it takes
+// afresh: nothing of one evaluation reaches the next.
+var evaluators = sync.Pool{New: func() any { return new(evaluator) }}
 
 // evaluateWith is evaluate, taking none of the shortcuts that give the
 // same figures for less work when general is set (the tests' reference,
@@ -363,7 +376,8 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		panic("discharge: quadrature rule above maxGauss nodes")
 	}
 	c := d.Cell
-	e := &evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
+	e := evaluators.Get().(*evaluator)
+	*e = evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
 		peak0: math.NaN(), peakCut: math.NaN()}
 	e.end = c.Curve.End()
 	total := 0.0

@@ -122,7 +122,8 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	var tot sums
 	// A finer rule than the default is a reference (the convergence
 	// test): it takes no shortcut.
-	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
+	q := &e.quad
+	*q = quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
 	if e.pol != nil {
 		for _, b := range e.pol.br {
 			if b.tau >= 1e-3*qsCut*v.usePerQ {
