@@ -143,8 +143,12 @@ type evaluator struct {
 	peak0, peakCut float64
 	// last is the last cut-off search's outcome (cutoff.go, search).
 	last found
-	// quad is the quadrature's working memory (integrate).
+	// quad is the quadrature's working memory (integrate); runs holds the
+	// stranded split's other three variants (strandedSplit), real the
+	// design's own.
 	quad quadrature
+	real variant
+	runs [3]variant
 	// general is set to take no shortcut (evaluateWith); skipped counts
 	// the cut-off searches the shortcuts saved, for the tests.
 	general bool
@@ -190,7 +194,8 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	e := newEvaluator(d, gx, gw)
 	e.general = general
 
-	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps}
+	real := &e.real
+	*real = variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps}
 	if o, ok := el.(protect.Overloader); ok {
 		real.over, real.lim.Trip = o, math.Inf(1)
 	}
@@ -385,16 +390,17 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		total += p.Seconds
 	}
 	n := len(d.Profile)
-	e.w, e.loads, e.hint = make([]float64, 0, n), make([]Load, 0, n), make([]float64, n)
-	e.drops = make([]dropMemo, n)
-	dur := make([]float64, 0, n)
+	f := make([]float64, 4*n) // one backing array for the per-phase figures
+	e.w, e.hint, e.cur = f[:0:n], f[n:2*n:2*n], f[3*n:]
+	dur := f[2*n : 2*n : 3*n]
+	e.loads, e.drops = make([]Load, 0, n), make([]dropMemo, n)
 	for _, p := range d.Profile {
 		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED
 		e.w = append(e.w, p.Seconds/total)
 		e.loads = append(e.loads, p.Load)
 		dur = append(dur, p.Seconds)
 	}
-	e.secs, e.cur = dur, make([]float64, n)
+	e.secs = dur
 	e.breaks = breakpoints(c)
 	e.duty = 1.0
 	if d.HoursPerDay > 0 {

@@ -88,7 +88,7 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	if r.RuntimeH == 0 {
 		r.Warnings = append(r.Warnings, "the product "+d.CutoffText(r))
 	}
-	r.Cautions = append(r.Cautions, Cautions(c, d.Series*d.Parallel)...)
+	r.Cautions = Cautions(c, d.Series*d.Parallel) // a slice of the Result's own
 	if d.Toy {
 		r.Cautions = append(r.Cautions, ToyCaution)
 	}

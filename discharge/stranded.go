@@ -47,11 +47,13 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// The floor, the least LED current and the pack's own under-voltage
 	// cut-off are the product's stops: the reference leaves them all out,
 	// so they go together as "the floor".
-	noEl := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
-	noFloor := *real
+	// (The three live in the evaluator: no allocation each.)
+	noEl, noFloor, neither := &e.runs[0], &e.runs[1], &e.runs[2]
+	*noEl = variant{el: protect.None{}, lim: protect.NoLimit(), floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
+	*noFloor = *real
 	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
 	noFloor.heat = e.heatCopy(real.heat) // its own junctions: the design's stay as they were
-	neither := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
+	*neither = variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
 	// The runs without the element draw what the bare cells draw: their
 	// own capacity scale and their own clock (the time a charge stands
 	// for, which sets how far the rested first session has gone), both
@@ -88,13 +90,13 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 			// does this run (the same rule ranks first), which works
 			// wherever the design does.
 			fE0 = own
-			fE0.v = &noFloor
+			fE0.v = noFloor
 			e.skipped++
 		} else {
-			fE0 = e.search(&noFloor, nd, qsCut)
+			fE0 = e.search(noFloor, nd, qsCut)
 			qsE0 = fE0.lo
 			if h := noFloor.heat; h != nil && !h.still {
-				qsE0, fE0 = e.heatSettle(&noFloor, nd, qsE0), found{}
+				qsE0, fE0 = e.heatSettle(noFloor, nd, qsE0), found{}
 			}
 		}
 	}
@@ -116,7 +118,7 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	case !e.general && f0F.hard():
 		qs00 = qs0F
 		e.skipped++
-	case e.general || !e.bareFails(&noFloor, neither, fE0):
+	case e.general || !e.bareFails(noFloor, neither, fE0):
 		qs00 = e.cutoff(neither, nd, qs0F)
 	default:
 		e.skipped++
