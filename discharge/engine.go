@@ -145,8 +145,9 @@ type evaluator struct {
 	last found
 	// quad is the quadrature's working memory (integrate); runs holds the
 	// stranded split's other three variants (strandedSplit), real the
-	// design's own.
+	// design's own; nd is the evaluation's node (newNode).
 	quad quadrature
+	nd   node
 	real variant
 	runs [3]variant
 	// general is set to take no shortcut (evaluateWith); skipped counts

@@ -263,14 +263,21 @@ type node struct {
 	// worked out for: a node where none has moved reuses it.
 	polI          []float64
 	polRest, polT float64
+	ps            polState // what pol points at
 }
 
+// newNode is the evaluation's node: it lives in the evaluator, its
+// figures in two allocations.
 func (e *evaluator) newNode() *node {
 	n := len(e.loads)
 	ops := make([]op, 2*n)
-	f := make([]float64, 3*n)
-	return &node{mean: ops[:n:n], worst: ops[n:], late: f[:n:n], icell: f[n : 2*n : 2*n],
-		pol: newPolState(n), polI: f[2*n:], polRest: math.NaN()}
+	f := make([]float64, 13*n)
+	nd := &e.nd
+	*nd = node{mean: ops[:n:n], worst: ops[n:], late: f[:n:n], icell: f[n : 2*n : 2*n],
+		polI: f[2*n : 3*n : 3*n], polRest: math.NaN()}
+	nd.ps.init(f[3*n:])
+	nd.pol = &nd.ps
+	return nd
 }
 
 // maxPasses bounds the fixed-point passes per charge: a phase's current
