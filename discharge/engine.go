@@ -151,7 +151,8 @@ type evaluator struct {
 	real variant
 	runs [3]variant
 	// general is set to take no shortcut (evaluateWith); skipped counts
-	// the cut-off searches the shortcuts saved, for the tests.
+	// the cut-off searches and capacity scales the shortcuts saved, for
+	// the tests.
 	general bool
 	skipped int
 }

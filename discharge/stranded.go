@@ -62,7 +62,14 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// the design's (copied with it).
 	scale0 := scale
 	if !none {
-		scale0 = e.capacityScale(neither, nd)
+		if !e.general && e.drawsAsBare(real) {
+			// The bare cells draw what the design draws, to the bit:
+			// the same scale and clock.
+			neither.usePerQ, neither.periodicOnly = real.usePerQ, real.periodicOnly
+			e.skipped++
+		} else {
+			scale0 = e.capacityScale(neither, nd)
+		}
 		noEl.usePerQ, noEl.periodicOnly = neither.usePerQ, neither.periodicOnly
 	}
 
@@ -185,6 +192,14 @@ func (e *evaluator) bareFails(v, bare *variant, f found) bool {
 	if _, ok := bare.el.(protect.None); !ok {
 		return false
 	}
+	return e.drawsAsBare(v)
+}
+
+// drawsAsBare reports whether variant v's cells carry what they would
+// carry without its element, at every charge: every phase a constant
+// current (its own at every charge, solve) behind an element that draws
+// nothing standing and drops nothing below zero (a junction, or none).
+func (e *evaluator) drawsAsBare(v *variant) bool {
 	switch v.el.(type) {
 	case protect.None, protect.Diode, protect.Schottky:
 	default:
