@@ -384,6 +384,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	c := d.Cell
 	e := evaluators.Get().(*evaluator)
+	breaks := e.breaks // the last evaluation's array, refilled below
 	*e = evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
 		peak0: math.NaN(), peakCut: math.NaN()}
 	e.end = c.Curve.End()
@@ -403,7 +404,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		dur = append(dur, p.Seconds)
 	}
 	e.secs = dur
-	e.breaks = breakpoints(c)
+	e.breaks = breakpointsTo(breaks, c)
 	e.duty = 1.0
 	if d.HoursPerDay > 0 {
 		e.duty = d.HoursPerDay / 24

@@ -28,11 +28,15 @@ var gaussX, gaussW = func() ([]float64, []float64) {
 	return x, w
 }()
 
-// breakpoints are the scaled charges where the curve or the resistance
-// table has a corner, sorted, from 0 to the curve's end.
-func breakpoints(c *curves.Cell) []float64 {
+// breakpointsTo returns the scaled charges where the curve or the
+// resistance table has a corner, sorted, from 0 to the curve's end, in
+// buf's backing array when it has room.
+func breakpointsTo(buf []float64, c *curves.Cell) []float64 {
 	end := c.Curve.End()
-	b := make([]float64, 0, 2+c.Curve.Len()+len(c.Resistance))
+	b := buf[:0]
+	if n := 2 + c.Curve.Len() + len(c.Resistance); cap(b) < n {
+		b = make([]float64, 0, n)
+	}
 	b = append(b, 0, end)
 	for i := range c.Curve.Len() {
 		q, _ := c.Curve.Point(i)
