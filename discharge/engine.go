@@ -8,6 +8,7 @@ import (
 	"slices"
 	"sort"
 	"sync"
+	"sync/atomic"
 
 	"headroom/curves"
 	"headroom/internal/rc"
@@ -171,6 +172,33 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	return r, err
 }
 
+// labels keeps the loads' labels (Load.Label, a few hundred nanoseconds
+// of number formatting each) by load: a sweep names the same few loads
+// in every result. At most maxLabels, then it starts afresh.
+var labels struct {
+	sync.Map
+	n atomic.Int64
+}
+
+const maxLabels = 4096
+
+// phaseLabel is p.Label(), the load's from labels.
+func phaseLabel(p Phase) string {
+	if p.Name != "" {
+		return p.Name
+	}
+	if s, ok := labels.Load(p.Load); ok {
+		return s.(string)
+	}
+	s := p.Load.Label()
+	if labels.n.Add(1) > maxLabels {
+		labels.Clear()
+		labels.n.Store(0)
+	}
+	labels.Store(p.Load, s)
+	return s
+}
+
 // evaluators recycles the evaluators' memory (the source cache and the
 // quadrature's node buffers are most of it), which at a few kilobytes an
 // evaluation otherwise sets the garbage collector going every few
@@ -269,7 +297,7 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 		}
 	}
 	r.CutoffCause = fail
-	r.CutoffPhase = d.Profile[ph].Label()
+	r.CutoffPhase = phaseLabel(d.Profile[ph])
 	r.CutoffIndex = ph
 	e.solveNode(math.Min(qsCut, e.end), real, nd)
 	if keep && qsCut < e.end {
