@@ -449,7 +449,39 @@ func (e *evaluator) activeAverage(ops []op) float64 {
 // constant-power load collapses (no operating point, no margin): there it
 // is NaN. phase is the failing phase (-1 when none fails).
 func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float64) {
+	fail, phase, m, _ = e.judgeRules(nd, v)
+	return fail, phase, m
+}
+
+// rules are a node's margins rule by rule (judgeRules): the load's
+// voltage above the floor, the current below the limits, the cells above
+// the pack's cut-off, the cycle's average above the end-point (+Inf for
+// a rule that does not apply; NaN where the smallest margin is).
+type rules struct{ floor, limit, cutoff, end float64 }
+
+// of is the margin of the rule that fails as cause c; NaN for a rule
+// with none (a collapse, an LED too dim, the charge spent).
+func (r rules) of(c Cause) float64 {
+	switch c {
+	case CauseFloor:
+		return r.floor
+	case CauseLimit, CauseFuse:
+		return r.limit
+	case CauseCutoff:
+		return r.cutoff
+	case CauseEndPoint:
+		return r.end
+	}
+	return math.NaN()
+}
+
+// noRules is the rules of a node not judged.
+var noRules = rules{math.NaN(), math.NaN(), math.NaN(), math.NaN()}
+
+// judgeRules is judge with the margins rule by rule.
+func (e *evaluator) judgeRules(nd *node, v *variant) (fail Cause, phase int, m float64, r rules) {
 	fail, phase, m = "", -1, math.Inf(1)
+	r = rules{math.Inf(1), math.Inf(1), math.Inf(1), math.Inf(1)}
 	note := func(c Cause, k int) {
 		if fail == "" || rank(c) < rank(fail) {
 			fail, phase = c, k
@@ -470,6 +502,7 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 			m = math.NaN()
 		} else if !math.IsNaN(m) {
 			m = min(m, o.Vload-v.floor, v.lim.Clamp-o.I, v.lim.Trip-o.I)
+			r.floor, r.limit = min(r.floor, o.Vload-v.floor), min(r.limit, v.lim.Clamp-o.I, v.lim.Trip-o.I)
 		}
 		if o.CellV < nd.worst[low].CellV {
 			low = k
@@ -481,6 +514,7 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 			}
 			if !math.IsNaN(m) {
 				m = min(m, d)
+				r.cutoff = min(r.cutoff, d)
 			}
 		}
 	}
@@ -496,20 +530,24 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 		}
 		if !math.IsNaN(m) {
 			m = min(m, 1-load)
+			r.limit = min(r.limit, 1-load)
 		}
 	}
-	if d := nd.cellAvg - e.cell.EndPoint; d < 0 {
+	d := nd.cellAvg - e.cell.EndPoint
+	if d < 0 {
 		note(CauseEndPoint, low)
-		if !math.IsNaN(m) {
-			m = min(m, d)
-		}
-	} else if !math.IsNaN(m) {
+	}
+	if !math.IsNaN(m) {
 		m = min(m, d)
+		r.end = d
 	}
 	if fail != "" && m > 0 || fail == "" && m < 0 { // a rule the margin does not see
 		m = math.NaN()
 	}
-	return fail, phase, m
+	if math.IsNaN(m) {
+		r = noRules
+	}
+	return fail, phase, m, r
 }
 
 // rank orders causes when several phases fail at once: the most telling first.
