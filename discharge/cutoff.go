@@ -2,7 +2,10 @@
 
 package discharge
 
-import "sort"
+import (
+	"math"
+	"sort"
+)
 
 // margin solves variant v at qs and returns whether it fails and its
 // smallest margin (see judge); past the curve's end the margin is the
@@ -57,20 +60,29 @@ func (f found) hard() bool {
 // fails. Failure is taken to be permanent once it starts, as the scan
 // always has.
 func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
-	return e.search(v, nd, from).lo
+	return e.search(v, nd, from, false).lo
 }
 
 // search is cutoff with what it found at the failing side; the last
-// search is kept in e.last.
-func (e *evaluator) search(v *variant, nd *node, from float64) found {
+// search is kept in e.last. works says that v works wherever the search
+// that found from saw its own variant work (v fails only where that one
+// does: stops removed, or an element behind constant currents, see
+// bareFails): the breakpoint at or below from is then not solved unless
+// the span after it fails, where its margin is needed. Behind constant
+// currents and a steady element (linear) a node solves to the same
+// figures in any order, so the search finds what it would have.
+func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found {
 	first := 1
 	lo := bound{0, 0, noRules}
+	lazy := false
 	if from > 0 {
 		j := sort.SearchFloat64s(e.breaks, from)
 		if j == len(e.breaks) || e.breaks[j] > from {
 			j--
 		}
-		if j > 0 {
+		if j > 0 && works && !e.general && e.linear(v) {
+			first, lo, lazy = j+1, bound{e.breaks[j], math.NaN(), noRules}, true
+		} else if j > 0 {
 			if f, m, r := e.marginWhy(e.breaks[j], v, nd); f == "" {
 				first, lo = j+1, bound{e.breaks[j], m, r}
 			}
@@ -91,8 +103,14 @@ func (e *evaluator) search(v *variant, nd *node, from float64) found {
 	for _, b := range e.breaks[first:] {
 		f, m, r := e.marginWhy(b, v, nd)
 		if f == "" {
-			lo = bound{b, m, r}
+			lo, lazy = bound{b, m, r}, false
 			continue
+		}
+		if lazy {
+			var fl Cause
+			if fl, lo.m, lo.r = e.marginWhy(lo.q, v, nd); fl != "" {
+				return e.search(v, nd, from, false) // not as promised: as cutoff would
+			}
 		}
 		e.last = e.narrowWhy(v, nd, lo, bound{b, m, r}, f)
 		return e.last
