@@ -90,6 +90,9 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 	}
 	if first == 1 {
 		f, m, r := e.marginWhy(0, v, nd)
+		if e.keepRates && v == &e.real {
+			e.keep(0, 0, nd)
+		}
 		if f != "" {
 			e.last = found{v: v, why: f}
 			return e.last
@@ -100,8 +103,11 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 	// bisection over them would be faster but could step over a span
 	// where a rule fails and then holds again (a MOSFET handing over to
 	// its body diode), which the first failure must not miss.
-	for _, b := range e.breaks[first:] {
+	for i, b := range e.breaks[first:] {
 		f, m, r := e.marginWhy(b, v, nd)
+		if e.keepRates && v == &e.real && b < e.end {
+			e.keep(first+i, b, nd)
+		}
 		if f == "" {
 			lo, lazy = bound{b, m, r}, false
 			continue

@@ -151,6 +151,10 @@ type evaluator struct {
 	nd   node
 	real variant
 	runs [3]variant
+	// keepRates is set when the real variant's solves at the breakpoints
+	// and the cut-off are kept for integrate (solved; quadrature.go).
+	keepRates bool
+	solved    solvedAt
 	// general is set to take no shortcut (evaluateWith); skipped counts
 	// the cut-off searches and capacity scales the shortcuts saved, for
 	// the tests.
@@ -267,8 +271,8 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// where they are now for the whole run and the fresh pack's
 	// polarisation is the rested start's, as clock solves it (not when
 	// the run is taken as day-periodic from the start).
-	keep := e.linear(real) && !e.general
-	if fresh := e.clock(real, scale, nd); keep && (real.heat == nil || real.heat.still) && !real.periodicOnly {
+	lin := e.linear(real) && !e.general
+	if fresh := e.clock(real, scale, nd); lin && (real.heat == nil || real.heat.still) && !real.periodicOnly {
 		e.peak0 = fresh.peakW
 	}
 
@@ -276,7 +280,12 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// asks less of the pack than the one before, so its scan resumes near
 	// the previous cut-off; without an element the bare variant is the
 	// real one.
+	// Behind constant currents and a steady element whose junctions hold,
+	// the design's own search keeps what it solves at the breakpoints for
+	// the quadrature (keep).
+	e.keepRates = lin && (real.heat == nil || real.heat.still)
 	qsCut := e.heatCutoff(real, nd)
+	e.keepRates = false
 
 	r := &Result{EffectiveA: ieff, CapacityFactor: F}
 	r.FreshV = e.S * d.Cell.OpenCircuit(0, d.TempC)
@@ -300,8 +309,11 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	r.CutoffPhase = phaseLabel(d.Profile[ph])
 	r.CutoffIndex = ph
 	e.solveNode(math.Min(qsCut, e.end), real, nd)
-	if keep && qsCut < e.end {
+	if lin && qsCut < e.end {
 		e.peakCut = peakOf(nd)
+		if real.heat == nil || real.heat.still {
+			e.keep(len(e.breaks), qsCut, nd)
+		}
 	}
 	o := nd.worst[ph]
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = o.Vload, o.Vin, o.I
