@@ -89,7 +89,15 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 		}
 	}
 	if first == 1 {
-		f, m, r := e.marginWhy(0, v, nd)
+		var f Cause
+		var m float64
+		var r rules
+		if e.atZero && v == &e.real {
+			f, _, m, r = e.judgeRules(nd, v) // solved there already
+		} else {
+			f, m, r = e.marginWhy(0, v, nd)
+		}
+		e.atZero = false
 		if e.keepRates && v == &e.real {
 			e.keep(0, 0, nd)
 		}

@@ -155,6 +155,9 @@ type evaluator struct {
 	// and the cut-off are kept for integrate (solved; quadrature.go).
 	keepRates bool
 	solved    solvedAt
+	// atZero is set while nd holds the real variant solved at charge 0,
+	// exactly as a solve there would leave it (keepRates).
+	atZero bool
 	// general is set to take no shortcut (evaluateWith); skipped counts
 	// the cut-off searches and capacity scales the shortcuts saved, for
 	// the tests.
@@ -283,9 +286,13 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// Behind constant currents and a steady element whose junctions hold,
 	// the design's own search keeps what it solves at the breakpoints for
 	// the quadrature (keep).
+	// nd holds the real variant solved with the fresh pack (clock), with
+	// the rested start's polarisation: unless the run is taken as
+	// day-periodic from the start, its search starts from that (atZero).
 	e.keepRates = lin && (real.heat == nil || real.heat.still)
+	e.atZero = e.keepRates && !real.periodicOnly
 	qsCut := e.heatCutoff(real, nd)
-	e.keepRates = false
+	e.keepRates, e.atZero = false, false
 
 	r := &Result{EffectiveA: ieff, CapacityFactor: F}
 	r.FreshV = e.S * d.Cell.OpenCircuit(0, d.TempC)
