@@ -155,6 +155,7 @@ type evaluator struct {
 	// and the cut-off are kept for integrate (solved; quadrature.go).
 	keepRates bool
 	solved    solvedAt
+	spare     solvedAt // a recycled evaluator's arrays for solved
 	// atZero is set while nd holds the real variant solved at charge 0,
 	// exactly as a solve there would leave it (keepRates).
 	atZero bool
@@ -431,7 +432,8 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	c := d.Cell
 	e := evaluators.Get().(*evaluator)
-	breaks := e.breaks // the last evaluation's array, refilled below
+	// The last evaluation's arrays, refilled below and by keep.
+	breaks, solved := e.breaks, e.solved
 	*e = evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
 		peak0: math.NaN(), peakCut: math.NaN()}
 	e.end = c.Curve.End()
@@ -452,6 +454,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	e.secs = dur
 	e.breaks = breakpointsTo(breaks, c)
+	e.spare = solved
 	e.duty = 1.0
 	if d.HoursPerDay > 0 {
 		e.duty = d.HoursPerDay / 24

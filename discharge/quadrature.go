@@ -124,7 +124,12 @@ func (e *evaluator) keep(j int, qs float64, nd *node) {
 	n := len(e.loads)
 	if k.ok == nil {
 		m := len(e.breaks) + 1
-		k.ok, k.r, k.peak = make([]bool, m), make([]rates, m), make([]float64, m*n)
+		if sp := &e.spare; cap(sp.ok) >= m && cap(sp.peak) >= m*n {
+			k.ok, k.r, k.peak = sp.ok[:m], sp.r[:m], sp.peak[:m*n]
+			clear(k.ok)
+		} else {
+			k.ok, k.r, k.peak = make([]bool, m), make([]rates, m), make([]float64, m*n)
+		}
 	}
 	k.ok[j], k.r[j] = true, e.ratesAt(&e.real, nd)
 	for i, o := range nd.worst {
