@@ -167,22 +167,16 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// a kinder rate factor (a point deeper in the run can fail, or move
 	// with the load).
 	k := d.Cell.Peukert
-	if real.heat != nil {
-		// The junctions with the fresh pack: exact for the whole run
-		// behind constant currents and a drop that ignores the pack
-		// (still), whose currents do not move with temperature either,
-		// so the node solved at ambient serves as it is.
-		real.heat.still = e.linear(real)
-		if !real.heat.still {
-			e.settle(real, 0, nd)
-		}
-	}
-	e.solveNode(0, real, nd)
-	if real.heat != nil {
-		if real.heat.still {
-			e.settleAt(real, 0, nd)
-		}
-		real.heat.freshHeat(e, real, nd)
+	if h := real.heat; h != nil && e.linear(real) {
+		// Constant currents behind a drop that ignores the pack: the
+		// junctions cannot move with charge (still), and their currents
+		// do not move with temperature either, so the node solved at
+		// ambient gives their sources and one solve holds for the run.
+		e.solveNode(0, real, nd)
+		e.settleStill(real, nd)
+		h.still = true
+	} else {
+		e.solveNode(0, real, nd) // the junctions settle at every charge solved (heat.go)
 	}
 	sum := 0.0
 	for j, o := range nd.mean {
@@ -209,7 +203,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// asks less of the pack than the one before, so its scan resumes near
 	// the previous cut-off; without an element the bare variant is the
 	// real one.
-	qsCut := e.heatCutoff(real, nd)
+	qsCut := e.cutoff(real, nd, 0)
 
 	r := &Result{EffectiveA: ieff, CapacityFactor: F}
 	r.FreshV = e.S * d.Cell.OpenCircuit(0, d.TempC)
@@ -225,8 +219,6 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		e.solveNode(past, real, nd)
 		if f, p, _ := e.judge(nd, real); f != "" {
 			fail, ph = f, p
-		} else if h := real.heat; h != nil && h.cause != "" {
-			fail, ph = h.cause, h.phase // the junctions' search (heatScan)
 		}
 	}
 	r.CutoffCause = fail
@@ -250,16 +242,25 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 
 	e.strandedSplit(real, qsCut, scale, r, nd) // stranded.go
 
+	// The run's own charges — the quadrature's nodes, the trace, the
+	// fresh pack and the cut-off — give the junction's reported peak.
+	if h := real.heat; h != nil && !h.still {
+		h.rec = true
+	}
 	e.integrate(real, qsCut, scale, r, nd)
+	if h := real.heat; h != nil && !h.still {
+		e.solveNode(0, real, nd)
+		if x := math.Min(qsCut, e.end*(1-1e-12)); x > 0 {
+			e.solveNode(x, real, nd)
+		}
+		h.rec = false
+	}
 	if !finite(r.RuntimeH) || !finite(r.DeliveredWh) || !finite(r.ProtectionLossWh) || !finite(r.CellLossWh) {
 		// The drain fell to nothing before any cut-off: a load of zero, or
 		// an LED below its forward voltage, with no standby and a cell with
 		// no self-discharge. Time to empty is unbounded; say so rather
 		// than print an infinite runtime.
 		return nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
-	}
-	if real.heat != nil {
-		e.reportHeat(real, nd)
 	}
 	e.priceAndNotes(el, r, nd)
 	return r, nil

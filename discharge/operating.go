@@ -278,6 +278,10 @@ const dampFrom = 4
 
 // solveNode solves every phase of variant v at scaled charge qs into nd.
 func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
+	if v.heat.settles() { // the junctions as their heat sets them at qs (heat.go)
+		e.settleNode(qs, v, nd)
+		return
+	}
 	nd.E, nd.R0 = e.source(qs)
 	nd.Epack, nd.Rp = e.S*nd.E, e.S*nd.R0/e.P
 	if e.pol == nil {

@@ -50,7 +50,8 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	noEl := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
 	noFloor := *real
 	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
-	noFloor.heat = e.heatCopy(real.heat) // its own junctions: the design's stay as they were
+	// noFloor's junctions are real's: at each charge they settle where
+	// their heat sets them, which no stop changes (heat.go).
 	neither := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
 
 	// Each scan resumes near a cut-off already found; cutoff starts over
@@ -61,13 +62,7 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	noStop := d.Floor == 0 && d.MinLEDAmps == 0 && d.Cell.CutoffV == 0
 	qs0F, qsE0 := qsCut, qsCut
 	if !noStop {
-		// From the design's own cut-off, with its junctions as they stand
-		// there, then settled where this run ends (as heatCutoff does,
-		// from a nearer start).
 		qsE0 = e.cutoff(&noFloor, nd, qsCut)
-		if h := noFloor.heat; h != nil && !h.still {
-			qsE0 = e.heatSettle(&noFloor, nd, qsE0)
-		}
 	}
 	if !none {
 		qs0F = e.cutoff(noEl, nd, qsCut)
@@ -131,23 +126,6 @@ func (e *evaluator) capacityScale(v *variant, nd *node) float64 {
 	}
 	sum += (1 - e.duty) * math.Pow((d.Standby+v.el.Quiescent(nd.Epack, d.TempC))/e.P, k)
 	return e.P * d.Cell.CapacityFactor(math.Pow(sum, 1/k), d.TempC)
-}
-
-// heatCopy is a junction state of its own for a variant of the same
-// element, starting where h stands; nil for none. It shares h's thermal
-// model (protect.Heating): that holds the network's factors for the
-// profile and only scratch besides, which a solve writes before it reads
-// it, and solves of the two states never run at once.
-func (e *evaluator) heatCopy(h *heat) *heat {
-	if h == nil {
-		return nil
-	}
-	c := e.heatWith(h.base, h.h)
-	copy(c.tj, h.tj)
-	copy(c.els, h.els)
-	c.still = h.still
-	c.fresh = append(c.fresh, h.fresh...)
-	return c
 }
 
 // Started reports whether the design ran at all: false when it fails on
