@@ -172,9 +172,9 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		// junctions cannot move with charge (still), and their currents
 		// do not move with temperature either, so the node solved at
 		// ambient gives their sources and one solve holds for the run.
+		h.still = true
 		e.solveNode(0, real, nd)
 		e.settleStill(real, nd)
-		h.still = true
 	} else {
 		e.solveNode(0, real, nd) // the junctions settle at every charge solved (heat.go)
 	}

@@ -50,8 +50,10 @@ type heat struct {
 	// memo holds the settled temperatures at recent charges: the four
 	// runs' searches and the quadrature come back to the same charges
 	// (the breakpoints above all).
-	memo              [16]settledAt
+	memo              *[16]settledAt // made at the first settle
 	scratch, src, res []float64
+	keep              []float64
+	keepEls           []protect.Element
 }
 
 // settledAt is the junctions settled at one charge for one current limit
@@ -92,10 +94,11 @@ func (e *evaluator) newHeat(el protect.Element) *heat {
 		return nil
 	}
 	n := len(e.loads)
-	buf := make([]float64, 4*n) // one backing array, made once per evaluation
+	buf := make([]float64, 5*n) // one backing array, made once per evaluation
 	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
 	s := &heat{h: protect.NewHeating(th, e.secs), base: el, amb: protect.Fixed(el, e.T), ok: true,
-		tj: cut(), els: make([]protect.Element, n), scratch: cut(), src: cut(), res: cut()}
+		tj: cut(), els: make([]protect.Element, n), scratch: cut(), src: cut(), res: cut(),
+		keep: cut(), keepEls: make([]protect.Element, n)}
 	s.ambient(e.T)
 	return s
 }
@@ -146,6 +149,9 @@ func (e *evaluator) settleNode(qs float64, v *variant, nd *node) {
 	s := v.heat
 	s.holding = true
 	defer func() { s.holding = false }()
+	if s.memo == nil {
+		s.memo = new([16]settledAt)
+	}
 	b := math.Float64bits(qs)
 	m := &s.memo[(b^b>>17^b>>31)%uint64(len(s.memo))]
 	if m.present && m.qs == qs && m.clamp == v.lim.Clamp {
@@ -158,19 +164,39 @@ func (e *evaluator) settleNode(qs float64, v *variant, nd *node) {
 	s.ambient(e.T)
 	n := len(e.loads)
 	var st protect.Settled
-	for pass := 0; pass < outerPasses; pass++ {
+	// Each pass solves the node at the temperatures as they stand and the
+	// temperatures for the sources it gives. With no polarisation, or a
+	// lone phase (its own share of it is solved with it), those sources
+	// do not move with the temperatures and one pass is exact; otherwise
+	// the passes go on until a pass moves no phase by more than outerTol,
+	// and the node and temperatures of the pass before it are kept (the
+	// same to a few nanovolts, and one node solve fewer).
+	exact := e.pol == nil || n == 1
+	keep, keepEls := s.keep, s.keepEls // the temperatures the node was solved at
+	for pass := 0; ; pass++ {
 		e.solveNode(qs, v, nd)
-		if pass > 0 && e.pol == nil {
-			break // the sources do not depend on the temperatures
+		if pass == 0 && e.cold(v, nd) {
+			// Nothing heats the junctions at ambient (every phase
+			// collapsed or drawing nothing): they stay there.
+			st = protect.Settled{OK: true, Cycle: protect.Cycle{PeakC: e.T, MeanC: e.T}}
+			break
 		}
+		copy(keep, s.tj)
+		copy(keepEls, s.els)
 		moved := e.settlePhases(v, nd, &st)
-		if !st.OK || moved <= outerTol {
+		if !st.OK || exact {
 			e.solveNode(qs, v, nd)
+			break
+		}
+		if moved <= outerTol {
+			copy(s.tj, keep)
+			copy(s.els, keepEls)
 			break
 		}
 		if pass == outerPasses-1 {
 			st.OK = false // the passes did not settle
 			e.solveNode(qs, v, nd)
+			break
 		}
 	}
 	if m.tj == nil {
@@ -180,6 +206,17 @@ func (e *evaluator) settleNode(qs float64, v *variant, nd *node) {
 	copy(m.els, s.els)
 	m.qs, m.clamp, m.cyc, m.ok, m.present = qs, v.lim.Clamp, st.Cycle, st.OK, true
 	s.record(st.Cycle, st.OK)
+}
+
+// cold reports whether no phase of v, solved into nd at ambient, heats
+// the element.
+func (e *evaluator) cold(v *variant, nd *node) bool {
+	for k := range e.loads {
+		if e.heatOf(nd.mean[k], v, e.T) > 0 {
+			return false
+		}
+	}
+	return true
 }
 
 // record notes a settle's cycle for the report when the run's own
@@ -215,7 +252,12 @@ func (e *evaluator) settlePhases(v *variant, nd *node, st *protect.Settled) floa
 		if t == t0 {
 			return e.heatOf(nd.mean[k], v, t)
 		}
-		s.els[k], s.tj[k] = s.base, t // the element's own law at t
+		// The element's own law at t; behind a load whose solve takes
+		// many drops, with its terms worked out at t once.
+		s.els[k], s.tj[k] = s.base, t
+		if e.loads[k].Kind != ConstantCurrent {
+			s.els[k] = protect.Fixed(s.base, t)
+		}
 		o := e.solve(e.loads[k], k, v, src[k], res[k])
 		s.els[k], s.tj[k] = el0, t0
 		return e.heatOf(o, v, t)
