@@ -72,7 +72,9 @@ func (e *evaluator) narrow(v *variant, nd *node, lo, mlo, hi, mhi float64) float
 		// nothing of where the failure starts: the step would land on hi
 		// every time and the bracket shrink by a quarter of tol a step.
 		// Bisect then.
-		if mlo > 0 && mhi < 0 {
+		// A junction whose settled state can jump with charge (heat.go,
+		// byWork) is narrowed on whether v works alone, never on its margin.
+		if mlo > 0 && mhi < 0 && !v.heat.byWork() {
 			x = lo + (hi-lo)*mlo/(mlo-mhi)
 			// Keep a little inside the bracket, so that it shrinks from
 			// both ends once the estimate is good.

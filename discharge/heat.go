@@ -125,6 +125,28 @@ func (e *evaluator) phaseElement(v *variant, k int) (protect.Element, float64) {
 // under way.
 func (s *heat) settles() bool { return s != nil && !s.still && !s.holding }
 
+// byWork reports whether the cut-off search must step on whether the
+// variant works alone (bisection) rather than on its margin: its
+// junctions settle at every charge and, unlike a diode's (whose heat
+// falls as it warms: one settled state, smooth in charge), their settled
+// state can jump with charge — a MOSFET handing over to its body diode, a
+// limiter at its limit, a polyfuse's resistance rising with its heat. The
+// margin then has several roots between two breakpoints, and steps taken
+// on its size would land on one or another depending on the floor. Steps
+// that depend only on where the run works are the same for two floors
+// until one run fails where the other works, so a higher floor can only
+// end earlier (the breakpoints' scan is such a search too).
+func (s *heat) byWork() bool {
+	if s == nil || s.still {
+		return false
+	}
+	switch s.base.(type) {
+	case protect.Diode, protect.Schottky:
+		return false
+	}
+	return true
+}
+
 // settleNode solves variant v at scaled charge qs into nd with every
 // phase's junction at the temperature its own heat sets there: the
 // phases' dissipations — drop times current, plus the standing drain's
