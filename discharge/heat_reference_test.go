@@ -45,13 +45,7 @@ func newRefRun(t *testing.T, d *Design, capFactor float64) *refRun {
 	// The time a charge stands for (evaluate's rule: the fresh pack's
 	// drain over a calendar hour, the run's capacity factor).
 	r.at(0)
-	scale := e.P * capFactor
-	if rate := e.rates(0, v, r.nd).calendar; rate > 0 {
-		e.usePerQ = scale / rate * e.duty * 3600
-		if e.pol != nil && e.pol.day && e.end*e.usePerQ >= 20*e.pol.hs {
-			e.pol.periodicOnly = true
-		}
-	}
+	e.clock(v, e.P*capFactor, r.nd)
 	return r
 }
 
