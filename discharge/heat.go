@@ -127,25 +127,18 @@ func (s *heat) settles() bool { return s != nil && !s.still && !s.holding }
 
 // byWork reports whether the cut-off search must step on whether the
 // variant works alone (bisection) rather than on its margin: its
-// junctions settle at every charge and, unlike a diode's (whose heat
-// falls as it warms: one settled state, smooth in charge), their settled
-// state can jump with charge — a MOSFET handing over to its body diode, a
-// limiter at its limit, a polyfuse's resistance rising with its heat. The
-// margin then has several roots between two breakpoints, and steps taken
-// on its size would land on one or another depending on the floor. Steps
-// that depend only on where the run works are the same for two floors
-// until one run fails where the other works, so a higher floor can only
-// end earlier (the breakpoints' scan is such a search too).
-func (s *heat) byWork() bool {
-	if s == nil || s.still {
-		return false
-	}
-	switch s.base.(type) {
-	case protect.Diode, protect.Schottky:
-		return false
-	}
-	return true
-}
+// junctions settle at every charge, and their settled state can jump with
+// charge — a MOSFET handing over to its body diode, a limiter at its
+// limit, a polyfuse's resistance or a Schottky's leakage rising with its
+// heat, even a diode on a resistive load whose pack is under twice its
+// drop (a cooler drop then heats it more). The margin then has several
+// roots between two breakpoints, and steps taken on its size would land
+// on one or another depending on the floor. Steps that depend only on
+// where the run works are the same for two floors until one run fails
+// where the other works, so a higher floor can only end earlier (the
+// breakpoints' scan is such a search too). It costs about 25 more solves
+// per search than Illinois steps.
+func (s *heat) byWork() bool { return s != nil && !s.still }
 
 // settleNode solves variant v at scaled charge qs into nd with every
 // phase's junction at the temperature its own heat sets there: the
