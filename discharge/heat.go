@@ -199,7 +199,20 @@ func (e *evaluator) settleNode(qs float64, v *variant, nd *node) {
 		copy(keep, s.tj)
 		copy(keepEls, s.els)
 		moved := e.settlePhases(v, nd, &st)
-		if !st.OK || exact {
+		if !st.OK {
+			// No settled state from ambient (runaway, or a heat that
+			// jumps across the temperature it would settle at: a
+			// limiter reaching its limit as it warms, a MOSFET handing
+			// over to its body diode). Where the solve stopped would
+			// move erratically from charge to charge; the drops are
+			// taken at ambient instead, a smooth function of charge,
+			// and the warning says so. The cycle reported is the
+			// hottest step the solve reached.
+			s.ambient(e.T)
+			e.solveNode(qs, v, nd)
+			break
+		}
+		if exact {
 			e.solveNode(qs, v, nd)
 			break
 		}
@@ -328,5 +341,5 @@ func heatWarning(s *heat) string {
 	if s == nil || s.ok {
 		return ""
 	}
-	return "the " + s.base.Kind() + "'s junction does not settle: its dissipation rises with temperature faster than its package sheds the heat (thermal runaway, or no operating point); figures are at the last step the solve reached — use a bigger part, more copper or less current"
+	return "the " + s.base.Kind() + "'s junction does not settle over part of the run: its dissipation rises with temperature faster than its package sheds the heat, or jumps across the temperature it would settle at (thermal runaway, or a current limit reached as it warms); there its drop is taken at ambient and the junction shown is the hottest the solve reached — use a bigger part, more copper or less current"
 }
