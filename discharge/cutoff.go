@@ -74,7 +74,7 @@ func (e *evaluator) narrow(v *variant, nd *node, lo, mlo, hi, mhi float64) float
 		// Bisect then.
 		// A junction whose settled state can jump with charge (heat.go,
 		// byWork) is narrowed on whether v works alone, never on its margin.
-		if mlo > 0 && mhi < 0 && !v.heat.byWork() {
+		if mlo > 0 && mhi < 0 && !v.byWork() {
 			x = lo + (hi-lo)*mlo/(mlo-mhi)
 			// Keep a little inside the bracket, so that it shrinks from
 			// both ends once the estimate is good.

@@ -75,6 +75,9 @@ type variant struct {
 	// heat is the element's per-phase junction state (heat.go); nil
 	// when the element is taken at ambient.
 	heat *heat
+	// ordered marks the design's own run, whose cut-off must keep floor
+	// order by construction (heat.go, byWork).
+	ordered bool
 	// over is the element when it opens on the profile as a whole (a
 	// polyfuse; lim.Trip is then +Inf); nil otherwise.
 	over protect.Overloader
@@ -154,7 +157,7 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	el = protect.Fixed(el, d.TempC)
 	e := newEvaluator(d, gx, gw)
 
-	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps}
+	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps, ordered: true}
 	if o, ok := el.(protect.Overloader); ok {
 		real.over, real.lim.Trip = o, math.Inf(1)
 	}

@@ -137,8 +137,10 @@ func (s *heat) settles() bool { return s != nil && !s.still && !s.holding }
 // where the run works are the same for two floors until one run fails
 // where the other works, so a higher floor can only end earlier (the
 // breakpoints' scan is such a search too). It costs about 25 more solves
-// per search than Illinois steps.
-func (s *heat) byWork() bool { return s != nil && !s.still }
+// per search than Illinois steps, so only the design's own run (ordered)
+// takes it: the stranded split's run without the floor has no floor to
+// keep in order.
+func (v *variant) byWork() bool { return v.ordered && v.heat != nil && !v.heat.still }
 
 // settleNode solves variant v at scaled charge qs into nd with every
 // phase's junction at the temperature its own heat sets there: the
@@ -178,6 +180,8 @@ func (e *evaluator) settleNode(qs float64, v *variant, nd *node) {
 	}
 	s.ambient(e.T)
 	n := len(e.loads)
+	clear(e.hint)
+	clear(nd.icell)
 	var st protect.Settled
 	// Each pass solves the node at the temperatures as they stand and the
 	// temperatures for the sources it gives. With no polarisation, or a
@@ -317,10 +321,19 @@ func (e *evaluator) settleStill(v *variant, nd *node) {
 // temperature t, W: drop times current and the standing drain across the
 // pack; at a current limit the clamped current across the whole input
 // (the load collapsed), and nothing at a collapse (no operating point).
+// It is the same whatever the variant's floor, so that the junctions'
+// settled state is a function of the charge alone.
 func (e *evaluator) heatOf(o op, v *variant, t float64) float64 {
 	p := o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
 	switch o.Fail {
 	case failLimit:
+		if o.Vload > 0 && o.I <= v.lim.Clamp {
+			// A resistive or LED load sitting on a limiter's jump, named
+			// a limit only because its voltage is under the floor
+			// (solve): the element takes up what the load leaves, as
+			// with the floor lower. The heat never depends on the floor.
+			break
+		}
 		clamp := v.lim.Clamp
 		if c, ok := v.heat.base.(protect.Clamper); ok {
 			clamp = c.ClampAt(o.Vin, t)

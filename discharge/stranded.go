@@ -49,7 +49,7 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// so they go together as "the floor".
 	noEl := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
 	noFloor := *real
-	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
+	noFloor.floor, noFloor.cutoff, noFloor.minLED, noFloor.ordered = 0, false, 0, false
 	// noFloor's junctions are real's: at each charge they settle where
 	// their heat sets them, which no stop changes (heat.go).
 	neither := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
