@@ -86,9 +86,10 @@ type polState struct {
 	cand []float64 // scratch: 4 candidates per phase, 2 late ones
 }
 
-func newPolState(n int) *polState {
-	f := make([]float64, 10*n)
-	return &polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n:]}
+// init lays s out on f, ten figures per phase.
+func (s *polState) init(f []float64) {
+	n := len(f) / 10
+	*s = polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n:]}
 }
 
 // newPolarisation prepares the branches for phases of durations dur (s,
