@@ -228,3 +228,16 @@ func TestCautions(t *testing.T) {
 		t.Errorf("custom cell cautions %q, want the two general ones", got)
 	}
 }
+
+// Every library cell has thermal data, from its form factor (formHeat:
+// typical values from memory), with a time constant between a minute and
+// an hour and a half — the range of bare cells in still air from a coin to
+// a D cell (from memory).
+func TestLibraryHeat(t *testing.T) {
+	for _, c := range Library() {
+		st := c.ThermalStage()
+		if !c.SelfHeats() || st.Tau < 60 || st.Tau > 5400 {
+			t.Errorf("%s: C %v J/K, θ %v K/W, τ %v s", c.ID, c.HeatCapacity, c.ThermalRes, st.Tau)
+		}
+	}
+}
