@@ -78,6 +78,14 @@ type variant struct {
 	// over is the element when it opens on the profile as a whole (a
 	// polyfuse; lim.Trip is then +Inf); nil otherwise.
 	over protect.Overloader
+	// usePerQ is the seconds of use per scaled mAh, from this variant's
+	// fresh pack drain: the time since the start that a charge stands for,
+	// for the polarisation of a pack that started rested (0 until known,
+	// see clock). Each variant has its own, as a separate run would.
+	usePerQ float64
+	// periodicOnly takes every session as day-periodic, the first too:
+	// set when the run could span twenty sessions or more (see clock).
+	periodicOnly bool
 }
 
 // evaluator holds what one evaluation works out once: the design's
@@ -118,10 +126,6 @@ type evaluator struct {
 	// pLate marks the phases long enough to trip it.
 	cutoffV float64
 	pLate   []bool
-	// usePerQ is the seconds of use per scaled mAh, from the fresh
-	// pack's drain: the time since the start that a charge stands for,
-	// for the polarisation of a pack that started rested (0 until known).
-	usePerQ float64
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
@@ -166,7 +170,6 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// currents rise with every load's demand, so a bigger load never gets
 	// a kinder rate factor (a point deeper in the run can fail, or move
 	// with the load).
-	k := d.Cell.Peukert
 	if real.heat != nil {
 		// The junctions with the fresh pack: exact for the whole run
 		// behind constant currents and a drop that ignores the pack
@@ -184,26 +187,10 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		}
 		real.heat.freshHeat(e, real, nd)
 	}
-	sum := 0.0
-	for j, o := range nd.mean {
-		sum += e.duty * e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
-	}
-	sum += (1 - e.duty) * math.Pow((d.Standby+el.Quiescent(nd.Epack, d.TempC))/e.P, k)
-	ieff := math.Pow(sum, 1/k)
+	ieff := e.effectiveAmps(real, nd)
 	F := d.Cell.CapacityFactor(ieff, d.TempC)
 	scale := e.P * F // pack mAh per scaled cell mAh
-
-	// The time a charge stands for, from the fresh pack's drain over a
-	// calendar hour and the share of it in use.
-	if rate := e.rates(0, real, nd).calendar; rate > 0 {
-		e.usePerQ = scale / rate * e.duty * 3600
-		// A run that could span twenty sessions or more: the first one's
-		// rested start is a small part of it and is taken as
-		// day-periodic like the rest (docs/cell-model.md).
-		if e.pol != nil && e.pol.day && e.end*e.usePerQ >= 20*e.pol.hs {
-			e.pol.periodicOnly = true
-		}
-	}
+	e.clock(real, scale, nd)
 
 	// The cut-offs, in scaled charge. Each variant
 	// asks less of the pack than the one before, so its scan resumes near
@@ -265,6 +252,40 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	return r, nil
 }
 
+// effectiveAmps is the one per-cell current the rate and cold factors
+// (curves.Cell.CapacityFactor) are taken at for variant v, nd solved for
+// v on the fresh pack: the Peukert-weighted average (Σ wᵢ·Iᵢᵏ)^(1/k) over
+// the day, the phases' currents for the hours of use and the standby
+// drain (with the element's standing drain) for the rest.
+func (e *evaluator) effectiveAmps(v *variant, nd *node) float64 {
+	d := e.d
+	k := d.Cell.Peukert
+	sum := 0.0
+	for j, o := range nd.mean {
+		sum += e.duty * e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
+	}
+	sum += (1 - e.duty) * math.Pow((d.Standby+v.el.Quiescent(nd.Epack, d.TempC))/e.P, k)
+	return math.Pow(sum, 1/k)
+}
+
+// clock sets the time a charge stands for in variant v (v.usePerQ and
+// v.periodicOnly) from its drain on the fresh pack over a calendar hour
+// and the share of it in use; scale is v's pack mAh per scaled mAh. Each
+// variant keeps its own, so that the stranded split's runs are the runs
+// a separate evaluation of each would make.
+func (e *evaluator) clock(v *variant, scale float64, nd *node) {
+	v.usePerQ, v.periodicOnly = 0, false
+	if rate := e.rates(0, v, nd).calendar; rate > 0 {
+		v.usePerQ = scale / rate * e.duty * 3600
+		// A run that could span twenty sessions or more: the first one's
+		// rested start is a small part of it and is taken as
+		// day-periodic like the rest (docs/cell-model.md).
+		if e.pol != nil && e.pol.day && e.end*v.usePerQ >= 20*e.pol.hs {
+			v.periodicOnly = true
+		}
+	}
+}
+
 // transientBreaks returns the breakpoints with those added where a pack
 // that started rested is half a, two, eight and thirty of a branch's time
 // constants into its first session, so that the quadrature resolves the
@@ -272,15 +293,15 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 // session ends. A branch faster than 1e-3 of the run (hours of use to
 // qsCut) is left out: the rule across its transient errs by about
 // 0.1·τ/run of its share of the energies, under 1e-4.
-func (e *evaluator) transientBreaks(qsCut float64) []float64 {
-	if e.pol == nil || e.usePerQ <= 0 || e.pol.periodicOnly {
+func (e *evaluator) transientBreaks(v *variant, qsCut float64) []float64 {
+	if e.pol == nil || v.usePerQ <= 0 || v.periodicOnly {
 		return e.breaks
 	}
-	run := qsCut * e.usePerQ
+	run := qsCut * v.usePerQ
 	out := append([]float64(nil), e.breaks...)
 	// The end of the first session, where the day-periodic state takes
 	// over from the rested start: a step in the polarisation.
-	if q := e.pol.hs / e.usePerQ; q < e.end {
+	if q := e.pol.hs / v.usePerQ; q < e.end {
 		out = append(out, q)
 	}
 	for _, b := range e.pol.br {
@@ -289,7 +310,7 @@ func (e *evaluator) transientBreaks(qsCut float64) []float64 {
 		}
 		for _, k := range []float64{0.5, 2, 8, 30} {
 			t := k * b.tau
-			if q := t / e.usePerQ; t < e.pol.hs && q < e.end {
+			if q := t / v.usePerQ; t < e.pol.hs && q < e.end {
 				out = append(out, q)
 			}
 		}

@@ -297,8 +297,8 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 	// element's standing drain, shared by the strings; t is the seconds
 	// of use since the fresh pack at this charge.
 	irest := (e.d.Standby + v.el.Quiescent(nd.Epack, e.T)) / e.P
-	t := qs * e.usePerQ
-	if e.pol.periodicOnly || t >= e.pol.hs {
+	t := qs * v.usePerQ
+	if v.periodicOnly || t >= e.pol.hs {
 		t = math.Inf(1) // day-periodic: the time no longer matters (and pol is reused)
 	}
 	fresh := true

@@ -62,17 +62,14 @@ type branch struct {
 
 // polarisation is the set of branches of one cell under one design.
 type polarisation struct {
-	br     []branch
-	w      []float64 // duty weights of the phases
-	late   []bool    // phase k lasts at least the cut-off delay
-	day    bool
-	vs, ve []float64 // scratch: each branch's periodic start and end of phase k
-	hs     float64   // seconds of use in a day's session; +Inf in continuous use
-	period float64   // seconds of one cycle of the profile
-	// periodicOnly takes every session as day-periodic, the first too:
-	// set when the run spans many sessions (see evaluate).
-	periodicOnly bool
-	slowest      float64 // the longest time constant, s
+	br      []branch
+	w       []float64 // duty weights of the phases
+	late    []bool    // phase k lasts at least the cut-off delay
+	day     bool
+	vs, ve  []float64 // scratch: each branch's periodic start and end of phase k
+	hs      float64   // seconds of use in a day's session; +Inf in continuous use
+	period  float64   // seconds of one cycle of the profile
+	slowest float64   // the longest time constant, s
 }
 
 // polState is the polarisation (volts per cell, summed over the
@@ -114,7 +111,6 @@ func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *pol
 	q.w = w
 	f := make([]float64, 2*n)
 	q.vs, q.ve = f[:n:n], f[n:]
-	q.periodicOnly = false
 	return &q
 }
 
@@ -303,7 +299,7 @@ func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 	clear(out.late)
 	clear(out.cand)
 	clear(out.self)
-	first := t < p.hs && !p.periodicOnly
+	first := t < p.hs
 	for bi := range p.br {
 		b := &p.br[bi]
 		vstar := b.periodic(I, p.w, p.vs, p.ve)

@@ -117,13 +117,13 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
 	if e.pol != nil {
 		for _, b := range e.pol.br {
-			if b.tau >= 1e-3*qsCut*e.usePerQ {
+			if b.tau >= 1e-3*qsCut*v.usePerQ {
 				q.slowest = math.Max(q.slowest, b.tau)
 			}
 		}
 	}
 	prev := 0.0
-	for _, b := range e.ledCorners(v, qsCut, nd, e.transientBreaks(qsCut)) {
+	for _, b := range e.ledCorners(v, qsCut, nd, e.transientBreaks(v, qsCut)) {
 		if b >= qsCut {
 			tot = tot.add(q.span(prev, qsCut, 0, true))
 			break
@@ -287,7 +287,7 @@ func (q *quadrature) buf(d int) []rates {
 // those spans short against τ.
 func (q *quadrature) nodesOn(a float64) (gx, gw []float64) {
 	e := q.e
-	if q.linear && (e.pol == nil || e.pol.periodicOnly || a*e.usePerQ >= math.Min(e.pol.hs, 30*q.slowest)) {
+	if q.linear && (e.pol == nil || q.v.periodicOnly || a*q.v.usePerQ >= math.Min(e.pol.hs, 30*q.slowest)) {
 		return midpointX, midpointW
 	}
 	return e.gx, e.gw

@@ -52,6 +52,17 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
 	noFloor.heat = e.heatCopy(real.heat) // its own junctions: the design's stay as they were
 	neither := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
+	// The runs without the element draw what the bare cells draw: their
+	// own capacity scale and their own clock (the time a charge stands
+	// for, which sets how far the rested first session has gone), both
+	// from the bare pack's drain, as a separate run of that design would.
+	// The run without the floor draws what the design draws, and keeps
+	// the design's (copied with it).
+	scale0 := scale
+	if !none {
+		scale0 = e.capacityScale(neither, nd)
+		noEl.usePerQ, noEl.periodicOnly = neither.usePerQ, neither.periodicOnly
+	}
 
 	// Each scan resumes near a cut-off already found; cutoff starts over
 	// from zero when the run it is given does not work there (removing
@@ -87,10 +98,6 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// stops, may shorten or lengthen a run, and is never held so.
 	qsE0, qs00 = math.Max(qsE0, qsCut), math.Max(qs00, qs0F)
 
-	scale0 := scale
-	if !none {
-		scale0 = e.capacityScale(neither, nd)
-	}
 	qEF, qE0 := qsCut*scale, qsE0*scale
 	q0F, q00 := qs0F*scale0, qs00*scale0
 
@@ -117,20 +124,14 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	r.ReferenceMAh = math.Max(0, qEF+r.StrandedMAh)
 }
 
-// capacityScale is pack mAh per scaled cell mAh for variant v: parallel
-// strings times the cell's capacity factor at the Peukert-weighted mean
-// per-cell current over the day, the fresh pack's phases for the hours of
-// use and the standby drain for the rest (the rule evaluate uses).
+// capacityScale is pack mAh per scaled cell mAh for variant v — parallel
+// strings times the cell's capacity factor at its effective current on the
+// fresh pack (effectiveAmps, the rule evaluate uses) — and sets v's clock.
 func (e *evaluator) capacityScale(v *variant, nd *node) float64 {
-	d := e.d
-	k := d.Cell.Peukert
 	e.solveNode(0, v, nd)
-	sum := 0.0
-	for j, o := range nd.mean {
-		sum += e.duty * e.w[j] * math.Pow(math.Max(o.Ipack, 0)/e.P, k)
-	}
-	sum += (1 - e.duty) * math.Pow((d.Standby+v.el.Quiescent(nd.Epack, d.TempC))/e.P, k)
-	return e.P * d.Cell.CapacityFactor(math.Pow(sum, 1/k), d.TempC)
+	scale := e.P * e.d.Cell.CapacityFactor(e.effectiveAmps(v, nd), e.d.TempC)
+	e.clock(v, scale, nd)
+	return scale
 }
 
 // heatCopy is a junction state of its own for a variant of the same
