@@ -126,6 +126,11 @@ type evaluator struct {
 	// pLate marks the phases long enough to trip it.
 	cutoffV float64
 	pLate   []bool
+	// sess is the seconds of use in a day's session, +Inf in continuous
+	// use; therm is the cells' thermal stage (cellheat.go), nil when
+	// they stay at the ambient.
+	sess  float64
+	therm *cellTherm
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
@@ -280,7 +285,7 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) {
 		// A run that could span twenty sessions or more: the first one's
 		// rested start is a small part of it and is taken as
 		// day-periodic like the rest (docs/cell-model.md).
-		if e.pol != nil && e.pol.day && e.end*v.usePerQ >= 20*e.pol.hs {
+		if (e.pol != nil || e.therm != nil) && e.end*v.usePerQ >= 20*e.sess {
 			v.periodicOnly = true
 		}
 	}
@@ -294,29 +299,46 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) {
 // qsCut) is left out: the rule across its transient errs by about
 // 0.1·τ/run of its share of the energies, under 1e-4.
 func (e *evaluator) transientBreaks(v *variant, qsCut float64) []float64 {
-	if e.pol == nil || v.usePerQ <= 0 || v.periodicOnly {
+	taus := e.transientTaus()
+	if len(taus) == 0 || v.usePerQ <= 0 || v.periodicOnly {
 		return e.breaks
 	}
 	run := qsCut * v.usePerQ
 	out := append([]float64(nil), e.breaks...)
 	// The end of the first session, where the day-periodic state takes
 	// over from the rested start: a step in the polarisation.
-	if q := e.pol.hs / v.usePerQ; q < e.end {
+	if q := e.sess / v.usePerQ; q < e.end {
 		out = append(out, q)
 	}
-	for _, b := range e.pol.br {
-		if b.tau < 1e-3*run {
+	for _, tau := range taus {
+		if tau < 1e-3*run {
 			continue
 		}
 		for _, k := range []float64{0.5, 2, 8, 30} {
-			t := k * b.tau
-			if q := t / v.usePerQ; t < e.pol.hs && q < e.end {
+			t := k * tau
+			if q := t / v.usePerQ; t < e.sess && q < e.end {
 				out = append(out, q)
 			}
 		}
 	}
 	sort.Float64s(out)
 	return slices.Compact(out)
+}
+
+// transientTaus are the time constants of the stages that start rested
+// in a fresh pack: the cells' RC branches and their thermal stage
+// (cellheat.go).
+func (e *evaluator) transientTaus() []float64 {
+	var taus []float64
+	if e.pol != nil {
+		for _, b := range e.pol.br {
+			taus = append(taus, b.tau)
+		}
+	}
+	if e.therm != nil {
+		taus = append(taus, e.therm.st.Tau)
+	}
+	return taus
 }
 
 // newEvaluator works out what stays fixed for the evaluation of d.
@@ -353,6 +375,11 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	for k, p := range d.Profile {
 		e.pLate[k] = c.CutoffV > 0 && (n == 1 || p.Seconds >= c.CutoffDelay)
 	}
+	e.sess = math.Inf(1)
+	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
+		e.sess = d.HoursPerDay * 3600
+	}
+	e.therm = newCellTherm(d, e.sess)
 	if len(c.RC) > 0 {
 		_, fr := c.TempFactors(d.TempC)
 		st := make([]rc.Stage, len(c.RC))

@@ -84,6 +84,11 @@ type polState struct {
 	// resistance, and iterate only on the other phases'.
 	self []float64
 	cand []float64 // scratch: 4 candidates per phase, 2 late ones
+	// decay, when not nil, gets each branch's share of the cells' heat
+	// that is still building up in a rested pack's first session:
+	// Σₖ wₖ·Iₖ·v*·sₖ·mₖ (watts per cell), which the branch's mean power
+	// falls short of its periodic value by, times e^(−t/τ) (cellheat.go).
+	decay []float64
 }
 
 func newPolState(n int) *polState {
@@ -304,6 +309,9 @@ func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 		b := &p.br[bi]
 		vstar := b.periodic(I, p.w, p.vs, p.ve)
 		var dev, now, gain float64
+		if out.decay != nil {
+			out.decay[bi] = 0
+		}
 		if first {
 			// v0 = 0: the drift is −v*, decayed to the cycle at t.
 			dev, now = -vstar, math.Exp(-t/b.tau)
@@ -320,6 +328,9 @@ func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 			if first {
 				d := dev * now
 				m := mean + d*b.s[k]*b.m[k]
+				if out.decay != nil {
+					out.decay[bi] += p.w[k] * I[k] * vstar * b.s[k] * b.m[k]
+				}
 				out.mean[k] += m
 				out.self[k] += b.pSelf[k] - b.vSelf[k]*now*b.s[k]*b.m[k]
 				if n == 1 {

@@ -115,11 +115,9 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	// A finer rule than the default is a reference (the convergence
 	// test): it takes no shortcut.
 	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
-	if e.pol != nil {
-		for _, b := range e.pol.br {
-			if b.tau >= 1e-3*qsCut*v.usePerQ {
-				q.slowest = math.Max(q.slowest, b.tau)
-			}
+	for _, tau := range e.transientTaus() {
+		if tau >= 1e-3*qsCut*v.usePerQ {
+			q.slowest = math.Max(q.slowest, tau)
 		}
 	}
 	prev := 0.0
@@ -287,7 +285,7 @@ func (q *quadrature) buf(d int) []rates {
 // those spans short against τ.
 func (q *quadrature) nodesOn(a float64) (gx, gw []float64) {
 	e := q.e
-	if q.linear && (e.pol == nil || q.v.periodicOnly || a*q.v.usePerQ >= math.Min(e.pol.hs, 30*q.slowest)) {
+	if q.linear && (e.pol == nil && e.therm == nil || q.v.periodicOnly || a*q.v.usePerQ >= math.Min(e.sess, 30*q.slowest)) {
 		return midpointX, midpointW
 	}
 	return e.gx, e.gw
@@ -352,7 +350,9 @@ func (q *quadrature) span(a, b float64, depth int, last bool) sums {
 		// The halves' samples are not judged: depth+1's buffer is free.
 		l, _ := q.rule(a, mid, q.buf(depth+1))
 		r, _ := q.rule(mid, b, q.buf(depth+1))
-		if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h {
+		// (The cells' loss too: a self-heating cell near a collapse
+		// steepens it more than the drain.)
+		if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h || math.Abs(l.cellWh+r.cellWh-whole.cellWh) > 1e-10*whole.cellWh {
 			q.splits++
 			return q.span(a, mid, depth+1, false).add(q.span(mid, b, depth+1, true))
 		}
@@ -385,10 +385,16 @@ func (e *evaluator) steepTail(nodes []rates) bool {
 	if end < 0 || next < 0 || m0 < 0 || m1 < 0 || e.gx[m0] == e.gx[m1] {
 		return true
 	}
-	g := func(j int) float64 { return 1 / nodes[j].calendar }
-	slopeEnd := math.Abs(g(end)-g(next)) / (e.gx[end] - e.gx[next])
-	slopeMid := math.Abs(g(m0)-g(m1)) / math.Abs(e.gx[m0]-e.gx[m1])
-	return slopeEnd > 2*slopeMid
+	steep := func(g func(j int) float64) bool {
+		slopeEnd := math.Abs(g(end)-g(next)) / (e.gx[end] - e.gx[next])
+		slopeMid := math.Abs(g(m0)-g(m1)) / math.Abs(e.gx[m0]-e.gx[m1])
+		return slopeEnd > 2*slopeMid
+	}
+	// The drain's hours, and the cells' loss: a self-heating cell near a
+	// collapse steepens its loss (current and temperature feeding each
+	// other) more than the drain.
+	return steep(func(j int) float64 { return 1 / nodes[j].calendar }) ||
+		e.therm != nil && steep(func(j int) float64 { return nodes[j].cellW / nodes[j].calendar })
 }
 
 // sums are the quadrature's totals over a span: calendar hours, energies
