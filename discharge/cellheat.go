@@ -64,6 +64,10 @@ type cellTherm struct {
 	// The day-periodic weights: the session's mean rise is
 	// θ·(mP·P + mS·Ps), its end θ·(eP·P + eS·Ps).
 	mP, mS, eP, eS float64
+	// up and gUp are the temperature table's points above the ambient
+	// (°C) and their resistance factors relative to the ambient's, for
+	// rise.
+	up, gUp []float64
 }
 
 // newCellTherm is the cell's thermal stage for design d, nil when the
@@ -75,6 +79,12 @@ func newCellTherm(d *Design, hs float64) *cellTherm {
 	}
 	_, fra := c.TempFactors(d.TempC)
 	h := &cellTherm{cell: c, st: c.ThermalStage(), ta: d.TempC, fra: fra, hs: hs, polR: c.PolarisationOhms() * fra}
+	for _, p := range c.Temperature {
+		if p.Celsius > d.TempC {
+			h.up = append(h.up, p.Celsius)
+			h.gUp = append(h.gUp, p.Resistance/fra)
+		}
+	}
 	if !math.IsInf(hs, 1) {
 		tau := h.st.Tau
 		rest := 24*3600 - hs
@@ -121,21 +131,24 @@ func (h *cellTherm) at(P, Ps, t float64) (g, tc, peak float64) {
 // (t/τ·e^(−t/τ) for τᵢ = τ): exact for steady currents and a steady R0,
 // where taking u = θ·P(t)·(1 − e^(−t/τ)) would count the branches' heat
 // as if it had been there from the start.
-func (h *cellTherm) first(P float64, decay []float64, pol *polarisation, t float64) (g, tc, peak float64) {
+func (h *cellTherm) first(P float64, st *polState, pol *polarisation, t float64) (g, tc, peak float64) {
 	tau := h.st.Tau
 	et := math.Exp(-t / tau)
 	pinf := P
 	eff := 0.0
-	for i, c := range decay {
-		ti := pol.br[i].tau
-		pinf += c * math.Exp(-t/ti)
+	for i, c := range st.decay {
+		ti, ni := pol.br[i].tau, st.decayNow[i] // ni = e^(−t/τᵢ)
+		pinf += c * ni
 		var f float64
-		if d := ti - tau; math.Abs(d) <= 1e-9*tau {
+		switch d := ti - tau; {
+		case math.Abs(d) <= 1e-9*tau:
 			f = t / tau * et
-		} else {
-			// τᵢ·e^(−t/τ)·(e^(−t·(τ − τᵢ)/(τ·τᵢ)) − 1)/(τᵢ − τ), without
-			// the cancellation of the difference of two exponentials.
+		case math.Abs(d) <= 0.25*tau:
+			// τᵢ·e^(−t/τ)·(e^(−t·(τ − τᵢ)/(τ·τᵢ)) − 1)/(τᵢ − τ): no
+			// cancellation between two close exponentials.
 			f = ti * et * math.Expm1(-t*(tau-ti)/(tau*ti)) / d
+		default:
+			f = ti * (ni - et) / d
 		}
 		eff -= c * f
 	}
@@ -155,23 +168,19 @@ func (h *cellTherm) rise(k float64) (u, g float64) {
 	if !(k > 0) {
 		return 0, 1
 	}
-	lo, flo := h.ta, -k // f(Ta) = −k·1
-	for _, p := range h.cell.Temperature {
-		if p.Celsius <= lo {
-			continue
+	lo, glo := h.ta, 1.0
+	flo := -k // f(Ta) = −k·1
+	for i, x := range h.up {
+		gx := h.gUp[i]
+		fx := x - h.ta - k*gx
+		if fx >= 0 {
+			w := -flo / (fx - flo) // f is linear on [lo, x]: its root
+			return lo + (x-lo)*w - h.ta, glo + (gx-glo)*w
 		}
-		fhi := p.Celsius - h.ta - k*p.Resistance/h.fra
-		if fhi >= 0 {
-			x := lo + (p.Celsius-lo)*-flo/(fhi-flo)
-			_, fr := h.cell.TempFactors(x)
-			return x - h.ta, fr / h.fra
-		}
-		lo, flo = p.Celsius, fhi
+		lo, glo, flo = x, gx, fx
 	}
 	// Past the table's last temperature the factor is held there.
-	_, fr := h.cell.TempFactors(lo)
-	g = fr / h.fra
-	return k * g, g
+	return k * glo, glo
 }
 
 // thermPass carries one charge's passes over the electro-thermal loop.
@@ -280,7 +289,7 @@ func (e *evaluator) warm(nd *node, R0a, irest, t float64, tp *thermPass) float64
 	Ps := irest * irest * (R0a + h.polR)
 	var gOut, tc, peak float64
 	if t < h.hs && nd.polA != nil && !collapsed {
-		gOut, tc, peak = h.first(P, nd.polA.decay, e.pol, t)
+		gOut, tc, peak = h.first(P, nd.polA, e.pol, t)
 	} else {
 		gOut, tc, peak = h.at(P, Ps, t)
 	}

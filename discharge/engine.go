@@ -325,9 +325,9 @@ func (e *evaluator) transientBreaks(v *variant, qsCut float64) []float64 {
 	return slices.Compact(out)
 }
 
-// transientTaus are the time constants of the stages that start rested
-// in a fresh pack: the cells' RC branches and their thermal stage
-// (cellheat.go).
+// transientTaus are the time constants whose build-up from a rested
+// start the quadrature resolves with spans of their own: the cells' RC
+// branches and their thermal stage (cellheat.go).
 func (e *evaluator) transientTaus() []float64 {
 	var taus []float64
 	if e.pol != nil {
@@ -336,7 +336,17 @@ func (e *evaluator) transientTaus() []float64 {
 		}
 	}
 	if e.therm != nil {
-		taus = append(taus, e.therm.st.Tau)
+		// The thermal stage's build-up is resolved by a branch's spans
+		// when its τ is within a factor of two of that branch's: the
+		// spans are then at most four of its τ long, where the Gauss rule
+		// integrates e^(−t/τ) to far below 1e-9.
+		near := false
+		for _, x := range taus {
+			near = near || x/2 <= e.therm.st.Tau && e.therm.st.Tau <= 2*x
+		}
+		if !near {
+			taus = append(taus, e.therm.st.Tau)
+		}
 	}
 	return taus
 }

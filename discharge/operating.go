@@ -280,7 +280,9 @@ func (e *evaluator) newNode() *node {
 	case e.pol == nil:
 	case e.therm != nil:
 		nd.polA = newPolState(n)
-		nd.polA.decay = make([]float64, len(e.pol.br))
+		nb := len(e.pol.br)
+		d := make([]float64, 2*nb)
+		nd.polA.decay, nd.polA.decayNow = d[:nb:nb], d[nb:]
 	default:
 		nd.polA = nd.pol
 	}

@@ -87,8 +87,9 @@ type polState struct {
 	// decay, when not nil, gets each branch's share of the cells' heat
 	// that is still building up in a rested pack's first session:
 	// Σₖ wₖ·Iₖ·v*·sₖ·mₖ (watts per cell), which the branch's mean power
-	// falls short of its periodic value by, times e^(−t/τ) (cellheat.go).
-	decay []float64
+	// falls short of its periodic value by, times e^(−t/τ) (cellheat.go);
+	// decayNow that e^(−t/τ) (both 0 outside the first session).
+	decay, decayNow []float64
 }
 
 func newPolState(n int) *polState {
@@ -310,11 +311,14 @@ func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 		vstar := b.periodic(I, p.w, p.vs, p.ve)
 		var dev, now, gain float64
 		if out.decay != nil {
-			out.decay[bi] = 0
+			out.decay[bi], out.decayNow[bi] = 0, 0
 		}
 		if first {
 			// v0 = 0: the drift is −v*, decayed to the cycle at t.
 			dev, now = -vstar, math.Exp(-t/b.tau)
+			if out.decay != nil {
+				out.decayNow[bi] = now
+			}
 		} else {
 			c := b.R * irest
 			v0 := (c*b.oneB + b.B*b.oneA*vstar) / b.oneAB
