@@ -241,3 +241,19 @@ func TestLibraryHeat(t *testing.T) {
 		}
 	}
 }
+
+// The hot-cell warning: above the chemistry's usual discharge limit
+// (typical values from memory: 60 °C for Li-ion), none at or below it.
+func TestHotWarning(t *testing.T) {
+	c, _ := Lookup("li-ion-18650")
+	if w := HotWarning(c, 60); w != "" {
+		t.Errorf("at 60 °C: %q", w)
+	}
+	w := HotWarning(c, 64)
+	if !strings.Contains(w, "64 °C") || !strings.Contains(w, "60 °C") || !strings.Contains(w, "maker's data") {
+		t.Errorf("at 64 °C: %q", w)
+	}
+	if w := HotWarning(&Cell{Chemistry: "custom"}, 200); w != "" {
+		t.Errorf("a chemistry without a limit: %q", w)
+	}
+}

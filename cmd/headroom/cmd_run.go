@@ -262,8 +262,7 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	}
 	line("element", "%s burnt in it; peak %s, junction %s °C at the hottest pulse (%s °C over a cycle)",
 		units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0), fixed(r.JunctionMeanC, 0))
-	line("cells", "%s burnt in their internal resistance; at most %s °C (self-heating, %s °C around them)",
-		units.Prefixed(r.CellLossWh, 3, "Wh"), fixed(r.CellPeakC, 1), short(d.TempC))
+	line("cells", "%s burnt in their internal resistance; hottest %s °C", units.Prefixed(r.CellLossWh, 3, "Wh"), fixed(r.CellPeakC, 1))
 	line("standby", "%s of the charge goes to standby drain and self-discharge", units.Eng(r.StandbyShare, units.Fraction, 2))
 	if r.RuntimeH > 0 {
 		line("cost", "%s per hour of use", money(r.CostPerHour))
