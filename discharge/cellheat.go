@@ -73,12 +73,28 @@ type cellTherm struct {
 // newCellTherm is the cell's thermal stage for design d, nil when the
 // cell stays at the ambient.
 func newCellTherm(d *Design, hs float64) *cellTherm {
-	c := d.Cell
-	if !c.SelfHeats() {
+	if !d.Cell.SelfHeats() {
 		return nil
 	}
+	h := new(cellTherm)
+	h.set(d, hs)
+	return h
+}
+
+// set fills h for design d (whose cell self-heats), hs seconds of use a
+// session.
+func (h *cellTherm) set(d *Design, hs float64) {
+	c := d.Cell
 	_, fra := c.TempFactors(d.TempC)
-	h := &cellTherm{cell: c, st: c.ThermalStage(), ta: d.TempC, fra: fra, hs: hs, polR: c.PolarisationOhms() * fra}
+	*h = cellTherm{cell: c, st: c.ThermalStage(), ta: d.TempC, fra: fra, hs: hs, polR: c.PolarisationOhms() * fra}
+	n := 0
+	for _, p := range c.Temperature {
+		if p.Celsius > d.TempC {
+			n++
+		}
+	}
+	buf := make([]float64, 2*n)
+	h.up, h.gUp = buf[:0:n], buf[n:n]
 	for _, p := range c.Temperature {
 		if p.Celsius > d.TempC {
 			h.up = append(h.up, p.Celsius)
@@ -98,7 +114,6 @@ func newCellTherm(d *Design, hs float64) *cellTherm {
 		h.mP, h.mS = 1-b*sess, b*sess
 		h.eP, h.eS = 1-b*A, b*A
 	}
-	return h
 }
 
 // at is the resistance factor g and the cell's temperature (°C) for the

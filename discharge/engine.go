@@ -129,8 +129,13 @@ type evaluator struct {
 	// sess is the seconds of use in a day's session, +Inf in continuous
 	// use; therm is the cells' thermal stage (cellheat.go), nil when
 	// they stay at the ambient.
-	sess  float64
-	therm *cellTherm
+	sess   float64
+	therm  *cellTherm
+	thermV cellTherm
+	// taus are the time constants of the rested start's transients
+	// (setTaus), in tauBuf.
+	taus   []float64
+	tauBuf [curves.MaxRC + 1]float64
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
@@ -299,7 +304,7 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) {
 // qsCut) is left out: the rule across its transient errs by about
 // 0.1·τ/run of its share of the energies, under 1e-4.
 func (e *evaluator) transientBreaks(v *variant, qsCut float64) []float64 {
-	taus := e.transientTaus()
+	taus := e.taus
 	if len(taus) == 0 || v.usePerQ <= 0 || v.periodicOnly {
 		return e.breaks
 	}
@@ -325,30 +330,31 @@ func (e *evaluator) transientBreaks(v *variant, qsCut float64) []float64 {
 	return slices.Compact(out)
 }
 
-// transientTaus are the time constants whose build-up from a rested
-// start the quadrature resolves with spans of their own: the cells' RC
-// branches and their thermal stage (cellheat.go).
-func (e *evaluator) transientTaus() []float64 {
-	var taus []float64
+// setTaus fills e.taus: the time constants whose build-up from a rested
+// start the quadrature resolves with spans of their own — the cells' RC
+// branches and their thermal stage (cellheat.go). The thermal stage's
+// build-up is resolved by a branch's spans when its τ is within a factor
+// of two of that branch's: the spans are then at most four of its τ
+// long, where the Gauss rule integrates e^(−t/τ) to far below 1e-9.
+func (e *evaluator) setTaus() {
+	n := 0
 	if e.pol != nil {
 		for _, b := range e.pol.br {
-			taus = append(taus, b.tau)
+			e.tauBuf[n] = b.tau
+			n++
 		}
 	}
 	if e.therm != nil {
-		// The thermal stage's build-up is resolved by a branch's spans
-		// when its τ is within a factor of two of that branch's: the
-		// spans are then at most four of its τ long, where the Gauss rule
-		// integrates e^(−t/τ) to far below 1e-9.
 		near := false
-		for _, x := range taus {
+		for _, x := range e.tauBuf[:n] {
 			near = near || x/2 <= e.therm.st.Tau && e.therm.st.Tau <= 2*x
 		}
 		if !near {
-			taus = append(taus, e.therm.st.Tau)
+			e.tauBuf[n] = e.therm.st.Tau
+			n++
 		}
 	}
-	return taus
+	e.taus = e.tauBuf[:n]
 }
 
 // newEvaluator works out what stays fixed for the evaluation of d.
@@ -389,7 +395,10 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
 		e.sess = d.HoursPerDay * 3600
 	}
-	e.therm = newCellTherm(d, e.sess)
+	if c.SelfHeats() {
+		e.thermV.set(d, e.sess)
+		e.therm = &e.thermV // in the evaluator: no allocation of its own
+	}
 	if len(c.RC) > 0 {
 		_, fr := c.TempFactors(d.TempC)
 		st := make([]rc.Stage, len(c.RC))
@@ -398,6 +407,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		}
 		e.pol = newPolarisation(st, dur, e.w, d.HoursPerDay, c.CutoffDelay*btoi(c.CutoffV > 0))
 	}
+	e.setTaus()
 	return e
 }
 

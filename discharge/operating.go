@@ -279,10 +279,7 @@ func (e *evaluator) newNode() *node {
 	switch {
 	case e.pol == nil:
 	case e.therm != nil:
-		nd.polA = newPolState(n)
-		nb := len(e.pol.br)
-		d := make([]float64, 2*nb)
-		nd.polA.decay, nd.polA.decayNow = d[:nb:nb], d[nb:]
+		nd.polA = newPolStateHeat(n, len(e.pol.br))
 	default:
 		nd.polA = nd.pol
 	}

@@ -92,9 +92,17 @@ type polState struct {
 	decay, decayNow []float64
 }
 
-func newPolState(n int) *polState {
-	f := make([]float64, 10*n)
-	return &polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n:]}
+func newPolState(n int) *polState { return newPolStateHeat(n, 0) }
+
+// newPolStateHeat is newPolState with room for nb branches' decay and
+// decayNow (cellheat.go); none when nb is 0.
+func newPolStateHeat(n, nb int) *polState {
+	f := make([]float64, 10*n+2*nb)
+	s := &polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n : 10*n : 10*n]}
+	if nb > 0 {
+		s.decay, s.decayNow = f[10*n:10*n+nb:10*n+nb], f[10*n+nb:]
+	}
+	return s
 }
 
 // newPolarisation prepares the branches for phases of durations dur (s,

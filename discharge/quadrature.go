@@ -117,7 +117,7 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	// A finer rule than the default is a reference (the convergence
 	// test): it takes no shortcut.
 	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
-	for _, tau := range e.transientTaus() {
+	for _, tau := range e.taus {
 		if tau >= 1e-3*qsCut*v.usePerQ {
 			q.slowest = math.Max(q.slowest, tau)
 		}
