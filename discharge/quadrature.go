@@ -61,7 +61,7 @@ type rates struct {
 	standby  float64 // standby drain, mA
 	self     float64 // self-discharge, mA
 	peakW    float64 // highest element dissipation among the phases, W
-	cellC    float64 // the cells' hottest around this charge, °C
+	cellRise float64 // the cells' hottest around this charge, K above the ambient
 }
 
 // rates solves variant v at qs into nd and returns what the quadrature
@@ -95,7 +95,7 @@ func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 	r.loadW = f * loadW
 	r.protW = f*protW + (1-f)*nd.Epack*iq
 	r.cellW = f*cellW + (1-f)*idle*idle*nd.Rp
-	r.cellC = nd.cellPeakC
+	r.cellRise = nd.cellPeakC - e.T
 	return r
 }
 
@@ -134,15 +134,15 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	cal, loadWh, protWh, cellWh, stby, self, peak := tot.h, tot.loadWh, tot.protWh, tot.cellWh, tot.stby, tot.self, tot.peak
 	// The element's peak dissipation, and the cells' hottest, can sit at
 	// either end of the run.
-	cellC := math.Max(tot.cellC, e.T)
+	rise := tot.cellRise // never below 0: sums start at 0
 	for _, x := range []float64{0, qsCut} {
 		if x < e.end {
 			rt := e.rates(x, v, nd)
 			peak = math.Max(peak, rt.peakW)
-			cellC = math.Max(cellC, rt.cellC)
+			rise = math.Max(rise, rt.cellRise)
 		}
 	}
-	r.CellPeakC = cellC
+	r.CellPeakC = e.T + rise
 	r.RuntimeDays = cal / 24
 	r.RuntimeH = cal * f
 	r.DeliveredWh = loadWh
@@ -319,7 +319,7 @@ func (q *quadrature) rule(a, b float64, nodes []rates) (sums, int) {
 		s.stby += rt.standby * dt
 		s.self += rt.self * dt
 		s.peak = math.Max(s.peak, rt.peakW)
-		s.cellC = math.Max(s.cellC, rt.cellC)
+		s.cellRise = math.Max(s.cellRise, rt.cellRise)
 	}
 	return s, len(gx)
 }
@@ -410,12 +410,12 @@ func (e *evaluator) steepTail(nodes []rates) bool {
 // charge, and the highest element dissipation seen.
 type sums struct {
 	h, loadWh, protWh, cellWh, stby, self, peak float64
-	cellC                                       float64 // the cells' hottest, °C (a maximum, as peak)
+	cellRise                                    float64 // the cells' hottest, K above the ambient (a maximum, as peak)
 }
 
 func (s sums) add(t sums) sums {
 	return sums{s.h + t.h, s.loadWh + t.loadWh, s.protWh + t.protWh, s.cellWh + t.cellWh,
-		s.stby + t.stby, s.self + t.self, math.Max(s.peak, t.peak), math.Max(s.cellC, t.cellC)}
+		s.stby + t.stby, s.self + t.self, math.Max(s.peak, t.peak), math.Max(s.cellRise, t.cellRise)}
 }
 
 // maxSplit bounds how often a span with a step in it is halved: 2⁻¹⁶ of a
