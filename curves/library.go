@@ -135,7 +135,7 @@ func Cautions(c *Cell) []string { return PackCautions(c, 0) }
 // mixing cells is left out for a single cell (n == 1); n == 0 means the
 // count is not known, and keeps it.
 func PackCautions(c *Cell, n int) []string {
-	var out []string
+	out := make([]string, 0, 8) // room for every caution: one allocation
 	if cc, ok := chemistryCautions[c.Chemistry]; ok {
 		out = append(out, cc.full(c)...)
 	}

@@ -8,12 +8,47 @@ import "sort"
 // smallest margin (see judge); past the curve's end the margin is the
 // charge left, negative.
 func (e *evaluator) margin(qs float64, v *variant, nd *node) (bool, float64) {
+	f, m, _ := e.marginWhy(qs, v, nd)
+	return f != "", m
+}
+
+// causeSpent is marginWhy's cause past the curve's end: the charge has
+// run out, whatever the variant.
+const causeSpent Cause = "spent"
+
+// marginWhy is margin with the first-ranked failing rule (judge), ""
+// when v works at qs, and the margins rule by rule.
+func (e *evaluator) marginWhy(qs float64, v *variant, nd *node) (Cause, float64, rules) {
 	if qs >= e.end {
-		return true, e.end - qs
+		return causeSpent, e.end - qs, noRules
 	}
 	e.solveNode(qs, v, nd)
-	fail, _, m := e.judge(nd, v)
-	return fail != "", m
+	fail, _, m, r := e.judgeRules(nd, v)
+	return fail, m, r
+}
+
+// found is what a cut-off search of variant v found: v works at lo and
+// fails at hi, hi − lo within the search's resolution (lo = hi = 0 when
+// v fails on the fresh pack); why is the first-ranked rule failing at hi
+// (judge; causeSpent past the curve's end; "" when not known).
+type found struct {
+	v      *variant
+	lo, hi float64
+	why    Cause
+}
+
+// hard reports whether a rule other than the product's stops (the floor,
+// the least LED current, the pack's own cut-off) fails at f.hi, so that
+// v with its stops removed fails there too: judge ranks the stops after
+// the fuse, the limit and a collapse but before the end-point, so a
+// stop ranked first may hide an end-point failing as well, and is taken
+// as not hard.
+func (f found) hard() bool {
+	switch f.why {
+	case "", CauseFloor, CauseDim, CauseCutoff:
+		return false
+	}
+	return true
 }
 
 // cutoff returns the scaled charge at which variant v first fails. It
@@ -22,39 +57,48 @@ func (e *evaluator) margin(qs float64, v *variant, nd *node) (bool, float64) {
 // fails. Failure is taken to be permanent once it starts, as the scan
 // always has.
 func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
+	return e.search(v, nd, from).lo
+}
+
+// search is cutoff with what it found at the failing side; the last
+// search is kept in e.last.
+func (e *evaluator) search(v *variant, nd *node, from float64) found {
 	first := 1
-	lo, mlo := 0.0, 0.0
+	lo := bound{0, 0, noRules}
 	if from > 0 {
 		j := sort.SearchFloat64s(e.breaks, from)
 		if j == len(e.breaks) || e.breaks[j] > from {
 			j--
 		}
 		if j > 0 {
-			if f, m := e.margin(e.breaks[j], v, nd); !f {
-				first, lo, mlo = j+1, e.breaks[j], m
+			if f, m, r := e.marginWhy(e.breaks[j], v, nd); f == "" {
+				first, lo = j+1, bound{e.breaks[j], m, r}
 			}
 		}
 	}
 	if first == 1 {
-		f, m := e.margin(0, v, nd)
-		if f {
-			return 0
+		f, m, r := e.marginWhy(0, v, nd)
+		if f != "" {
+			e.last = found{v: v, why: f}
+			return e.last
 		}
-		mlo = m
+		lo.m, lo.r = m, r
 	}
 	// Scan the breakpoints in order for the first that fails: a
 	// bisection over them would be faster but could step over a span
 	// where a rule fails and then holds again (a MOSFET handing over to
 	// its body diode), which the first failure must not miss.
 	for _, b := range e.breaks[first:] {
-		f, m := e.margin(b, v, nd)
-		if !f {
-			lo, mlo = b, m
+		f, m, r := e.marginWhy(b, v, nd)
+		if f == "" {
+			lo = bound{b, m, r}
 			continue
 		}
-		return e.narrow(v, nd, lo, mlo, b, m)
+		e.last = e.narrowWhy(v, nd, lo, bound{b, m, r}, f)
+		return e.last
 	}
-	return lo
+	e.last = found{v: v, lo: lo.q, hi: lo.q}
+	return e.last
 }
 
 // narrow finds the first failure in [lo, hi], where v works at lo with
@@ -63,44 +107,87 @@ func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 // ends have one, and bisects otherwise; the result is the last charge
 // found to work. About ten evaluations instead of bisection's forty.
 func (e *evaluator) narrow(v *variant, nd *node, lo, mlo, hi, mhi float64) float64 {
+	return e.narrowWhy(v, nd, bound{lo, mlo, noRules}, bound{hi, mhi, noRules}, "").lo
+}
+
+// bound is one end of a bracket: a charge, its smallest margin and its
+// margins rule by rule.
+type bound struct {
+	q, m float64
+	r    rules
+}
+
+// oneRoot reports whether variant v's margin has a single root in any
+// span past charge q where it changes sign: behind constant currents and
+// a steady element whose junctions hold (linear, still), past the rested
+// start's first session, every rule's margin is linear in charge between
+// breakpoints (the cells' source is, the currents, drops and
+// polarisation are fixed), so the smallest of them is concave and each
+// rule's own margin is too.
+func (e *evaluator) oneRoot(v *variant, q float64) bool {
+	if e.general || !e.linear(v) || v.heat != nil && !v.heat.still {
+		return false
+	}
+	return e.pol == nil || v.periodicOnly || q*v.usePerQ >= e.pol.hs
+}
+
+// narrowWhy is narrow with what it found at the failing side, why being
+// the rule failing at hi. Where the root is the span's only one
+// (oneRoot) and both ends have a margin for that rule, it steps on that
+// rule's margin rather than the smallest: the smallest bends where
+// another rule takes over (the end-point near the fresh end, the floor
+// near the cut-off), and a step across the bend lands short, which
+// Illinois recovers from only in several more. Elsewhere the steps are
+// narrow's own.
+func (e *evaluator) narrowWhy(v *variant, nd *node, lo, hi bound, why Cause) found {
 	tol := 1e-12 * e.end
+	// (Not where the margin at lo is already nil: a rule standing at
+	// its limit throughout, a current equal to a clamp, ends the search
+	// at the first point that works, as narrow always has.)
+	one := lo.m > 0 && e.oneRoot(v, lo.q)
 	side := 0
-	for k := 0; k < 200 && hi-lo > tol; k++ {
-		x := 0.5 * (lo + hi)
+	slo, shi := 1.0, 1.0 // Illinois' halvings of each end's value
+	for k := 0; k < 200 && hi.q-lo.q > tol; k++ {
+		flo, fhi := lo.m, hi.m
+		if a, b := lo.r.of(why), hi.r.of(why); one && a > 0 && b < 0 {
+			flo, fhi = a, b
+		}
+		flo, fhi = flo*slo, fhi*shi
+		x := 0.5 * (lo.q + hi.q)
 		// A failing end with no margin (a limiter's clamp taking the
 		// whole input with the floor at zero: 0 V above a 0 V floor) says
 		// nothing of where the failure starts: the step would land on hi
 		// every time and the bracket shrink by a quarter of tol a step.
 		// Bisect then.
-		if mlo > 0 && mhi < 0 {
-			x = lo + (hi-lo)*mlo/(mlo-mhi)
+		if flo > 0 && fhi < 0 {
+			x = lo.q + (hi.q-lo.q)*flo/(flo-fhi)
 			// Keep a little inside the bracket, so that it shrinks from
 			// both ends once the estimate is good.
-			x = min(max(x, lo+0.25*tol), hi-0.25*tol)
+			x = min(max(x, lo.q+0.25*tol), hi.q-0.25*tol)
 		}
-		if !(x > lo && x < hi) {
-			x = 0.5 * (lo + hi)
+		if !(x > lo.q && x < hi.q) {
+			x = 0.5 * (lo.q + hi.q)
 		}
-		f, m := e.margin(x, v, nd)
-		if !f && m == 0 {
+		f, m, r := e.marginWhy(x, v, nd)
+		if f == "" && m == 0 {
 			// A step that lands on the root: x works with nothing to
 			// spare, so it is the cut-off. (Kept as lo with mlo = 0, the
 			// next step could only bisect, about 37 more times.)
-			return x
+			return found{v: v, lo: x, hi: hi.q, why: why}
 		}
-		if f {
-			hi, mhi = x, m
+		if f != "" {
+			hi, why, shi = bound{x, m, r}, f, 1
 			if side == 1 {
-				mlo /= 2
+				slo /= 2
 			}
 			side = 1
 		} else {
-			lo, mlo = x, m
+			lo, slo = bound{x, m, r}, 1
 			if side == -1 {
-				mhi /= 2
+				shi /= 2
 			}
 			side = -1
 		}
 	}
-	return lo
+	return found{v: v, lo: lo.q, hi: hi.q, why: why}
 }

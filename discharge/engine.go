@@ -7,6 +7,8 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"sync"
+	"sync/atomic"
 
 	"headroom/curves"
 	"headroom/internal/rc"
@@ -145,15 +147,85 @@ type evaluator struct {
 	// heat is the real variant's junction state, for the report (nil
 	// with an ideal heat sink).
 	heat *heat
+	// peak0 and peakCut are the real variant's highest element
+	// dissipation with the fresh pack and at the cut-off, W, from the
+	// solves evaluate makes there with the element as integrate sees it;
+	// NaN when not known (integrate then solves again).
+	peak0, peakCut float64
+	// rise0 and riseCut are the cells' hottest there, K above the
+	// ambient, kept the same way (NaN: not known).
+	rise0, riseCut float64
+	// last is the last cut-off search's outcome (cutoff.go, search).
+	last found
+	// quad is the quadrature's working memory (integrate); runs holds the
+	// stranded split's other three variants (strandedSplit), real the
+	// design's own; nd is the evaluation's node (newNode).
+	quad quadrature
+	nd   node
+	real variant
+	runs [3]variant
+	// general is set to take no shortcut (evaluateWith); skipped counts
+	// the cut-off searches and capacity scales the shortcuts saved, for
+	// the tests.
+	general bool
+	skipped int
 }
 
 // Evaluate computes runtime, capacity and losses for design d.
 func Evaluate(d *Design) (*Result, error) { return evaluate(d, gaussX, gaussW) }
 
-// evaluate is Evaluate with the quadrature rule given.
+// evaluate is Evaluate with the quadrature rule given. A finer rule than
+// the default is a reference (the convergence test): it takes no
+// shortcut.
 func evaluate(d *Design, gx, gw []float64) (*Result, error) {
+	r, e, err := evaluateWith(d, gx, gw, len(gx) > gaussN)
+	if e != nil {
+		evaluators.Put(e) // the Result holds nothing of it
+	}
+	return r, err
+}
+
+// labels keeps the loads' labels (Load.Label, a few hundred nanoseconds
+// of number formatting each) by load: a sweep names the same few loads
+// in every result. At most maxLabels, then it starts afresh.
+var labels struct {
+	sync.Map
+	n atomic.Int64
+}
+
+const maxLabels = 4096
+
+// phaseLabel is p.Label(), the load's from labels.
+func phaseLabel(p Phase) string {
+	if p.Name != "" {
+		return p.Name
+	}
+	if s, ok := labels.Load(p.Load); ok {
+		return s.(string)
+	}
+	s := p.Load.Label()
+	if labels.n.Add(1) > maxLabels {
+		labels.Clear()
+		labels.n.Store(0)
+	}
+	labels.Store(p.Load, s)
+	return s
+}
+
+// evaluators recycles the evaluators' memory (the source cache and the
+// quadrature's node buffers are most of it), which at a few kilobytes an
+// evaluation otherwise sets the garbage collector going every few
+// hundred evaluations. newEvaluator sets every field of the one it takes
+// afresh: nothing of one evaluation reaches the next.
+var evaluators = sync.Pool{New: func() any { return new(evaluator) }}
+
+// evaluateWith is evaluate, taking none of the shortcuts that give the
+// same figures for less work when general is set (the tests' reference,
+// TestShortcutsMatchGeneral). It returns the evaluator too, for the
+// tests to see which shortcuts were taken.
+func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluator, error) {
 	if err := d.Validate(); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	el := d.Protect
 	if el == nil {
@@ -163,8 +235,10 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	// temperature terms once.
 	el = protect.Fixed(el, d.TempC)
 	e := newEvaluator(d, gx, gw)
+	e.general = general
 
-	real := &variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps}
+	real := &e.real
+	*real = variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps}
 	if o, ok := el.(protect.Overloader); ok {
 		real.over, real.lim.Trip = o, math.Inf(1)
 	}
@@ -200,7 +274,16 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 	ieff := e.effectiveAmps(real, nd)
 	F := d.Cell.CapacityFactor(ieff, d.TempC)
 	scale := e.P * F // pack mAh per scaled cell mAh
-	e.clock(real, scale, nd)
+	// Behind constant currents and a steady element (linear) a node
+	// solves to the same figures from any start, so the element's peak
+	// with the fresh pack is kept for integrate, when the junctions hold
+	// where they are now for the whole run and the fresh pack's
+	// polarisation is the rested start's, as clock solves it (not when
+	// the run is taken as day-periodic from the start).
+	keep := e.linear(real) && !e.general
+	if fresh := e.clock(real, scale, nd); keep && (real.heat == nil || real.heat.still) && !real.periodicOnly {
+		e.peak0, e.rise0 = fresh.peakW, fresh.cellRise
+	}
 
 	// The cut-offs, in scaled charge. Each variant
 	// asks less of the pack than the one before, so its scan resumes near
@@ -227,9 +310,12 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		}
 	}
 	r.CutoffCause = fail
-	r.CutoffPhase = d.Profile[ph].Label()
+	r.CutoffPhase = phaseLabel(d.Profile[ph])
 	r.CutoffIndex = ph
 	e.solveNode(math.Min(qsCut, e.end), real, nd)
+	if keep && qsCut < e.end {
+		e.peakCut, e.riseCut = peakOf(nd), nd.cellPeakC-e.T
+	}
 	o := nd.worst[ph]
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = o.Vload, o.Vin, o.I
 	switch fail {
@@ -253,13 +339,13 @@ func evaluate(d *Design, gx, gw []float64) (*Result, error) {
 		// an LED below its forward voltage, with no standby and a cell with
 		// no self-discharge. Time to empty is unbounded; say so rather
 		// than print an infinite runtime.
-		return nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
+		return nil, nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
 	}
 	if real.heat != nil {
 		e.reportHeat(real, nd)
 	}
 	e.priceAndNotes(el, r, nd)
-	return r, nil
+	return r, e, nil
 }
 
 // effectiveAmps is the one per-cell current the rate and cold factors
@@ -282,10 +368,12 @@ func (e *evaluator) effectiveAmps(v *variant, nd *node) float64 {
 // v.periodicOnly) from its drain on the fresh pack over a calendar hour
 // and the share of it in use; scale is v's pack mAh per scaled mAh. Each
 // variant keeps its own, so that the stranded split's runs are the runs
-// a separate evaluation of each would make.
-func (e *evaluator) clock(v *variant, scale float64, nd *node) {
+// a separate evaluation of each would make. It returns what it solved
+// there (the rates with the fresh pack).
+func (e *evaluator) clock(v *variant, scale float64, nd *node) rates {
 	v.usePerQ, v.periodicOnly = 0, false
-	if rate := e.rates(0, v, nd).calendar; rate > 0 {
+	fresh := e.rates(0, v, nd)
+	if rate := fresh.calendar; rate > 0 {
 		v.usePerQ = scale / rate * e.duty * 3600
 		// A run that could span twenty sessions or more: the first one's
 		// rested start is a small part of it and is taken as
@@ -294,6 +382,7 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) {
 			v.periodicOnly = true
 		}
 	}
+	return fresh
 }
 
 // transientBreaks returns the breakpoints with those added where a pack
@@ -363,24 +452,28 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		panic("discharge: quadrature rule above maxGauss nodes")
 	}
 	c := d.Cell
-	e := &evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw}
+	e := evaluators.Get().(*evaluator)
+	breaks := e.breaks // the last evaluation's array, refilled below
+	*e = evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
+		peak0: math.NaN(), peakCut: math.NaN(), rise0: math.NaN(), riseCut: math.NaN()}
 	e.end = c.Curve.End()
 	total := 0.0
 	for _, p := range d.Profile {
 		total += p.Seconds
 	}
 	n := len(d.Profile)
-	e.w, e.loads, e.hint = make([]float64, 0, n), make([]Load, 0, n), make([]float64, n)
-	e.drops = make([]dropMemo, n)
-	dur := make([]float64, 0, n)
+	f := make([]float64, 4*n) // one backing array for the per-phase figures
+	e.w, e.hint, e.cur = f[:0:n], f[n:2*n:2*n], f[3*n:]
+	dur := f[2*n : 2*n : 3*n]
+	e.loads, e.drops = make([]Load, 0, n), make([]dropMemo, n)
 	for _, p := range d.Profile {
 		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED
 		e.w = append(e.w, p.Seconds/total)
 		e.loads = append(e.loads, p.Load)
 		dur = append(dur, p.Seconds)
 	}
-	e.secs, e.cur = dur, make([]float64, n)
-	e.breaks = breakpoints(c)
+	e.secs = dur
+	e.breaks = breakpointsTo(breaks, c)
 	e.duty = 1.0
 	if d.HoursPerDay > 0 {
 		e.duty = d.HoursPerDay / 24

@@ -12,6 +12,13 @@ import (
 // solve finds the operating point of load l with the pack source (E, Rp)
 // behind element v.
 func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
+	var o op
+	e.solveTo(&o, l, k, v, E, Rp)
+	return o
+}
+
+// solveTo is solve into o (no copy of an op on the nodes' hot path).
+func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	el, T := e.phaseElement(v, k)
 	iq := el.Quiescent(E, T)
 	vin := func(i float64) float64 { return E - (i+iq)*Rp }
@@ -58,11 +65,12 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 			if ok {
 				e.hint[k] = i
 			} else {
-				return op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: failCollapse}
+				*o = op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: failCollapse}
+				return
 			}
 		}
 	}
-	o := op{I: i, Ipack: i + iq}
+	*o = op{I: i, Ipack: i + iq}
 	o.Vin = vin(i)
 	o.Vdrop = e.drop(v, k, el, i, o.Vin, T)
 	o.Vload = o.Vin - o.Vdrop
@@ -100,7 +108,6 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 			o.Fail = failLimit
 		}
 	}
-	return o
 }
 
 // dropMemo is the last drop worked out for one phase: variant v's element
@@ -256,11 +263,13 @@ type node struct {
 	// worked out for: a node where none has moved reuses it.
 	polI          []float64
 	polRest, polT float64
+	ps            polState // what pol points at
 	// polA is the branches' polarisation at the ambient's resistances,
 	// the one worked out (and reused) from the currents; pol is it at the
 	// cell's temperature (cellheat.go, warm). The same state without
 	// self-heating; nil without branches.
 	polA *polState
+	psA  polState // what polA points at with self-heating
 	// cellC is one cell's temperature the resistances are taken at, °C;
 	// cellPeakC its hottest around this charge (the end of a day's
 	// session). The ambient without self-heating.
@@ -270,16 +279,30 @@ type node struct {
 	iraw []float64
 }
 
+// newNode is the evaluation's node: it lives in the evaluator, its
+// figures in two allocations.
 func (e *evaluator) newNode() *node {
 	n := len(e.loads)
 	ops := make([]op, 2*n)
-	f := make([]float64, 4*n)
-	nd := &node{mean: ops[:n:n], worst: ops[n:], late: f[:n:n], icell: f[n : 2*n : 2*n],
-		pol: newPolState(n), polI: f[2*n : 3*n : 3*n], iraw: f[3*n:], polRest: math.NaN(), cellC: e.T, cellPeakC: e.T}
+	nb := 0 // the branches whose heat a self-heating cell's state keeps
+	if e.pol != nil && e.therm != nil {
+		nb = len(e.pol.br)
+	}
+	hot := 0
+	if nb > 0 {
+		hot = 10*n + 2*nb
+	}
+	f := make([]float64, 14*n+hot)
+	nd := &e.nd
+	*nd = node{mean: ops[:n:n], worst: ops[n:], late: f[:n:n], icell: f[n : 2*n : 2*n],
+		polI: f[2*n : 3*n : 3*n], iraw: f[3*n : 4*n : 4*n], polRest: math.NaN(), cellC: e.T, cellPeakC: e.T}
+	nd.ps.init(f[4*n : 14*n : 14*n])
+	nd.pol = &nd.ps
 	switch {
 	case e.pol == nil:
-	case e.therm != nil:
-		nd.polA = newPolStateHeat(n, len(e.pol.br))
+	case nb > 0:
+		nd.psA.initHeat(f[14*n:], n, nb)
+		nd.polA = &nd.psA
 	default:
 		nd.polA = nd.pol
 	}
@@ -354,9 +377,9 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			self := nd.pol.self[k]
 			other := nd.pol.mean[k] - self*nd.icell[k]
 			src := e.S * (nd.E - other)
-			o := e.solve(l, k, v, src, nd.Rp+e.S*self/e.P)
+			o := &nd.mean[k]
+			e.solveTo(o, l, k, v, src, nd.Rp+e.S*self/e.P)
 			o.CellV = (src-o.Ipack*nd.Rp)/e.S - self*o.Ipack/e.P
-			nd.mean[k] = o
 			ic := o.Ipack / e.P
 			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
 			nd.iraw[k] = ic
@@ -408,9 +431,9 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			continue
 		}
 		src := e.S * (nd.E - nd.pol.worst[k])
-		o := e.solve(l, k, v, src, nd.Rp)
+		o := &nd.worst[k]
+		e.solveTo(o, l, k, v, src, nd.Rp)
 		o.CellV = (src - o.Ipack*nd.Rp) / e.S
-		nd.worst[k] = o
 		nd.late[k] = math.NaN()
 		if e.cutoffV > 0 && e.pLate[k] {
 			nd.late[k] = nd.E - nd.icell[k]*nd.R0 - nd.pol.late[k]
@@ -474,7 +497,39 @@ func (e *evaluator) activeAverage(ops []op) float64 {
 // constant-power load collapses (no operating point, no margin): there it
 // is NaN. phase is the failing phase (-1 when none fails).
 func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float64) {
+	fail, phase, m, _ = e.judgeRules(nd, v)
+	return fail, phase, m
+}
+
+// rules are a node's margins rule by rule (judgeRules): the load's
+// voltage above the floor, the current below the limits, the cells above
+// the pack's cut-off, the cycle's average above the end-point (+Inf for
+// a rule that does not apply; NaN where the smallest margin is).
+type rules struct{ floor, limit, cutoff, end float64 }
+
+// of is the margin of the rule that fails as cause c; NaN for a rule
+// with none (a collapse, an LED too dim, the charge spent).
+func (r rules) of(c Cause) float64 {
+	switch c {
+	case CauseFloor:
+		return r.floor
+	case CauseLimit, CauseFuse:
+		return r.limit
+	case CauseCutoff:
+		return r.cutoff
+	case CauseEndPoint:
+		return r.end
+	}
+	return math.NaN()
+}
+
+// noRules is the rules of a node not judged.
+var noRules = rules{math.NaN(), math.NaN(), math.NaN(), math.NaN()}
+
+// judgeRules is judge with the margins rule by rule.
+func (e *evaluator) judgeRules(nd *node, v *variant) (fail Cause, phase int, m float64, r rules) {
 	fail, phase, m = "", -1, math.Inf(1)
+	r = rules{math.Inf(1), math.Inf(1), math.Inf(1), math.Inf(1)}
 	note := func(c Cause, k int) {
 		if fail == "" || rank(c) < rank(fail) {
 			fail, phase = c, k
@@ -495,6 +550,7 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 			m = math.NaN()
 		} else if !math.IsNaN(m) {
 			m = min(m, o.Vload-v.floor, v.lim.Clamp-o.I, v.lim.Trip-o.I)
+			r.floor, r.limit = min(r.floor, o.Vload-v.floor), min(r.limit, v.lim.Clamp-o.I, v.lim.Trip-o.I)
 		}
 		if o.CellV < nd.worst[low].CellV {
 			low = k
@@ -506,6 +562,7 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 			}
 			if !math.IsNaN(m) {
 				m = min(m, d)
+				r.cutoff = min(r.cutoff, d)
 			}
 		}
 	}
@@ -521,20 +578,24 @@ func (e *evaluator) judge(nd *node, v *variant) (fail Cause, phase int, m float6
 		}
 		if !math.IsNaN(m) {
 			m = min(m, 1-load)
+			r.limit = min(r.limit, 1-load)
 		}
 	}
-	if d := nd.cellAvg - e.cell.EndPoint; d < 0 {
+	d := nd.cellAvg - e.cell.EndPoint
+	if d < 0 {
 		note(CauseEndPoint, low)
-		if !math.IsNaN(m) {
-			m = min(m, d)
-		}
-	} else if !math.IsNaN(m) {
+	}
+	if !math.IsNaN(m) {
 		m = min(m, d)
+		r.end = d
 	}
 	if fail != "" && m > 0 || fail == "" && m < 0 { // a rule the margin does not see
 		m = math.NaN()
 	}
-	return fail, phase, m
+	if math.IsNaN(m) {
+		r = noRules
+	}
+	return fail, phase, m, r
 }
 
 // rank orders causes when several phases fail at once: the most telling first.

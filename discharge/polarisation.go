@@ -92,17 +92,17 @@ type polState struct {
 	decay, decayNow []float64
 }
 
-func newPolState(n int) *polState { return newPolStateHeat(n, 0) }
+// init lays s out on f, ten figures per phase.
+func (s *polState) init(f []float64) {
+	n := len(f) / 10
+	*s = polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n:]}
+}
 
-// newPolStateHeat is newPolState with room for nb branches' decay and
-// decayNow (cellheat.go); none when nb is 0.
-func newPolStateHeat(n, nb int) *polState {
-	f := make([]float64, 10*n+2*nb)
-	s := &polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n : 10*n : 10*n]}
-	if nb > 0 {
-		s.decay, s.decayNow = f[10*n:10*n+nb:10*n+nb], f[10*n+nb:]
-	}
-	return s
+// initHeat lays s out on f for n phases with room for nb branches'
+// decay and decayNow (cellheat.go): 10·n + 2·nb figures.
+func (s *polState) initHeat(f []float64, n, nb int) {
+	s.init(f[: 10*n : 10*n])
+	s.decay, s.decayNow = f[10*n:10*n+nb:10*n+nb], f[10*n+nb:10*n+2*nb]
 }
 
 // newPolarisation prepares the branches for phases of durations dur (s,

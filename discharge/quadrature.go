@@ -28,11 +28,15 @@ var gaussX, gaussW = func() ([]float64, []float64) {
 	return x, w
 }()
 
-// breakpoints are the scaled charges where the curve or the resistance
-// table has a corner, sorted, from 0 to the curve's end.
-func breakpoints(c *curves.Cell) []float64 {
+// breakpointsTo returns the scaled charges where the curve or the
+// resistance table has a corner, sorted, from 0 to the curve's end, in
+// buf's backing array when it has room.
+func breakpointsTo(buf []float64, c *curves.Cell) []float64 {
 	end := c.Curve.End()
-	b := make([]float64, 0, 2+c.Curve.Len()+len(c.Resistance))
+	b := buf[:0]
+	if n := 2 + c.Curve.Len() + len(c.Resistance); cap(b) < n {
+		b = make([]float64, 0, n)
+	}
 	b = append(b, 0, end)
 	for i := range c.Curve.Len() {
 		q, _ := c.Curve.Point(i)
@@ -84,9 +88,7 @@ func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 		// mean of I·v (per cell, times the S·P cells).
 		cellW += w * (o.Ipack*o.Ipack*nd.Rp + e.S*o.Ipack*nd.pol.mean[j])
 	}
-	for _, o := range nd.worst {
-		r.peakW = math.Max(r.peakW, o.Vdrop*o.I+o.Vin*(o.Ipack-o.I))
-	}
+	r.peakW = peakOf(nd)
 	iq := v.el.Quiescent(nd.Epack, e.T)
 	idle := d.Standby + iq
 	r.standby = (1 - f) * idle * 1000
@@ -97,6 +99,16 @@ func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 	r.cellW = f*cellW + (1-f)*idle*idle*nd.Rp
 	r.cellRise = nd.cellPeakC - e.T
 	return r
+}
+
+// peakOf is the highest element dissipation among the phases of nd at
+// their worst instants, W.
+func peakOf(nd *node) float64 {
+	p := 0.0
+	for _, o := range nd.worst {
+		p = math.Max(p, o.Vdrop*o.I+o.Vin*(o.Ipack-o.I))
+	}
+	return p
 }
 
 // selfDischarge is the pack's self-discharge as a steady drain in mA: the
@@ -116,7 +128,8 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	var tot sums
 	// A finer rule than the default is a reference (the convergence
 	// test): it takes no shortcut.
-	q := &quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
+	q := &e.quad
+	*q = quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
 	for _, tau := range e.taus {
 		if tau >= 1e-3*qsCut*v.usePerQ {
 			q.slowest = math.Max(q.slowest, tau)
@@ -133,14 +146,20 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	}
 	cal, loadWh, protWh, cellWh, stby, self, peak := tot.h, tot.loadWh, tot.protWh, tot.cellWh, tot.stby, tot.self, tot.peak
 	// The element's peak dissipation, and the cells' hottest, can sit at
-	// either end of the run.
+	// either end of the run. (Known from evaluate's own solves there, for
+	// the real variant.)
 	rise := tot.cellRise // never below 0: sums start at 0
-	for _, x := range []float64{0, qsCut} {
-		if x < e.end {
-			rt := e.rates(x, v, nd)
-			peak = math.Max(peak, rt.peakW)
-			rise = math.Max(rise, rt.cellRise)
+	for i, x := range [2]float64{0, qsCut} {
+		if x >= e.end {
+			continue
 		}
+		p, u := [2]float64{e.peak0, e.peakCut}[i], [2]float64{e.rise0, e.riseCut}[i]
+		if math.IsNaN(p) || math.IsNaN(u) || v.heat != e.heat {
+			rt := e.rates(x, v, nd)
+			p, u = rt.peakW, rt.cellRise
+		}
+		peak = math.Max(peak, p)
+		rise = math.Max(rise, u)
 	}
 	r.CellPeakC = e.T + rise
 	r.RuntimeDays = cal / 24

@@ -40,15 +40,25 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	// The highest current of each phase over the run, for the element's
 	// warnings (at the fresh pack and at cut-off; currents are monotone in
 	// charge for every load law).
+	// A constant current is its own at every charge (solve): nothing to
+	// solve for when every phase is one.
 	cur := make([]float64, len(e.loads))
-	for _, q := range []float64{0, math.Max(0, r.DeliveredMAh/(e.P*r.CapacityFactor)*(1-1e-9))} {
-		if q >= e.end {
-			continue
-		}
+	allCC := true
+	for j, l := range e.loads {
+		cur[j] = l.Amps
+		allCC = allCC && l.Kind == ConstantCurrent
+	}
+	if !allCC || e.general {
+		clear(cur)
 		v := &variant{el: el, lim: protect.NoLimit(), floor: 0, heat: e.heat}
-		e.solveNode(q, v, nd)
-		for j, o := range nd.worst {
-			cur[j] = math.Max(cur[j], o.I)
+		for _, q := range []float64{0, math.Max(0, r.DeliveredMAh/(e.P*r.CapacityFactor)*(1-1e-9))} {
+			if q >= e.end {
+				continue
+			}
+			e.solveNode(q, v, nd)
+			for j, o := range nd.worst {
+				cur[j] = math.Max(cur[j], o.I)
+			}
 		}
 	}
 	r.Warnings = append(r.Warnings, el.Warnings(protect.Operating{VFresh: r.FreshV, Currents: cur, PeakW: r.ProtectionPeakW,
@@ -81,7 +91,7 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	if r.RuntimeH == 0 {
 		r.Warnings = append(r.Warnings, "the product "+d.CutoffText(r))
 	}
-	r.Cautions = append(r.Cautions, Cautions(c, d.Series*d.Parallel)...)
+	r.Cautions = Cautions(c, d.Series*d.Parallel) // a slice of the Result's own
 	if d.Toy {
 		r.Cautions = append(r.Cautions, ToyCaution)
 	}

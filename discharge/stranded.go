@@ -47,11 +47,13 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// The floor, the least LED current and the pack's own under-voltage
 	// cut-off are the product's stops: the reference leaves them all out,
 	// so they go together as "the floor".
-	noEl := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
-	noFloor := *real
+	// (The three live in the evaluator: no allocation each.)
+	noEl, noFloor, neither := &e.runs[0], &e.runs[1], &e.runs[2]
+	*noEl = variant{el: protect.None{}, lim: protect.NoLimit(), floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
+	*noFloor = *real
 	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
 	noFloor.heat = e.heatCopy(real.heat) // its own junctions: the design's stay as they were
-	neither := &variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
+	*neither = variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
 	// The runs without the element draw what the bare cells draw: their
 	// own capacity scale and their own clock (the time a charge stands
 	// for, which sets how far the rested first session has gone), both
@@ -60,7 +62,14 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// the design's (copied with it).
 	scale0 := scale
 	if !none {
-		scale0 = e.capacityScale(neither, nd)
+		if !e.general && e.drawsAsBare(real) {
+			// The bare cells draw what the design draws, to the bit:
+			// the same scale and clock.
+			neither.usePerQ, neither.periodicOnly = real.usePerQ, real.periodicOnly
+			e.skipped++
+		} else {
+			scale0 = e.capacityScale(neither, nd)
+		}
 		noEl.usePerQ, noEl.periodicOnly = neither.usePerQ, neither.periodicOnly
 	}
 
@@ -71,24 +80,55 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// without the element are the runs with it.
 	noStop := d.Floor == 0 && d.MinLEDAmps == 0 && d.Cell.CutoffV == 0
 	qs0F, qsE0 := qsCut, qsCut
+	// What the design's own search found where it failed (heatCutoff),
+	// when its junctions hold: a run found to fail at the same charge
+	// by the same rule (found.hard, bareFails) need not be searched.
+	own := e.last
+	if e.general || own.v != real || own.lo != qsCut || real.heat != nil && !real.heat.still {
+		own = found{}
+	}
+	var fE0, f0F found
 	if !noStop {
 		// From the design's own cut-off, with its junctions as they stand
 		// there, then settled where this run ends (as heatCutoff does,
 		// from a nearer start).
-		qsE0 = e.cutoff(&noFloor, nd, qsCut)
-		if h := noFloor.heat; h != nil && !h.still {
-			qsE0 = e.heatSettle(&noFloor, nd, qsE0)
+		if own.hard() {
+			// The design fails there by a rule that is not a stop: so
+			// does this run (the same rule ranks first), which works
+			// wherever the design does.
+			fE0 = own
+			fE0.v = noFloor
+			e.skipped++
+		} else {
+			fE0 = e.search(noFloor, nd, qsCut)
+			qsE0 = fE0.lo
+			if h := noFloor.heat; h != nil && !h.still {
+				qsE0, fE0 = e.heatSettle(noFloor, nd, qsE0), found{}
+			}
 		}
 	}
 	if !none {
-		qs0F = e.cutoff(noEl, nd, qsCut)
+		if e.general || !e.bareFails(real, noEl, own) {
+			f0F = e.search(noEl, nd, qsCut)
+			qs0F = f0F.lo
+		} else {
+			// It fails there by the same rule, one of the cells' own.
+			f0F, f0F.v = own, noEl
+			e.skipped++
+		}
 	}
 	qs00 := qsE0
 	switch {
 	case noStop:
 		qs00 = qs0F
-	case !none:
+	case none:
+	case !e.general && f0F.hard():
+		qs00 = qs0F
+		e.skipped++
+	case e.general || !e.bareFails(noFloor, neither, fE0):
 		qs00 = e.cutoff(neither, nd, qs0F)
+	default:
+		e.skipped++
 	}
 
 	// Removing a stop can never end a run sooner: it only takes a way to
@@ -122,6 +162,55 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// run the load at all) while the element lets the design run, and then
 	// the sum above cancels to rounding.
 	r.ReferenceMAh = math.Max(0, qEF+r.StrandedMAh)
+}
+
+// bareFails reports whether variant bare, variant v without its element
+// (protect.None, no limit) and with no stop v lacks, fails where v's
+// search f found v to fail and works wherever v works, so that its
+// cut-off is v's. So it is when the element leaves the cells' side of
+// every node as it is: every phase a constant current (its own at every
+// charge), an element that draws nothing standing and drops nothing
+// below zero (a junction), and the same clock. bare's load then sees at
+// least v's voltage through the same cells, so it fails only where v
+// does; and where v fails first by a rule of the cells' own (the
+// end-point, the charge running out, the pack's cut-off when bare keeps
+// it) bare fails too.
+func (e *evaluator) bareFails(v, bare *variant, f found) bool {
+	switch f.why {
+	case CauseEndPoint, causeSpent:
+	case CauseCutoff:
+		if !bare.cutoff {
+			return false
+		}
+	default:
+		return false
+	}
+	if f.v != v || bare.usePerQ != v.usePerQ || bare.periodicOnly != v.periodicOnly ||
+		bare.floor > v.floor || bare.minLED > v.minLED || bare.cutoff && !v.cutoff {
+		return false
+	}
+	if _, ok := bare.el.(protect.None); !ok {
+		return false
+	}
+	return e.drawsAsBare(v)
+}
+
+// drawsAsBare reports whether variant v's cells carry what they would
+// carry without its element, at every charge: every phase a constant
+// current (its own at every charge, solve) behind an element that draws
+// nothing standing and drops nothing below zero (a junction, or none).
+func (e *evaluator) drawsAsBare(v *variant) bool {
+	switch v.el.(type) {
+	case protect.None, protect.Diode, protect.Schottky:
+	default:
+		return false
+	}
+	for _, l := range e.loads {
+		if l.Kind != ConstantCurrent {
+			return false
+		}
+	}
+	return true
 }
 
 // capacityScale is pack mAh per scaled cell mAh for variant v — parallel

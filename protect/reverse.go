@@ -83,16 +83,23 @@ func appendHeat(w []string, t Thermal, op Operating) []string {
 	if !(op.PeakW > 0) {
 		return w
 	}
-	tj, where := op.PeakC, "at the peak of the hottest pulse ("+units.Human(op.PeakW, units.Power, 3)+")"
+	tj, pulse := op.PeakC, true
 	if tj == 0 {
-		tj, where = t.Junction(op.PeakW, op.TempC), "at the peak "+units.Human(op.PeakW, units.Power, 3)
+		tj, pulse = t.Junction(op.PeakW, op.TempC), false
+	}
+	// Worded only when warned: the evaluation calls this every time.
+	where := func() string {
+		if pulse {
+			return "at the peak of the hottest pulse (" + units.Human(op.PeakW, units.Power, 3) + ")"
+		}
+		return "at the peak " + units.Human(op.PeakW, units.Power, 3)
 	}
 	switch {
 	case tj > t.TjMax:
-		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" "+where+", above its "+
+		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" "+where()+", above its "+
 			units.Human(t.TjMax, units.Temperature, 3)+" limit: use a bigger package or more copper")
 	case tj > t.TjMax-tjMargin:
-		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" "+where+", within "+
+		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" "+where()+", within "+
 			units.Human(tjMargin, units.Temperature, 2)+" of its "+units.Human(t.TjMax, units.Temperature, 3)+
 			" limit: a hot day or a weaker part takes it over; use a bigger package or more copper")
 	}
