@@ -27,7 +27,9 @@ import (
 // report takes its end, the hottest instant. The first session of a
 // fresh pack — the whole run in continuous use — starts at the ambient:
 // u(t) = θ·P·(1 − e^(−t/τ)), t the seconds of use a charge stands for
-// (charge × usePerQ, the clock the polarisation uses).
+// (charge × usePerQ, the clock the polarisation uses); with RC branches,
+// whose own heat builds up from the rested start too, the stage's
+// closed-form response to that (first).
 //
 // P is quasi-static in charge: each charge takes its own P as if it had
 // been held (exact for a steady P). What that misses is the lag of the
@@ -52,7 +54,9 @@ import (
 // passes (operating.go, solveNode), each pass taking the temperature its
 // last currents give: a constant-current load settles in one pass, a
 // load whose current moves with the voltage in a few (the loop gains
-// θ·P·|d ln fr/dT|, a few per cent for a cell at its limits).
+// θ·P·|d ln fr/dT|, a few per cent for a cell at its limits); near a
+// collapse, where the gain can pass 1, a bracket on the factor
+// (thermPass) takes over.
 type cellTherm struct {
 	cell *curves.Cell
 	st   rc.Stage
