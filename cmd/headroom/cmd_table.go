@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 
 	"headroom/internal/guard"
@@ -276,6 +277,11 @@ func runTable(c *cli, args []string) error {
 	sort.SliceStable(rows, func(i, j int) bool {
 		a, as := get(rows[i])
 		b, bs := get(rows[j])
+		// Figures that agree to nine significant digits (rechargeables'
+		// cost per hour of use, which is per charge drawn, and so the same
+		// behind every element on one load) keep the sweep's order: their
+		// last bits are rounding, and must not reorder the table.
+		a, b = sortable(a), sortable(b)
 		// Invalid rows, and for cost those that never run (NaN), go last
 		// whatever the direction.
 		if an, bn := math.IsNaN(a), math.IsNaN(b); an || bn {
@@ -298,6 +304,15 @@ func runTable(c *cli, args []string) error {
 		t.row(r)
 	}
 	return t.end()
+}
+
+// sortable is x rounded to nine significant digits, for ordering rows.
+func sortable(x float64) float64 {
+	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
+		return x
+	}
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 9, 64), 64)
+	return v
 }
 
 // tableContext writes, for people, what every row shares.
