@@ -312,7 +312,11 @@ func (e *evaluator) warm(nd *node, R0a, irest, t float64, tp *thermPass) float64
 	} else {
 		gOut, tc, peak = h.at(P, Ps, t)
 	}
-	g := tp.next(gOut, collapsed)
+	g, off := gOut, 0.0
+	if tp.n > 0 {
+		g = tp.next(gOut, collapsed)
+		off = math.Abs(g-gOut) / g
+	}
 	tp.last = g
 	tp.n++
 	nd.cellC, nd.cellPeakC = tc, peak
@@ -323,7 +327,7 @@ func (e *evaluator) warm(nd *node, R0a, irest, t float64, tp *thermPass) float64
 			s.worst[k], s.mean[k], s.late[k], s.self[k] = g*a.worst[k], g*a.mean[k], g*a.late[k], g*a.self[k]
 		}
 	}
-	return math.Abs(g-gOut) / g
+	return off
 }
 
 // solveWarm is solveNode for a self-heating cell without RC branches:
