@@ -5,6 +5,7 @@ package discharge
 
 import (
 	"math"
+	"sort"
 
 	"headroom/curves"
 	"headroom/internal/rc"
@@ -320,6 +321,7 @@ func (e *evaluator) warm(nd *node, R0a, irest, t float64, tp *thermPass) float64
 	tp.last = g
 	tp.n++
 	nd.cellC, nd.cellPeakC = tc, peak
+	nd.target = h.st.R * g * P
 	nd.R0 = R0a * g
 	nd.Rp = e.S * nd.R0 / e.P
 	if a, s := nd.polA, nd.pol; a != nil && s != a {
@@ -382,4 +384,66 @@ func (e *evaluator) restAndClock(qs float64, v *variant, nd *node) (irest, t flo
 		t = math.Inf(1)
 	}
 	return irest, t
+}
+
+// heatTrail is the cells' heat target (the rise each sampled charge's
+// power would settle at) at every charge the quadrature samples in
+// continuous use, for the hottest the run's power history gives.
+//
+// The resistances take each charge's quasi-static rise, which runs
+// ahead of the real temperature where the power climbs within τ (R0
+// rising at the end of a fast discharge). The report does better at
+// the cost of a sort: the thermal stage integrated in the engine's own
+// clock (t = charge × usePerQ) over the samples, the target linear in
+// time between them — the first-order response to a ramp, exactly:
+//
+//	u(t+Δ) = T₁ − τ·s + (u(t) − T₀ + τ·s)·e^(−Δ/τ),  s = (T₁ − T₀)/Δ
+//
+// from the rested start (u = 0), the hottest of the samples and the
+// cut-off taken.
+type heatTrail struct{ q, u []float64 }
+
+func (h *heatTrail) reset() { h.q, h.u = h.q[:0], h.u[:0] }
+
+func (h *heatTrail) add(q, target float64) {
+	h.q = append(h.q, q)
+	h.u = append(h.u, target)
+}
+
+// Len, Less and Swap sort the samples by charge.
+func (h *heatTrail) Len() int           { return len(h.q) }
+func (h *heatTrail) Less(i, j int) bool { return h.q[i] < h.q[j] }
+func (h *heatTrail) Swap(i, j int) {
+	h.q[i], h.q[j] = h.q[j], h.q[i]
+	h.u[i], h.u[j] = h.u[j], h.u[i]
+}
+
+// hottest is the highest rise (K) of a stage of time constant tau (s)
+// driven by the samples' targets from rest, usePerQ seconds a scaled
+// mAh, up to the cut-off at scaled charge qsCut.
+func (h *heatTrail) hottest(tau, usePerQ, qsCut float64) float64 {
+	if len(h.q) == 0 {
+		return 0
+	}
+	sort.Sort(h)
+	u, best := 0.0, 0.0
+	pq, pt := 0.0, h.u[0] // from the start, the first sample's target
+	step := func(q, t float64) {
+		dt := (q - pq) * usePerQ
+		if dt > 0 {
+			s := (t - pt) / dt
+			e := math.Exp(-dt / tau)
+			u = t - tau*s + (u-pt+tau*s)*e
+		}
+		pq, pt = q, t
+		best = math.Max(best, u)
+	}
+	for i, q := range h.q {
+		if q > qsCut {
+			break
+		}
+		step(q, h.u[i])
+	}
+	step(qsCut, pt) // the last target held to the cut-off
+	return best
 }

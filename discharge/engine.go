@@ -134,6 +134,7 @@ type evaluator struct {
 	sess   float64
 	therm  *cellTherm
 	thermV cellTherm
+	trail  heatTrail // the heat targets the quadrature samples (cellheat.go)
 	// taus are the time constants of the rested start's transients
 	// (setTaus), in tauBuf.
 	taus   []float64

@@ -274,6 +274,9 @@ type node struct {
 	// cellPeakC its hottest around this charge (the end of a day's
 	// session). The ambient without self-heating.
 	cellC, cellPeakC float64
+	// target is the rise (K) the cells would settle at if this charge's
+	// power were held: θ times the power at the cell's temperature.
+	target float64
 	// iraw holds the per-cell currents the last pass solved, before the
 	// passes' damping (the cells' heat follows them).
 	iraw []float64

@@ -66,6 +66,7 @@ type rates struct {
 	self     float64 // self-discharge, mA
 	peakW    float64 // highest element dissipation among the phases, W
 	cellRise float64 // the cells' hottest around this charge, K above the ambient
+	target   float64 // the rise this charge's power would settle at, K (node.target)
 }
 
 // rates solves variant v at qs into nd and returns what the quadrature
@@ -98,6 +99,7 @@ func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 	r.protW = f*protW + (1-f)*nd.Epack*iq
 	r.cellW = f*cellW + (1-f)*idle*idle*nd.Rp
 	r.cellRise = nd.cellPeakC - e.T
+	r.target = nd.target
 	return r
 }
 
@@ -135,6 +137,10 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 			q.slowest = math.Max(q.slowest, tau)
 		}
 	}
+	if e.therm != nil && math.IsInf(e.sess, 1) && v.usePerQ > 0 {
+		e.trail.reset()
+		q.lag = &e.trail
+	}
 	prev := 0.0
 	for _, b := range e.ledCorners(v, qsCut, nd, e.transientBreaks(v, qsCut)) {
 		if b >= qsCut {
@@ -160,6 +166,11 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 		}
 		peak = math.Max(peak, p)
 		rise = math.Max(rise, u)
+	}
+	if q.lag != nil && qsCut > 0 {
+		// In continuous use the cells' hottest follows the power's
+		// history, not each charge's quasi-static rise (cellheat.go).
+		rise = q.lag.hottest(e.therm.st.Tau, v.usePerQ, qsCut)
 	}
 	r.CellPeakC = e.T + rise
 	r.RuntimeDays = cal / 24
@@ -284,6 +295,9 @@ type quadrature struct {
 	// slowest is the longest time constant that counts (transientBreaks).
 	linear  bool
 	slowest float64
+	// lag, when not nil, collects the cells' heat targets at every
+	// charge sampled (continuous use with self-heating; cellheat.go).
+	lag *heatTrail
 	// bufs[d] holds the sampled rates of the span being judged at depth
 	// d of the halving: a span reads its own only until it recurses.
 	bufs [maxSplit + 2][]rates
@@ -327,6 +341,9 @@ func (q *quadrature) rule(a, b float64, nodes []rates) (sums, int) {
 	var s sums
 	for j, x := range gx {
 		nodes[j] = e.rates(mid+half*x, q.v, q.nd)
+		if q.lag != nil {
+			q.lag.add(mid+half*x, nodes[j].target)
+		}
 	}
 	for j := range gx {
 		rt := &nodes[j]
