@@ -69,8 +69,9 @@ func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 // does: stops removed, or an element behind constant currents, see
 // bareFails): the breakpoint at or below from is then not solved unless
 // the span after it fails, where its margin is needed. Behind constant
-// currents and a steady element (linear) a node solves to the same
-// figures in any order, so the search finds what it would have.
+// currents and a steady element (linear), with cells that do not heat, a
+// node solves to the same figures in any order, so the search finds what
+// it would have.
 func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found {
 	first := 1
 	lo := bound{0, 0, noRules}
@@ -80,7 +81,7 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 		if j == len(e.breaks) || e.breaks[j] > from {
 			j--
 		}
-		if j > 0 && works && !e.general && e.linear(v) {
+		if j > 0 && works && !e.general && e.linear(v) && e.therm == nil {
 			first, lo, lazy = j+1, bound{e.breaks[j], math.NaN(), noRules}, true
 		} else if j > 0 {
 			if f, m, r := e.marginWhy(e.breaks[j], v, nd); f == "" {
@@ -151,14 +152,14 @@ type bound struct {
 
 // oneRoot reports whether variant v's margin has a single root in any
 // span past charge q where it changes sign: behind constant currents and
-// a steady element whose junctions hold (linear, still), past the rested
-// start's first session, every rule's margin is linear in charge between
-// breakpoints (the cells' source is, the currents, drops and
-// polarisation are fixed), so the smallest of them is concave and each
-// rule's own margin is too.
+// a steady element whose junctions hold (linear, still), with cells that
+// do not heat, past the rested start's first session, every rule's
+// margin is linear in charge between breakpoints (the cells' source is;
+// the currents, drops and polarisation are fixed), so the smallest of
+// them is concave and each rule's own margin is too.
 func (e *evaluator) oneRoot(v *variant, q float64) bool {
-	if e.general || !e.linear(v) || v.heat != nil && !v.heat.still {
-		return false
+	if e.general || !e.linear(v) || v.heat != nil && !v.heat.still || e.therm != nil {
+		return false // (cells that heat: their resistance moves with their heat)
 	}
 	return e.pol == nil || v.periodicOnly || q*v.usePerQ >= e.pol.hs
 }
@@ -191,7 +192,9 @@ func (e *evaluator) narrowWhy(v *variant, nd *node, lo, hi bound, why Cause) fou
 		// nothing of where the failure starts: the step would land on hi
 		// every time and the bracket shrink by a quarter of tol a step.
 		// Bisect then.
-		if flo > 0 && fhi < 0 {
+		// A junction whose settled state can jump with charge (heat.go,
+		// byWork) is narrowed on whether v works alone, never on its margin.
+		if flo > 0 && fhi < 0 && !v.byWork() {
 			x = lo.q + (hi.q-lo.q)*flo/(flo-fhi)
 			// Keep a little inside the bracket, so that it shrinks from
 			// both ends once the estimate is good.

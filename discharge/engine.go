@@ -77,6 +77,9 @@ type variant struct {
 	// heat is the element's per-phase junction state (heat.go); nil
 	// when the element is taken at ambient.
 	heat *heat
+	// ordered marks the design's own run, whose cut-off must keep floor
+	// order by construction (heat.go, byWork).
+	ordered bool
 	// over is the element when it opens on the profile as a whole (a
 	// polyfuse; lim.Trip is then +Inf); nil otherwise.
 	over protect.Overloader
@@ -128,6 +131,17 @@ type evaluator struct {
 	// pLate marks the phases long enough to trip it.
 	cutoffV float64
 	pLate   []bool
+	// sess is the seconds of use in a day's session, +Inf in continuous
+	// use; therm is the cells' thermal stage (cellheat.go), nil when
+	// they stay at the ambient.
+	sess   float64
+	therm  *cellTherm
+	thermV cellTherm
+	trail  heatTrail // the heat targets the quadrature samples (cellheat.go)
+	// taus are the time constants of the rested start's transients
+	// (setTaus), in tauBuf.
+	taus   []float64
+	tauBuf [curves.MaxRC + 1]float64
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
@@ -142,6 +156,9 @@ type evaluator struct {
 	// solves evaluate makes there with the element as integrate sees it;
 	// NaN when not known (integrate then solves again).
 	peak0, peakCut float64
+	// rise0 and riseCut are the cells' hottest there, K above the
+	// ambient, kept the same way (NaN: not known).
+	rise0, riseCut float64
 	// last is the last cut-off search's outcome (cutoff.go, search).
 	last found
 	// quad is the quadrature's working memory (integrate); runs holds the
@@ -233,7 +250,7 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	e.general = general
 
 	real := &e.real
-	*real = variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps}
+	*real = variant{el: el, lim: el.Limit(d.TempC), floor: d.Floor, cutoff: true, steady: e.steadyElement(el), minLED: d.MinLEDAmps, ordered: true}
 	if o, ok := el.(protect.Overloader); ok {
 		real.over, real.lim.Trip = o, math.Inf(1)
 	}
@@ -249,22 +266,16 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// currents rise with every load's demand, so a bigger load never gets
 	// a kinder rate factor (a point deeper in the run can fail, or move
 	// with the load).
-	if real.heat != nil {
-		// The junctions with the fresh pack: exact for the whole run
-		// behind constant currents and a drop that ignores the pack
-		// (still), whose currents do not move with temperature either,
-		// so the node solved at ambient serves as it is.
-		real.heat.still = e.linear(real)
-		if !real.heat.still {
-			e.settle(real, 0, nd)
-		}
-	}
-	e.solveNode(0, real, nd)
-	if real.heat != nil {
-		if real.heat.still {
-			e.settleAt(real, 0, nd)
-		}
-		real.heat.freshHeat(e, real, nd)
+	if h := real.heat; h != nil && e.linear(real) {
+		// Constant currents behind a drop that ignores the pack: the
+		// junctions cannot move with charge (still), and their currents
+		// do not move with temperature either, so the node solved at
+		// ambient gives their sources and one solve holds for the run.
+		h.still = true
+		e.solveNode(0, real, nd)
+		e.settleStill(real, nd)
+	} else {
+		e.solveNode(0, real, nd) // the junctions settle at every charge solved (heat.go)
 	}
 	ieff := e.effectiveAmps(real, nd)
 	F := d.Cell.CapacityFactor(ieff, d.TempC)
@@ -277,7 +288,7 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// the run is taken as day-periodic from the start).
 	lin := e.linear(real) && !e.general
 	if fresh := e.clock(real, scale, nd); lin && (real.heat == nil || real.heat.still) && !real.periodicOnly {
-		e.peak0 = fresh.peakW
+		e.peak0, e.rise0 = fresh.peakW, fresh.cellRise
 	}
 
 	// The cut-offs, in scaled charge. Each variant
@@ -285,14 +296,15 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// the previous cut-off; without an element the bare variant is the
 	// real one.
 	// Behind constant currents and a steady element whose junctions hold,
-	// the design's own search keeps what it solves at the breakpoints for
-	// the quadrature (keep).
-	// nd holds the real variant solved with the fresh pack (clock), with
-	// the rested start's polarisation: unless the run is taken as
-	// day-periodic from the start, its search starts from that (atZero).
-	e.keepRates = lin && (real.heat == nil || real.heat.still)
-	e.atZero = e.keepRates && !real.periodicOnly
-	qsCut := e.heatCutoff(real, nd)
+	// with cells that do not heat (their resistance then moves with
+	// their heat), the design's own search keeps what it solves at the
+	// breakpoints for the quadrature (keep). nd holds the real variant
+	// solved with the fresh pack (clock), with the rested start's
+	// polarisation: unless the run is taken as day-periodic from the
+	// start, its search starts from that (atZero).
+	kept := lin && e.therm == nil && (real.heat == nil || real.heat.still)
+	e.keepRates, e.atZero = kept, kept && !real.periodicOnly
+	qsCut := e.cutoff(real, nd, 0)
 	e.keepRates, e.atZero = false, false
 
 	r := &Result{EffectiveA: ieff, CapacityFactor: F}
@@ -309,8 +321,6 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 		e.solveNode(past, real, nd)
 		if f, p, _ := e.judge(nd, real); f != "" {
 			fail, ph = f, p
-		} else if h := real.heat; h != nil && h.cause != "" {
-			fail, ph = h.cause, h.phase // the junctions' search (heatScan)
 		}
 	}
 	r.CutoffCause = fail
@@ -318,8 +328,8 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	r.CutoffIndex = ph
 	e.solveNode(math.Min(qsCut, e.end), real, nd)
 	if lin && qsCut < e.end {
-		e.peakCut = peakOf(nd)
-		if real.heat == nil || real.heat.still {
+		e.peakCut, e.riseCut = peakOf(nd), nd.cellPeakC-e.T
+		if kept {
 			e.keep(len(e.breaks), qsCut, nd)
 		}
 	}
@@ -340,16 +350,25 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 
 	e.strandedSplit(real, qsCut, scale, r, nd) // stranded.go
 
+	// The run's own charges — the quadrature's nodes, the trace, the
+	// fresh pack and the cut-off — give the junction's reported peak.
+	if h := real.heat; h != nil && !h.still {
+		h.rec = true
+	}
 	e.integrate(real, qsCut, scale, r, nd)
+	if h := real.heat; h != nil && !h.still {
+		e.solveNode(0, real, nd)
+		if x := math.Min(qsCut, e.end*(1-1e-12)); x > 0 {
+			e.solveNode(x, real, nd)
+		}
+		h.rec = false
+	}
 	if !finite(r.RuntimeH) || !finite(r.DeliveredWh) || !finite(r.ProtectionLossWh) || !finite(r.CellLossWh) {
 		// The drain fell to nothing before any cut-off: a load of zero, or
 		// an LED below its forward voltage, with no standby and a cell with
 		// no self-discharge. Time to empty is unbounded; say so rather
 		// than print an infinite runtime.
 		return nil, nil, fmt.Errorf("load: the pack is never run down: the design stops drawing current before any cut-off (a zero load, or an LED below its forward voltage with the floor under it); give the load some current, a standby drain or a floor")
-	}
-	if real.heat != nil {
-		e.reportHeat(real, nd)
 	}
 	e.priceAndNotes(el, r, nd)
 	return r, e, nil
@@ -385,7 +404,7 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) rates {
 		// A run that could span twenty sessions or more: the first one's
 		// rested start is a small part of it and is taken as
 		// day-periodic like the rest (docs/cell-model.md).
-		if e.pol != nil && e.pol.day && e.end*v.usePerQ >= 20*e.pol.hs {
+		if (e.pol != nil || e.therm != nil) && e.end*v.usePerQ >= 20*e.sess {
 			v.periodicOnly = true
 		}
 	}
@@ -400,29 +419,57 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) rates {
 // qsCut) is left out: the rule across its transient errs by about
 // 0.1·τ/run of its share of the energies, under 1e-4.
 func (e *evaluator) transientBreaks(v *variant, qsCut float64) []float64 {
-	if e.pol == nil || v.usePerQ <= 0 || v.periodicOnly {
+	taus := e.taus
+	if len(taus) == 0 || v.usePerQ <= 0 || v.periodicOnly {
 		return e.breaks
 	}
 	run := qsCut * v.usePerQ
 	out := append([]float64(nil), e.breaks...)
 	// The end of the first session, where the day-periodic state takes
 	// over from the rested start: a step in the polarisation.
-	if q := e.pol.hs / v.usePerQ; q < e.end {
+	if q := e.sess / v.usePerQ; q < e.end {
 		out = append(out, q)
 	}
-	for _, b := range e.pol.br {
-		if b.tau < 1e-3*run {
+	for _, tau := range taus {
+		if tau < 1e-3*run {
 			continue
 		}
 		for _, k := range []float64{0.5, 2, 8, 30} {
-			t := k * b.tau
-			if q := t / v.usePerQ; t < e.pol.hs && q < e.end {
+			t := k * tau
+			if q := t / v.usePerQ; t < e.sess && q < e.end {
 				out = append(out, q)
 			}
 		}
 	}
 	sort.Float64s(out)
 	return slices.Compact(out)
+}
+
+// setTaus fills e.taus: the time constants whose build-up from a rested
+// start the quadrature resolves with spans of their own — the cells' RC
+// branches and their thermal stage (cellheat.go). The thermal stage's
+// build-up is resolved by a branch's spans when its τ is within a factor
+// of two of that branch's: the spans are then at most four of its τ
+// long, where the Gauss rule integrates e^(−t/τ) to far below 1e-9.
+func (e *evaluator) setTaus() {
+	n := 0
+	if e.pol != nil {
+		for _, b := range e.pol.br {
+			e.tauBuf[n] = b.tau
+			n++
+		}
+	}
+	if e.therm != nil {
+		near := false
+		for _, x := range e.tauBuf[:n] {
+			near = near || x/2 <= e.therm.st.Tau && e.therm.st.Tau <= 2*x
+		}
+		if !near {
+			e.tauBuf[n] = e.therm.st.Tau
+			n++
+		}
+	}
+	e.taus = e.tauBuf[:n]
 }
 
 // newEvaluator works out what stays fixed for the evaluation of d.
@@ -435,7 +482,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	// The last evaluation's arrays, refilled below and by keep.
 	breaks, solved := e.breaks, e.solved
 	*e = evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
-		peak0: math.NaN(), peakCut: math.NaN()}
+		peak0: math.NaN(), peakCut: math.NaN(), rise0: math.NaN(), riseCut: math.NaN()}
 	e.end = c.Curve.End()
 	total := 0.0
 	for _, p := range d.Profile {
@@ -465,6 +512,14 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	for k, p := range d.Profile {
 		e.pLate[k] = c.CutoffV > 0 && (n == 1 || p.Seconds >= c.CutoffDelay)
 	}
+	e.sess = math.Inf(1)
+	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
+		e.sess = d.HoursPerDay * 3600
+	}
+	if c.SelfHeats() {
+		e.thermV.set(d, e.sess)
+		e.therm = &e.thermV // in the evaluator: no allocation of its own
+	}
 	if len(c.RC) > 0 {
 		_, fr := c.TempFactors(d.TempC)
 		st := make([]rc.Stage, len(c.RC))
@@ -473,6 +528,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		}
 		e.pol = newPolarisation(st, dur, e.w, d.HoursPerDay, c.CutoffDelay*btoi(c.CutoffV > 0))
 	}
+	e.setTaus()
 	return e
 }
 

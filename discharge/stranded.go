@@ -51,8 +51,9 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	noEl, noFloor, neither := &e.runs[0], &e.runs[1], &e.runs[2]
 	*noEl = variant{el: protect.None{}, lim: protect.NoLimit(), floor: d.Floor, cutoff: true, steady: true, minLED: d.MinLEDAmps}
 	*noFloor = *real
-	noFloor.floor, noFloor.cutoff, noFloor.minLED = 0, false, 0
-	noFloor.heat = e.heatCopy(real.heat) // its own junctions: the design's stay as they were
+	noFloor.floor, noFloor.cutoff, noFloor.minLED, noFloor.ordered = 0, false, 0, false
+	// noFloor's junctions are real's: at each charge they settle where
+	// their heat sets them, which no stop changes (heat.go).
 	*neither = variant{el: protect.None{}, lim: protect.NoLimit(), floor: 0, steady: true}
 	// The runs without the element draw what the bare cells draw: their
 	// own capacity scale and their own clock (the time a charge stands
@@ -80,18 +81,16 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// without the element are the runs with it.
 	noStop := d.Floor == 0 && d.MinLEDAmps == 0 && d.Cell.CutoffV == 0
 	qs0F, qsE0 := qsCut, qsCut
-	// What the design's own search found where it failed (heatCutoff),
-	// when its junctions hold: a run found to fail at the same charge
-	// by the same rule (found.hard, bareFails) need not be searched.
+	// What the design's own search found where it failed: a run found
+	// to fail at the same charge by the same rule (found.hard,
+	// bareFails) need not be searched. (The junctions at a charge are the
+	// same in every run with the element: heat.go.)
 	own := e.last
-	if e.general || own.v != real || own.lo != qsCut || real.heat != nil && !real.heat.still {
+	if e.general || own.v != real || own.lo != qsCut {
 		own = found{}
 	}
 	var fE0, f0F found
 	if !noStop {
-		// From the design's own cut-off, with its junctions as they stand
-		// there, then settled where this run ends (as heatCutoff does,
-		// from a nearer start).
 		if own.hard() {
 			// The design fails there by a rule that is not a stop: so
 			// does this run (the same rule ranks first), which works
@@ -102,9 +101,6 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 		} else {
 			fE0 = e.search(noFloor, nd, qsCut, true)
 			qsE0 = fE0.lo
-			if h := noFloor.heat; h != nil && !h.still {
-				qsE0, fE0 = e.heatSettle(noFloor, nd, qsE0), found{}
-			}
 		}
 	}
 	if !none {
@@ -221,23 +217,6 @@ func (e *evaluator) capacityScale(v *variant, nd *node) float64 {
 	scale := e.P * e.d.Cell.CapacityFactor(e.effectiveAmps(v, nd), e.d.TempC)
 	e.clock(v, scale, nd)
 	return scale
-}
-
-// heatCopy is a junction state of its own for a variant of the same
-// element, starting where h stands; nil for none. It shares h's thermal
-// model (protect.Heating): that holds the network's factors for the
-// profile and only scratch besides, which a solve writes before it reads
-// it, and solves of the two states never run at once.
-func (e *evaluator) heatCopy(h *heat) *heat {
-	if h == nil {
-		return nil
-	}
-	c := e.heatWith(h.base, h.h)
-	copy(c.tj, h.tj)
-	copy(c.els, h.els)
-	c.still = h.still
-	c.fresh = append(c.fresh, h.fresh...)
-	return c
 }
 
 // Started reports whether the design ran at all: false when it fails on

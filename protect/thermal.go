@@ -265,9 +265,9 @@ func (h *Heating) Settle(tambC float64, power func(k int, tjC float64) float64, 
 
 // SettleWithin is Settle giving up (OK false) after at most steps
 // iterations instead of 50; steps ≤ 0 or above 50 means Settle's 50. A
-// search that solves many times and keeps only the solves that settle
-// (discharge's junction scan) spends most of its time in the solves that
-// never do, a heat that jumps with temperature across a current limit
+// caller that solves many times (discharge settles the junction at every
+// charge it solves) would spend most of its time in the solves that never
+// settle, a heat that jumps with temperature across a current limit
 // running all 50 steps; those that do settle take a few.
 func (h *Heating) SettleWithin(tambC float64, power func(k int, tjC float64) float64, tj []float64, steps int) Settled {
 	if steps <= 0 || steps > 50 {
