@@ -24,9 +24,11 @@ func benchDesign(b *testing.B, load string) *Design {
 }
 
 // BenchmarkEvaluateConstant: 2×LR6 behind a series diode, one constant
-// current. Goal: median ≤ 10 µs per evaluation (not met: 12.6 µs, 30
-// allocations, median of 10 on the shared 2-core machine at load 2–3;
-// 17.4 µs before the speed pass; README §Performance).
+// current. Goal: median ≤ 10 µs per evaluation (not met: 13.5 µs at load
+// about 2, 14.8 µs at load 5–7, 29 allocations, medians of 10 on the
+// shared 2-core machine with the junctions settled at every charge and
+// the cells' self-heating; 17.4 µs before the speed pass, 12.6 µs after
+// it and before those; README §Performance).
 func BenchmarkEvaluateConstant(b *testing.B) {
 	d := benchDesign(b, "120mA")
 	b.ReportAllocs()
@@ -38,9 +40,10 @@ func BenchmarkEvaluateConstant(b *testing.B) {
 }
 
 // BenchmarkEvaluatePulsed: the same pack on a three-phase toy profile.
-// Goal: median ≤ 25 µs per evaluation (met: 19.4 µs, 34 allocations,
-// median of 10 at load 2–3; 34.2 µs before the speed pass; README
-// §Performance).
+// Goal: median ≤ 25 µs per evaluation (met, narrowly: 22.5 µs at load
+// about 2, 22.9 µs at load 5–7, 33 allocations, medians of 10, with the
+// junctions and the cells' heat; 34.2 µs before the speed pass, 19.4 µs
+// after it and before those; README §Performance).
 func BenchmarkEvaluatePulsed(b *testing.B) {
 	d := benchDesign(b, "450mA/3s,120mA/2s,15mA/25s")
 	b.ReportAllocs()
@@ -52,9 +55,12 @@ func BenchmarkEvaluatePulsed(b *testing.B) {
 }
 
 // BenchmarkEvaluatePower: a 0.8 W converter at 85 %, the costliest load law
-// (a Newton solve per phase per charge). No goal: 228 µs median of 10
-// (224 µs before the speed pass; most of it is the junctions' settling
-// and the Newton solves' diode drops).
+// (a Newton solve per phase per charge). No goal: about 7.2 ms median of
+// 10, 1,348 allocations, since the junctions settle at every charge (224
+// µs before the speed pass, 228 µs after it and before that): nine tenths
+// is the cut-off searches bisecting on whether the run works (heat.go,
+// byWork), about 40 steps each, every step a junction settle from
+// ambient with a Newton solve per iteration.
 func BenchmarkEvaluatePower(b *testing.B) {
 	d := benchDesign(b, "0.8W@85%")
 	b.ReportAllocs()
