@@ -82,6 +82,18 @@ type Cell struct {
 	CutoffV     float64
 	CutoffDelay float64
 
+	// HeatCapacity is the cell's lumped heat capacity, J/K (its mass
+	// times a specific heat of about 1 J/(g·K)); ThermalRes its thermal
+	// resistance to the ambient, K/W. Together a first-order stage
+	// (ThermalStage): the cell warms by ThermalRes times the power it
+	// burns, with time constant HeatCapacity·ThermalRes, and its
+	// resistances (R0 and RC) follow its own temperature through the
+	// Temperature table's resistance factor. ThermalRes 0 means the cell
+	// stays at the ambient. ThermalRes 0 to MaxThermalRes; HeatCapacity
+	// 0 to MaxHeatCapacity, above 0 when ThermalRes is.
+	HeatCapacity float64
+	ThermalRes   float64
+
 	Rechargeable     bool
 	CycleLife        int     // full cycles to end of life, rechargeables only
 	ChargeEfficiency float64 // charge out ÷ charge in, 0 to 1, rechargeables only
@@ -103,6 +115,29 @@ const MaxTempPoints = 64
 
 // MaxRC is the most polarisation branches a cell may have.
 const MaxRC = 3
+
+// MaxThermalRes (K/W) and MaxHeatCapacity (J/K) bound a cell's thermal
+// data: a coin cell in still air is about 100 K/W, a D cell about 140 J/K
+// (from memory); the bounds leave room for a cell in an enclosure or a
+// big block and refuse typing slips.
+const (
+	MaxThermalRes   = 1000.0
+	MaxHeatCapacity = 1e5
+)
+
+// ThermalStage is the cell's thermal stage to the ambient: R the thermal
+// resistance (K/W), Tau = HeatCapacity·ThermalRes (s). Zero when the
+// cell stays at the ambient.
+func (c *Cell) ThermalStage() rc.Stage {
+	if !c.SelfHeats() {
+		return rc.Stage{}
+	}
+	return rc.Stage{R: c.ThermalRes, Tau: c.HeatCapacity * c.ThermalRes}
+}
+
+// SelfHeats reports whether the cell has thermal data (ThermalRes above
+// 0): its temperature then follows the power it burns.
+func (c *Cell) SelfHeats() bool { return c.ThermalRes > 0 && c.HeatCapacity > 0 }
 
 // Validate checks the cell's fields and says which is wrong.
 func (c *Cell) Validate() error {
@@ -154,6 +189,12 @@ func (c *Cell) Validate() error {
 	}
 	if !fin(c.CutoffDelay) || c.CutoffDelay < 0 || c.CutoffDelay > 60 || c.CutoffV > 0 && c.CutoffDelay == 0 {
 		return bad("cutoff_delay", "%v s must be above 0 and at most 60 s when cutoff_v is set", c.CutoffDelay)
+	}
+	if !fin(c.ThermalRes) || c.ThermalRes < 0 || c.ThermalRes > MaxThermalRes {
+		return bad("thermal_resistance", "%v K/W must be 0 (the cell stays at the ambient) to %g K/W", c.ThermalRes, MaxThermalRes)
+	}
+	if !fin(c.HeatCapacity) || c.HeatCapacity < 0 || c.HeatCapacity > MaxHeatCapacity || c.ThermalRes > 0 && c.HeatCapacity == 0 {
+		return bad("heat_capacity", "%v J/K must be above 0 and at most %g J/K when thermal_resistance is set", c.HeatCapacity, MaxHeatCapacity)
 	}
 	for i, r := range c.Resistance {
 		if !fin(r.Depth) || r.Depth < 0 || r.Depth > 1 {

@@ -131,6 +131,10 @@ func FuzzReadCellTOML(f *testing.F) {
 		"curve = [[0, 1.5], [100, 1]]\nrc = [[nan, 1]]\n", "curve = [[0, 1.5], [100, 1]]\nrc = [[1, inf]]\n",
 		"curve = [[0, 1.5], [100, 1]]\ncutoff_v = 2.5\n", "curve = [[0, 1.5], [100, 1]]\ncutoff_v = 1\ncutoff_delay = 0\n",
 		"curve = [[0, 1.5], [100, 1]]\ncutoff_v = -1\ncutoff_delay = 1\n", "curve = [[0, 1.5], [100, 1]]\ncutoff_delay = \"1e9s\"\n",
+		// the cell's thermal data
+		"curve = [[0, 4.2], [3000, 3.0]]\nheat_capacity = 45\nthermal_resistance = 24\ntemperature = [[0, 0.9, 2], [45, 1, 0.8]]\n",
+		"curve = [[0, 1.5], [100, 1]]\nthermal_resistance = 20\n", "curve = [[0, 1.5], [100, 1]]\nheat_capacity = -1\n",
+		"curve = [[0, 1.5], [100, 1]]\nthermal_resistance = nan\nheat_capacity = 1\n", "curve = [[0, 1.5], [100, 1]]\nheat_capacity = \"45\"\n",
 		// hostile shapes: nesting at and past the limit, long dotted keys,
 		// claims past the physical ranges
 		"curve = [[0, 1.5], [100, 1]]\nx = " + strings.Repeat("{a=", 16) + "1" + strings.Repeat("}", 16) + "\n",

@@ -75,6 +75,37 @@ var chemistryCautions = map[string]struct {
 	"lithium-mno2": {"do not recharge; may vent if shorted", primaryLithium},
 }
 
+// dischargeLimitC is the highest cell temperature, °C, at which each
+// chemistry is usually discharged (the top of the discharge range on
+// typical data sheets; typical values from memory, not a maker's).
+var dischargeLimitC = map[string]float64{
+	"li-ion": 60, "lifepo4": 60, "nimh": 50, "alkaline": 55, "zinc-carbon": 55,
+	"lithium-fes2": 60, "lithium-mno2": 70,
+}
+
+// DischargeLimitC is the highest temperature, °C, a cell of c's chemistry
+// is usually discharged at (typical, from memory), and whether the
+// chemistry has one here.
+func (c *Cell) DischargeLimitC() (float64, bool) {
+	t, ok := dischargeLimitC[c.Chemistry]
+	return t, ok
+}
+
+// HotWarning is the warning for a pack of c whose cells warm to peakC (°C)
+// by their own dissipation, "" while that stays within the chemistry's
+// usual discharge limit (DischargeLimitC) or the chemistry has none here.
+func HotWarning(c *Cell, peakC float64) string {
+	lim, ok := c.DischargeLimitC()
+	if !ok || !(peakC > lim) {
+		return ""
+	}
+	w := fmt.Sprintf("the cells warm to about %.0f °C by their own losses, above the %.0f °C a %s cell is usually discharged at (typical, from memory; the cell maker's data come first): use bigger cells, more in parallel or less current, and keep them in moving air", peakC, lim, c.Chemistry)
+	if c.Chemistry == "li-ion" || c.Chemistry == "lifepo4" {
+		w += "; a hot lithium-ion cell ages fast and, past its limits, can vent or catch fire"
+	}
+	return w
+}
+
 func primaryAqueous(*Cell) []string {
 	return []string{
 		"Do not recharge primary cells.",

@@ -242,5 +242,33 @@ func library() []*Cell {
 			Price: 5.00, Source: fromMemory,
 		},
 	}
+	for _, c := range cells {
+		h := formHeat[cellForm[c.ID]]
+		c.HeatCapacity, c.ThermalRes = h.capacity, h.theta
+	}
 	return cells
+}
+
+// formHeat is a form factor's lumped heat capacity and still-air thermal
+// resistance to the ambient: the cell's mass times about 1 J/(g·K), and
+// 1/(h·A) for its outer surface A with h ≈ 10 W/(m²·K) for natural
+// convection and radiation together from a bare cell standing in still
+// air. Typical values from memory, not a measurement: a cell in a closed
+// battery box or pressed against others runs warmer (a higher θ).
+var formHeat = map[string]struct{ capacity, theta float64 }{
+	"AA":    {23, 38},  // ~23 g; 14.5 × 50.5 mm, ~26 cm²
+	"AAA":   {11, 60},  // ~11 g; 10.5 × 44.5 mm, ~16 cm²
+	"C":     {66, 20},  // ~66 g; 26 × 50 mm, ~51 cm²
+	"D":     {140, 12}, // ~140 g; 34 × 61.5 mm, ~84 cm²
+	"9V":    {46, 19},  // ~46 g; 48.5 × 26.5 × 17.5 mm, ~52 cm²
+	"18650": {45, 24},  // ~45 g; 18 × 65 mm, ~42 cm²
+	"pouch": {20, 23},  // ~20 g; about 50 × 34 × 6 mm, ~44 cm²
+	"coin":  {3, 120},  // ~3 g; 20 × 3.2 mm, ~8 cm² (on a board, less)
+}
+
+// cellForm is each library cell's form factor, for formHeat.
+var cellForm = map[string]string{
+	"lr6": "AA", "r6": "AA", "fr6": "AA", "hr6": "AA", "hr6-lsd": "AA",
+	"lr03": "AAA", "hr03": "AAA", "lr14": "C", "lr20": "D", "6lr61": "9V",
+	"li-ion-18650": "18650", "lifepo4": "18650", "li-ion-pouch": "pouch", "cr2032": "coin",
 }

@@ -228,3 +228,32 @@ func TestCautions(t *testing.T) {
 		t.Errorf("custom cell cautions %q, want the two general ones", got)
 	}
 }
+
+// Every library cell has thermal data, from its form factor (formHeat:
+// typical values from memory), with a time constant between a minute and
+// an hour and a half — the range of bare cells in still air from a coin to
+// a D cell (from memory).
+func TestLibraryHeat(t *testing.T) {
+	for _, c := range Library() {
+		st := c.ThermalStage()
+		if !c.SelfHeats() || st.Tau < 60 || st.Tau > 5400 {
+			t.Errorf("%s: C %v J/K, θ %v K/W, τ %v s", c.ID, c.HeatCapacity, c.ThermalRes, st.Tau)
+		}
+	}
+}
+
+// The hot-cell warning: above the chemistry's usual discharge limit
+// (typical values from memory: 60 °C for Li-ion), none at or below it.
+func TestHotWarning(t *testing.T) {
+	c, _ := Lookup("li-ion-18650")
+	if w := HotWarning(c, 60); w != "" {
+		t.Errorf("at 60 °C: %q", w)
+	}
+	w := HotWarning(c, 64)
+	if !strings.Contains(w, "64 °C") || !strings.Contains(w, "60 °C") || !strings.Contains(w, "maker's data") {
+		t.Errorf("at 64 °C: %q", w)
+	}
+	if w := HotWarning(&Cell{Chemistry: "custom"}, 200); w != "" {
+		t.Errorf("a chemistry without a limit: %q", w)
+	}
+}

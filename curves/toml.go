@@ -53,6 +53,9 @@ type CellDef struct {
 	CutoffV     units.Raw `toml:"cutoff_v"`     // V per cell, the pack protection's under-voltage cut-off; default none
 	CutoffDelay units.Raw `toml:"cutoff_delay"` // s (or "50ms") a dip must last to trip it
 
+	HeatCapacity      *float64 `toml:"heat_capacity"`      // J/K, the cell's lumped heat capacity; default 0
+	ThermalResistance *float64 `toml:"thermal_resistance"` // K/W to the ambient; default 0: the cell stays at the ambient
+
 	// BaseDir is the directory curve_csv is relative to; the readers set
 	// it to the TOML file's directory.
 	BaseDir string `toml:"-"`
@@ -241,6 +244,12 @@ func (d *CellDef) build() (*Cell, error) {
 	}
 	if c.CutoffDelay, err = get("cutoff_delay", d.CutoffDelay, units.Time, 0); err != nil {
 		return nil, err
+	}
+	if d.HeatCapacity != nil {
+		c.HeatCapacity = *d.HeatCapacity
+	}
+	if d.ThermalResistance != nil {
+		c.ThermalRes = *d.ThermalResistance
 	}
 	if err := c.Validate(); err != nil {
 		return nil, validateFieldError(err)

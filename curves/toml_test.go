@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"headroom/internal/rc"
 	"headroom/internal/units"
 )
 
@@ -173,6 +174,51 @@ func TestCellTOMLPolarisation(t *testing.T) {
 		{"cutoff_v = 2.5", "cutoff_delay"},
 		{"cutoff_v = 2.5\ncutoff_delay = -1", "cutoff_delay"},
 		{"cutoff_v = -1", "cutoff_v"},
+	} {
+		_, err := ReadCellTOML(strings.NewReader("curve = [[0, 4.1], [2000, 3.0]]\n"+bad.text+"\n"), "bad.toml")
+		if err == nil || !strings.Contains(err.Error(), bad.want) || !strings.Contains(err.Error(), "bad.toml") {
+			t.Errorf("%q: error %v, want one naming the file and %q", bad.text, err, bad.want)
+		}
+	}
+}
+
+// The cell's thermal data read from TOML, written back by WriteCellTOML
+// and read back the same; bad values refused naming the key (the
+// self-heating fields).
+func TestCellTOMLHeat(t *testing.T) {
+	good := "curve = [[0, 4.1], [2000, 3.0]]\nheat_capacity = 45\nthermal_resistance = 24\n"
+	c, err := ReadCellTOML(strings.NewReader(good), "heat.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.HeatCapacity != 45 || c.ThermalRes != 24 || c.ThermalStage().Tau != 45*24 {
+		t.Errorf("read C %v J/K, θ %v K/W, stage %+v", c.HeatCapacity, c.ThermalRes, c.ThermalStage())
+	}
+	var b strings.Builder
+	if err := WriteCellTOML(&b, c, nil); err != nil {
+		t.Fatal(err)
+	}
+	back, err := ReadCellTOML(strings.NewReader(b.String()), "back.toml")
+	if err != nil {
+		t.Fatalf("%v\n%s", err, b.String())
+	}
+	if back.HeatCapacity != c.HeatCapacity || back.ThermalRes != c.ThermalRes {
+		t.Errorf("read back C %v θ %v from\n%s", back.HeatCapacity, back.ThermalRes, b.String())
+	}
+	// Without the keys the cell stays at the ambient.
+	plain, err := ReadCellTOML(strings.NewReader("curve = [[0, 4.1], [2000, 3.0]]\n"), "plain.toml")
+	if err != nil || plain.SelfHeats() || plain.ThermalStage() != (rc.Stage{}) {
+		t.Errorf("a cell without thermal data: %v, heats %v", err, plain != nil && plain.SelfHeats())
+	}
+	for _, bad := range []struct{ text, want string }{
+		{"thermal_resistance = -1\nheat_capacity = 10", "thermal_resistance"},
+		{"thermal_resistance = 5000\nheat_capacity = 10", "thermal_resistance"},
+		{"thermal_resistance = 20", "heat_capacity"},
+		{"thermal_resistance = 20\nheat_capacity = 0", "heat_capacity"},
+		{"heat_capacity = -3", "heat_capacity"},
+		{"heat_capacity = 1e9\nthermal_resistance = 20", "heat_capacity"},
+		{"heat_capacity = \"45 J/K\"", "heat_capacity"},
+		{"thermal_resistance = nan\nheat_capacity = 10", "thermal_resistance"},
 	} {
 		_, err := ReadCellTOML(strings.NewReader("curve = [[0, 4.1], [2000, 3.0]]\n"+bad.text+"\n"), "bad.toml")
 		if err == nil || !strings.Contains(err.Error(), bad.want) || !strings.Contains(err.Error(), "bad.toml") {

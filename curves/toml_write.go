@@ -36,6 +36,9 @@ func WriteCellTOML(w io.Writer, c *Cell, comment []string) error {
 	if c.CutoffV > 0 {
 		fmt.Fprintf(&b, "cutoff_v = %s\ncutoff_delay = %s\n", g(c.CutoffV), g(c.CutoffDelay))
 	}
+	if c.ThermalRes > 0 || c.HeatCapacity > 0 {
+		fmt.Fprintf(&b, "heat_capacity = %s\nthermal_resistance = %s\n", g(c.HeatCapacity), g(c.ThermalRes))
+	}
 	fmt.Fprintf(&b, "source = %q\n", c.Source)
 	array := func(key, unit string, rows [][]float64) {
 		if len(rows) == 0 {

@@ -27,9 +27,15 @@ func steppedCell(t *testing.T, id string) *curves.Cell {
 // stepped integrates the same cell model as the engine in time: one cell,
 // no element, constant-current phases repeated for hours of use a day
 // (24: continuously), standby current in the rest, with each RC branch
-// stepped by its exact exponential (v ← I·R + (v − I·R)·e^(−dt/τ)) and
-// the charge by I·dt, the charge axis stretched by the engine's own
-// capacity factor F (the rate law is curves' business, not this check's).
+// stepped by its exact exponential (its filtered current x ← I + (x −
+// I)·e^(−dt/τ), its voltage R·x) and the charge by I·dt, the charge axis
+// stretched by the engine's own capacity factor F (the rate law is
+// curves' business, not this check's). A self-heating cell's temperature
+// is stepped with them, by the same exact exponential on its thermal
+// stage (u ← θ·P + (u − θ·P)·e^(−dt/τ), P the phase's mean dissipation
+// R0·I² + I·Σv), and every resistance takes the temperature table's
+// factor at the cell's temperature at the phase's start (the phases are
+// seconds, τ many minutes).
 // It reads the engine's criteria, per block of use (one session a day,
 // or one cycle in continuous use): the lowest terminal voltage at any
 // phase's start or end against the floor, at the block's end, and the
@@ -37,13 +43,24 @@ func steppedCell(t *testing.T, id string) *curves.Cell {
 // end-point, at the block's middle. The runtime is where the first of the
 // two margins crosses zero, interpolated in hours of use between blocks.
 func stepped(c *curves.Cell, ph []Phase, hoursPerDay, standby, floor, tempC, F float64) float64 {
-	_, fr := c.TempFactors(tempC)
+	h, _ := steppedHot(c, ph, hoursPerDay, standby, floor, tempC, F)
+	return h
+}
+
+// steppedHot is stepped, also returning the cell's hottest, °C.
+func steppedHot(c *curves.Cell, ph []Phase, hoursPerDay, standby, floor, tempC, F float64) (float64, float64) {
+	_, fra := c.TempFactors(tempC)
 	n := len(c.RC)
-	R := make([]float64, n)
-	for i, b := range c.RC {
-		R[i] = b.R * fr
+	x := make([]float64, n) // each branch's filtered current, A
+	th := c.ThermalStage()
+	u, peak := 0.0, tempC // the cell's rise above the ambient, K; its hottest, °C
+	g := func() float64 { // the resistance factor at the cell's temperature
+		if !c.SelfHeats() {
+			return 1
+		}
+		_, fr := c.TempFactors(tempC + u)
+		return fr / fra
 	}
-	v := make([]float64, n)
 	tp := 0.0
 	for _, p := range ph {
 		tp += p.Seconds
@@ -54,39 +71,53 @@ func stepped(c *curves.Cell, ph []Phase, hoursPerDay, standby, floor, tempC, F f
 		rest = (24 - hoursPerDay) * 3600
 	}
 	q := 0.0 // mAh along the curve
-	step := func(i, dt float64) {
+	// step advances by dt at current i: the branches, the charge and the
+	// temperature (the branches' mean over the step and R0 at its start
+	// give the heat). It returns the branches' mean voltage over the step.
+	step := func(i, dt float64) float64 {
+		gf := g()
+		r0 := c.ResistanceAt(q, tempC) * gf
+		mean := 0.0
 		for j, b := range c.RC {
-			x := i * R[j]
-			v[j] = x + (v[j]-x)*math.Exp(-dt/b.Tau)
+			R := b.R * fra * gf
+			mean += R * (i + (x[j]-i)*b.Tau/dt*(-math.Expm1(-dt/b.Tau)))
+			x[j] = i + (x[j]-i)*math.Exp(-dt/b.Tau)
+		}
+		if c.SelfHeats() {
+			u = th.Step(u, i*i*r0+i*mean, dt)
 		}
 		q += i * dt / 3.6 / F
+		return mean
 	}
 	sum := func() float64 {
-		s := 0.0
-		for _, x := range v {
-			s += x
+		s, gf := 0.0, g()
+		for j, b := range c.RC {
+			s += b.R * fra * gf * x[j]
 		}
 		return s
 	}
 	hours := 0.0
-	var floorH, floorM, endH, endM, qM []float64 // each criterion's samples: hours of use, margin
+	var floorH, floorM, endH, endM, qH, qM []float64 // each criterion's samples: hours of use, margin
+	var hotH, hotC []float64                         // the cell's temperature at each cycle's end
 	for block := 0; block < 10_000_000; block++ {
 		low, tv, tt := math.Inf(1), 0.0, 0.0
 		for cy := 0; cy < cycles; cy++ {
+			if cycles > 1 && cy > 0 {
+				// A daily session's floor is read cycle by cycle: the
+				// runs of a hot cell in long sessions span few of them.
+				floorH, floorM = append(floorH, hours+float64(cy)*tp/3600), append(floorM, low-floor)
+				low = math.Inf(1)
+			}
+			hotH, hotC = append(hotH, hours+float64(cy)*tp/3600), append(hotC, tempC+u)
 			for _, p := range ph {
 				i := p.Load.Amps
-				e0, r0 := c.OpenCircuit(q, tempC), c.ResistanceAt(q, tempC)
+				e0, r0 := c.OpenCircuit(q, tempC), c.ResistanceAt(q, tempC)*g()
 				vStart := e0 - i*r0 - sum()
 				// The mean over the phase: R0's part at the start's E and
 				// R0 (they move by parts per million in one phase), each
 				// branch's exact mean over the step.
-				mean := e0 - i*r0
-				for j, b := range c.RC {
-					x := i * R[j]
-					mean -= x + (v[j]-x)*b.Tau/p.Seconds*(-math.Expm1(-p.Seconds/b.Tau))
-				}
-				step(i, p.Seconds)
-				vEnd := c.OpenCircuit(q, tempC) - i*c.ResistanceAt(q, tempC) - sum()
+				mean := e0 - i*r0 - step(i, p.Seconds)
+				vEnd := c.OpenCircuit(q, tempC) - i*c.ResistanceAt(q, tempC)*g() - sum()
 				low = math.Min(low, math.Min(vStart, vEnd))
 				if i > 0 {
 					tv += p.Seconds * mean
@@ -99,7 +130,8 @@ func stepped(c *curves.Cell, ph []Phase, hoursPerDay, standby, floor, tempC, F f
 		// builds up through it); the mean to its middle.
 		floorH, floorM = append(floorH, hours+use), append(floorM, low-floor)
 		endH, endM = append(endH, hours+use/2), append(endM, tv/tt-c.EndPoint)
-		qM = append(qM, c.Curve.End()-q) // the curve running out
+		qH, qM = append(qH, hours+use), append(qM, c.Curve.End()-q) // the curve running out
+		hotH, hotC = append(hotH, hours+use), append(hotC, tempC+u)
 		hours += use
 		if q >= c.Curve.End() || floorM[len(floorM)-1] <= 0 && endM[len(endM)-1] <= 0 {
 			break
@@ -108,7 +140,16 @@ func stepped(c *curves.Cell, ph []Phase, hoursPerDay, standby, floor, tempC, F f
 			step(standby, rest)
 		}
 	}
-	return min(crossing(floorH, floorM), crossing(endH, endM), crossing(floorH, qM))
+	run := min(crossing(floorH, floorM), crossing(endH, endM), crossing(qH, qM))
+	// The hottest up to the end of the run (a cycle's end past it
+	// excluded: the reference runs on until every margin has failed).
+	peak = tempC
+	for k, h := range hotH {
+		if h <= run*(1+1e-9) || k == 0 {
+			peak = math.Max(peak, hotC[k])
+		}
+	}
+	return run, peak
 }
 
 // crossing is where the samples m(h) first fall to 0 or below, by the

@@ -158,6 +158,7 @@ type Result struct {
 
 	ProtectionLossWh float64 // energy burnt in the element (drop and standing drain)
 	CellLossWh       float64 // energy burnt in the cells' internal resistance
+	CellPeakC        float64 // the cells at their hottest over the run, °C (self-heating, curves.Cell.ThermalStage; the ambient without thermal data)
 	ProtectionPeakW  float64 // highest dissipation in the element
 	JunctionC        float64 // element junction at the peak of the hottest pulse, °C (its thermal network, periodic steady state)
 	JunctionMeanC    float64 // element junction averaged over a profile cycle at the same point, °C

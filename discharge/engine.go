@@ -131,6 +131,17 @@ type evaluator struct {
 	// pLate marks the phases long enough to trip it.
 	cutoffV float64
 	pLate   []bool
+	// sess is the seconds of use in a day's session, +Inf in continuous
+	// use; therm is the cells' thermal stage (cellheat.go), nil when
+	// they stay at the ambient.
+	sess   float64
+	therm  *cellTherm
+	thermV cellTherm
+	trail  heatTrail // the heat targets the quadrature samples (cellheat.go)
+	// taus are the time constants of the rested start's transients
+	// (setTaus), in tauBuf.
+	taus   []float64
+	tauBuf [curves.MaxRC + 1]float64
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
@@ -145,6 +156,9 @@ type evaluator struct {
 	// solves evaluate makes there with the element as integrate sees it;
 	// NaN when not known (integrate then solves again).
 	peak0, peakCut float64
+	// rise0 and riseCut are the cells' hottest there, K above the
+	// ambient, kept the same way (NaN: not known).
+	rise0, riseCut float64
 	// last is the last cut-off search's outcome (cutoff.go, search).
 	last found
 	// quad is the quadrature's working memory (integrate); runs holds the
@@ -266,7 +280,7 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// the run is taken as day-periodic from the start).
 	keep := e.linear(real) && !e.general
 	if fresh := e.clock(real, scale, nd); keep && (real.heat == nil || real.heat.still) && !real.periodicOnly {
-		e.peak0 = fresh.peakW
+		e.peak0, e.rise0 = fresh.peakW, fresh.cellRise
 	}
 
 	// The cut-offs, in scaled charge. Each variant
@@ -296,7 +310,7 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	r.CutoffIndex = ph
 	e.solveNode(math.Min(qsCut, e.end), real, nd)
 	if keep && qsCut < e.end {
-		e.peakCut = peakOf(nd)
+		e.peakCut, e.riseCut = peakOf(nd), nd.cellPeakC-e.T
 	}
 	o := nd.worst[ph]
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = o.Vload, o.Vin, o.I
@@ -369,7 +383,7 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) rates {
 		// A run that could span twenty sessions or more: the first one's
 		// rested start is a small part of it and is taken as
 		// day-periodic like the rest (docs/cell-model.md).
-		if e.pol != nil && e.pol.day && e.end*v.usePerQ >= 20*e.pol.hs {
+		if (e.pol != nil || e.therm != nil) && e.end*v.usePerQ >= 20*e.sess {
 			v.periodicOnly = true
 		}
 	}
@@ -384,29 +398,57 @@ func (e *evaluator) clock(v *variant, scale float64, nd *node) rates {
 // qsCut) is left out: the rule across its transient errs by about
 // 0.1·τ/run of its share of the energies, under 1e-4.
 func (e *evaluator) transientBreaks(v *variant, qsCut float64) []float64 {
-	if e.pol == nil || v.usePerQ <= 0 || v.periodicOnly {
+	taus := e.taus
+	if len(taus) == 0 || v.usePerQ <= 0 || v.periodicOnly {
 		return e.breaks
 	}
 	run := qsCut * v.usePerQ
 	out := append([]float64(nil), e.breaks...)
 	// The end of the first session, where the day-periodic state takes
 	// over from the rested start: a step in the polarisation.
-	if q := e.pol.hs / v.usePerQ; q < e.end {
+	if q := e.sess / v.usePerQ; q < e.end {
 		out = append(out, q)
 	}
-	for _, b := range e.pol.br {
-		if b.tau < 1e-3*run {
+	for _, tau := range taus {
+		if tau < 1e-3*run {
 			continue
 		}
 		for _, k := range []float64{0.5, 2, 8, 30} {
-			t := k * b.tau
-			if q := t / v.usePerQ; t < e.pol.hs && q < e.end {
+			t := k * tau
+			if q := t / v.usePerQ; t < e.sess && q < e.end {
 				out = append(out, q)
 			}
 		}
 	}
 	sort.Float64s(out)
 	return slices.Compact(out)
+}
+
+// setTaus fills e.taus: the time constants whose build-up from a rested
+// start the quadrature resolves with spans of their own — the cells' RC
+// branches and their thermal stage (cellheat.go). The thermal stage's
+// build-up is resolved by a branch's spans when its τ is within a factor
+// of two of that branch's: the spans are then at most four of its τ
+// long, where the Gauss rule integrates e^(−t/τ) to far below 1e-9.
+func (e *evaluator) setTaus() {
+	n := 0
+	if e.pol != nil {
+		for _, b := range e.pol.br {
+			e.tauBuf[n] = b.tau
+			n++
+		}
+	}
+	if e.therm != nil {
+		near := false
+		for _, x := range e.tauBuf[:n] {
+			near = near || x/2 <= e.therm.st.Tau && e.therm.st.Tau <= 2*x
+		}
+		if !near {
+			e.tauBuf[n] = e.therm.st.Tau
+			n++
+		}
+	}
+	e.taus = e.tauBuf[:n]
 }
 
 // newEvaluator works out what stays fixed for the evaluation of d.
@@ -418,7 +460,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	e := evaluators.Get().(*evaluator)
 	breaks := e.breaks // the last evaluation's array, refilled below
 	*e = evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
-		peak0: math.NaN(), peakCut: math.NaN()}
+		peak0: math.NaN(), peakCut: math.NaN(), rise0: math.NaN(), riseCut: math.NaN()}
 	e.end = c.Curve.End()
 	total := 0.0
 	for _, p := range d.Profile {
@@ -447,6 +489,14 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	for k, p := range d.Profile {
 		e.pLate[k] = c.CutoffV > 0 && (n == 1 || p.Seconds >= c.CutoffDelay)
 	}
+	e.sess = math.Inf(1)
+	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
+		e.sess = d.HoursPerDay * 3600
+	}
+	if c.SelfHeats() {
+		e.thermV.set(d, e.sess)
+		e.therm = &e.thermV // in the evaluator: no allocation of its own
+	}
 	if len(c.RC) > 0 {
 		_, fr := c.TempFactors(d.TempC)
 		st := make([]rc.Stage, len(c.RC))
@@ -455,6 +505,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		}
 		e.pol = newPolarisation(st, dur, e.w, d.HoursPerDay, c.CutoffDelay*btoi(c.CutoffV > 0))
 	}
+	e.setTaus()
 	return e
 }
 

@@ -232,6 +232,10 @@ func checkResult(t *testing.T, d *Design, r *Result) {
 			t.Fatalf("%s: %s = %v: want a finite, non-negative number", describeDesign(d), name, v)
 		}
 	}
+	// The cells never end colder than the ambient they burn power in.
+	if math.IsNaN(r.CellPeakC) || math.IsInf(r.CellPeakC, 0) || r.CellPeakC < d.TempC {
+		t.Fatalf("%s: CellPeakC = %v at %v °C ambient", describeDesign(d), r.CellPeakC, d.TempC)
+	}
 	if math.IsNaN(r.JunctionC) || math.IsInf(r.JunctionC, 0) {
 		t.Fatalf("%s: JunctionC = %v", describeDesign(d), r.JunctionC)
 	}

@@ -185,12 +185,13 @@ func (e *evaluator) settleNode(qs float64, v *variant, nd *node) {
 	var st protect.Settled
 	// Each pass solves the node at the temperatures as they stand and the
 	// temperatures for the sources it gives. With no polarisation, or a
-	// lone phase (its own share of it is solved with it), those sources
-	// do not move with the temperatures and one pass is exact; otherwise
+	// lone phase (its own share of it is solved with it), and cells that
+	// do not heat themselves, those sources do not move with the
+	// temperatures and one pass is exact; otherwise
 	// the passes go on until a pass moves no phase by more than outerTol,
 	// and the node and temperatures of the pass before it are kept (the
 	// same to a few nanovolts, and one node solve fewer).
-	exact := e.pol == nil || n == 1
+	exact := e.therm == nil && (e.pol == nil || n == 1) // a self-heating cell's resistance follows the currents
 	keep, keepEls := s.keep, s.keepEls // the temperatures the node was solved at
 	for pass := 0; ; pass++ {
 		u := e.unsettled

@@ -264,6 +264,22 @@ type node struct {
 	polI          []float64
 	polRest, polT float64
 	ps            polState // what pol points at
+	// polA is the branches' polarisation at the ambient's resistances,
+	// the one worked out (and reused) from the currents; pol is it at the
+	// cell's temperature (cellheat.go, warm). The same state without
+	// self-heating; nil without branches.
+	polA *polState
+	psA  polState // what polA points at with self-heating
+	// cellC is one cell's temperature the resistances are taken at, °C;
+	// cellPeakC its hottest around this charge (the end of a day's
+	// session). The ambient without self-heating.
+	cellC, cellPeakC float64
+	// target is the rise (K) the cells would settle at if this charge's
+	// power were held: θ times the power at the cell's temperature.
+	target float64
+	// iraw holds the per-cell currents the last pass solved, before the
+	// passes' damping (the cells' heat follows them).
+	iraw []float64
 }
 
 // newNode is the evaluation's node: it lives in the evaluator, its
@@ -271,12 +287,28 @@ type node struct {
 func (e *evaluator) newNode() *node {
 	n := len(e.loads)
 	ops := make([]op, 2*n)
-	f := make([]float64, 13*n)
+	nb := 0 // the branches whose heat a self-heating cell's state keeps
+	if e.pol != nil && e.therm != nil {
+		nb = len(e.pol.br)
+	}
+	hot := 0
+	if nb > 0 {
+		hot = 10*n + 2*nb
+	}
+	f := make([]float64, 14*n+hot)
 	nd := &e.nd
 	*nd = node{mean: ops[:n:n], worst: ops[n:], late: f[:n:n], icell: f[n : 2*n : 2*n],
-		polI: f[2*n : 3*n : 3*n], polRest: math.NaN()}
-	nd.ps.init(f[3*n:])
+		polI: f[2*n : 3*n : 3*n], iraw: f[3*n : 4*n : 4*n], polRest: math.NaN(), cellC: e.T, cellPeakC: e.T}
+	nd.ps.init(f[4*n : 14*n : 14*n])
 	nd.pol = &nd.ps
+	switch {
+	case e.pol == nil:
+	case nb > 0:
+		nd.psA.initHeat(f[14*n:], n, nb)
+		nd.polA = &nd.psA
+	default:
+		nd.polA = nd.pol
+	}
 	return nd
 }
 
@@ -298,6 +330,11 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 	}
 	nd.E, nd.R0 = e.source(qs)
 	nd.Epack, nd.Rp = e.S*nd.E, e.S*nd.R0/e.P
+	nd.cellC, nd.cellPeakC = e.T, e.T
+	if e.pol == nil && e.therm != nil {
+		e.solveWarm(qs, v, nd)
+		return
+	}
 	if e.pol == nil {
 		for k, l := range e.loads {
 			o := e.solve(l, k, v, nd.Epack, nd.Rp)
@@ -314,11 +351,8 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 	// The rest between sessions carries the standby drain and the
 	// element's standing drain, shared by the strings; t is the seconds
 	// of use since the fresh pack at this charge.
-	irest := (e.d.Standby + v.el.Quiescent(nd.Epack, e.T)) / e.P
-	t := qs * v.usePerQ
-	if v.periodicOnly || t >= e.pol.hs {
-		t = math.Inf(1) // day-periodic: the time no longer matters (and pol is reused)
-	}
+	irest, t := e.restAndClock(qs, v, nd)
+	R0a := nd.R0 // at the ambient: warm scales it to the cell's temperature
 	fresh := true
 	for _, x := range nd.icell {
 		fresh = fresh && x == 0
@@ -329,11 +363,18 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		}
 	}
 	settled := false
+	var tp thermPass
 	for pass := 0; pass < maxPasses && !settled; pass++ {
 		if irest != nd.polRest || t != nd.polT || !slices.Equal(nd.icell, nd.polI) {
-			e.pol.state(nd.icell, irest, t, nd.pol)
+			e.pol.state(nd.icell, irest, t, nd.polA)
 			copy(nd.polI, nd.icell)
 			nd.polRest, nd.polT = irest, t
+		}
+		hot, off := false, 0.0 // the cell's temperature still moving; its factor off the currents'
+		if e.therm != nil {
+			g := nd.R0
+			off = e.warm(nd, R0a, irest, t, &tp)
+			hot = pass == 0 || math.Abs(nd.R0-g) > 1e-10*nd.R0
 		}
 		change, failed := 0.0, false
 		for k, l := range e.loads {
@@ -348,6 +389,7 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			o.CellV = (src-o.Ipack*nd.Rp)/e.S - self*o.Ipack/e.P
 			ic := o.Ipack / e.P
 			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
+			nd.iraw[k] = ic
 			if pass >= dampFrom {
 				// Not settling by plain passes (phases pulling each other
 				// near a collapse or a MOSFET's handover): take half steps.
@@ -360,12 +402,21 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		// whatever the branches do. A lone phase settles in one pass:
 		// its own polarisation is solved with it, and nothing else moves;
 		// the branches then only need its final current.
-		settled = change <= 1e-10 || failed
-		if !settled && len(e.loads) == 1 {
+		// (With self-heating the lone phase's current also sets the
+		// cell's temperature, and so its resistance: it takes the passes
+		// like several phases.)
+		// With self-heating a collapse at a temperature that is still
+		// moving is not yet one: the collapsing current heats the cell,
+		// and the next pass may find the point (thermPass). It is final
+		// when the temperature stops moving, or when the factors that
+		// work and those that collapse close in on each other with no
+		// consistent point between.
+		settled = change <= 1e-10 && off <= 1e-10 || failed && (!hot || tp.gone)
+		if !settled && len(e.loads) == 1 && e.therm == nil {
 			// (A constant current comes back unchanged: the state just
 			// worked out, or kept from the last charge, is already its.)
 			if irest != nd.polRest || t != nd.polT || !slices.Equal(nd.icell, nd.polI) {
-				e.pol.state(nd.icell, irest, t, nd.pol)
+				e.pol.state(nd.icell, irest, t, nd.polA)
 				copy(nd.polI, nd.icell)
 				nd.polRest, nd.polT = irest, t
 			}

@@ -84,12 +84,25 @@ type polState struct {
 	// resistance, and iterate only on the other phases'.
 	self []float64
 	cand []float64 // scratch: 4 candidates per phase, 2 late ones
+	// decay, when not nil, gets each branch's share of the cells' heat
+	// that is still building up in a rested pack's first session:
+	// Σₖ wₖ·Iₖ·v*·sₖ·mₖ (watts per cell), which the branch's mean power
+	// falls short of its periodic value by, times e^(−t/τ) (cellheat.go);
+	// decayNow that e^(−t/τ) (both 0 outside the first session).
+	decay, decayNow []float64
 }
 
 // init lays s out on f, ten figures per phase.
 func (s *polState) init(f []float64) {
 	n := len(f) / 10
 	*s = polState{worst: f[:n:n], mean: f[n : 2*n : 2*n], late: f[2*n : 3*n : 3*n], self: f[3*n : 4*n : 4*n], cand: f[4*n:]}
+}
+
+// initHeat lays s out on f for n phases with room for nb branches'
+// decay and decayNow (cellheat.go): 10·n + 2·nb figures.
+func (s *polState) initHeat(f []float64, n, nb int) {
+	s.init(f[: 10*n : 10*n])
+	s.decay, s.decayNow = f[10*n:10*n+nb:10*n+nb], f[10*n+nb:10*n+2*nb]
 }
 
 // newPolarisation prepares the branches for phases of durations dur (s,
@@ -305,9 +318,15 @@ func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 		b := &p.br[bi]
 		vstar := b.periodic(I, p.w, p.vs, p.ve)
 		var dev, now, gain float64
+		if out.decay != nil {
+			out.decay[bi], out.decayNow[bi] = 0, 0
+		}
 		if first {
 			// v0 = 0: the drift is −v*, decayed to the cycle at t.
 			dev, now = -vstar, math.Exp(-t/b.tau)
+			if out.decay != nil {
+				out.decayNow[bi] = now
+			}
 		} else {
 			c := b.R * irest
 			v0 := (c*b.oneB + b.B*b.oneA*vstar) / b.oneAB
@@ -321,6 +340,9 @@ func (p *polarisation) state(I []float64, irest, t float64, out *polState) {
 			if first {
 				d := dev * now
 				m := mean + d*b.s[k]*b.m[k]
+				if out.decay != nil {
+					out.decay[bi] += p.w[k] * I[k] * vstar * b.s[k] * b.m[k]
+				}
 				out.mean[k] += m
 				out.self[k] += b.pSelf[k] - b.vSelf[k]*now*b.s[k]*b.m[k]
 				if n == 1 {

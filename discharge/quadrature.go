@@ -65,6 +65,8 @@ type rates struct {
 	standby  float64 // standby drain, mA
 	self     float64 // self-discharge, mA
 	peakW    float64 // highest element dissipation among the phases, W
+	cellRise float64 // the cells' hottest around this charge, K above the ambient
+	target   float64 // the rise this charge's power would settle at, K (node.target)
 }
 
 // rates solves variant v at qs into nd and returns what the quadrature
@@ -96,6 +98,8 @@ func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 	r.loadW = f * loadW
 	r.protW = f*protW + (1-f)*nd.Epack*iq
 	r.cellW = f*cellW + (1-f)*idle*idle*nd.Rp
+	r.cellRise = nd.cellPeakC - e.T
+	r.target = nd.target
 	return r
 }
 
@@ -128,12 +132,14 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 	// test): it takes no shortcut.
 	q := &e.quad
 	*q = quadrature{e: e, v: v, nd: nd, scale: scale, linear: len(e.gx) <= gaussN && e.linear(v)}
-	if e.pol != nil {
-		for _, b := range e.pol.br {
-			if b.tau >= 1e-3*qsCut*v.usePerQ {
-				q.slowest = math.Max(q.slowest, b.tau)
-			}
+	for _, tau := range e.taus {
+		if tau >= 1e-3*qsCut*v.usePerQ {
+			q.slowest = math.Max(q.slowest, tau)
 		}
+	}
+	if e.therm != nil && math.IsInf(e.sess, 1) && v.usePerQ > 0 {
+		e.trail.reset()
+		q.lag = &e.trail
 	}
 	prev := 0.0
 	for _, b := range e.ledCorners(v, qsCut, nd, e.transientBreaks(v, qsCut)) {
@@ -145,18 +151,28 @@ func (e *evaluator) integrate(v *variant, qsCut, scale float64, r *Result, nd *n
 		prev = b
 	}
 	cal, loadWh, protWh, cellWh, stby, self, peak := tot.h, tot.loadWh, tot.protWh, tot.cellWh, tot.stby, tot.self, tot.peak
-	// The element's peak dissipation can sit at either end of the run.
-	// (Known from evaluate's own solves there, for the real variant.)
+	// The element's peak dissipation, and the cells' hottest, can sit at
+	// either end of the run. (Known from evaluate's own solves there, for
+	// the real variant.)
+	rise := tot.cellRise // never below 0: sums start at 0
 	for i, x := range [2]float64{0, qsCut} {
 		if x >= e.end {
 			continue
 		}
-		p := [2]float64{e.peak0, e.peakCut}[i]
-		if math.IsNaN(p) || v.heat != e.heat {
-			p = e.rates(x, v, nd).peakW
+		p, u := [2]float64{e.peak0, e.peakCut}[i], [2]float64{e.rise0, e.riseCut}[i]
+		if math.IsNaN(p) || math.IsNaN(u) || v.heat != e.heat {
+			rt := e.rates(x, v, nd)
+			p, u = rt.peakW, rt.cellRise
 		}
 		peak = math.Max(peak, p)
+		rise = math.Max(rise, u)
 	}
+	if q.lag != nil && qsCut > 0 {
+		// In continuous use the cells' hottest follows the power's
+		// history, not each charge's quasi-static rise (cellheat.go).
+		rise = q.lag.hottest(e.therm.st.Tau, v.usePerQ, qsCut)
+	}
+	r.CellPeakC = e.T + rise
 	r.RuntimeDays = cal / 24
 	r.RuntimeH = cal * f
 	r.DeliveredWh = loadWh
@@ -279,6 +295,9 @@ type quadrature struct {
 	// slowest is the longest time constant that counts (transientBreaks).
 	linear  bool
 	slowest float64
+	// lag, when not nil, collects the cells' heat targets at every
+	// charge sampled (continuous use with self-heating; cellheat.go).
+	lag *heatTrail
 	// bufs[d] holds the sampled rates of the span being judged at depth
 	// d of the halving: a span reads its own only until it recurses.
 	bufs [maxSplit + 2][]rates
@@ -306,7 +325,7 @@ func (q *quadrature) buf(d int) []rates {
 // those spans short against τ.
 func (q *quadrature) nodesOn(a float64) (gx, gw []float64) {
 	e := q.e
-	if q.linear && (e.pol == nil || q.v.periodicOnly || a*q.v.usePerQ >= math.Min(e.pol.hs, 30*q.slowest)) {
+	if q.linear && (e.pol == nil && e.therm == nil || q.v.periodicOnly || a*q.v.usePerQ >= math.Min(e.sess, 30*q.slowest)) {
 		return midpointX, midpointW
 	}
 	return e.gx, e.gw
@@ -322,6 +341,9 @@ func (q *quadrature) rule(a, b float64, nodes []rates) (sums, int) {
 	var s sums
 	for j, x := range gx {
 		nodes[j] = e.rates(mid+half*x, q.v, q.nd)
+		if q.lag != nil {
+			q.lag.add(mid+half*x, nodes[j].target)
+		}
 	}
 	for j := range gx {
 		rt := &nodes[j]
@@ -333,6 +355,7 @@ func (q *quadrature) rule(a, b float64, nodes []rates) (sums, int) {
 		s.stby += rt.standby * dt
 		s.self += rt.self * dt
 		s.peak = math.Max(s.peak, rt.peakW)
+		s.cellRise = math.Max(s.cellRise, rt.cellRise)
 	}
 	return s, len(gx)
 }
@@ -371,7 +394,9 @@ func (q *quadrature) span(a, b float64, depth int, last bool) sums {
 		// The halves' samples are not judged: depth+1's buffer is free.
 		l, _ := q.rule(a, mid, q.buf(depth+1))
 		r, _ := q.rule(mid, b, q.buf(depth+1))
-		if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h {
+		// (The cells' loss too: a self-heating cell near a collapse
+		// steepens it more than the drain.)
+		if math.Abs(l.h+r.h-whole.h) > 1e-10*whole.h || math.Abs(l.cellWh+r.cellWh-whole.cellWh) > 1e-10*whole.cellWh {
 			q.splits++
 			return q.span(a, mid, depth+1, false).add(q.span(mid, b, depth+1, true))
 		}
@@ -404,10 +429,16 @@ func (e *evaluator) steepTail(nodes []rates) bool {
 	if end < 0 || next < 0 || m0 < 0 || m1 < 0 || e.gx[m0] == e.gx[m1] {
 		return true
 	}
-	g := func(j int) float64 { return 1 / nodes[j].calendar }
-	slopeEnd := math.Abs(g(end)-g(next)) / (e.gx[end] - e.gx[next])
-	slopeMid := math.Abs(g(m0)-g(m1)) / math.Abs(e.gx[m0]-e.gx[m1])
-	return slopeEnd > 2*slopeMid
+	steep := func(g func(j int) float64) bool {
+		slopeEnd := math.Abs(g(end)-g(next)) / (e.gx[end] - e.gx[next])
+		slopeMid := math.Abs(g(m0)-g(m1)) / math.Abs(e.gx[m0]-e.gx[m1])
+		return slopeEnd > 2*slopeMid
+	}
+	// The drain's hours, and the cells' loss: a self-heating cell near a
+	// collapse steepens its loss (current and temperature feeding each
+	// other) more than the drain.
+	return steep(func(j int) float64 { return 1 / nodes[j].calendar }) ||
+		e.therm != nil && steep(func(j int) float64 { return nodes[j].cellW / nodes[j].calendar })
 }
 
 // sums are the quadrature's totals over a span: calendar hours, energies
@@ -415,11 +446,12 @@ func (e *evaluator) steepTail(nodes []rates) bool {
 // charge, and the highest element dissipation seen.
 type sums struct {
 	h, loadWh, protWh, cellWh, stby, self, peak float64
+	cellRise                                    float64 // the cells' hottest, K above the ambient (a maximum, as peak)
 }
 
 func (s sums) add(t sums) sums {
 	return sums{s.h + t.h, s.loadWh + t.loadWh, s.protWh + t.protWh, s.cellWh + t.cellWh,
-		s.stby + t.stby, s.self + t.self, math.Max(s.peak, t.peak)}
+		s.stby + t.stby, s.self + t.self, math.Max(s.peak, t.peak), math.Max(s.cellRise, t.cellRise)}
 }
 
 // maxSplit bounds how often a span with a step in it is halved: 2⁻¹⁶ of a

@@ -66,6 +66,9 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	if w := heatWarning(e.heat); w != "" {
 		r.Warnings = append(r.Warnings, w)
 	}
+	if w := curves.HotWarning(c, r.CellPeakC); w != "" {
+		r.Warnings = append(r.Warnings, w)
+	}
 	for j, p := range d.Profile {
 		if p.Load.Kind == LED && cur[j] == 0 {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("the LED of %s never lights: the voltage it gets stays below its %.2f V forward voltage (set the floor above it to count that as a stop)", p.Label(), p.Load.Vf))

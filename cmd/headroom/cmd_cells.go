@@ -181,6 +181,12 @@ func cellsShow(c *cli, args []string) error {
 		}
 		line("polarisation", "%s (RC branches: ohms, time constant)", strings.Join(ps, ", "))
 	}
+	if cell.SelfHeats() {
+		line("self-heating", "%s J/K heat capacity, %s K/W to the ambient (time constant %s)",
+			short(cell.HeatCapacity), short(cell.ThermalRes), human(cell.ThermalStage().Tau, units.Time))
+	} else {
+		line("self-heating", "none (the cell stays at the ambient)")
+	}
 	if cell.CutoffV > 0 {
 		line("pack cut-off", "%s a cell, after %s below it", human(cell.CutoffV, units.Voltage), human(cell.CutoffDelay, units.Time))
 	}

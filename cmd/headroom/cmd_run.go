@@ -168,6 +168,7 @@ func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) [
 		{"stranded_by_floor_mAh", "stranded by the floor (mAh)", noise(r.StrandedByFloorMAh, r.ReferenceMAh)},
 		{"protection_loss_Wh", "burnt in the protection element (Wh)", r.ProtectionLossWh},
 		{"cell_loss_Wh", "burnt in the cells' resistance (Wh)", r.CellLossWh},
+		{"cell_peak_C", "the cells at their hottest (°C, self-heating)", r.CellPeakC},
 		{"protection_peak_W", "element peak dissipation (W)", r.ProtectionPeakW},
 		{"junction_C", "element junction at the peak of the hottest pulse (°C)", r.JunctionC},
 		{"junction_mean_C", "element junction over a profile cycle (°C)", r.JunctionMeanC},
@@ -261,7 +262,7 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	}
 	line("element", "%s burnt in it; peak %s, junction %s °C at the hottest pulse (%s °C over a cycle)",
 		units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0), fixed(r.JunctionMeanC, 0))
-	line("cells", "%s burnt in their internal resistance", units.Prefixed(r.CellLossWh, 3, "Wh"))
+	line("cells", "%s burnt in their internal resistance; hottest %s °C", units.Prefixed(r.CellLossWh, 3, "Wh"), fixed(r.CellPeakC, 1))
 	line("standby", "%s of the charge goes to standby drain and self-discharge", units.Eng(r.StandbyShare, units.Fraction, 2))
 	if r.RuntimeH > 0 {
 		line("cost", "%s per hour of use", money(r.CostPerHour))

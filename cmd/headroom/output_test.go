@@ -78,7 +78,7 @@ func TestMachineFormatsParse(t *testing.T) {
 	m := runJSON(t, "run")
 	for _, k := range []string{"runtime_h", "runtime_days", "delivered_mAh", "delivered_Wh", "reference_mAh",
 		"stranded_mAh", "stranded_by_protection_mAh", "stranded_by_floor_mAh", "protection_loss_Wh",
-		"cell_loss_Wh", "protection_peak_W", "cutoff_phase", "cutoff_cause", "cost_per_hour", "warnings", "cautions"} {
+		"cell_loss_Wh", "cell_peak_C", "protection_peak_W", "cutoff_phase", "cutoff_cause", "cost_per_hour", "warnings", "cautions"} {
 		if _, ok := m[k]; !ok {
 			t.Errorf("run json: key %q missing", k)
 		}

@@ -234,3 +234,24 @@ func TestProtectErrorKeepsItsType(t *testing.T) {
 		}
 	}
 }
+
+// A [[define_cell]] with thermal data is saved with it and read back the
+// same (the cell's self-heating fields); a bad value names the key.
+func TestDefineCellHeatRoundTrips(t *testing.T) {
+	text := "cell = \"mine\"\n[[define_cell]]\nid = \"mine\"\ncurve = [[0, 4.1], [2000, 3.0]]\nheat_capacity = 44.5\nthermal_resistance = 21.25\n"
+	s, err := Parse([]byte(text), "h.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	back, err := Parse(Format(Saved{Name: "x", Design: s.Design, ProtectSpec: "none"}), "saved.toml", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c := back.Design.Cell; c.HeatCapacity != 44.5 || c.ThermalRes != 21.25 {
+		t.Errorf("read back C %v J/K, θ %v K/W", c.HeatCapacity, c.ThermalRes)
+	}
+	_, err = Parse([]byte(strings.Replace(text, "21.25", "-2", 1)), "h.toml", "")
+	if err == nil || !strings.Contains(err.Error(), "thermal_resistance") || !strings.Contains(err.Error(), "h.toml") {
+		t.Errorf("a negative θ: %v", err)
+	}
+}

@@ -110,6 +110,9 @@ func writeCell(b *bytes.Buffer, c *curves.Cell) {
 	if c.Rechargeable {
 		fmt.Fprintf(b, "rechargeable = true\ncycle_life = %d\ncharge_efficiency = %s\n", c.CycleLife, g(c.ChargeEfficiency))
 	}
+	if c.ThermalRes > 0 || c.HeatCapacity > 0 {
+		fmt.Fprintf(b, "heat_capacity = %s\nthermal_resistance = %s\n", g(c.HeatCapacity), g(c.ThermalRes))
+	}
 	if c.Source != "" {
 		fmt.Fprintf(b, "source = %s\n", tomlString(c.Source))
 	}

@@ -79,6 +79,8 @@ func partComment(line string) string {
 		return "The pack: open-circuit voltage and internal resistance as tables (pwl) of the charge drawn, series cells times one cell, parallel strings sharing the current."
 	case strings.HasPrefix(name, "brc") || strings.HasPrefix(name, "rrc") || strings.HasPrefix(name, "crc"):
 		return "" // polarisation branches, introduced by the pack's comment
+	case name == "bheat":
+		return "The cells' self-heating: Bheat drives one cell's dissipation (W) into Rth (its thermal resistance to the ambient, K/W) and Cth (its heat capacity, J/K, per hour), so v(tc) is the cell's rise above the ambient (K); the pack's resistances follow it through the cell's temperature table."
 	case name == "vsense":
 		return "Pack current meter (0 V source)."
 	case name == "dser" || name == "mser" || name == "vnone" || name == "mblk":

@@ -128,13 +128,37 @@ func Build(d *discharge.Design, o Options) (string, error) {
 	// current tolerance out of reach. They start discharged (the load
 	// ramps up from zero).
 	_, fr := c.TempFactors(T)
-	var pol strings.Builder
+	// Self-heating (curves.Cell.ThermalStage): node tc holds one cell's
+	// rise above the ambient, K — a current source of the cell's
+	// dissipation (W) into θ ∥ C/3600 (time in hours), starting at the
+	// ambient. gT is the resistance factor at the cell's temperature
+	// relative to the ambient's, fr(Ta + v(tc))/fr(Ta), a pwl() of v(tc)
+	// on the temperature table's points (held at its ends); every
+	// resistance of the pack is multiplied by it. "1" without thermal data.
+	gT := "1"
+	if c.SelfHeats() && len(c.Temperature) > 0 {
+		us, gs := make([]float64, len(c.Temperature)), make([]float64, len(c.Temperature))
+		for i, tp := range c.Temperature {
+			us[i], gs[i] = tp.Celsius-T, tp.Resistance/fr
+		}
+		gT = pwl("v(tc)", us, gs, 1000)
+	}
+	var pol, polW strings.Builder
 	for i, st := range c.RC {
 		rb := S * st.R * fr / P
 		fmt.Fprintf(&b, "Frc%d 0 x%d Vsense 1\nRrc%d x%d 0 1000\nCrc%d x%d 0 %s\n", i+1, i+1, i+1, i+1, i+1, i+1, g(st.Tau/3600/1000))
-		fmt.Fprintf(&pol, " - v(x%d)*%s", i+1, g(rb/1000))
+		fmt.Fprintf(&pol, " - v(x%d)*%s*%s", i+1, g(rb/1000), gT)
+		// One cell's branch voltage: its R at the cell's temperature
+		// times the filtered per-cell current.
+		fmt.Fprintf(&polW, " + v(x%d)*%s*%s", i+1, g(st.R*fr/P/1000), gT)
 	}
-	fmt.Fprintf(&b, "Bpack pk 0 V = %s*(%s + %s*(%s + %s)) - i(Vsense)*%s*%s%s\n", g(S), vpwl, g(c.RefCurrent), r20pwl, g(c.PolarisationOhms()), g(S/P), rpwl, pol.String())
+	fmt.Fprintf(&b, "Bpack pk 0 V = %s*(%s + %s*(%s + %s)) - i(Vsense)*%s*%s*%s%s\n", g(S), vpwl, g(c.RefCurrent), r20pwl, g(c.PolarisationOhms()), g(S/P), rpwl, gT, pol.String())
+	if c.SelfHeats() {
+		// The cell's heat: its current i/P times (R0·i/P + Σ branch volts),
+		// R0 = rpwl, one cell's.
+		fmt.Fprintf(&b, "Bheat 0 tc I = (i(Vsense)/%s)*((i(Vsense)/%s)*%s*%s + 0%s)\n", g(P), g(P), rpwl, gT, polW.String())
+		fmt.Fprintf(&b, "Rth tc 0 %s\nCth tc 0 %s\n.ic v(tc)=0\n", g(c.ThermalRes), g(c.HeatCapacity/3600))
+	}
 	b.WriteString("Vsense pk a DC 0\n")
 
 	// The protection element from a (pack terminal) to ld (load).
