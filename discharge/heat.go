@@ -192,7 +192,7 @@ func (e *evaluator) settleNode(qs float64, v *variant, nd *node) {
 	// and the node and temperatures of the pass before it are kept (the
 	// same to a few nanovolts, and one node solve fewer).
 	exact := e.therm == nil && (e.pol == nil || n == 1) // a self-heating cell's resistance follows the currents
-	keep, keepEls := s.keep, s.keepEls // the temperatures the node was solved at
+	keep, keepEls := s.keep, s.keepEls                  // the temperatures the node was solved at
 	for pass := 0; ; pass++ {
 		u := e.unsettled
 		e.solveNode(qs, v, nd)
