@@ -493,7 +493,14 @@ func (m Model) header(w int) string {
 // the right.
 func (m Model) designView(w, h int) []string {
 	leftW, rightW, chartH := m.knobs.width, m.notes.width, m.chart.height
-	left := fitLines(m.knobs.View(&m.shared)+"\n\n"+m.verdict.View(&m.shared), leftW, h)
+	knobs := m.knobs.View(&m.shared) + "\n\n"
+	col := knobs + m.verdict.View(&m.shared)
+	if strings.Count(col, "\n") >= h { // full: the cells' temperature gives way to the rows below it
+		v := m.verdict
+		v.noCells = true
+		col = knobs + v.View(&m.shared)
+	}
+	left := fitLines(col, leftW, h)
 	notes := m.noteLines()
 	chart := m.chart.View(&m.shared)
 	chartH = min(chartH, strings.Count(chart, "\n")+1)

@@ -13,6 +13,9 @@ import (
 type verdictModel struct {
 	width   int
 	compact bool // one line per figure, for a short terminal (80×24)
+	// noCells leaves out the cells' temperature, the one row the panel
+	// can spare when the column is full (designView).
+	noCells bool
 }
 
 // SetWidth sets the panel's width in columns.
@@ -74,6 +77,9 @@ func (m verdictModel) View(sh *shared) string {
 	}
 	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
 	line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
+	if !m.compact && !m.noCells { // where the row is left out a hot cell is still among the warnings
+		line("Cells hottest", units.Human(r.CellPeakC, units.Temperature, 3), "(by their own losses)")
+	}
 	line("Standby share", units.Eng(r.StandbyShare, units.Fraction, 2), "of all charge drawn")
 	if r.RuntimeH > 0 {
 		line("Cost per hour", money(r.CostPerHour), "(pack "+money(r.PackPrice)+")")
