@@ -260,9 +260,17 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	} else {
 		line("stranded", "— (the product never starts, so no share of the charge is stranded; see the cut-off)")
 	}
-	line("element", "%s burnt in it; peak %s, junction %s °C at the hottest pulse (%s °C over a cycle)",
-		units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0), fixed(r.JunctionMeanC, 0))
-	line("cells", "%s burnt in their internal resistance; hottest %s °C", units.Prefixed(r.CellLossWh, 3, "Wh"), fixed(r.CellPeakC, 1))
+	if d.Protect == nil || d.Protect.Kind() == "none" {
+		line("element", "none: nothing burnt, no junction")
+	} else {
+		line("element", "%s burnt in it; peak %s, junction %s °C at the hottest pulse (%s °C over a cycle)",
+			units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0), fixed(r.JunctionMeanC, 0))
+	}
+	if d.Cell.SelfHeats() {
+		line("cells", "%s burnt in their internal resistance; hottest %s °C", units.Prefixed(r.CellLossWh, 3, "Wh"), fixed(r.CellPeakC, 1))
+	} else {
+		line("cells", "%s burnt in their internal resistance; taken at the ambient (the cell has no thermal data)", units.Prefixed(r.CellLossWh, 3, "Wh"))
+	}
 	line("standby", "%s of the charge goes to standby drain and self-discharge", units.Eng(r.StandbyShare, units.Fraction, 2))
 	if r.RuntimeH > 0 {
 		line("cost", "%s per hour of use", money(r.CostPerHour))
