@@ -173,10 +173,19 @@ func (f PPTC) Warnings(op Operating) []string {
 		peak = math.Max(peak, i)
 	}
 	tripped := peak > trip
+	// At an ambient other than 25 °C the ratings quoted are derated from
+	// the ones given: say so, or "hold=2.5A" reads back as 2.60 A.
+	at := func(v, rated float64, what string) string {
+		s := units.Human(v, units.Current, 3) + " " + what
+		if k != 1 {
+			s += " at " + strconv.FormatFloat(op.TempC, 'g', 3, 64) + " °C (" + units.Human(rated, units.Current, 3) + " at 25 °C)"
+		}
+		return s
+	}
 	if tripped && len(op.Seconds) == len(op.Currents) {
 		if load, _ := f.Overload(op.Currents, op.Seconds, op.TempC); load < 1 {
 			w = append(w, "a phase draws "+units.Human(peak, units.Current, 3)+", above the polyfuse's "+
-				units.Human(trip, units.Current, 3)+" trip current, but too briefly to trip it: held, it would trip after "+
+				at(trip, f.Trip, "trip current")+", but too briefly to trip it: held, it would trip after "+
 				units.Human(f.TripTime(peak, op.TempC), units.Time, 2)+" (heating "+strconv.FormatFloat(100*load, 'f', 0, 64)+" % of the way to trip)")
 			tripped = false
 			peak = 0 // the hold warning below says nothing more
@@ -185,11 +194,11 @@ func (f PPTC) Warnings(op Operating) []string {
 	switch {
 	case tripped:
 		w = append(w, "a phase draws "+units.Human(peak, units.Current, 3)+", above the polyfuse's "+
-			units.Human(trip, units.Current, 3)+" trip current: it trips after about "+units.Human(f.TripTime(peak, op.TempC), units.Time, 2)+
+			at(trip, f.Trip, "trip current")+": it trips after about "+units.Human(f.TripTime(peak, op.TempC), units.Time, 2)+
 			" and the product stops until it cools; afterwards its resistance is about "+units.Human(f.RAfterTrip(), units.Resistance, 2))
 	case peak > hold:
 		w = append(w, "a phase draws "+units.Human(peak, units.Current, 3)+", above the polyfuse's "+
-			units.Human(hold, units.Current, 3)+" hold current: it may trip if the phase lasts seconds")
+			at(hold, f.Hold, "hold current")+": it may trip if the phase lasts seconds")
 	}
 	return appendHeat(w, f.Thermal(), op)
 }

@@ -44,6 +44,9 @@ func TestPPTCWarnings(t *testing.T) {
 		{0.89, -35, "may trip"},    // just below the cold trip
 		{0.05, 25, ""},             // standby
 		{0.31, 25, "hold current"}, // names what it is above
+		// derated away from 25 °C: the figure quoted is not the one given, so both are named
+		// (hold 0.3 A × (1 − (1 − 0.5)·(20 − 25)/60) = 0.3125 A, the derating rule's own arithmetic)
+		{0.35, 20, "313 mA hold current at 20 °C (300 mA at 25 °C)"}, // 312.5 mA to three figures
 	} {
 		w := f.Warnings(Operating{VFresh: 3, Currents: []float64{0.01, c.phase}, TempC: c.tempC})
 		got := strings.Join(w, "|")
