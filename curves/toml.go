@@ -53,8 +53,8 @@ type CellDef struct {
 	CutoffV     units.Raw `toml:"cutoff_v"`     // V per cell, the pack protection's under-voltage cut-off; default none
 	CutoffDelay units.Raw `toml:"cutoff_delay"` // s (or "50ms") a dip must last to trip it
 
-	HeatCapacity      *float64 `toml:"heat_capacity"`      // J/K, the cell's lumped heat capacity; default 0
-	ThermalResistance *float64 `toml:"thermal_resistance"` // K/W to the ambient; default 0: the cell stays at the ambient
+	HeatCapacity      units.Raw `toml:"heat_capacity"`      // J/K (23 or "23 J/K"), the cell's lumped heat capacity; default 0
+	ThermalResistance units.Raw `toml:"thermal_resistance"` // K/W (38 or "38 K/W") to the ambient; default 0: the cell stays at the ambient
 
 	// BaseDir is the directory curve_csv is relative to; the readers set
 	// it to the TOML file's directory.
@@ -245,17 +245,41 @@ func (d *CellDef) build() (*Cell, error) {
 	if c.CutoffDelay, err = get("cutoff_delay", d.CutoffDelay, units.Time, 0); err != nil {
 		return nil, err
 	}
-	if d.HeatCapacity != nil {
-		c.HeatCapacity = *d.HeatCapacity
+	// The thermal keys come as a pair: one alone would leave the cell at
+	// the ambient without a word, or read an unwritten heat capacity as 0.
+	switch {
+	case d.HeatCapacity.Set() && !d.ThermalResistance.Set():
+		return nil, fe("heat_capacity", 0, "given without thermal_resistance (K/W to the ambient): give both, or neither for a cell at the ambient")
+	case d.ThermalResistance.Set() && !d.HeatCapacity.Set():
+		return nil, fe("thermal_resistance", 0, "given without heat_capacity (J/K): give both, or neither for a cell at the ambient")
 	}
-	if d.ThermalResistance != nil {
-		c.ThermalRes = *d.ThermalResistance
+	if c.HeatCapacity, err = thermalGet("heat_capacity", d.HeatCapacity, "J/K"); err != nil {
+		return nil, err
+	}
+	if c.ThermalRes, err = thermalGet("thermal_resistance", d.ThermalResistance, "K/W"); err != nil {
+		return nil, err
 	}
 	if err := c.Validate(); err != nil {
 		return nil, validateFieldError(err)
 	}
 	thinCell(c, false)
 	return c, nil
+}
+
+// thermalGet reads a thermal key: a plain number in unit (J/K or K/W, which
+// internal/units does not know), or the same quoted with that unit ("23
+// J/K"). Range checks are Cell.Validate's. 0 when the key is not given.
+func thermalGet(key string, r units.Raw, unit string) (float64, error) {
+	if !r.Set() {
+		return 0, nil
+	}
+	t := strings.TrimSpace(r.String())
+	t = strings.TrimSpace(strings.TrimSuffix(t, unit))
+	v, err := strconv.ParseFloat(t, 64)
+	if err != nil {
+		return 0, &FieldError{Key: key, Err: fmt.Errorf("%q is not a number of %s (write 23 or \"23 %s\")", r.String(), unit, unit)}
+	}
+	return v, nil
 }
 
 // validateFieldError turns a Validate message "key: problem" or "key: point

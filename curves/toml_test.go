@@ -210,7 +210,17 @@ func TestCellTOMLHeat(t *testing.T) {
 	if err != nil || plain.SelfHeats() || plain.ThermalStage() != (rc.Stage{}) {
 		t.Errorf("a cell without thermal data: %v, heats %v", err, plain != nil && plain.SelfHeats())
 	}
+	// Quoted with their units, as the other keys may be, they read the same.
+	quoted, err := ReadCellTOML(strings.NewReader("curve = [[0, 4.1], [2000, 3.0]]\nheat_capacity = \"45 J/K\"\nthermal_resistance = \"24K/W\"\n"), "quoted.toml")
+	if err != nil || quoted.HeatCapacity != 45 || quoted.ThermalRes != 24 {
+		t.Errorf("quoted with units: %v, C %v θ %v", err, quoted.HeatCapacity, quoted.ThermalRes)
+	}
 	for _, bad := range []struct{ text, want string }{
+		// one line naming the file, the line and the key, and what is wrong
+		{"heat_capacity = \"lots\"\nthermal_resistance = 20", `bad.toml line 2: heat_capacity: "lots" is not a number of J/K`},
+		{"heat_capacity = 20\nthermal_resistance = \"20 J/K\"", `bad.toml line 3: thermal_resistance: "20 J/K" is not a number of K/W`},
+		{"heat_capacity = 45", "bad.toml line 2: heat_capacity: given without thermal_resistance"},
+		{"thermal_resistance = 24", "bad.toml line 2: thermal_resistance: given without heat_capacity"},
 		{"thermal_resistance = -1\nheat_capacity = 10", "thermal_resistance"},
 		{"thermal_resistance = 5000\nheat_capacity = 10", "thermal_resistance"},
 		{"thermal_resistance = 20", "heat_capacity"},
