@@ -57,7 +57,7 @@ func (d *Design) cutoffText(r *Result) string {
 		return "resets on " + what + at
 	case CauseCollapse:
 		if ph != nil && ph.Load.Kind == ConstantPower {
-			return "the pack can no longer supply the power of " + what + ": the converter's input collapses"
+			return "the power of " + what + " cannot be supplied: the converter's input collapses"
 		}
 		return "the pack cannot push the current of " + what + ": its voltage collapses"
 	case CauseLimit:
