@@ -18,9 +18,10 @@ type Check struct {
 // caseDef is a case written in the command line's syntax. Every design is
 // invented for the comparison (library cells, which are typical values from
 // memory); none is a real product. Every element sits on an ideal heat
-// sink (theta=0): the circuit has no self-heating, so the comparison is of
-// the electrical engine alone; the thermal network has its own checks
-// (protect).
+// sink (theta=0): the circuit's element has no self-heating, so the
+// comparison is of the element's electrical model alone; its thermal
+// network has its own checks (protect). The cells' self-heating is in the
+// circuit (node tc, spicenet.go).
 type caseDef struct {
 	name, cell string
 	series     int
