@@ -91,15 +91,22 @@ func (c *Cell) DischargeLimitC() (float64, bool) {
 	return t, ok
 }
 
-// HotWarning is the warning for a pack of c whose cells warm to peakC (°C)
-// by their own dissipation, "" while that stays within the chemistry's
+// HotWarning is the warning for a pack of c whose cells reach peakC (°C)
+// at an ambient of ambientC, "" while that stays within the chemistry's
 // usual discharge limit (DischargeLimitC) or the chemistry has none here.
-func HotWarning(c *Cell, peakC float64) string {
+// Where the ambient alone is past the limit the warning says so: more
+// cells or moving air do not cool a cell below the air around it.
+func HotWarning(c *Cell, peakC, ambientC float64) string {
 	lim, ok := c.DischargeLimitC()
 	if !ok || !(peakC > lim) {
 		return ""
 	}
-	w := fmt.Sprintf("the cells warm to about %.0f °C by their own losses, above the %.0f °C a %s cell is usually discharged at (typical, from memory; the cell maker's data come first): use bigger cells, more in parallel or less current, and keep them in moving air", peakC, lim, c.Chemistry)
+	var w string
+	if ambientC > lim {
+		w = fmt.Sprintf("the %.0f °C ambient is above the %.0f °C a %s cell is usually discharged at, before the cells' own heat (typical, from memory; the cell maker's data come first): keep the product out of such heat", ambientC, lim, c.Chemistry)
+	} else {
+		w = fmt.Sprintf("the cells warm to about %.0f °C by their own losses (%.0f K above the ambient), above the %.0f °C a %s cell is usually discharged at (typical, from memory; the cell maker's data come first): use bigger cells, more in parallel or less current, and keep them in moving air", peakC, peakC-ambientC, lim, c.Chemistry)
+	}
 	if c.Chemistry == "li-ion" || c.Chemistry == "lifepo4" {
 		w += "; a hot lithium-ion cell ages fast and, past its limits, can vent or catch fire"
 	}

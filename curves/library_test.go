@@ -243,17 +243,23 @@ func TestLibraryHeat(t *testing.T) {
 }
 
 // The hot-cell warning: above the chemistry's usual discharge limit
-// (typical values from memory: 60 °C for Li-ion), none at or below it.
+// (typical values from memory: 60 °C for Li-ion), none at or below it;
+// where the ambient alone is past the limit it names the ambient, not the
+// cells' own losses (whose remedies would not help).
 func TestHotWarning(t *testing.T) {
 	c, _ := Lookup("li-ion-18650")
-	if w := HotWarning(c, 60); w != "" {
+	if w := HotWarning(c, 60, 20); w != "" {
 		t.Errorf("at 60 °C: %q", w)
 	}
-	w := HotWarning(c, 64)
-	if !strings.Contains(w, "64 °C") || !strings.Contains(w, "60 °C") || !strings.Contains(w, "maker's data") {
+	w := HotWarning(c, 64, 20)
+	if !strings.Contains(w, "64 °C") || !strings.Contains(w, "60 °C") || !strings.Contains(w, "44 K above") || !strings.Contains(w, "maker's data") {
 		t.Errorf("at 64 °C: %q", w)
 	}
-	if w := HotWarning(&Cell{Chemistry: "custom"}, 200); w != "" {
+	w = HotWarning(c, 65.1, 65)
+	if !strings.Contains(w, "65 °C ambient") || strings.Contains(w, "own losses") || strings.Contains(w, "moving air") {
+		t.Errorf("at a 65 °C ambient: %q", w)
+	}
+	if w := HotWarning(&Cell{Chemistry: "custom"}, 200, 20); w != "" {
 		t.Errorf("a chemistry without a limit: %q", w)
 	}
 }

@@ -66,7 +66,7 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	if w := heatWarning(e.heat); w != "" {
 		r.Warnings = append(r.Warnings, w)
 	}
-	if w := curves.HotWarning(c, r.CellPeakC); w != "" {
+	if w := curves.HotWarning(c, r.CellPeakC, d.TempC); w != "" {
 		r.Warnings = append(r.Warnings, w)
 	}
 	for j, p := range d.Profile {
