@@ -78,7 +78,11 @@ func (m verdictModel) View(sh *shared) string {
 	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
 	line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
 	if !m.compact && !m.noCells { // where the row is left out a hot cell is still among the warnings
-		line("Cells hottest", units.Human(r.CellPeakC, units.Temperature, 3), "(by their own losses)")
+		if c := sh.cells[sh.vals.cell]; c.SelfHeats() {
+			line("Cells hottest", units.Human(r.CellPeakC, units.Temperature, 3), "(by their own losses)")
+		} else {
+			line("Cells", "at ambient", "(no thermal data)")
+		}
 	}
 	line("Standby share", units.Eng(r.StandbyShare, units.Fraction, 2), "of all charge drawn")
 	if r.RuntimeH > 0 {
