@@ -230,8 +230,12 @@ func cellsCheck(c *cli, args []string) error {
 	if t := cell.Thinned; t != nil {
 		thinned = " (thinned on load " + thinnedWords(t.From, t.ErrV) + ")"
 	}
-	_, err = fmt.Fprintf(c.stdout, "ok: %s: cell %q, %d points%s from %s to %s mAh, %s V down to %s V; end-point %s V, rated %s mAh, nominal %s V\n",
-		guard.Clean(pos[0]), cell.ID, n, thinned, sig(q0, 4), sig(q1, 4), fixed(v0, 3), fixed(v1, 3), short(cell.EndPoint), sig(cell.RatedMAh, 4), short(cell.NominalV))
+	heat := "" // the thermal pair read, so a typo'd key is not taken for the cell at the ambient unseen
+	if cell.SelfHeats() {
+		heat = fmt.Sprintf("; self-heating %s J/K, %s K/W", short(cell.HeatCapacity), short(cell.ThermalRes))
+	}
+	_, err = fmt.Fprintf(c.stdout, "ok: %s: cell %q, %d points%s from %s to %s mAh, %s V down to %s V; end-point %s V, rated %s mAh, nominal %s V%s\n",
+		guard.Clean(pos[0]), cell.ID, n, thinned, sig(q0, 4), sig(q1, 4), fixed(v0, 3), fixed(v1, 3), short(cell.EndPoint), sig(cell.RatedMAh, 4), short(cell.NominalV), heat)
 	return err
 }
 

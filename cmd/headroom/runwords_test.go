@@ -1,6 +1,7 @@
 package main
 
 import (
+	"os"
 	"strings"
 	"testing"
 )
@@ -34,3 +35,21 @@ func TestRunTextElementAndCellHeatWords(t *testing.T) {
 		t.Errorf("diode: %q", l)
 	}
 }
+
+// cells check names the thermal pair it read (so a cell file's heat keys
+// are seen to be taken), and says nothing of heat for a cell without them.
+func TestCellsCheckNamesHeat(t *testing.T) {
+	dir := t.TempDir()
+	f := dir + "/hot.toml"
+	if err := writeFile(f, "curve = [[0, 4.1], [2000, 3.0]]\nheat_capacity = 45\nthermal_resistance = \"24 K/W\"\n"); err != nil {
+		t.Fatal(err)
+	}
+	if out := runOK(t, "cells", "check", f); !strings.Contains(out, "self-heating 45 J/K, 24 K/W") {
+		t.Errorf("with thermal data: %q", out)
+	}
+	if out := runOK(t, "cells", "check", "../../testdata/cells/example-cell.csv"); strings.Contains(out, "self-heating") {
+		t.Errorf("a CSV cell: %q", out)
+	}
+}
+
+func writeFile(path, text string) error { return os.WriteFile(path, []byte(text), 0o644) }
