@@ -88,6 +88,16 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	if r.StandbyShare > 0.2 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("standby drain and self-discharge take %.0f %% of the charge: the pack goes flat on the shelf", r.StandbyShare*100))
 	}
+	if t := c.Temperature; len(t) > 0 && (d.TempC < t[0].Celsius || d.TempC > t[len(t)-1].Celsius) {
+		// The table's end figures hold beyond it (curves.Cell.TempFactors):
+		// −40 °C would otherwise read as running as long as −20 °C, unsaid.
+		end, side := t[0].Celsius, "colder: the run is likely shorter than shown"
+		if d.TempC > end {
+			end, side = t[len(t)-1].Celsius, "hotter"
+		}
+		r.Warnings = append(r.Warnings, fmt.Sprintf("the %.0f °C ambient is outside the cell's temperature data (%.0f to %.0f °C): its figures at %.0f °C are used, as if it were no %s",
+			d.TempC, t[0].Celsius, t[len(t)-1].Celsius, end, side))
+	}
 	if r.RuntimeH == 0 {
 		r.Warnings = append(r.Warnings, "the product "+d.CutoffText(r))
 	}
