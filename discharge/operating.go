@@ -224,13 +224,14 @@ func junction(el protect.Element) bool {
 // scanMisses reports, for a concave i·vload(i), whether scanPower from
 // current at is sure to find no crossing, at a fraction of its cost: it
 // takes scanPower's grid, and on a concave function the grid's values
-// rise to one peak and fall (up to rounding), so a ternary search over
-// the grid finds its largest value in about 24 evaluations instead of
-// 128. When that value is under pin by more than rounding (1e-9
-// relative: the products are worked out to a few ulps, and ternary
-// steps misled by rounding lose no more than that near a flat peak) no
-// grid point reaches pin and scanPower would return (at, false) — the
-// caller's own values. Near a double root (the largest value within
+// rise to one peak and fall, so a walk uphill from the grid point nearest
+// at (where Newton stopped, just past the peak) reaches the largest
+// value in a few evaluations instead of 128. Rounding can stop the walk
+// on a tie short of the peak only where the values are flat to a few
+// ulps a step, no more than about 1e-13 relative below it over the whole
+// grid; so when the value reached is under pin by more than 1e-9
+// relative, no grid point reaches pin and scanPower would return (at,
+// false) — the caller's own values. Near a double root (the value within
 // 1e-9 of pin) it says false and the scan runs as before: the result is
 // always the scan's. TestScanMissesAgreesWithScan checks it against the
 // scan on randomised junctions and sources.
@@ -244,18 +245,19 @@ func scanMisses(vload func(float64) float64, pin, at float64) bool {
 		x := hi * float64(j) / n
 		return x*vload(x) - pin
 	}
-	lo, up := 1, n
-	for up-lo > 2 {
-		m1, m2 := lo+(up-lo)/3, up-(up-lo)/3
-		if P(m1) < P(m2) {
-			lo = m1 + 1
-		} else {
-			up = m2
-		}
+	j := min(max(int(math.Round(at/hi*n)), 1), n)
+	if !(at > 0) {
+		j = 1
 	}
-	best := math.Inf(-1)
-	for j := lo; j <= up; j++ {
-		best = math.Max(best, P(j))
+	best := P(j)
+	for _, d := range [2]int{1, -1} {
+		for k := j + d; k >= 1 && k <= n; k += d {
+			p := P(k)
+			if !(p > best) {
+				break
+			}
+			best, j = p, k
+		}
 	}
 	return best < -1e-9*pin
 }
