@@ -74,7 +74,7 @@ func newtonPowerPlain(vload func(float64) float64, pin, E, i float64) (float64, 
 // the last bit (tolerance 0 — the shortcut is exact by construction: a
 // step is a function of the current alone). The check fails if no case
 // fell into a cycle (the shortcut never taken).
-func TestNewtonCycleMatchesEverySteps(t *testing.T) {
+func TestNewtonCycleMatchesEveryStep(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 5))
 	cycles := 0
 	for n := 0; n < 1200; n++ {
