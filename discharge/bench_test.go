@@ -24,7 +24,11 @@ func benchDesign(b *testing.B, load string) *Design {
 }
 
 // BenchmarkEvaluateConstant: 2×LR6 behind a series diode, one constant
-// current. Goal: median ≤ 10 µs per evaluation (not met: about 17–20 µs, README §Performance).
+// current. Goal: median ≤ 10 µs per evaluation (not met: 13.5 µs at load
+// about 2, 14.8 µs at load 5–7, 29 allocations, medians of 10 on the
+// shared 2-core machine with the junctions settled at every charge and
+// the cells' self-heating; 17.4 µs before the speed pass, 12.6 µs after
+// it and before those; README §Performance).
 func BenchmarkEvaluateConstant(b *testing.B) {
 	d := benchDesign(b, "120mA")
 	b.ReportAllocs()
@@ -36,7 +40,10 @@ func BenchmarkEvaluateConstant(b *testing.B) {
 }
 
 // BenchmarkEvaluatePulsed: the same pack on a three-phase toy profile.
-// Goal: median ≤ 25 µs per evaluation (not met: about 30–37 µs, README §Performance).
+// Goal: median ≤ 25 µs per evaluation (met, narrowly: 22.5 µs at load
+// about 2, 22.9 µs at load 5–7, 33 allocations, medians of 10, with the
+// junctions and the cells' heat; 34.2 µs before the speed pass, 19.4 µs
+// after it and before those; README §Performance).
 func BenchmarkEvaluatePulsed(b *testing.B) {
 	d := benchDesign(b, "450mA/3s,120mA/2s,15mA/25s")
 	b.ReportAllocs()
@@ -48,12 +55,16 @@ func BenchmarkEvaluatePulsed(b *testing.B) {
 }
 
 // BenchmarkEvaluatePower: a 0.8 W converter at 85 %, the costliest load law
-// (a Newton solve per phase per charge). Goal: median ≤ 1 ms per evaluation
-// (not met: about 3 ms and 1204 allocations, from about 6.7 ms and 1348
-// before the exact shortcuts of newtonPower and scanMisses, README
-// §Performance). Most of what is left is charges near the load's collapse,
-// where the stranded split's run without the floor bisects: each takes the
-// node's 40 damped electro-thermal passes (cellheat.go).
+// (a Newton solve per phase per charge). No goal met yet (1 ms wanted):
+// about 7.2 ms median of 10 and 1,348 allocations once the junctions settle
+// at every charge and the cells heat (224 µs before the speed pass), and
+// about 3 ms and 1,204 allocations with the exact shortcuts of newtonPower
+// and scanMisses (README §Performance; 6.70 → 3.09 ms, 15 interleaved
+// runs). Most of it is the cut-off searches bisecting (heat.go, byWork; the
+// stranded split's run without the floor towards the load's collapse),
+// about 40 steps each, every step a junction settle from ambient, and the
+// charges near the collapse taking the node's 40 damped electro-thermal
+// passes (cellheat.go).
 func BenchmarkEvaluatePower(b *testing.B) {
 	d := benchDesign(b, "0.8W@85%")
 	b.ReportAllocs()

@@ -168,6 +168,14 @@ type evaluator struct {
 	nd   node
 	real variant
 	runs [3]variant
+	// keepRates is set when the real variant's solves at the breakpoints
+	// and the cut-off are kept for integrate (solved; quadrature.go).
+	keepRates bool
+	solved    solvedAt
+	spare     solvedAt // a recycled evaluator's arrays for solved
+	// atZero is set while nd holds the real variant solved at charge 0,
+	// exactly as a solve there would leave it (keepRates).
+	atZero bool
 	// general is set to take no shortcut (evaluateWith); skipped counts
 	// the cut-off searches and capacity scales the shortcuts saved, for
 	// the tests.
@@ -278,8 +286,8 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// where they are now for the whole run and the fresh pack's
 	// polarisation is the rested start's, as clock solves it (not when
 	// the run is taken as day-periodic from the start).
-	keep := e.linear(real) && !e.general
-	if fresh := e.clock(real, scale, nd); keep && (real.heat == nil || real.heat.still) && !real.periodicOnly {
+	lin := e.linear(real) && !e.general
+	if fresh := e.clock(real, scale, nd); lin && (real.heat == nil || real.heat.still) && !real.periodicOnly {
 		e.peak0, e.rise0 = fresh.peakW, fresh.cellRise
 	}
 
@@ -287,7 +295,17 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// asks less of the pack than the one before, so its scan resumes near
 	// the previous cut-off; without an element the bare variant is the
 	// real one.
+	// Behind constant currents and a steady element whose junctions hold,
+	// with cells that do not heat (their resistance then moves with
+	// their heat), the design's own search keeps what it solves at the
+	// breakpoints for the quadrature (keep). nd holds the real variant
+	// solved with the fresh pack (clock), with the rested start's
+	// polarisation: unless the run is taken as day-periodic from the
+	// start, its search starts from that (atZero).
+	kept := lin && e.therm == nil && (real.heat == nil || real.heat.still)
+	e.keepRates, e.atZero = kept, kept && !real.periodicOnly
 	qsCut := e.cutoff(real, nd, 0)
+	e.keepRates, e.atZero = false, false
 
 	r := &Result{EffectiveA: ieff, CapacityFactor: F}
 	r.FreshV = e.S * d.Cell.OpenCircuit(0, d.TempC)
@@ -309,8 +327,11 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	r.CutoffPhase = phaseLabel(d.Profile[ph])
 	r.CutoffIndex = ph
 	e.solveNode(math.Min(qsCut, e.end), real, nd)
-	if keep && qsCut < e.end {
+	if lin && qsCut < e.end {
 		e.peakCut, e.riseCut = peakOf(nd), nd.cellPeakC-e.T
+		if kept {
+			e.keep(len(e.breaks), qsCut, nd)
+		}
 	}
 	o := nd.worst[ph]
 	r.CutoffLoadV, r.CutoffPackV, r.CutoffAmps = o.Vload, o.Vin, o.I
@@ -458,7 +479,8 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	c := d.Cell
 	e := evaluators.Get().(*evaluator)
-	breaks := e.breaks // the last evaluation's array, refilled below
+	// The last evaluation's arrays, refilled below and by keep.
+	breaks, solved := e.breaks, e.solved
 	*e = evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
 		peak0: math.NaN(), peakCut: math.NaN(), rise0: math.NaN(), riseCut: math.NaN()}
 	e.end = c.Curve.End()
@@ -479,6 +501,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	e.secs = dur
 	e.breaks = breakpointsTo(breaks, c)
+	e.spare = solved
 	e.duty = 1.0
 	if d.HoursPerDay > 0 {
 		e.duty = d.HoursPerDay / 24

@@ -101,8 +101,10 @@ const settleSteps = 24
 
 // outerPasses bounds the passes between the junction solve and the
 // cells' polarisation: the temperatures move the phases' currents, which
-// move the other phases' share of the polarisation each phase sees.
-const outerPasses = 8
+// move the other phases' share of the polarisation each phase sees. They
+// settle in two or three; where four do not, the junction counts as not
+// settled there.
+const outerPasses = 4
 
 // outerTol is the change of a phase's temperature, °C, below which those
 // passes have settled: a drop's temperature slope of a few mV/°C makes
@@ -204,20 +206,23 @@ func (e *evaluator) settleNode(qs float64, v *variant, nd *node) {
 	}
 	s.ambient(e.T)
 	n := len(e.loads)
-	clear(e.hint)
-	clear(nd.icell)
 	var st protect.Settled
 	// Each pass solves the node at the temperatures as they stand and the
 	// temperatures for the sources it gives. With no polarisation, or a
-	// lone phase (its own share of it is solved with it), those sources
-	// do not move with the temperatures and one pass is exact; otherwise
+	// lone phase (its own share of it is solved with it), and cells that
+	// do not heat themselves, those sources do not move with the
+	// temperatures and one pass is exact; otherwise
 	// the passes go on until a pass moves no phase by more than outerTol,
 	// and the node and temperatures of the pass before it are kept (the
 	// same to a few nanovolts, and one node solve fewer).
-	exact := e.pol == nil || n == 1
-	keep, keepEls := s.keep, s.keepEls // the temperatures the node was solved at
+	exact := e.therm == nil && (e.pol == nil || n == 1) // a self-heating cell's resistance follows the currents
+	keep, keepEls := s.keep, s.keepEls                  // the temperatures the node was solved at
 	for pass := 0; ; pass++ {
+		u := e.unsettled
 		e.solveNode(qs, v, nd)
+		// Where the phases and the polarisation themselves do not settle
+		// at this charge (near a collapse), more passes cannot: one.
+		exact = exact || e.unsettled > u
 		if pass == 0 && e.cold(v, nd) {
 			// Nothing heats the junctions at ambient (every phase
 			// collapsed or drawing nothing): they stay there.

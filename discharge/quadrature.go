@@ -73,8 +73,13 @@ type rates struct {
 // sums there: each phase's charge and powers at its mean polarisation,
 // the element's peak at the phases' worst instants.
 func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
-	d := e.d
 	e.solveNode(qs, v, nd)
+	return e.ratesAt(v, nd)
+}
+
+// ratesAt is rates with nd already solved for v.
+func (e *evaluator) ratesAt(v *variant, nd *node) rates {
+	d := e.d
 	f := e.duty
 	var r rates
 	var use, loadW, protW, cellW float64
@@ -101,6 +106,89 @@ func (e *evaluator) rates(qs float64, v *variant, nd *node) rates {
 	r.cellRise = nd.cellPeakC - e.T
 	r.target = nd.target
 	return r
+}
+
+// solvedAt holds what the design's own cut-off search solved at the
+// breakpoints (entry j for e.breaks[j]) and evaluate at the cut-off (the
+// last entry), when the real variant's integrand is linear in charge
+// between breakpoints (keepRates): the rates there and each phase's
+// element dissipation, so that the midpoint of a span between two of
+// them is the mean of its ends and need not be solved (spanMean).
+type solvedAt struct {
+	ok   []bool
+	r    []rates
+	peak []float64 // n per entry, W
+	cut  float64   // the cut-off's charge, scaled
+}
+
+// keep records nd, solved for the real variant at entry j (len(e.breaks):
+// the cut-off, at charge qs).
+func (e *evaluator) keep(j int, qs float64, nd *node) {
+	k := &e.solved
+	n := len(e.loads)
+	if k.ok == nil {
+		m := len(e.breaks) + 1
+		if sp := &e.spare; cap(sp.ok) >= m && cap(sp.peak) >= m*n {
+			k.ok, k.r, k.peak = sp.ok[:m], sp.r[:m], sp.peak[:m*n]
+			clear(k.ok)
+		} else {
+			k.ok, k.r, k.peak = make([]bool, m), make([]rates, m), make([]float64, m*n)
+		}
+	}
+	k.ok[j], k.r[j] = true, e.ratesAt(&e.real, nd)
+	for i, o := range nd.worst {
+		k.peak[j*n+i] = o.Vdrop*o.I + o.Vin*(o.Ipack-o.I)
+	}
+	if j == len(e.breaks) {
+		k.cut = qs
+	}
+}
+
+// entry is the index of a recorded charge x in solved, -1 if none.
+func (e *evaluator) entry(x float64) int {
+	k := &e.solved
+	if k.ok == nil {
+		return -1
+	}
+	if m := len(e.breaks); k.ok[m] && x == k.cut {
+		return m
+	}
+	j := sort.SearchFloat64s(e.breaks, x)
+	if j < len(e.breaks) && e.breaks[j] == x && k.ok[j] {
+		return j
+	}
+	return -1
+}
+
+// spanMean sets *r to variant v's rates at the midpoint of [a, b] as the
+// mean of the rates recorded at a and b, when both are (keep) and the
+// span lies past the rested start's first session: there the integrand
+// is linear in charge (evaluator.linear, the junctions held, the
+// polarisation day-periodic) and every figure of rates is too, the
+// element's peak phase by phase, so the mean is the midpoint's own up to
+// rounding. (In the first session the polarisation still builds up as
+// e^(−t/τ): not linear.) False otherwise.
+func (e *evaluator) spanMean(a, b float64, v *variant, r *rates) bool {
+	if v != &e.real || e.pol != nil && !v.periodicOnly && a*v.usePerQ < e.pol.hs {
+		return false
+	}
+	ia, ib := e.entry(a), e.entry(b)
+	if ia < 0 || ib < 0 {
+		return false
+	}
+	k := &e.solved
+	x, y := &k.r[ia], &k.r[ib]
+	*r = rates{
+		calendar: 0.5 * (x.calendar + y.calendar), loadW: 0.5 * (x.loadW + y.loadW),
+		protW: 0.5 * (x.protW + y.protW), cellW: 0.5 * (x.cellW + y.cellW),
+		standby: 0.5 * (x.standby + y.standby), self: 0.5 * (x.self + y.self),
+		cellRise: 0.5 * (x.cellRise + y.cellRise), target: 0.5 * (x.target + y.target),
+	}
+	n := len(e.loads)
+	for i := range n {
+		r.peakW = math.Max(r.peakW, 0.5*(k.peak[ia*n+i]+k.peak[ib*n+i]))
+	}
+	return true
 }
 
 // peakOf is the highest element dissipation among the phases of nd at
@@ -339,10 +427,13 @@ func (q *quadrature) rule(a, b float64, nodes []rates) (sums, int) {
 	gx, gw := q.nodesOn(a)
 	half, mid := 0.5*(b-a), 0.5*(a+b)
 	var s sums
-	for j, x := range gx {
-		nodes[j] = e.rates(mid+half*x, q.v, q.nd)
-		if q.lag != nil {
-			q.lag.add(mid+half*x, nodes[j].target)
+	// (The midpoint's rates may be the mean of its ends': spanMean.)
+	if len(gx) != 1 || q.lag != nil || !e.spanMean(a, b, q.v, &nodes[0]) {
+		for j, x := range gx {
+			nodes[j] = e.rates(mid+half*x, q.v, q.nd)
+			if q.lag != nil {
+				q.lag.add(mid+half*x, nodes[j].target)
+			}
 		}
 	}
 	for j := range gx {

@@ -99,13 +99,13 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 			fE0.v = noFloor
 			e.skipped++
 		} else {
-			fE0 = e.search(noFloor, nd, qsCut)
+			fE0 = e.search(noFloor, nd, qsCut, true)
 			qsE0 = fE0.lo
 		}
 	}
 	if !none {
 		if e.general || !e.bareFails(real, noEl, own) {
-			f0F = e.search(noEl, nd, qsCut)
+			f0F = e.search(noEl, nd, qsCut, !e.general && e.drawsAsBare(real))
 			qs0F = f0F.lo
 		} else {
 			// It fails there by the same rule, one of the cells' own.
@@ -122,7 +122,7 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 		qs00 = qs0F
 		e.skipped++
 	case e.general || !e.bareFails(noFloor, neither, fE0):
-		qs00 = e.cutoff(neither, nd, qs0F)
+		qs00 = e.search(neither, nd, qs0F, true).lo
 	default:
 		e.skipped++
 	}
