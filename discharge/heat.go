@@ -314,9 +314,12 @@ func (e *evaluator) settlePhases(v *variant, nd *node, st *protect.Settled) floa
 			return e.heatOf(nd.mean[k], v, t)
 		}
 		// The element's own law at t; behind a load whose solve takes
-		// many drops, with its terms worked out at t once.
+		// many drops, with its terms worked out at t once — except a
+		// junction's, whose own law costs a Log and an Exp a drop more,
+		// less than the two allocations of fixing it for one solve at a
+		// temperature met once (the same drops: protect.Fixed).
 		s.els[k], s.tj[k] = s.base, t
-		if e.loads[k].Kind != ConstantCurrent {
+		if e.loads[k].Kind != ConstantCurrent && !junction(s.base) {
 			s.els[k] = s.fixedAt(t)
 		}
 		o := e.solve(e.loads[k], k, v, src[k], res[k])
