@@ -469,7 +469,7 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			ic := o.Ipack / e.P
 			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
 			nd.iraw[k] = ic
-			if pass >= dampFrom {
+			if pass >= dampFrom && !tp.closed {
 				// Not settling by plain passes (phases pulling each other
 				// near a collapse or a MOSFET's handover): take half steps.
 				ic = 0.5 * (ic + nd.icell[k])
@@ -503,7 +503,7 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		}
 	}
 	if !settled {
-		e.unsettled++
+		e.notSettled(v)
 	}
 	for k, l := range e.loads {
 		if w, m := nd.pol.worst[k], nd.pol.mean[k]; math.Abs(w-m) <= 1e-12*math.Abs(m) {
