@@ -55,12 +55,16 @@ func BenchmarkEvaluatePulsed(b *testing.B) {
 }
 
 // BenchmarkEvaluatePower: a 0.8 W converter at 85 %, the costliest load law
-// (a Newton solve per phase per charge). No goal: about 7.2 ms median of
-// 10, 1,348 allocations, since the junctions settle at every charge (224
-// µs before the speed pass, 228 µs after it and before that): nine tenths
-// is the cut-off searches bisecting on whether the run works (heat.go,
-// byWork), about 40 steps each, every step a junction settle from
-// ambient with a Newton solve per iteration.
+// (a Newton solve per phase per charge). No goal met yet (1 ms wanted):
+// about 7.2 ms median of 10 and 1,348 allocations once the junctions settle
+// at every charge and the cells heat (224 µs before the speed pass), and
+// about 3.4 ms and 818 allocations with the exact shortcuts of newtonPower
+// and scanMisses and junctions' trial solves unfixed (README §Performance;
+// 4.07 → 3.41 ms against main with the speed pass, 15 interleaved runs). Most of it is the cut-off searches bisecting (heat.go, byWork; the
+// stranded split's run without the floor towards the load's collapse),
+// about 40 steps each, every step a junction settle from ambient, and the
+// charges near the collapse taking the node's 40 damped electro-thermal
+// passes (cellheat.go).
 func BenchmarkEvaluatePower(b *testing.B) {
 	d := benchDesign(b, "0.8W@85%")
 	b.ReportAllocs()

@@ -145,6 +145,8 @@ type evaluator struct {
 	// unsettled counts the charges at which the phases' currents and the
 	// branches' voltages did not settle within maxPasses.
 	unsettled int
+	// unsettledRun counts those of the real variant (notSettled).
+	unsettledRun int
 	// secs are the phases' durations, s; cur is scratch for their
 	// currents (a polyfuse's overload).
 	secs, cur []float64

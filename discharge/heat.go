@@ -54,6 +54,30 @@ type heat struct {
 	scratch, src, res []float64
 	keep              []float64
 	keepEls           []protect.Element
+	// fixed holds base with its terms worked out (protect.Fixed) at
+	// recent temperatures (fixedAt).
+	fixed [8]fixedEl
+}
+
+// fixedEl is the element with its temperature terms worked out at t.
+type fixedEl struct {
+	t  float64
+	el protect.Element
+}
+
+// fixedAt is protect.Fixed(s.base, t), each a fresh value worth two
+// allocations, kept at the temperatures met recently: every settle
+// starts from the ambient and takes its first slope 0.01 °C above it
+// (protect.Heating), and the settled temperatures come back with the
+// memo's charges. The element worked out at t is the same arithmetic
+// whichever call made it, so a kept one gives the same drops.
+func (s *heat) fixedAt(t float64) protect.Element {
+	b := math.Float64bits(t)
+	c := &s.fixed[(b^b>>17^b>>31)%uint64(len(s.fixed))]
+	if c.el == nil || c.t != t {
+		*c = fixedEl{t: t, el: protect.Fixed(s.base, t)}
+	}
+	return c.el
 }
 
 // settledAt is the junctions settled at one charge for one current limit
@@ -290,10 +314,13 @@ func (e *evaluator) settlePhases(v *variant, nd *node, st *protect.Settled) floa
 			return e.heatOf(nd.mean[k], v, t)
 		}
 		// The element's own law at t; behind a load whose solve takes
-		// many drops, with its terms worked out at t once.
+		// many drops, with its terms worked out at t once — except a
+		// junction's, whose own law costs a Log and an Exp a drop more,
+		// less than the two allocations of fixing it for one solve at a
+		// temperature met once (the same drops: protect.Fixed).
 		s.els[k], s.tj[k] = s.base, t
-		if e.loads[k].Kind != ConstantCurrent {
-			s.els[k] = protect.Fixed(s.base, t)
+		if e.loads[k].Kind != ConstantCurrent && !junction(s.base) {
+			s.els[k] = s.fixedAt(t)
 		}
 		o := e.solve(e.loads[k], k, v, src[k], res[k])
 		s.els[k], s.tj[k] = el0, t0
@@ -305,7 +332,7 @@ func (e *evaluator) settlePhases(v *variant, nd *node, st *protect.Settled) floa
 	for k, t := range tj {
 		moved = math.Max(moved, math.Abs(t-s.tj[k]))
 		if t != s.tj[k] {
-			s.tj[k], s.els[k] = t, protect.Fixed(s.base, t)
+			s.tj[k], s.els[k] = t, s.fixedAt(t)
 		}
 	}
 	return moved

@@ -77,10 +77,10 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	if e.pol != nil && e.pol.hs < e.pol.period {
 		r.Warnings = append(r.Warnings, "a day's use is shorter than one cycle of the load profile: the cells' polarisation is approximate (the model takes whole cycles)")
 	}
-	if e.unsettled > 0 {
+	if e.unsettledRun > 0 {
 		where := "at 1 point"
-		if e.unsettled > 1 {
-			where = fmt.Sprintf("at %d points", e.unsettled)
+		if e.unsettledRun > 1 {
+			where = fmt.Sprintf("at %d points", e.unsettledRun)
 		}
 		r.Warnings = append(r.Warnings, where+" of the run the phases' currents and the cells' polarisation did not settle (a load near collapse or a MOSFET handing over to its body diode): the figures there are approximate")
 	}
