@@ -162,6 +162,11 @@ type Result struct {
 	ProtectionPeakW  float64 // highest dissipation in the element
 	JunctionC        float64 // element junction at the peak of the hottest pulse, °C (its thermal network, periodic steady state)
 	JunctionMeanC    float64 // element junction averaged over a profile cycle at the same point, °C
+	// JunctionRunaway is set when the junction found no settled
+	// temperature over part of the run (thermal runaway, or a heat that
+	// jumps across it): JunctionC is then the hottest step the solve
+	// reached, not a temperature the part would hold.
+	JunctionRunaway bool
 
 	StandbyMAh       float64 // charge drawn outside the hours of use
 	SelfDischargeMAh float64 // charge lost inside the cells

@@ -35,6 +35,7 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 	r.JunctionC, r.JunctionMeanC = d.TempC, d.TempC
 	if s := e.heat; s != nil {
 		r.JunctionC, r.JunctionMeanC = s.peakC, s.meanC
+		r.JunctionRunaway = !s.ok
 	}
 
 	// The highest current of each phase over the run, for the element's
@@ -62,7 +63,7 @@ func (e *evaluator) priceAndNotes(el protect.Element, r *Result, nd *node) {
 		}
 	}
 	r.Warnings = append(r.Warnings, el.Warnings(protect.Operating{VFresh: r.FreshV, Currents: cur, PeakW: r.ProtectionPeakW,
-		TempC: d.TempC, PeakC: r.JunctionC, Seconds: e.secs})...)
+		TempC: d.TempC, PeakC: r.JunctionC, Runaway: r.JunctionRunaway, Seconds: e.secs})...)
 	if w := heatWarning(e.heat); w != "" {
 		r.Warnings = append(r.Warnings, w)
 	}

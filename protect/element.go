@@ -63,6 +63,9 @@ type Operating struct {
 	// its thermal network (Heating), °C; 0 means not worked out, and
 	// the steady Tamb + θja·PeakW is used instead.
 	PeakC float64
+	// Runaway is set when the junction found no settled temperature:
+	// PeakC is then where the solve stopped, and is worded so.
+	Runaway bool
 	// Seconds is each phase's duration in seconds, beside Currents; nil
 	// when unknown (a polyfuse then judges each current as if held).
 	Seconds []float64

@@ -95,6 +95,10 @@ func appendHeat(w []string, t Thermal, op Operating) []string {
 		return "at the peak " + units.Human(op.PeakW, units.Power, 3)
 	}
 	switch {
+	case tj > t.TjMax && op.Runaway:
+		w = append(w, "junction runs away "+where()+": it finds no settled temperature below its "+
+			units.Human(t.TjMax, units.Temperature, 3)+" limit (the solve passed "+units.Human(tj, units.Temperature, 3)+
+			", far beyond what the part survives): use a bigger package or more copper, or less current")
 	case tj > t.TjMax:
 		w = append(w, "junction reaches "+units.Human(tj, units.Temperature, 3)+" "+where()+", above its "+
 			units.Human(t.TjMax, units.Temperature, 3)+" limit: use a bigger package or more copper")

@@ -76,7 +76,11 @@ func (m verdictModel) View(sh *shared) string {
 		line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
 	}
 	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
-	line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
+	if r.JunctionRunaway {
+		line("Junction", "runs away", "no settled temperature: press w")
+	} else {
+		line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
+	}
 	if !m.compact && !m.noCells { // where the row is left out a hot cell is still among the warnings
 		if c := sh.cells[sh.vals.cell]; c.SelfHeats() {
 			line("Cells hottest", units.Human(r.CellPeakC, units.Temperature, 3), "(by their own losses)")

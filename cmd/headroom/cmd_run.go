@@ -262,6 +262,9 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	}
 	if d.Protect == nil || d.Protect.Kind() == "none" {
 		line("element", "none: nothing burnt, no junction")
+	} else if r.JunctionRunaway {
+		line("element", "%s burnt in it; peak %s, junction runs away (no settled temperature: see the warnings)",
+			units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3))
 	} else {
 		line("element", "%s burnt in it; peak %s, junction %s °C at the hottest pulse (%s °C over a cycle)",
 			units.Prefixed(r.ProtectionLossWh, 3, "Wh"), units.Eng(r.ProtectionPeakW, units.Power, 3), fixed(r.JunctionC, 0), fixed(r.JunctionMeanC, 0))

@@ -36,6 +36,31 @@ func TestRunTextElementAndCellHeatWords(t *testing.T) {
 	}
 }
 
+// A junction that finds no settled temperature (an 18650 at 8 A through
+// the library's SOT-23 P-MOSFET, θja 250 K/W from memory: about 4 W at
+// ambient, far past any settled state) is said to run away, not given the solve's last step as a temperature
+// the part would hold (it read "junction 1008 °C").
+func TestRunTextJunctionRunaway(t *testing.T) {
+	out := runOK(t, "run", "--cell", "li-ion-18650", "--series", "1", "--protect", "pmos", "--load", "8A",
+		"--floor", "3.0", "--hours-per-day", "24", "--standby", "0")
+	var el string
+	for l := range strings.SplitSeq(out, "\n") {
+		if strings.HasPrefix(l, "element ") {
+			el = l
+		}
+	}
+	if !strings.Contains(el, "runs away") || strings.Contains(el, "°C") {
+		t.Errorf("element line %q: want it to say the junction runs away, with no temperature", el)
+	}
+	if !strings.Contains(out, "junction runs away") || !strings.Contains(out, "150 °C limit") {
+		t.Errorf("warnings: want the runaway named against the part's limit:\n%s", out)
+	}
+	// A junction that settles keeps its figure.
+	if out := runOK(t, "run", "--protect", "diode"); !strings.Contains(out, "at the hottest pulse") {
+		t.Errorf("the demo's diode: %q", out)
+	}
+}
+
 // cells check names the thermal pair it read (so a cell file's heat keys
 // are seen to be taken), and says nothing of heat for a cell without them.
 func TestCellsCheckNamesHeat(t *testing.T) {

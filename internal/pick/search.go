@@ -526,7 +526,7 @@ func (sp *Space) judge(c *Candidate, r *discharge.Result, lim Limits) *Design {
 	}
 	if r.JunctionC > lim.MaxJunction {
 		d.Misses = append(d.Misses, Miss{Junction, (r.JunctionC - lim.MaxJunction) / math.Max(math.Abs(lim.MaxJunction), 1),
-			fmt.Sprintf("junction reaches %.0f °C, above the %.0f °C limit", r.JunctionC, lim.MaxJunction)})
+			junctionMiss(r.JunctionC, lim.MaxJunction, r.JunctionRunaway)})
 	}
 	return d
 }
@@ -565,4 +565,13 @@ func parallelFor(n int, f func(i int)) {
 		}()
 	}
 	wg.Wait()
+}
+
+// junctionMiss words a junction over the limit: a runaway has no settled
+// temperature, and the solve's last step is not one to quote as if held.
+func junctionMiss(tj, max float64, runaway bool) string {
+	if runaway {
+		return fmt.Sprintf("junction runs away (no settled temperature below the %.0f °C limit)", max)
+	}
+	return fmt.Sprintf("junction reaches %.0f °C, above the %.0f °C limit", tj, max)
 }
