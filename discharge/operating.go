@@ -22,9 +22,15 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	el, T := e.phaseElement(v, k)
 	iq := el.Quiescent(E, T)
 	vin := func(i float64) float64 { return E - (i+iq)*Rp }
+	// lastI and lastD are the current and the drop of vload's last call:
+	// the root finders end on a call at the current they return, whose
+	// drop the operating point takes again (the same arguments, so the
+	// same value without a second solve of the element's law).
+	lastI, lastD := math.NaN(), 0.0
 	vload := func(i float64) float64 {
 		x := vin(i)
-		return x - el.Drop(i, x, T)
+		lastI, lastD = i, el.Drop(i, x, T)
+		return x - lastD
 	}
 	var i float64
 	switch l.Kind {
@@ -72,8 +78,13 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	}
 	*o = op{I: i, Ipack: i + iq}
 	o.Vin = vin(i)
-	o.Vdrop = e.drop(v, k, el, i, o.Vin, T)
+	if i == lastI && reuseDrop {
+		o.Vdrop = lastD // el.Drop(i, o.Vin, T), o.Vin being vin(i)
+	} else {
+		o.Vdrop = e.drop(v, k, el, i, o.Vin, T)
+	}
 	o.Vload = o.Vin - o.Vdrop
+	d0 := o.Vdrop // the element's own drop at i (a Clamper is no junction: e.drop is el.Drop)
 	// A resistive or LED load sets its own voltage, i·R (+ Vf). Where the
 	// element's drop jumps (a FET out of gate drive hands over to its
 	// body diode) the root sits on the jump and vin − Drop(i) reads the
@@ -104,11 +115,15 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	// operating point above it: its drop takes the whole input. That is
 	// its current limit, not a collapse of the source.
 	if o.Fail == failCollapse || o.Fail == failFloor {
-		if _, ok := el.(protect.Clamper); ok && i > 0 && el.Drop(i, o.Vin, T) >= o.Vin {
+		if _, ok := el.(protect.Clamper); ok && i > 0 && d0 >= o.Vin {
 			o.Fail = failLimit
 		}
 	}
 }
+
+// reuseDrop lets solveTo take the drop of vload's last call at the
+// current it returns (a test switches it off to compare).
+var reuseDrop = true
 
 // dropMemo is the last drop worked out for one phase: variant v's element
 // at current i and junction temperature t gave drop.
