@@ -43,9 +43,9 @@ func WriteCellKeys(w io.Writer, c *Cell) error {
 
 func writeCellKeys(b *strings.Builder, c *Cell) {
 	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-	fmt.Fprintf(b, "id = %s\nname = %s\nchemistry = %s\n", tomlString(c.ID), tomlString(c.Name), tomlString(c.Chemistry))
+	fmt.Fprintf(b, "id = %s\nname = %s\nchemistry = %s\n", TOMLString(c.ID), TOMLString(c.Name), TOMLString(c.Chemistry))
 	if c.Designation != "" {
-		fmt.Fprintf(b, "designation = %s\n", tomlString(c.Designation))
+		fmt.Fprintf(b, "designation = %s\n", TOMLString(c.Designation))
 	}
 	fmt.Fprintf(b, "nominal = %s\nend_point = %s\nrated_mAh = %s\nrated_current = %s\nref_current = %s\n",
 		g(c.NominalV), g(c.EndPoint), g(c.RatedMAh), g(c.RatedCurrent), g(c.RefCurrent))
@@ -59,7 +59,7 @@ func writeCellKeys(b *strings.Builder, c *Cell) {
 	if c.ThermalRes > 0 || c.HeatCapacity > 0 {
 		fmt.Fprintf(b, "heat_capacity = %s\nthermal_resistance = %s\n", g(c.HeatCapacity), g(c.ThermalRes))
 	}
-	fmt.Fprintf(b, "source = %s\n", tomlString(c.Source))
+	fmt.Fprintf(b, "source = %s\n", TOMLString(c.Source))
 	array := func(key, unit string, rows [][]float64) {
 		if len(rows) == 0 {
 			return
@@ -101,10 +101,10 @@ func writeCellKeys(b *strings.Builder, c *Cell) {
 	array("temperature", "[°C, capacity factor, resistance factor]", rows)
 }
 
-// tomlString is s as a TOML basic string (valid UTF-8, escaped by the
+// TOMLString is s as a TOML basic string (valid UTF-8, escaped by the
 // TOML encoder itself: Go's %q writes escapes such as \a and \x.. that
 // TOML does not have).
-func tomlString(s string) string {
+func TOMLString(s string) string {
 	s = strings.ToValidUTF8(s, "\uFFFD")
 	var b strings.Builder
 	if err := toml.NewEncoder(&b).Encode(struct {
