@@ -2,6 +2,7 @@ package discharge
 
 import (
 	"math"
+	"slices"
 
 	"headroom/protect"
 )
@@ -344,10 +345,27 @@ func (e *evaluator) settlePhases(v *variant, nd *node, st *protect.Settled) floa
 
 // settleStill solves the junctions of a still variant once, with the
 // fresh pack (nd solved there at ambient), and holds them for the run.
+//
+// Its outcome is a function of the inputs stillKey names, and is shared
+// across evaluations (stillMemo) unless the evaluation takes no shortcut.
 func (e *evaluator) settleStill(v *variant, nd *node) {
 	s := v.heat
 	var st protect.Settled
-	e.settlePhases(v, nd, &st)
+	key, keyed := e.stillKeyOf(nd)
+	switch {
+	case !keyed || e.general:
+		e.settlePhases(v, nd, &st)
+	default:
+		h := key.hash()
+		if o := stillMemo.find(h, &key); o != nil {
+			copy(s.tj, o.tj)
+			copy(s.els, o.els)
+			st.Cycle, st.OK = o.cyc, o.ok
+			break
+		}
+		e.settlePhases(v, nd, &st)
+		stillMemo.keep(h, key, &stillOutcome{tj: slices.Clone(s.tj), els: slices.Clone(s.els), cyc: st.Cycle, ok: st.OK})
+	}
 	s.rec = true
 	s.record(st.Cycle, st.OK)
 	s.rec = false
