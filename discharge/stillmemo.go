@@ -21,12 +21,13 @@ import (
 
 // stillKey is every input the still settle depends on.
 type stillKey struct {
-	el         protect.Element // the element as given (a Diode or a Schottky value)
-	T, S, P    float64
-	pol        bool
-	Epack, Rp  float64
-	E          float64
-	amps, secs []float64
+	el        protect.Element // the element as given (a Diode or a Schottky value)
+	T, S, P   float64
+	pol       bool
+	Epack, Rp float64
+	E         float64
+	loads     []Load // every one a constant current
+	secs      []float64
 	// with polarisation, per phase: own share per ampere, mean, per-cell current
 	self, mean, icell []float64
 }
@@ -68,15 +69,13 @@ func (e *evaluator) stillKeyOf(nd *node) (stillKey, bool) {
 	default:
 		return stillKey{}, false
 	}
-	n := len(e.loads)
-	k := stillKey{el: e.d.Protect, T: e.T, S: e.S, P: e.P, pol: e.pol != nil, Epack: nd.Epack, Rp: nd.Rp, E: nd.E,
-		amps: make([]float64, n), secs: e.secs}
-	for i, l := range e.loads {
+	for _, l := range e.loads {
 		if l.Kind != ConstantCurrent {
 			return stillKey{}, false
 		}
-		k.amps[i] = l.Amps
 	}
+	k := stillKey{el: e.d.Protect, T: e.T, S: e.S, P: e.P, pol: e.pol != nil, Epack: nd.Epack, Rp: nd.Rp, E: nd.E,
+		loads: e.loads, secs: e.secs}
 	if k.pol {
 		k.self, k.mean, k.icell = nd.pol.self, nd.pol.mean, nd.icell
 	}
@@ -96,9 +95,9 @@ func (k *stillKey) hash() uint64 {
 	mix(k.Epack)
 	mix(k.Rp)
 	mix(k.E)
-	mix(float64(len(k.amps)))
-	for i := range k.amps {
-		mix(k.amps[i])
+	mix(float64(len(k.loads)))
+	for i := range k.loads {
+		mix(k.loads[i].Amps)
 		mix(k.secs[i])
 	}
 	for i := range k.self {
@@ -109,12 +108,17 @@ func (k *stillKey) hash() uint64 {
 	return x
 }
 
+// sameLoads is bit equality of two constant-current profiles' loads.
+func sameLoads(a, b []Load) bool {
+	return slices.EqualFunc(a, b, func(x, y Load) bool { return x.Kind == y.Kind && sameBits(x.Amps, y.Amps) })
+}
+
 func sameFloats(a, b []float64) bool { return slices.EqualFunc(a, b, sameBits) }
 
 func (k *stillKey) equal(o *stillKey) bool {
 	return k.el == o.el && sameBits(k.T, o.T) && sameBits(k.S, o.S) && sameBits(k.P, o.P) && k.pol == o.pol &&
 		sameBits(k.Epack, o.Epack) && sameBits(k.Rp, o.Rp) && sameBits(k.E, o.E) &&
-		sameFloats(k.amps, o.amps) && sameFloats(k.secs, o.secs) &&
+		sameLoads(k.loads, o.loads) && sameFloats(k.secs, o.secs) &&
 		sameFloats(k.self, o.self) && sameFloats(k.mean, o.mean) && sameFloats(k.icell, o.icell)
 }
 
@@ -131,7 +135,7 @@ func (c *stillCache) find(h uint64, k *stillKey) *stillOutcome {
 
 // keep stores o for k, cloning k's slices (they belong to the evaluation).
 func (c *stillCache) keep(h uint64, k stillKey, o *stillOutcome) {
-	k.secs, k.self, k.mean, k.icell = slices.Clone(k.secs), slices.Clone(k.self), slices.Clone(k.mean), slices.Clone(k.icell)
+	k.loads, k.secs, k.self, k.mean, k.icell = slices.Clone(k.loads), slices.Clone(k.secs), slices.Clone(k.self), slices.Clone(k.mean), slices.Clone(k.icell)
 	c.mu.Lock()
 	defer c.mu.Unlock()
 	if c.n >= stillCacheMax {
