@@ -502,7 +502,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		dur = append(dur, p.Seconds)
 	}
 	e.secs = dur
-	e.breaks = breakpointsTo(breaks, c)
+	e.breaks = cellBreaks(breaks, c)
 	e.spare = solved
 	e.duty = 1.0
 	if d.HoursPerDay > 0 {
