@@ -137,6 +137,7 @@ type evaluator struct {
 	sess   float64
 	therm  *cellTherm
 	thermV cellTherm
+	heatV  heat      // what heat points at when the real variant has one (newHeat)
 	trail  heatTrail // the heat targets the quadrature samples (cellheat.go)
 	// taus are the time constants of the rested start's transients
 	// (setTaus), in tauBuf.

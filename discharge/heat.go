@@ -114,7 +114,8 @@ const outerTol = 1e-6
 
 // newHeat prepares the electro-thermal state of element el for the
 // evaluator's profile, all phases at ambient; nil for an element with an
-// ideal heat sink (θja 0: the junction stays at ambient) or none. el has
+// ideal heat sink (θja 0: the junction stays at ambient) or none. It is
+// the evaluator's own (heatV): one per evaluation. el has
 // its terms worked out at the ambient already (protect.Fixed(·, e.T), as
 // evaluateWith makes it): it is the phases' element at ambient as it
 // stands, since every AtTemp works its terms out from the element's own
@@ -127,7 +128,8 @@ func (e *evaluator) newHeat(el protect.Element) *heat {
 	n := len(e.loads)
 	buf := make([]float64, 5*n) // one backing array, made once per evaluation
 	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
-	s := &heat{h: protect.NewHeating(th, e.secs), base: el, amb: el, ok: true,
+	s := &e.heatV // in the evaluator: no allocation of its own
+	*s = heat{h: protect.NewHeating(th, e.secs), base: el, amb: el, ok: true,
 		tj: cut(), els: make([]protect.Element, n), scratch: cut(), src: cut(), res: cut(),
 		keep: cut(), keepEls: make([]protect.Element, n)}
 	s.ambient(e.T)
