@@ -410,5 +410,5 @@ func heatWarning(s *heat) string {
 	if s == nil || s.ok {
 		return ""
 	}
-	return "the " + s.base.Kind() + "'s junction does not settle over part of the run: its dissipation rises with temperature faster than its package sheds the heat, or jumps across the temperature it would settle at (thermal runaway, or a current limit reached as it warms); there its drop is taken at ambient and the junction shown is the hottest the solve reached — use a bigger part, more copper or less current"
+	return "the " + s.base.Kind() + "'s junction does not settle over part of the run: its dissipation rises with temperature faster than its package sheds the heat, or jumps across the temperature it would settle at (thermal runaway, or a current limit reached as it warms); there its drop is taken at ambient, and a junction figure (junction_C) is only the hottest step the solve reached — use a bigger part, more copper or less current"
 }

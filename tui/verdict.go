@@ -77,7 +77,7 @@ func (m verdictModel) View(sh *shared) string {
 	}
 	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
 	if r.JunctionRunaway {
-		line("Junction", "runs away", "no settled temperature: press w")
+		line("Junction", "runs away", "none settles: press w")
 	} else {
 		line("Junction", units.Human(r.JunctionC, units.Temperature, 3), "at the heat peak")
 	}

@@ -1,32 +1,22 @@
 package scenario
 
 import (
-	"bytes"
 	"fmt"
 	"reflect"
 	"strings"
 
 	"github.com/BurntSushi/toml"
 
+	"headroom/curves"
 	"headroom/discharge"
 	"headroom/internal/guard"
 	"headroom/internal/units"
 	"headroom/protect"
 )
 
-// tomlString writes s as a TOML basic string with BurntSushi/toml's
-// encoder (Go's %q is not TOML escaping: "\a" in a name would not read
-// back).
-func tomlString(s string) string {
-	s = strings.ToValidUTF8(s, "\uFFFD") // TOML text is UTF-8
-	var b bytes.Buffer
-	if err := toml.NewEncoder(&b).Encode(struct {
-		V string `toml:"v"`
-	}{s}); err != nil {
-		panic("scenario: encoding a string: " + err.Error()) // a string always encodes
-	}
-	return strings.TrimSuffix(strings.TrimPrefix(b.String(), "v = "), "\n")
-}
+// tomlString is curves.TOMLString, the one home of TOML string quoting
+// (Go's %q is not TOML escaping: "\a" in a name would not read back).
+func tomlString(s string) string { return curves.TOMLString(s) }
 
 // Update rewrites the design's top-level values in orig, the scenario
 // file the design came from, and keeps everything else as it was: the

@@ -100,41 +100,9 @@ func Format(s Saved) []byte {
 }
 
 func writeCell(b *bytes.Buffer, c *curves.Cell) {
-	fmt.Fprintf(b, "\n[[define_cell]]\nid = %s\nname = %s\nchemistry = %s\n", tomlString(c.ID), tomlString(c.Name), tomlString(orDefault(c.Chemistry, "custom")))
-	if c.Designation != "" {
-		fmt.Fprintf(b, "designation = %s\n", tomlString(c.Designation))
-	}
-	fmt.Fprintf(b, "nominal = %s\nend_point = %s\nrated_mAh = %s\nrated_current = %s\nref_current = %s\n",
-		g(c.NominalV), g(c.EndPoint), g(c.RatedMAh), g(c.RatedCurrent), g(c.RefCurrent))
-	fmt.Fprintf(b, "peukert = %s\nself_discharge = %s\nprice = %s\n", g(c.Peukert), g(c.SelfDischarge), g(c.Price))
-	if c.Rechargeable {
-		fmt.Fprintf(b, "rechargeable = true\ncycle_life = %d\ncharge_efficiency = %s\n", c.CycleLife, g(c.ChargeEfficiency))
-	}
-	if c.ThermalRes > 0 || c.HeatCapacity > 0 {
-		fmt.Fprintf(b, "heat_capacity = %s\nthermal_resistance = %s\n", g(c.HeatCapacity), g(c.ThermalRes))
-	}
-	if c.Source != "" {
-		fmt.Fprintf(b, "source = %s\n", tomlString(c.Source))
-	}
-	var pts []string
-	for i := 0; i < c.Curve.Len(); i++ {
-		q, v := c.Curve.Point(i)
-		pts = append(pts, fmt.Sprintf("[%s, %s]", g(q), g(v)))
-	}
-	fmt.Fprintf(b, "curve = [%s]\n", strings.Join(pts, ", "))
-	if len(c.Resistance) > 0 {
-		pts = pts[:0]
-		for _, r := range c.Resistance {
-			pts = append(pts, fmt.Sprintf("[%s, %s]", g(r.Depth), g(r.Ohm)))
-		}
-		fmt.Fprintf(b, "resistance = [%s]\n", strings.Join(pts, ", "))
-	}
-	if len(c.Temperature) > 0 {
-		pts = pts[:0]
-		for _, t := range c.Temperature {
-			pts = append(pts, fmt.Sprintf("[%s, %s, %s]", g(t.Celsius), g(t.Capacity), g(t.Resistance)))
-		}
-		fmt.Fprintf(b, "temperature = [%s]\n", strings.Join(pts, ", "))
+	b.WriteString("\n[[define_cell]]\n")
+	if err := curves.WriteCellKeys(b, c); err != nil {
+		panic("scenario: writing a cell to memory: " + err.Error()) // a bytes.Buffer does not fail
 	}
 }
 

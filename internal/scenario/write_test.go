@@ -2,8 +2,10 @@ package scenario
 
 import (
 	"path/filepath"
+	"reflect"
 	"testing"
 
+	"headroom/curves"
 	"headroom/discharge"
 	"headroom/protect"
 )
@@ -50,5 +52,36 @@ func TestFormatKeepsEveryField(t *testing.T) {
 	}
 	if r1.RuntimeH != r2.RuntimeH || r1.CostPerHour != r2.CostPerHour || r1.ReferenceMAh != r2.ReferenceMAh {
 		t.Errorf("read back, the design runs %v h at $%v/h; written, %v h at $%v/h", r2.RuntimeH, r2.CostPerHour, r1.RuntimeH, r1.CostPerHour)
+	}
+}
+
+// A custom cell with every kind of data — RC branches, a pack cut-off
+// with its delay, heat capacity and thermal resistance, a temperature
+// table — comes back from a saved scenario's [[define_cell]] as the same
+// cell (reflect.DeepEqual), and so runs the same. Before the cell's keys
+// had one writer, the scenario's own left out the RC branches and the
+// cut-off, and a saved Li-ion cell lost its polarisation.
+func TestFormatKeepsACellsEveryKey(t *testing.T) {
+	lib, ok := curves.Lookup("li-ion-18650")
+	if !ok {
+		t.Fatal("no li-ion-18650")
+	}
+	c := *lib
+	c.ID, c.Name, c.Source = "my-cell", "a cell with \"quotes\", 2.6 Ah µ-pack", "bench, 2026"
+	if len(c.RC) == 0 || c.CutoffV == 0 || !c.SelfHeats() || len(c.Temperature) == 0 {
+		t.Fatalf("li-ion-18650 no longer has RC branches, a cut-off, thermal data and a temperature table: pick another cell")
+	}
+	s := Demo()
+	d := s.Design
+	d.Cell = &c
+	d.Series = 1
+	data := Format(Saved{Name: "cell keys", Design: d})
+	back, err := Parse(data, "saved.toml", "")
+	if err != nil {
+		t.Fatalf("saved scenario does not parse: %v\n%s", err, data)
+	}
+	got := *back.Design.Cell
+	if !reflect.DeepEqual(&got, &c) {
+		t.Errorf("cell read back differs:\nwrote %+v\nread  %+v\n%s", c, got, data)
 	}
 }
