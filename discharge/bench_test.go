@@ -28,7 +28,17 @@ func benchDesign(b *testing.B, load string) *Design {
 // about 2, 14.8 µs at load 5–7, 29 allocations, medians of 10 on the
 // shared 2-core machine with the junctions settled at every charge and
 // the cells' self-heating; 17.4 µs before the speed pass, 12.6 µs after
-// it and before those; README §Performance).
+// it and before those; README §Performance). The memos shared across
+// evaluations (the still junctions' settle, stillMemo; the element's
+// thermal network, protect.NewHeating; the cell's corners, cellBreaks)
+// and the heat kept in the evaluator: 29 → 23 allocations, and in three
+// sets of 10 interleaved runs against main on a heavily shared machine
+// medians 13.85 → 12.22 µs (×0.88), 16.04 → 15.24 (×0.95) and
+// 16.79 → 15.56 (×0.93); still short of 10 µs. What remains is the
+// stranded split's two searches (about 40 % of the time: noFloor and
+// noEl each solve ten breakpoints past the design's cut-off and five
+// narrowing steps, the cells' side of each node the same in both) and
+// the quadrature (about 15 %).
 func BenchmarkEvaluateConstant(b *testing.B) {
 	d := benchDesign(b, "120mA")
 	b.ReportAllocs()
@@ -43,7 +53,10 @@ func BenchmarkEvaluateConstant(b *testing.B) {
 // Goal: median ≤ 25 µs per evaluation (met, narrowly: 22.5 µs at load
 // about 2, 22.9 µs at load 5–7, 33 allocations, medians of 10, with the
 // junctions and the cells' heat; 34.2 µs before the speed pass, 19.4 µs
-// after it and before those; README §Performance).
+// after it and before those; README §Performance). With the memos shared
+// across evaluations (see BenchmarkEvaluateConstant): 33 → 23
+// allocations, medians 25.43 → 19.35 µs (×0.76) and 27.32 → 20.91 µs
+// (×0.77) in two sets of 10 interleaved runs against main.
 func BenchmarkEvaluatePulsed(b *testing.B) {
 	d := benchDesign(b, "450mA/3s,120mA/2s,15mA/25s")
 	b.ReportAllocs()
@@ -64,7 +77,9 @@ func BenchmarkEvaluatePulsed(b *testing.B) {
 // stranded split's run without the floor towards the load's collapse),
 // about 40 steps each, every step a junction settle from ambient, and the
 // charges near the collapse taking the node's 40 damped electro-thermal
-// passes (cellheat.go).
+// passes (cellheat.go). The memos shared across evaluations change it
+// little: 4.23 → 4.14 ms (×0.98), 862 → 858 allocations, medians of 10
+// interleaved runs of 40 evaluations against main.
 func BenchmarkEvaluatePower(b *testing.B) {
 	d := benchDesign(b, "0.8W@85%")
 	b.ReportAllocs()

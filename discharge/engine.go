@@ -137,6 +137,7 @@ type evaluator struct {
 	sess   float64
 	therm  *cellTherm
 	thermV cellTherm
+	heatV  heat      // what heat points at when the real variant has one (newHeat)
 	trail  heatTrail // the heat targets the quadrature samples (cellheat.go)
 	// taus are the time constants of the rested start's transients
 	// (setTaus), in tauBuf.
@@ -502,7 +503,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		dur = append(dur, p.Seconds)
 	}
 	e.secs = dur
-	e.breaks = breakpointsTo(breaks, c)
+	e.breaks = cellBreaks(breaks, c)
 	e.spare = solved
 	e.duty = 1.0
 	if d.HoursPerDay > 0 {

@@ -2,6 +2,7 @@ package discharge
 
 import (
 	"math"
+	"slices"
 
 	"headroom/protect"
 )
@@ -113,7 +114,12 @@ const outerTol = 1e-6
 
 // newHeat prepares the electro-thermal state of element el for the
 // evaluator's profile, all phases at ambient; nil for an element with an
-// ideal heat sink (θja 0: the junction stays at ambient) or none.
+// ideal heat sink (θja 0: the junction stays at ambient) or none. It is
+// the evaluator's own (heatV): one per evaluation. el has
+// its terms worked out at the ambient already (protect.Fixed(·, e.T), as
+// evaluateWith makes it): it is the phases' element at ambient as it
+// stands, since every AtTemp works its terms out from the element's own
+// parameters, and fixing it again at e.T would give the same drops.
 func (e *evaluator) newHeat(el protect.Element) *heat {
 	th := el.Thermal()
 	if _, none := el.(protect.None); none || th.ThetaJA == 0 {
@@ -122,7 +128,8 @@ func (e *evaluator) newHeat(el protect.Element) *heat {
 	n := len(e.loads)
 	buf := make([]float64, 5*n) // one backing array, made once per evaluation
 	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
-	s := &heat{h: protect.NewHeating(th, e.secs), base: el, amb: protect.Fixed(el, e.T), ok: true,
+	s := &e.heatV // in the evaluator: no allocation of its own
+	*s = heat{h: protect.NewHeating(th, e.secs), base: el, amb: el, ok: true,
 		tj: cut(), els: make([]protect.Element, n), scratch: cut(), src: cut(), res: cut(),
 		keep: cut(), keepEls: make([]protect.Element, n)}
 	s.ambient(e.T)
@@ -340,10 +347,27 @@ func (e *evaluator) settlePhases(v *variant, nd *node, st *protect.Settled) floa
 
 // settleStill solves the junctions of a still variant once, with the
 // fresh pack (nd solved there at ambient), and holds them for the run.
+//
+// Its outcome is a function of the inputs stillKey names, and is shared
+// across evaluations (stillMemo) unless the evaluation takes no shortcut.
 func (e *evaluator) settleStill(v *variant, nd *node) {
 	s := v.heat
 	var st protect.Settled
-	e.settlePhases(v, nd, &st)
+	key, keyed := e.stillKeyOf(nd)
+	switch {
+	case !keyed || e.general:
+		e.settlePhases(v, nd, &st)
+	default:
+		h := key.hash()
+		if o := stillMemo.find(h, &key); o != nil {
+			copy(s.tj, o.tj)
+			copy(s.els, o.els)
+			st.Cycle, st.OK = o.cyc, o.ok
+			break
+		}
+		e.settlePhases(v, nd, &st)
+		stillMemo.keep(h, key, &stillOutcome{tj: slices.Clone(s.tj), els: slices.Clone(s.els), cyc: st.Cycle, ok: st.OK})
+	}
 	s.rec = true
 	s.record(st.Cycle, st.OK)
 	s.rec = false

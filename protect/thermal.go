@@ -2,6 +2,8 @@ package protect
 
 import (
 	"math"
+	"slices"
+	"sync"
 
 	"headroom/internal/rc"
 	"headroom/internal/units"
@@ -164,12 +166,32 @@ type Heating struct {
 
 // NewHeating prepares t for a profile of phases lasting secs seconds each
 // (each above 0).
+//
+// What it prepares — the exponentials and each phase's own rise per watt
+// — depends on t and secs alone, and a sweep prepares the same network
+// on the same profile many times: it is worked out once per set of
+// inputs (heatMemo) and shared, read-only; each Heating gets its own
+// scratch.
 func NewHeating(t Thermal, secs []float64) *Heating {
+	key := heatKey(t, secs)
+	sh := heatMemo.find(key, t, secs)
+	if sh == nil {
+		sh = buildHeating(t, secs)
+		heatMemo.keep(key, sh)
+	}
 	n := len(secs)
-	buf := make([]float64, 6*n) // one backing array (made once per evaluation)
+	buf := make([]float64, 3*n)
+	return &Heating{th: t, train: sh.train.Clone(), secs: sh.secs, total: sh.total, self: sh.self,
+		seg: make([]rc.Segment, n), p: buf[:n:n], dp: buf[n : 2*n : 2*n], lastT: buf[2*n:]}
+}
+
+// buildHeating is NewHeating without the memo: the shared part.
+func buildHeating(t Thermal, secs []float64) *Heating {
+	n := len(secs)
+	buf := make([]float64, 3*n)
 	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
 	h := &Heating{th: t, train: rc.NewTrain(t.Ladder(), secs), secs: cut(),
-		self: cut(), seg: make([]rc.Segment, n), p: cut(), dp: cut(), lastT: cut()}
+		self: cut(), seg: make([]rc.Segment, n)}
 	copy(h.secs, secs)
 	unit := cut()
 	for _, s := range secs {
@@ -182,6 +204,71 @@ func NewHeating(t Thermal, secs []float64) *Heating {
 		unit[k] = 0
 	}
 	return h
+}
+
+// heatCache keeps the shared part of recent Heatings, by a hash of their
+// inputs' bits; an entry is used only when the network and every
+// duration are equal to the bit (no collision can change a result). It
+// holds at most heatCacheMax entries, then starts afresh.
+type heatCache struct {
+	mu sync.RWMutex
+	m  map[uint64][]*Heating // shared: train, secs and self are never written
+	n  int
+}
+
+const heatCacheMax = 256
+
+var heatMemo = &heatCache{m: map[uint64][]*Heating{}}
+
+// heatKey hashes the inputs' bits (FNV-1a).
+func heatKey(t Thermal, secs []float64) uint64 {
+	x := uint64(14695981039346656037)
+	mix := func(f float64) {
+		x ^= math.Float64bits(f)
+		x *= 1099511628211
+	}
+	mix(t.ThetaJA)
+	mix(t.TjMax)
+	mix(t.Fast)
+	mix(t.TauFast)
+	mix(t.Tau)
+	mix(float64(len(secs)))
+	for _, s := range secs {
+		mix(s)
+	}
+	return x
+}
+
+// sameThermal is bit equality of two networks (two NaNs of the same bits
+// are equal, so a NaN input still finds its own entry).
+func sameThermal(a, b Thermal) bool {
+	eq := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
+	return eq(a.ThetaJA, b.ThetaJA) && eq(a.TjMax, b.TjMax) && eq(a.Fast, b.Fast) &&
+		eq(a.TauFast, b.TauFast) && eq(a.Tau, b.Tau)
+}
+
+func (c *heatCache) find(key uint64, t Thermal, secs []float64) *Heating {
+	c.mu.RLock()
+	defer c.mu.RUnlock()
+	for _, h := range c.m[key] {
+		if sameThermal(h.th, t) && slices.EqualFunc(h.secs, secs, func(a, b float64) bool {
+			return math.Float64bits(a) == math.Float64bits(b)
+		}) {
+			return h
+		}
+	}
+	return nil
+}
+
+func (c *heatCache) keep(key uint64, h *Heating) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.n >= heatCacheMax {
+		clear(c.m)
+		c.n = 0
+	}
+	c.m[key] = append(c.m[key], h)
+	c.n++
 }
 
 // Cycle is the junction's periodic steady state over one profile cycle.

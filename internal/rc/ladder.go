@@ -85,6 +85,17 @@ func NewTrain(l Ladder, dur []float64) *Train {
 	return t
 }
 
+// Clone returns a train on the same ladder and durations that shares t's
+// exponentials (never written after NewTrain) and has scratch space of
+// its own: the clone and t may then be used on different goroutines.
+func (t *Train) Clone() *Train {
+	c := *t
+	m := len(t.l)
+	buf := make([]float64, 2*m)
+	c.v, c.v0 = buf[:m:m], buf[m:]
+	return &c
+}
+
 // Periodic fills out[k] with the ladder's sum over segment k in the
 // periodic steady state of the train repeating for ever, input x[k] held
 // over segment k. Each stage follows Stage.Periodic's closed form (the
