@@ -364,13 +364,7 @@ func (e *evaluator) solveWarm(qs float64, v *variant, nd *node) {
 			o := e.solve(l, k, v, nd.Epack, nd.Rp)
 			o.CellV = (nd.Epack - o.Ipack*nd.Rp) / e.S
 			nd.mean[k], nd.worst[k] = o, o
-			ic := o.Ipack / e.P
-			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
-			nd.iraw[k] = ic
-			if pass >= dampFrom && !tp.closed {
-				ic = 0.5 * (ic + nd.icell[k])
-			}
-			nd.icell[k] = ic
+			change = max(change, e.passCurrent(nd, k, pass, o.Ipack, &tp))
 			failed = failed || o.Fail == failCollapse
 		}
 		settled = change <= 1e-10 && off <= 1e-10 || failed && (!hot || tp.gone)

@@ -416,6 +416,24 @@ const maxPasses = 40
 // dampFrom is the pass from which the currents move half way only.
 const dampFrom = 4
 
+// passCurrent takes phase k's pack current ipack from this pass into nd
+// (per cell, in iraw as solved and in icell for the next pass) and
+// returns how far it moved, relative. From pass dampFrom on the passes
+// are not settling by plain steps (phases pulling each other near a
+// collapse or a MOSFET's handover): icell takes half steps, unless the
+// cells' temperature factor has closed on its value (thermPass), where
+// the phases' own solve is exact.
+func (e *evaluator) passCurrent(nd *node, k, pass int, ipack float64, tp *thermPass) float64 {
+	ic := ipack / e.P
+	change := math.Abs(ic-nd.icell[k]) / math.Max(math.Abs(ic), 1e-12)
+	nd.iraw[k] = ic
+	if pass >= dampFrom && !tp.closed {
+		ic = 0.5 * (ic + nd.icell[k])
+	}
+	nd.icell[k] = ic
+	return change
+}
+
 // solveNode solves every phase of variant v at scaled charge qs into nd.
 func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 	if v.heat.settles() { // the junctions as their heat sets them at qs (heat.go)
@@ -481,15 +499,7 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 			o := &nd.mean[k]
 			e.solveTo(o, l, k, v, src, nd.Rp+e.S*self/e.P)
 			o.CellV = (src-o.Ipack*nd.Rp)/e.S - self*o.Ipack/e.P
-			ic := o.Ipack / e.P
-			change = max(change, math.Abs(ic-nd.icell[k])/math.Max(math.Abs(ic), 1e-12))
-			nd.iraw[k] = ic
-			if pass >= dampFrom && !tp.closed {
-				// Not settling by plain passes (phases pulling each other
-				// near a collapse or a MOSFET's handover): take half steps.
-				ic = 0.5 * (ic + nd.icell[k])
-			}
-			nd.icell[k] = ic
+			change = max(change, e.passCurrent(nd, k, pass, o.Ipack, &tp))
 			failed = failed || o.Fail == failCollapse
 		}
 		// A collapse has no current to settle on: the phase fails
