@@ -130,6 +130,12 @@ func ParseLoad(s string) (Load, error) {
 		return Load{}, fmt.Errorf("empty load: expected a current (120mA), a power (0.8W, 0.8W@85%%), a resistance (33ohm) or led:vf=2.0,r=47")
 	}
 	var l Load
+	if x, err := strconv.ParseFloat(t, 64); err == nil && x == 0 {
+		// A bare zero is a rest (nothing drawn), whatever its unit would
+		// be: "2A/10s,0/50s" means what it says. (A zero resistance would
+		// be a short, and is no load at all.)
+		return Load{Kind: ConstantCurrent}, nil
+	}
 	if rest, ok := strings.CutPrefix(t, "led:"); ok {
 		l = Load{Kind: LED, Vf: math.NaN(), Ohms: math.NaN()}
 		for _, kv := range strings.Split(rest, ",") {

@@ -23,6 +23,10 @@ func TestParseLoad(t *testing.T) {
 		{"33Ω", Load{Kind: ConstantResistance, Ohms: 33}},
 		{"4.7kohm", Load{Kind: ConstantResistance, Ohms: 4700}},
 		{"led:vf=2.0,r=47", Load{Kind: LED, Vf: 2, Ohms: 47}},
+		// A bare zero is a rest, as in "2A/10s,0/50s" (a bare non-zero
+		// number stays refused: its unit is not known).
+		{"0", Load{Kind: ConstantCurrent}},
+		{" 0.0 ", Load{Kind: ConstantCurrent}},
 	}
 	for _, c := range cases {
 		got, err := ParseLoad(c.in)
