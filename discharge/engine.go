@@ -151,6 +151,9 @@ type evaluator struct {
 	// secs are the phases' durations, s; cur is scratch for their
 	// currents (a polyfuse's overload).
 	secs, cur []float64
+	// stages is room for the cell's RC branches at the ambient, the
+	// inputs newPolarisation is given (and its memo clones to keep).
+	stages [curves.MaxRC]rc.Stage
 	// heat is the real variant's junction state, for the report (nil
 	// with an ideal heat sink).
 	heat *heat
@@ -525,7 +528,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	if len(c.RC) > 0 {
 		_, fr := c.TempFactors(d.TempC)
-		st := make([]rc.Stage, len(c.RC))
+		st := e.stages[:len(c.RC)] // in the evaluator: the memo's key escapes, and would move a local array to the heap
 		for i, b := range c.RC {
 			st[i] = rc.Stage{R: b.R * fr, Tau: b.Tau}
 		}

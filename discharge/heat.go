@@ -359,14 +359,14 @@ func (e *evaluator) settleStill(v *variant, nd *node) {
 		e.settlePhases(v, nd, &st)
 	default:
 		h := key.hash()
-		if o := stillMemo.find(h, &key); o != nil {
+		if o, ok := stillMemo.Find(h, key); ok {
 			copy(s.tj, o.tj)
 			copy(s.els, o.els)
 			st.Cycle, st.OK = o.cyc, o.ok
 			break
 		}
 		e.settlePhases(v, nd, &st)
-		stillMemo.keep(h, key, &stillOutcome{tj: slices.Clone(s.tj), els: slices.Clone(s.els), cyc: st.Cycle, ok: st.OK})
+		stillMemo.Keep(h, key.kept(), &stillOutcome{tj: slices.Clone(s.tj), els: slices.Clone(s.els), cyc: st.Cycle, ok: st.OK})
 	}
 	s.rec = true
 	s.record(st.Cycle, st.OK)

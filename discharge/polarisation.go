@@ -7,8 +7,8 @@ package discharge
 import (
 	"math"
 	"slices"
-	"sync"
 
+	"headroom/internal/memo"
 	"headroom/internal/rc"
 )
 
@@ -114,11 +114,12 @@ func (s *polState) initHeat(f []float64, n, nb int) {
 // worked out once per set of inputs (polMemo) and shared, read-only;
 // each call gets its own scratch and flags.
 func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *polarisation {
-	key := polKey(stages, dur, w, h, delay)
-	p := polMemo.find(key, stages, dur, w, h, delay)
-	if p == nil {
+	in := polInputs{stages: stages, dur: dur, w: w, h: h, delay: delay}
+	key := in.hash()
+	p, ok := polMemo.Find(key, in)
+	if !ok {
 		p = buildPolarisation(stages, dur, w, h, delay)
-		polMemo.keep(key, stages, dur, w, h, delay, p)
+		polMemo.Keep(key, polInputs{stages: slices.Clone(stages), dur: slices.Clone(dur), w: slices.Clone(w), h: h, delay: delay}, p)
 	}
 	n := len(dur)
 	q := *p
@@ -133,69 +134,34 @@ type polInputs struct {
 	stages   []rc.Stage
 	dur, w   []float64
 	h, delay float64
-	p        *polarisation // shared: its br and late are never written
 }
 
-// polCache keeps the branches of recent inputs, by a hash of their bits;
-// an entry is used only when every input is equal (no collision can
-// change a result). It holds at most polCacheMax entries, then starts
-// afresh: a sweep uses a few, a fuzzer many.
-type polCache struct {
-	mu sync.RWMutex
-	m  map[uint64][]polInputs
-	n  int
-}
-
+// polMemo keeps the branches of recent inputs (internal/memo); the
+// polarisation kept is shared: its br and late are never written.
 const polCacheMax = 512
 
-var polMemo = &polCache{m: map[uint64][]polInputs{}}
+var polMemo = memo.New[polInputs, *polarisation](polCacheMax)
 
-// polKey hashes the inputs' bits (FNV-1a).
-func polKey(stages []rc.Stage, dur, w []float64, h, delay float64) uint64 {
-	x := uint64(14695981039346656037)
-	mix := func(f float64) {
-		x ^= math.Float64bits(f)
-		x *= 1099511628211
+func (in polInputs) hash() uint64 {
+	x := memo.Start()
+	for _, st := range in.stages {
+		x = x.Float(st.R).Float(st.Tau)
 	}
-	for _, st := range stages {
-		mix(st.R)
-		mix(st.Tau)
+	x = x.Float(float64(len(in.dur)))
+	for k := range in.dur {
+		x = x.Float(in.dur[k]).Float(in.w[k])
 	}
-	mix(float64(len(dur)))
-	for k := range dur {
-		mix(dur[k])
-		mix(w[k])
-	}
-	mix(h)
-	mix(delay)
-	return x
+	return uint64(x.Float(in.h).Float(in.delay))
 }
 
-func (c *polCache) find(key uint64, stages []rc.Stage, dur, w []float64, h, delay float64) *polarisation {
-	c.mu.RLock()
-	defer c.mu.RUnlock()
-	for _, in := range c.m[key] {
-		if slices.Equal(in.stages, stages) && slices.Equal(in.dur, dur) && slices.Equal(in.w, w) &&
-			sameBits(in.h, h) && sameBits(in.delay, delay) {
-			return in.p
-		}
-	}
-	return nil
+// Same is equality of every input (the stages and durations by value).
+func (in polInputs) Same(o polInputs) bool {
+	return slices.Equal(in.stages, o.stages) && slices.Equal(in.dur, o.dur) && slices.Equal(in.w, o.w) &&
+		memo.SameBits(in.h, o.h) && memo.SameBits(in.delay, o.delay)
 }
 
-func (c *polCache) keep(key uint64, stages []rc.Stage, dur, w []float64, h, delay float64, p *polarisation) {
-	c.mu.Lock()
-	defer c.mu.Unlock()
-	if c.n >= polCacheMax {
-		clear(c.m)
-		c.n = 0
-	}
-	c.m[key] = append(c.m[key], polInputs{stages: slices.Clone(stages), dur: slices.Clone(dur), w: slices.Clone(w), h: h, delay: delay, p: p})
-	c.n++
-}
-
-// sameBits is equality that also holds for two NaNs of the same bits.
-func sameBits(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }
+// sameBits is memo.SameBits.
+func sameBits(a, b float64) bool { return memo.SameBits(a, b) }
 
 // buildPolarisation is newPolarisation without the memo.
 func buildPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *polarisation {

@@ -1,10 +1,9 @@
 package discharge
 
 import (
-	"math"
 	"slices"
-	"sync"
 
+	"headroom/internal/memo"
 	"headroom/protect"
 )
 
@@ -41,24 +40,10 @@ type stillOutcome struct {
 	ok  bool
 }
 
-type stillEntry struct {
-	k stillKey
-	o *stillOutcome
-}
-
-// stillCache keeps recent outcomes by a hash of their inputs' bits; an
-// entry is used only when every input is equal to the bit (no collision
-// can change a result). At most stillCacheMax entries, then it starts
-// afresh.
-type stillCache struct {
-	mu sync.RWMutex
-	m  map[uint64][]stillEntry
-	n  int
-}
-
+// stillMemo keeps recent outcomes (internal/memo), shared read-only.
 const stillCacheMax = 512
 
-var stillMemo = &stillCache{m: map[uint64][]stillEntry{}}
+var stillMemo = memo.New[stillKey, *stillOutcome](stillCacheMax)
 
 // stillKeyOf gathers the inputs of v's still settle with nd solved on
 // the fresh pack at ambient; ok is false for an element the memo does
@@ -83,29 +68,15 @@ func (e *evaluator) stillKeyOf(nd *node) (stillKey, bool) {
 }
 
 func (k *stillKey) hash() uint64 {
-	x := uint64(14695981039346656037)
-	mix := func(f float64) {
-		x ^= math.Float64bits(f)
-		x *= 1099511628211
-	}
-	mix(k.T)
-	mix(k.S)
-	mix(k.P)
-	mix(btoi(k.pol))
-	mix(k.Epack)
-	mix(k.Rp)
-	mix(k.E)
-	mix(float64(len(k.loads)))
+	x := memo.Start().Float(k.T).Float(k.S).Float(k.P).Float(btoi(k.pol)).Float(k.Epack).Float(k.Rp).Float(k.E)
+	x = x.Float(float64(len(k.loads)))
 	for i := range k.loads {
-		mix(k.loads[i].Amps)
-		mix(k.secs[i])
+		x = x.Float(k.loads[i].Amps).Float(k.secs[i])
 	}
 	for i := range k.self {
-		mix(k.self[i])
-		mix(k.mean[i])
-		mix(k.icell[i])
+		x = x.Float(k.self[i]).Float(k.mean[i]).Float(k.icell[i])
 	}
-	return x
+	return uint64(x)
 }
 
 // sameLoads is bit equality of two constant-current profiles' loads.
@@ -113,35 +84,17 @@ func sameLoads(a, b []Load) bool {
 	return slices.EqualFunc(a, b, func(x, y Load) bool { return x.Kind == y.Kind && sameBits(x.Amps, y.Amps) })
 }
 
-func sameFloats(a, b []float64) bool { return slices.EqualFunc(a, b, sameBits) }
-
-func (k *stillKey) equal(o *stillKey) bool {
+// Same is bit equality of every input.
+func (k stillKey) Same(o stillKey) bool {
 	return k.el == o.el && sameBits(k.T, o.T) && sameBits(k.S, o.S) && sameBits(k.P, o.P) && k.pol == o.pol &&
 		sameBits(k.Epack, o.Epack) && sameBits(k.Rp, o.Rp) && sameBits(k.E, o.E) &&
-		sameLoads(k.loads, o.loads) && sameFloats(k.secs, o.secs) &&
-		sameFloats(k.self, o.self) && sameFloats(k.mean, o.mean) && sameFloats(k.icell, o.icell)
+		sameLoads(k.loads, o.loads) && memo.SameFloats(k.secs, o.secs) &&
+		memo.SameFloats(k.self, o.self) && memo.SameFloats(k.mean, o.mean) && memo.SameFloats(k.icell, o.icell)
 }
 
-func (c *stillCache) find(h uint64, k *stillKey) *stillOutcome {
-	c.mu.RLock()
-	defer c.mu.RUnlock()
-	for i := range c.m[h] {
-		if en := &c.m[h][i]; en.k.equal(k) {
-			return en.o
-		}
-	}
-	return nil
-}
-
-// keep stores o for k, cloning k's slices (they belong to the evaluation).
-func (c *stillCache) keep(h uint64, k stillKey, o *stillOutcome) {
+// kept is k with its slices cloned (they belong to the evaluation), for
+// the memo to keep.
+func (k stillKey) kept() stillKey {
 	k.loads, k.secs, k.self, k.mean, k.icell = slices.Clone(k.loads), slices.Clone(k.secs), slices.Clone(k.self), slices.Clone(k.mean), slices.Clone(k.icell)
-	c.mu.Lock()
-	defer c.mu.Unlock()
-	if c.n >= stillCacheMax {
-		clear(c.m)
-		c.n = 0
-	}
-	c.m[h] = append(c.m[h], stillEntry{k: k, o: o})
-	c.n++
+	return k
 }

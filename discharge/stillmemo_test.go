@@ -25,19 +25,14 @@ func TestMemosGiveSameResult(t *testing.T) {
 	for range 300 {
 		designs = append(designs, shortcutDesign(rng))
 	}
-	stillMemo.mu.Lock()
-	clear(stillMemo.m)
-	stillMemo.n = 0
-	stillMemo.mu.Unlock()
+	stillMemo.Clear()
 	fresh := make([]*Result, len(designs))
 	for i, d := range designs {
 		if r, err := Evaluate(d); err == nil {
 			fresh[i] = r
 		}
 	}
-	stillMemo.mu.RLock()
-	hits := stillMemo.n // settles kept: the pass below takes each from the memo
-	stillMemo.mu.RUnlock()
+	hits := stillMemo.Len() // settles kept: the pass below takes each from the memo
 	if hits < 20 {
 		t.Fatalf("only %d of %d designs settle still junctions the memo keeps: the check hardly covers it", hits, len(designs))
 	}

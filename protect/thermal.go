@@ -3,8 +3,8 @@ package protect
 import (
 	"math"
 	"slices"
-	"sync"
 
+	"headroom/internal/memo"
 	"headroom/internal/rc"
 	"headroom/internal/units"
 )
@@ -173,11 +173,12 @@ type Heating struct {
 // inputs (heatMemo) and shared, read-only; each Heating gets its own
 // scratch.
 func NewHeating(t Thermal, secs []float64) *Heating {
-	key := heatKey(t, secs)
-	sh := heatMemo.find(key, t, secs)
-	if sh == nil {
+	in := heatInputs{t: t, secs: secs}
+	key := in.hash()
+	sh, ok := heatMemo.Find(key, in)
+	if !ok {
 		sh = buildHeating(t, secs)
-		heatMemo.keep(key, sh)
+		heatMemo.Keep(key, heatInputs{t: t, secs: slices.Clone(secs)}, sh)
 	}
 	n := len(secs)
 	buf := make([]float64, 3*n)
@@ -206,69 +207,28 @@ func buildHeating(t Thermal, secs []float64) *Heating {
 	return h
 }
 
-// heatCache keeps the shared part of recent Heatings, by a hash of their
-// inputs' bits; an entry is used only when the network and every
-// duration are equal to the bit (no collision can change a result). It
-// holds at most heatCacheMax entries, then starts afresh.
-type heatCache struct {
-	mu sync.RWMutex
-	m  map[uint64][]*Heating // shared: train, secs and self are never written
-	n  int
+// heatInputs is what a Heating's shared part depends on. heatMemo keeps
+// the shared part of recent Heatings (internal/memo): train, secs and
+// self are never written.
+type heatInputs struct {
+	t    Thermal
+	secs []float64
 }
 
 const heatCacheMax = 256
 
-var heatMemo = &heatCache{m: map[uint64][]*Heating{}}
+var heatMemo = memo.New[heatInputs, *Heating](heatCacheMax)
 
-// heatKey hashes the inputs' bits (FNV-1a).
-func heatKey(t Thermal, secs []float64) uint64 {
-	x := uint64(14695981039346656037)
-	mix := func(f float64) {
-		x ^= math.Float64bits(f)
-		x *= 1099511628211
-	}
-	mix(t.ThetaJA)
-	mix(t.TjMax)
-	mix(t.Fast)
-	mix(t.TauFast)
-	mix(t.Tau)
-	mix(float64(len(secs)))
-	for _, s := range secs {
-		mix(s)
-	}
-	return x
+func (in heatInputs) hash() uint64 {
+	t := in.t
+	return uint64(memo.Start().Float(t.ThetaJA).Float(t.TjMax).Float(t.Fast).Float(t.TauFast).Float(t.Tau).Floats(in.secs))
 }
 
-// sameThermal is bit equality of two networks (two NaNs of the same bits
-// are equal, so a NaN input still finds its own entry).
-func sameThermal(a, b Thermal) bool {
-	eq := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
-	return eq(a.ThetaJA, b.ThetaJA) && eq(a.TjMax, b.TjMax) && eq(a.Fast, b.Fast) &&
-		eq(a.TauFast, b.TauFast) && eq(a.Tau, b.Tau)
-}
-
-func (c *heatCache) find(key uint64, t Thermal, secs []float64) *Heating {
-	c.mu.RLock()
-	defer c.mu.RUnlock()
-	for _, h := range c.m[key] {
-		if sameThermal(h.th, t) && slices.EqualFunc(h.secs, secs, func(a, b float64) bool {
-			return math.Float64bits(a) == math.Float64bits(b)
-		}) {
-			return h
-		}
-	}
-	return nil
-}
-
-func (c *heatCache) keep(key uint64, h *Heating) {
-	c.mu.Lock()
-	defer c.mu.Unlock()
-	if c.n >= heatCacheMax {
-		clear(c.m)
-		c.n = 0
-	}
-	c.m[key] = append(c.m[key], h)
-	c.n++
+// Same is bit equality of the network and every duration.
+func (in heatInputs) Same(o heatInputs) bool {
+	a, b := in.t, o.t
+	return memo.SameBits(a.ThetaJA, b.ThetaJA) && memo.SameBits(a.TjMax, b.TjMax) && memo.SameBits(a.Fast, b.Fast) &&
+		memo.SameBits(a.TauFast, b.TauFast) && memo.SameBits(a.Tau, b.Tau) && memo.SameFloats(in.secs, o.secs)
 }
 
 // Cycle is the junction's periodic steady state over one profile cycle.
