@@ -184,9 +184,15 @@ type evaluator struct {
 	atZero bool
 	// general is set to take no shortcut (evaluateWith); skipped counts
 	// the cut-off searches and capacity scales the shortcuts saved, for
-	// the tests.
+	// the tests, and resumed the searches that resumed at a cut-off found
+	// by another run (stranded.go, worksAsBare).
 	general bool
 	skipped int
+	resumed int
+	// nodes counts the node solves (solveNode at a charge, each pass of a
+	// junction's settle one): the benchmarks report it beside the time,
+	// a measure of the work that the machine's load does not move.
+	nodes int
 }
 
 // Evaluate computes runtime, capacity and losses for design d.

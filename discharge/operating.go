@@ -440,6 +440,7 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		e.settleNode(qs, v, nd)
 		return
 	}
+	e.nodes++
 	nd.E, nd.R0 = e.source(qs)
 	nd.Epack, nd.Rp = e.S*nd.E, e.S*nd.R0/e.P
 	nd.cellC, nd.cellPeakC = e.T, e.T
