@@ -75,7 +75,7 @@ func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found {
 	first := 1
 	lo := bound{0, 0, noRules}
-	lazy := false
+	lazy, solved := false, false
 	if from > 0 {
 		j := sort.SearchFloat64s(e.breaks, from)
 		if j == len(e.breaks) || e.breaks[j] > from {
@@ -85,7 +85,7 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 			first, lo, lazy = j+1, bound{e.breaks[j], math.NaN(), noRules}, true
 		} else if j > 0 {
 			if f, m, r := e.marginWhy(e.breaks[j], v, nd); f == "" {
-				first, lo = j+1, bound{e.breaks[j], m, r}
+				first, lo, solved = j+1, bound{e.breaks[j], m, r}, true
 			}
 		}
 	}
@@ -106,13 +106,21 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 			e.last = found{v: v, why: f}
 			return e.last
 		}
-		lo.m, lo.r = m, r
+		lo.m, lo.r, solved = m, r, true
 	}
+	// A breakpoint where the margins' lower bound clears every rule
+	// works without a solve (surely.go).
+	e.sureFor(v, nd, solved)
 	// Scan the breakpoints in order for the first that fails: a
 	// bisection over them would be faster but could step over a span
 	// where a rule fails and then holds again (a MOSFET handing over to
 	// its body diode), which the first failure must not miss.
 	for i, b := range e.breaks[first:] {
+		if e.surelyWorks(v, b) {
+			lo, lazy = bound{b, math.NaN(), noRules}, true
+			e.surely++
+			continue
+		}
 		f, m, r := e.marginWhy(b, v, nd)
 		if e.keepRates && v == &e.real && b < e.end {
 			e.keep(first+i, b, nd)
@@ -124,7 +132,11 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 		if lazy {
 			var fl Cause
 			if fl, lo.m, lo.r = e.marginWhy(lo.q, v, nd); fl != "" {
-				return e.search(v, nd, from, false) // not as promised: as cutoff would
+				// Not as promised: as cutoff would, with no bound.
+				e.noSure = true
+				f := e.search(v, nd, from, false)
+				e.noSure = false
+				return f
 			}
 		}
 		e.last = e.narrowWhy(v, nd, lo, bound{b, m, r}, f)

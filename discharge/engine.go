@@ -189,6 +189,12 @@ type evaluator struct {
 	general bool
 	skipped int
 	resumed int
+	surely  int // breakpoints the scan took as working by the bound (surely.go)
+	// sure is the margins' lower bound for the cut-off scan (surely.go),
+	// sureCur its scratch; noSure switches it off.
+	sure    sure
+	sureCur []float64
+	noSure  bool
 	// nodes counts the node solves (solveNode at a charge, each pass of a
 	// junction's settle one): the benchmarks report it beside the time,
 	// a measure of the work that the machine's load does not move.
@@ -314,8 +320,9 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// solved with the fresh pack (clock), with the rested start's
 	// polarisation: unless the run is taken as day-periodic from the
 	// start, its search starts from that (atZero).
-	kept := lin && e.therm == nil && (real.heat == nil || real.heat.still)
-	e.keepRates, e.atZero = kept, kept && !real.periodicOnly
+	held := lin && (real.heat == nil || real.heat.still)
+	kept := held && e.therm == nil
+	e.keepRates, e.atZero = kept, held && !real.periodicOnly
 	qsCut := e.cutoff(real, nd, 0)
 	e.keepRates, e.atZero = false, false
 
@@ -501,9 +508,11 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		total += p.Seconds
 	}
 	n := len(d.Profile)
-	f := make([]float64, 4*n) // one backing array for the per-phase figures
-	e.w, e.hint, e.cur = f[:0:n], f[n:2*n:2*n], f[3*n:]
+	f := make([]float64, 17*n) // one backing array for the per-phase figures
+	e.w, e.hint, e.cur = f[:0:n], f[n:2*n:2*n], f[3*n:4*n:4*n]
 	dur := f[2*n : 2*n : 3*n]
+	e.sure.dropW, e.sure.dropM, e.sureCur = f[4*n:5*n:5*n], f[5*n:6*n:6*n], f[6*n:7*n:7*n]
+	e.sure.ps.init(f[7*n:])
 	e.loads, e.drops = make([]Load, 0, n), make([]dropMemo, n)
 	for _, p := range d.Profile {
 		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED
