@@ -377,10 +377,10 @@ type node struct {
 }
 
 // newNode is the evaluation's node: it lives in the evaluator, its
-// figures in two allocations.
+// figures in two arrays the evaluator keeps (evalBufs).
 func (e *evaluator) newNode() *node {
 	n := len(e.loads)
-	ops := make([]op, 2*n)
+	ops := e.bufs.ops.take(2 * n)
 	nb := 0 // the branches whose heat a self-heating cell's state keeps
 	if e.pol != nil && e.therm != nil {
 		nb = len(e.pol.br)
@@ -389,7 +389,7 @@ func (e *evaluator) newNode() *node {
 	if nb > 0 {
 		hot = 10*n + 2*nb
 	}
-	f := make([]float64, 14*n+hot)
+	f := e.bufs.nodeF.take(14*n + hot)
 	nd := &e.nd
 	*nd = node{mean: ops[:n:n], worst: ops[n:], late: f[:n:n], icell: f[n : 2*n : 2*n],
 		polI: f[2*n : 3*n : 3*n], iraw: f[3*n : 4*n : 4*n], polRest: math.NaN(), cellC: e.T, cellPeakC: e.T}
