@@ -121,6 +121,7 @@ func (m lineupModel) View(sh *shared) string {
 	if m.sel >= off+room {
 		off = m.sel - room + 1
 	}
+	short := false // a row shown lasts less than a day of use
 	for i := off; i < len(rows) && i < off+room; i++ {
 		r := rows[i]
 		mark := "  "
@@ -152,7 +153,12 @@ func (m lineupModel) View(sh *shared) string {
 		if i == m.sel {
 			name = st.Selected.Render(name)
 		}
-		b.WriteString(mark + rank + name + " " + st.Value.Render(pad(hours(res.RuntimeH), runW)) + " " +
+		run := hours(res.RuntimeH)
+		if r.short() {
+			run += "*"
+			short = true
+		}
+		b.WriteString(mark + rank + name + " " + st.Value.Render(pad(run, runW)) + " " +
 			st.Bar.Render(pad(bar(frac, barW), barW)) + " " + pad(cost, costW) + " " +
 			pad(pct(res.StrandedMAh, res.ReferenceMAh), strW) + " " +
 			st.Dim.Render(pad(shortCause(res.CutoffCause, res.CutoffPhase), causeW)) + "\n")
@@ -160,7 +166,11 @@ func (m lineupModel) View(sh *shared) string {
 	if len(rows) > room {
 		b.WriteString(st.Dim.Render(fmt.Sprintf("  rows %d–%d of %d; ↑/↓ scroll", off+1, min(len(rows), off+room), len(rows))) + "\n")
 	}
-	for _, l := range wrapLines("Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price (and charger) ÷ the hours of its cycle life, cycles counted by the charge used, capacity fading to 80 %, plus charging energy.", w) {
+	note := "Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price (and charger) ÷ the hours of its cycle life, cycles counted by the charge used, capacity fading to 80 %, plus charging energy."
+	if short {
+		note = "* lasts less than a day's use: ranked after the cells that last a day. " + note
+	}
+	for _, l := range wrapLines(note, w) {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	if m.sel < len(rows) {
