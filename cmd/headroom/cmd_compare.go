@@ -34,7 +34,9 @@ Columns: runtime in hours of use, packs bought (primary) or charges
 pack price ÷ runtime; rechargeable: pack price ÷ cycle life plus the charging
 energy, per hour), cost per year, stranded % of the reference, the pack +
 protection part cost, and the chemistry's main caution. Rows are ranked by
-cost per hour, cheapest first; designs that never start go last.
+cost per hour, cheapest first; a pack (or a charge) that lasts less than a
+day of the product's use is marked * and ranked after those that last a
+day; designs that never start go last.
 
 flags:
   --budget DOLLARS  most a pack + protection part may cost (default: the
@@ -208,7 +210,7 @@ func compareColumns(withBudget bool) []column[compareRow] {
 				return fixed(r.r.RuntimeH, 2) + " " // the figures stay aligned
 			},
 			val: func(r compareRow) any { return r.r.RuntimeH }},
-		{key: "lasts_a_day", machine: true, val: func(r compareRow) any { return !r.short }},
+		{key: "lasts_a_day", machine: true, val: func(r compareRow) any { return r.r.RuntimeH > 0 && !r.short }},
 		{key: "rechargeable", machine: true, val: func(r compareRow) any { return r.cell.Rechargeable }},
 		{key: "packs_per_year", head: "per year", right: true, human: true, machine: true,
 			text: func(r compareRow) string {
