@@ -488,3 +488,62 @@ func FuzzCustomDesign(f *testing.F) {
 		}
 	})
 }
+
+// A failure that comes and goes: cells whose resistance rises with their
+// own heat (a temperature table's factor at 23 °C five times its factor
+// at 3 °C) run away thermally at 108 mAh under a 1.06 A phase — a jump
+// from 3 to 44 °C, the load collapsing — and work again past about
+// 160 mAh, hotter still (51 °C) where the table's factor falls again. The design (its floor
+// makes the next breakpoint fail) finds the collapse; a run without the
+// floor scanned from another start steps over it, as a separate
+// evaluation of that design does (the split's definition: each run the
+// run a separate evaluation makes, checkSplitByRuns). The shortcuts that
+// took the design's collapse for the run's own gave 781 mAh stranded by
+// the element where the general path and the separate runs give 532.
+// Found by a random search over custom cells (customDesign's kind). No
+// outside source: the shortcuts against the path that takes none, to
+// the searches' resolution (1e-12 of the curve; 1e-9 allowed).
+func TestShortcutsHeatWindow(t *testing.T) {
+	c := &curves.Cell{ID: "window", RatedMAh: 913.8382578991476, RatedCurrent: 0.2045794659958456, EndPoint: 0.3073232655481525,
+		NominalV: 1.967917010441893, Peukert: 1.1174637271909051,
+		Curve: curves.MustCurve([]float64{0, 283.3339639953455, 380.5162915011655, 468.97402075349663, 814.75934284183, 913.8382578991476},
+			[]float64{2.5789867158063142, 2.5789867158063142, 2.1158182844277564, 1.7138720417792486, 1.6961072680352014, 1.3568473050774716}),
+		Resistance: []curves.ResistancePoint{{Depth: 0.18496501258630715, Ohm: 0.9103319834249818}},
+		Temperature: []curves.TempPoint{{Celsius: -24.87669773773664, Capacity: 0.6345122047052785, Resistance: 1.216074721348793},
+			{Celsius: 3.15833225080846, Capacity: 1.066666303762594, Resistance: 0.5615379389229038},
+			{Celsius: 23.14901330648858, Capacity: 0.47015298035703523, Resistance: 2.803517593232516},
+			{Celsius: 50.92834312109486, Capacity: 0.9702448761869957, Resistance: 1.7746802293988055},
+			{Celsius: 53.69887733663177, Capacity: 0.7031194905597713, Resistance: 0.863174109401657}},
+		RC:           []rc.Stage{{R: 0.6084042024361057, Tau: 666.3898296862687}, {R: 1.0928924713986907, Tau: 0.8760519274323477}},
+		HeatCapacity: 7.1745606991674205, ThermalRes: 126.26338357154896}
+	diode := protect.DefaultDiode()
+	diode.Junction.Rs = 0.0006382248718577177
+	d := &Design{Cell: c, Series: 3, Parallel: 2, Protect: diode, Floor: 1.0279479154660116, TempC: -12.420253583350089,
+		Profile: []Phase{{Load: Load{Kind: ConstantCurrent, Amps: 0.06244206648248546}, Seconds: 0.6564137022574835},
+			{Load: Load{Kind: ConstantCurrent, Amps: 1.0595135712941481}, Seconds: 1.9688790762011006}}}
+	fast, _, err := evaluateWith(d, gaussX, gaussW, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	gen, _, err := evaluateWith(d, gaussX, gaussW, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fast.CutoffCause != CauseCollapse {
+		t.Fatalf("the design ends by %s, want the collapse (the case this test is about)", fast.CutoffCause)
+	}
+	curve := c.Curve.End() * float64(d.Parallel) * gen.CapacityFactor
+	for _, x := range []struct {
+		name      string
+		fast, gen float64
+	}{
+		{"delivered", fast.DeliveredMAh, gen.DeliveredMAh},
+		{"reference", fast.ReferenceMAh, gen.ReferenceMAh},
+		{"stranded by the element", fast.StrandedByProtectionMAh, gen.StrandedByProtectionMAh},
+		{"stranded by the floor", fast.StrandedByFloorMAh, gen.StrandedByFloorMAh},
+	} {
+		if math.Abs(x.fast-x.gen) > 1e-9*curve {
+			t.Errorf("%s: %.9g mAh with shortcuts, %.9g without", x.name, x.fast, x.gen)
+		}
+	}
+}
