@@ -78,8 +78,11 @@ func TestSurelyWorksIsABound(t *testing.T) {
 				if m < b-1e-12 {
 					t.Fatalf("design %d (%s, %s): bound %.12g V above the margin %.12g V at %.6g mAh", n, d.Cell.ID, d.Protect.Spec(), b, m, qs)
 				}
-				periodic := e.pol == nil || v.periodicOnly || qs*v.usePerQ >= e.sess // else the rested start's, below the bound's
-				if e.therm == nil && periodic && m < 1 {                             // the margin is a voltage rule (a limit's margin is in amperes and large)
+				// Exact only where the node's polarisation is periodic (else
+				// the rested start's, below the bound's), and on a voltage
+				// rule (a limit's margin is in amperes and large).
+				periodic := e.pol == nil || v.periodicOnly || qs*v.usePerQ >= e.sess
+				if e.therm == nil && periodic && m < 1 {
 					if math.Abs(m-b) > 1e-9 {
 						t.Fatalf("design %d (%s, %s): cells at the ambient, the bound %.12g V is not the node's margin %.12g V at %.6g mAh", n, d.Cell.ID, d.Protect.Spec(), b, m, qs)
 					}
