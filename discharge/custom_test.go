@@ -463,8 +463,11 @@ func FuzzCustomDesign(f *testing.F) {
 		}
 		// The search's resolution is 1e-12 of the curve (TestShortcutsMatchGeneralCustomCells).
 		curve := d.Cell.Curve.End() * float64(d.Parallel) * gen.CapacityFactor
-		if x := math.Abs(fast.DeliveredMAh-gen.DeliveredMAh) / curve; !(x <= 1e-10) {
-			t.Fatalf("%s: delivered %.12g with shortcuts, %.12g without", describeCustom(d), fast.DeliveredMAh, gen.DeliveredMAh)
+		for _, x := range [][2]float64{{fast.DeliveredMAh, gen.DeliveredMAh}, {fast.ReferenceMAh, gen.ReferenceMAh},
+			{fast.StrandedByProtectionMAh, gen.StrandedByProtectionMAh}, {fast.StrandedByFloorMAh, gen.StrandedByFloorMAh}} {
+			if !(math.Abs(x[0]-x[1]) <= 1e-10*curve) {
+				t.Fatalf("%s: delivered, reference or a stranded share %.12g mAh with shortcuts, %.12g without", describeCustom(d), x[0], x[1])
+			}
 		}
 		nd := &e.nd
 		for _, v := range []*variant{&e.real, &e.runs[0], &e.runs[1], &e.runs[2]} {
