@@ -90,6 +90,25 @@ func (s Shockley) Drop(i, tempC float64) float64 {
 	return nvt*math.Log1p(i/is) + i*s.Rs
 }
 
+// dropFloor is a lower bound on Drop(i, tempC) as Drop computes it,
+// rounding included, for a junction with its terms worked out at tempC
+// (At); 0 otherwise. It takes ln(1 + x) > ln x ≥ (e − 1)·ln 2 for x =
+// m·2^e, m in [½, 1) (math.Frexp): no logarithm. Drop's few roundings
+// (log1p within an ulp, a product and a sum) lower its value by well
+// under 1e-15 relative, the bound is taken 1e-12 lower.
+func (s Shockley) dropFloor(i, tempC float64) float64 {
+	a := s.at
+	if !(i > 0) || a == nil || a.tempC != tempC {
+		return 0
+	}
+	_, e := math.Frexp(i / a.is)
+	l := 0.0
+	if e > 1 {
+		l = float64(e-1) * math.Ln2
+	}
+	return (a.nvt*l + i*s.Rs) * (1 - 1e-12)
+}
+
 // Diode is a series PN diode in the supply rail: it blocks reversed cells
 // and costs a drop that falls about 2 mV/°C.
 //
@@ -209,17 +228,26 @@ func (s Schottky) AtTemp(tempC float64) Element {
 }
 
 func (m PMOS) AtTemp(tempC float64) Element {
-	m.Body = m.Body.At(tempC)
+	m.FET = m.FET.atTemp(tempC)
 	return m
 }
 
 func (m PMOSClamp) AtTemp(tempC float64) Element {
-	m.Body = m.Body.At(tempC)
+	m.FET = m.FET.atTemp(tempC)
 	return m
 }
 
+// atTemp is f with its body diode's and its channel's terms worked out
+// at tempC (the same arithmetic At and Shockley.Drop do at each call).
+func (f FET) atTemp(tempC float64) FET {
+	f.at = nil
+	f.Body = f.Body.At(tempC)
+	f.at = &fetAtTemp{tempC: tempC, v: f.At(tempC)}
+	return f
+}
+
 func (l Limiter) AtTemp(tempC float64) Element {
-	l.Body = l.Body.At(tempC)
+	l.FET = l.FET.atTemp(tempC)
 	q := l.PNP()
 	l.pnp = &junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
 	return l

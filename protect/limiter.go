@@ -150,7 +150,7 @@ func (l Limiter) Drop(i, vin, tempC float64) float64 {
 	f := l.At(tempC)
 	ia := i * f.A
 	b1 := vin - f.Vth
-	up := channelDrop(ia, b1, 0.5, 0.5*b1*b1, l.Body.Drop(i, tempC)) + i*(f.Rfix+l.Rsh) // d1 + i·Rsh
+	up := channelOrBody(ia, b1, 0.5, 0.5*b1*b1, l.Body, i, tempC) + i*(f.Rfix+l.Rsh) // d1 + i·Rsh
 	b2 := l.drive()*(vin-up) - l.Collector(i*l.Rsh, tempC)*l.rp() - f.Vth
 	if !(b2 > 0) || ia > 0.5*b2*b2 {
 		return math.Max(vin, up)
@@ -171,7 +171,7 @@ func (l Limiter) ClampAt(vin, tempC float64) float64 {
 	excess := func(i float64) float64 {
 		ia := i * f.A
 		b1 := vin - f.Vth
-		up := channelDrop(ia, b1, 0.5, 0.5*b1*b1, l.Body.Drop(i, tempC)) + i*(f.Rfix+l.Rsh)
+		up := channelOrBody(ia, b1, 0.5, 0.5*b1*b1, l.Body, i, tempC) + i*(f.Rfix+l.Rsh)
 		return k*(vin-up) - l.Collector(i*l.Rsh, tempC)*rp - f.Vth - math.Sqrt(2*ia)
 	}
 	if !(excess(0) > 0) {

@@ -1,0 +1,76 @@
+package protect
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// channelOrBody skips the body diode's logarithm where the channel's drop
+// is below the diode's least possible drop (Shockley.dropFloor): its
+// result must be channelDrop's with the diode worked out, to the bit, and
+// the floor must never exceed the drop Drop computes. Random junctions
+// over the fields' ranges, currents from nanoamperes to amperes, and
+// channels drawn so that their drop lands near the diode's (the place
+// where the comparison decides) as often as far below it. Exact equality
+// is the requirement: the skip is an exact rewrite, not an approximation.
+func TestChannelOrBodyIsChannelDrop(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 11))
+	skipped := 0
+	for n := 0; n < 200000; n++ {
+		body := Shockley{Is: math.Pow(10, -14+rng.Float64()*13), N: 0.5 + 3.5*rng.Float64(), Rs: rng.Float64() * 2,
+			Eg: 0.1 + 2.9*rng.Float64(), XTI: 10 * rng.Float64()}
+		tc := -40 + 200*rng.Float64()
+		fixed := body.At(tc)
+		i := math.Pow(10, -9+rng.Float64()*10)
+		diode := fixed.Drop(i, tc)
+		if f := fixed.dropFloor(i, tc); !(f <= diode) || f < 0 {
+			t.Fatalf("floor %v above the drop %v (%+v at %v A, %v °C)", f, diode, body, i, tc)
+		}
+		// A channel whose drop d = 2·ia/(b + sqrt(b² − 4c·ia)) is about
+		// target: ia = target·(b − c·target).
+		b := 0.1 + 10*rng.Float64()
+		c := 0.5
+		if rng.IntN(3) == 0 {
+			c = -0.5
+		}
+		target := diode * []float64{1e-3, 0.5, 0.999999, 1, 1.000001, 2}[rng.IntN(6)]
+		ia := math.Max(target*(b-c*target), 0)
+		sat := 0.5 * b * b
+		if rng.IntN(4) == 0 {
+			sat = math.Inf(1)
+		}
+		for _, bb := range []float64{b, -b} {
+			got := channelOrBody(ia, bb, c, sat, fixed, i, tc)
+			want := channelDrop(ia, bb, c, sat, diode)
+			if math.Float64bits(got) != math.Float64bits(want) {
+				t.Fatalf("channelOrBody %v, channelDrop %v (ia %v, b %v, c %v, diode %v)", got, want, ia, bb, c, diode)
+			}
+			if bb > 0 && got < diode {
+				skipped++
+			}
+		}
+		// Unfixed, or at another temperature: no floor, the diode is
+		// always worked out.
+		if body.dropFloor(i, tc) != 0 || fixed.dropFloor(i, tc+1) != 0 {
+			t.Fatal("a floor from terms not worked out at this temperature")
+		}
+	}
+	if skipped < 10000 {
+		t.Errorf("the channel was below the diode in only %d draws: the check hardly covers the skip", skipped)
+	}
+}
+
+// A FET fixed at a temperature (AtTemp) gives At's parameters there to
+// the bit, and elsewhere works them out afresh.
+func TestFETAtCached(t *testing.T) {
+	f := defaultFET()
+	for _, tc := range []float64{-30, 20, 25, 85} {
+		g := f.atTemp(tc)
+		for _, at := range []float64{tc, tc + 3} {
+			if g.At(at) != f.At(at) {
+				t.Errorf("fixed at %v °C, At(%v) %+v, want %+v", tc, at, g.At(at), f.At(at))
+			}
+		}
+	}
+}
