@@ -27,9 +27,17 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	// drop the operating point takes again (the same arguments, so the
 	// same value without a second solve of the element's law).
 	lastI, lastD := math.NaN(), 0.0
+	// A junction's law at T worked out once for the solve (its drop
+	// depends on the current alone): the same drops to the bit, one
+	// Log1p a call where the element is not fixed at T.
+	fw, isFw := forwardOf(el, T)
 	vload := func(i float64) float64 {
 		x := vin(i)
-		lastI, lastD = i, el.Drop(i, x, T)
+		if isFw {
+			lastI, lastD = i, fw.Drop(i)
+		} else {
+			lastI, lastD = i, el.Drop(i, x, T)
+		}
 		return x - lastD
 	}
 	var i float64
@@ -119,6 +127,18 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 			o.Fail = failLimit
 		}
 	}
+}
+
+// forwardOf is a junction element's forward law at t (protect.Forward):
+// its Drop(i) is el.Drop(i, vin, t) for any vin. False for other elements.
+func forwardOf(el protect.Element, t float64) (protect.Forward, bool) {
+	switch x := el.(type) {
+	case protect.Diode:
+		return x.ForwardAt(t), true
+	case protect.Schottky:
+		return x.ForwardAt(t), true
+	}
+	return protect.Forward{}, false
 }
 
 // reuseDrop lets solveTo take the drop of vload's last call at the

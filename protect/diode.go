@@ -73,6 +73,40 @@ func (s Shockley) Saturation(tempC float64) float64 {
 	return s.Is * math.Exp(s.XTI/s.N*math.Log(r)+s.Eg/(s.N*ThermalVoltage(t))*(r-1))
 }
 
+// Forward is a junction's forward law at one temperature, its terms
+// worked out once (Shockley.ForwardAt): Drop at any current then costs
+// one Log1p, and Slope a division. A value: making one allocates
+// nothing, unlike At.
+type Forward struct {
+	nvt, is, rs float64
+}
+
+// ForwardAt returns s's forward law at tempC: Drop(i) is s.Drop(i,
+// tempC) to the bit (the same terms by the same arithmetic, whether s has
+// them worked out there or not).
+func (s Shockley) ForwardAt(tempC float64) Forward {
+	if a := s.at; a != nil && a.tempC == tempC {
+		return Forward{nvt: a.nvt, is: a.is, rs: s.Rs}
+	}
+	t := tempC + ZeroCelsius
+	r := t / NominalK
+	nvt := s.N * ThermalVoltage(t)
+	return Forward{nvt: nvt, is: s.Is * math.Exp(s.XTI/s.N*math.Log(r)+s.Eg/nvt*(r-1)), rs: s.Rs}
+}
+
+// Drop is the forward voltage at current i (A), 0 for i ≤ 0.
+func (f Forward) Drop(i float64) float64 {
+	if !(i > 0) {
+		return 0
+	}
+	return f.nvt*math.Log1p(i/f.is) + i*f.rs
+}
+
+// Slope is dDrop/di at current i ≥ 0, ohms: n·Vt/(Is + i) + Rs.
+func (f Forward) Slope(i float64) float64 {
+	return f.nvt/(f.is+math.Max(i, 0)) + f.rs
+}
+
 // Drop returns the forward voltage at current i (A) and tempC (°C); 0 for
 // i ≤ 0. Closed form, no allocation.
 func (s Shockley) Drop(i, tempC float64) float64 {
@@ -136,6 +170,7 @@ func DefaultDiode() Diode {
 func (d Diode) Kind() string                         { return "diode" }
 func (d Diode) Spec() string                         { return specOf(d.Kind(), d.fields()) }
 func (d Diode) Drop(i, vin, tempC float64) float64   { return d.Junction.Drop(i, tempC) }
+func (d Diode) ForwardAt(tempC float64) Forward      { return d.Junction.ForwardAt(tempC) }
 func (d Diode) Quiescent(vin, tempC float64) float64 { return 0 }
 func (d Diode) Limit(tempC float64) Limit            { return NoLimit() }
 func (d Diode) Cost() float64                        { return d.Price }
