@@ -66,7 +66,7 @@ func TestChannelOrBodyIsChannelDrop(t *testing.T) {
 func TestFETAtCached(t *testing.T) {
 	f := defaultFET()
 	for _, tc := range []float64{-30, 20, 25, 85} {
-		g := f.atTemp(tc)
+		g, _ := f.atTemp(tc)
 		for _, at := range []float64{tc, tc + 3} {
 			if g.At(at) != f.At(at) {
 				t.Errorf("fixed at %v °C, At(%v) %+v, want %+v", tc, at, g.At(at), f.At(at))

@@ -60,9 +60,15 @@ type junctionAt struct {
 // Drop at that temperature costs one Log1p instead of a Log, an Exp and a
 // Log1p. The result is a new value; s is unchanged.
 func (s Shockley) At(tempC float64) Shockley {
-	t := tempC + ZeroCelsius
-	s.at = &junctionAt{tempC: tempC, is: s.Saturation(tempC), nvt: s.N * ThermalVoltage(t)}
+	a := s.termsAt(tempC)
+	s.at = &a
 	return s
+}
+
+// termsAt is s's temperature terms at tempC, as At keeps them.
+func (s Shockley) termsAt(tempC float64) junctionAt {
+	t := tempC + ZeroCelsius
+	return junctionAt{tempC: tempC, is: s.Saturation(tempC), nvt: s.N * ThermalVoltage(t)}
 }
 
 // Saturation returns Is at tempC (°C), in amperes. Its reverse current: an
@@ -263,27 +269,41 @@ func (s Schottky) AtTemp(tempC float64) Element {
 }
 
 func (m PMOS) AtTemp(tempC float64) Element {
-	m.FET = m.FET.atTemp(tempC)
+	m.FET, _ = m.FET.atTemp(tempC)
 	return m
 }
 
 func (m PMOSClamp) AtTemp(tempC float64) Element {
-	m.FET = m.FET.atTemp(tempC)
+	m.FET, _ = m.FET.atTemp(tempC)
 	return m
 }
 
+// fetTerms is a FET element's temperature terms at one temperature, in
+// one allocation: its body diode's, its channel's and (a limiter) its
+// sense transistor's.
+type fetTerms struct {
+	body, pnp junctionAt
+	fet       fetAtTemp
+}
+
 // atTemp is f with its body diode's and its channel's terms worked out
-// at tempC (the same arithmetic At and Shockley.Drop do at each call).
-func (f FET) atTemp(tempC float64) FET {
+// at tempC (the same arithmetic At and Shockley.Drop do at each call),
+// and the terms' allocation, with room for a limiter's PNP.
+func (f FET) atTemp(tempC float64) (FET, *fetTerms) {
+	w := new(fetTerms)
 	f.at = nil
-	f.Body = f.Body.At(tempC)
-	f.at = &fetAtTemp{tempC: tempC, v: f.At(tempC)}
-	return f
+	w.body = f.Body.termsAt(tempC)
+	f.Body.at = &w.body
+	w.fet = fetAtTemp{tempC: tempC, v: f.At(tempC)}
+	f.at = &w.fet
+	return f, w
 }
 
 func (l Limiter) AtTemp(tempC float64) Element {
-	l.FET = l.FET.atTemp(tempC)
+	var w *fetTerms
+	l.FET, w = l.FET.atTemp(tempC)
 	q := l.PNP()
-	l.pnp = &junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
+	w.pnp = junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
+	l.pnp = &w.pnp
 	return l
 }
