@@ -74,3 +74,34 @@ func TestFETAtCached(t *testing.T) {
 		}
 	}
 }
+
+// An element fixed again at another temperature (the engine fixes the
+// element it was given at the ambient, then at each junction temperature
+// it meets) gives the drops, and a limiter the clamp, of one fixed there
+// directly, to the bit: the terms it keeps from the first fixing (a
+// limiter's PNP) are the ones the second would work out.
+func TestRefixedIsFixed(t *testing.T) {
+	for _, spec := range append(Kinds(), "limiter:vbe=0.6", "pmos:vth=1.2") {
+		e, err := Parse(spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, a := range []float64{-10, 20} {
+			for _, b := range []float64{20, 47.3, 120} {
+				twice, once := Fixed(Fixed(e, a), b), Fixed(e, b)
+				for _, i := range []float64{1e-4, 0.05, 0.3, 0.6, 2} {
+					for _, vin := range []float64{1.1, 2.4, 3.2, 9} {
+						if x, y := twice.Drop(i, vin, b), once.Drop(i, vin, b); math.Float64bits(x) != math.Float64bits(y) {
+							t.Errorf("%s fixed at %v then %v °C: drop %v, fixed at %v once: %v", spec, a, b, x, b, y)
+						}
+					}
+				}
+				if c, ok := twice.(Clamper); ok {
+					if x, y := c.ClampAt(2.9, b), once.(Clamper).ClampAt(2.9, b); x != y {
+						t.Errorf("%s: clamp %v refixed, %v fixed once", spec, x, y)
+					}
+				}
+			}
+		}
+	}
+}

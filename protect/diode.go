@@ -284,6 +284,11 @@ func (m PMOSClamp) AtTemp(tempC float64) Element {
 type fetTerms struct {
 	body, pnp junctionAt
 	fet       fetAtTemp
+	// pnpIs is the limiter's PNP's saturation current at 27 °C
+	// (Limiter.PNP), which depends on its Vbe alone: kept so that fixing
+	// the limiter again at another temperature does not work it out again.
+	// vbe is the Vbe it was worked out from.
+	pnpIs, vbe float64
 }
 
 // atTemp is f with its body diode's and its channel's terms worked out
@@ -301,9 +306,15 @@ func (f FET) atTemp(tempC float64) (FET, *fetTerms) {
 
 func (l Limiter) AtTemp(tempC float64) Element {
 	var w *fetTerms
+	var q Shockley
+	if l.terms != nil && l.terms.vbe == l.Vbe {
+		q = Shockley{Is: l.terms.pnpIs, N: 1, Eg: pnpEg, XTI: pnpXTI} // l.PNP(), kept
+	} else {
+		q = l.PNP()
+	}
 	l.FET, w = l.FET.atTemp(tempC)
-	q := l.PNP()
+	w.pnpIs, w.vbe = q.Is, l.Vbe
 	w.pnp = junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
-	l.pnp = &w.pnp
+	l.pnp, l.terms = &w.pnp, w
 	return l
 }

@@ -72,6 +72,8 @@ type Limiter struct {
 	// pnp holds the PNP's Is(T) and Vt(T) for one temperature (AtTemp);
 	// not a parameter.
 	pnp *junctionAt
+	// terms is where pnp lives, with the PNP's nominal Is (AtTemp).
+	terms *fetTerms
 }
 
 // DefaultLimiter is a 1 Ω sense resistor, a small-signal PNP with Vbe
