@@ -78,7 +78,7 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 			}
 			i, ok = powerPoint(vload, slope, pin, E, hint)
 			if !ok && !none && !(junction(v.el) && scanMisses(vload, pin, i)) {
-				i, ok = scanPower(vload, pin, i)
+				i, ok = scanPower(vload, pin, i, protect.LoadVoltageFalls(el), E)
 			}
 			if ok {
 				e.hint[k] = i
@@ -232,19 +232,31 @@ func powerPoint(vload, slope func(float64) float64, pin, E, i0 float64) (float64
 // the product is not concave, and Newton can stop at a false peak or at
 // the jump. It scans from zero to where the load voltage runs out and
 // brackets the first crossing; false when there is none (a collapse).
-func scanPower(vload func(float64) float64, pin, at float64) (float64, bool) {
+//
+// falls says that the load voltage never rises with the current
+// (protect.LoadVoltageFalls; E is the source's voltage): then from the
+// first grid point where it is at or below zero no later point can reach
+// pin, and the scan stops there with the answer the whole grid gives.
+// (Rounding could leave a later point's voltage a few ulps of E above
+// zero, a power of that times the current: the stop is taken only where
+// even 1e-9·E at the grid's end is under pin.)
+func scanPower(vload func(float64) float64, pin, at float64, falls bool, E float64) (float64, bool) {
 	hi := math.Max(at, 1e-9)
 	for k := 0; k < 60 && vload(hi) > 0; k++ {
 		hi *= 2
 	}
 	const n = 128
-	P := func(x float64) float64 { return x*vload(x) - pin }
+	falls = falls && hi*1e-9*math.Abs(E) < pin
 	lo, flo := 0.0, -pin
 	for j := 1; j <= n; j++ {
 		x := hi * float64(j) / n
-		fx := P(x)
+		v := vload(x)
+		fx := x*v - pin
 		if fx >= 0 {
-			return bracketRootF(P, lo, x, flo, fx), true
+			return bracketRootF(func(x float64) float64 { return x*vload(x) - pin }, lo, x, flo, fx), true
+		}
+		if falls && v <= 0 {
+			break // no later point reaches pin
 		}
 		lo, flo = x, fx
 	}
