@@ -24,47 +24,30 @@ func benchDesign(b *testing.B, load string) *Design {
 }
 
 // BenchmarkEvaluateConstant: 2×LR6 behind a series diode, one constant
-// current. Goal: median ≤ 10 µs per evaluation (not met: 13.5 µs at load
-// about 2, 14.8 µs at load 5–7, 29 allocations, medians of 10 on the
-// shared 2-core machine with the junctions settled at every charge and
-// the cells' self-heating; 17.4 µs before the speed pass, 12.6 µs after
-// it and before those; README §Performance). The memos shared across
-// evaluations (the still junctions' settle, stillMemo; the element's
-// thermal network, protect.NewHeating; the cell's corners, cellBreaks)
-// and the heat kept in the evaluator: 29 → 23 allocations, and in three
-// sets of 10 interleaved runs against main on a heavily shared machine
-// medians 13.85 → 12.22 µs (×0.88), 16.04 → 15.24 (×0.95) and
-// 16.79 → 15.56 (×0.93); still short of 10 µs. What remains is the
-// stranded split's two searches (about 40 % of the time: noFloor and
-// noEl each solve ten breakpoints past the design's cut-off and five
-// narrowing steps, the cells' side of each node the same in both) and
-// the quadrature (about 15 %).
+// current. Goal: median ≤ 10 µs per evaluation (README §Performance has
+// the medians on a quiet machine). History: 17.4 µs before the first
+// speed pass, 12.2 µs with the junctions settled at every charge, the
+// cells' self-heating and the shared memos (51 node solves, 23
+// allocations). Then the stranded split's run without the floor resuming
+// at the bare cells' cut-off (51 → 43 node solves), secant steps in the
+// narrowing (→ 41), the margins' lower bound in the scan (surely.go,
+// → 29) and the evaluator's arrays kept across evaluations (23 → 6
+// allocations): ×0.58–0.72 against the tree before them in interleaved
+// runs on the busy machine (medians of 8–10).
 func BenchmarkEvaluateConstant(b *testing.B) {
 	d := benchDesign(b, "120mA")
-	b.ReportAllocs()
-	for b.Loop() {
-		if _, err := Evaluate(d); err != nil {
-			b.Fatal(err)
-		}
-	}
+	benchEvaluate(b, d)
 }
 
 // BenchmarkEvaluatePulsed: the same pack on a three-phase toy profile.
-// Goal: median ≤ 25 µs per evaluation (met, narrowly: 22.5 µs at load
-// about 2, 22.9 µs at load 5–7, 33 allocations, medians of 10, with the
-// junctions and the cells' heat; 34.2 µs before the speed pass, 19.4 µs
-// after it and before those; README §Performance). With the memos shared
-// across evaluations (see BenchmarkEvaluateConstant): 33 → 23
-// allocations, medians 25.43 → 19.35 µs (×0.76) and 27.32 → 20.91 µs
-// (×0.77) in two sets of 10 interleaved runs against main.
+// Goal: median ≤ 25 µs per evaluation (met; README §Performance). 34.2
+// µs before the first speed pass, about 16 µs with the shared memos (49
+// node solves, 23 allocations); the changes listed under
+// BenchmarkEvaluateConstant make it 28 node solves and 6 allocations,
+// ×0.53–0.58 in the same interleaved runs.
 func BenchmarkEvaluatePulsed(b *testing.B) {
 	d := benchDesign(b, "450mA/3s,120mA/2s,15mA/25s")
-	b.ReportAllocs()
-	for b.Loop() {
-		if _, err := Evaluate(d); err != nil {
-			b.Fatal(err)
-		}
-	}
+	benchEvaluate(b, d)
 }
 
 // BenchmarkEvaluatePower: a 0.8 W converter at 85 %, the costliest load law
@@ -82,10 +65,22 @@ func BenchmarkEvaluatePulsed(b *testing.B) {
 // interleaved runs of 40 evaluations against main.
 func BenchmarkEvaluatePower(b *testing.B) {
 	d := benchDesign(b, "0.8W@85%")
+	benchEvaluate(b, d)
+}
+
+// benchEvaluate evaluates d as Evaluate does, reporting the node solves
+// an evaluation makes (nodes/op) beside the time and the allocations:
+// the work, which a busy machine does not move.
+func benchEvaluate(b *testing.B, d *Design) {
 	b.ReportAllocs()
+	nodes := 0
 	for b.Loop() {
-		if _, err := Evaluate(d); err != nil {
+		_, e, err := evaluateWith(d, gaussX, gaussW, false)
+		if err != nil {
 			b.Fatal(err)
 		}
+		nodes += e.nodes
+		evaluators.Put(e)
 	}
+	b.ReportMetric(float64(nodes)/float64(b.N), "nodes/op")
 }

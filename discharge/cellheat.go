@@ -82,13 +82,13 @@ func newCellTherm(d *Design, hs float64) *cellTherm {
 		return nil
 	}
 	h := new(cellTherm)
-	h.set(d, hs)
+	h.set(d, hs, nil)
 	return h
 }
 
 // set fills h for design d (whose cell self-heats), hs seconds of use a
-// session.
-func (h *cellTherm) set(d *Design, hs float64) {
+// session, its figures in buf's array when it has one (nil: a new one).
+func (h *cellTherm) set(d *Design, hs float64, buf *reuse[float64]) {
 	c := d.Cell
 	_, fra := c.TempFactors(d.TempC)
 	*h = cellTherm{cell: c, st: c.ThermalStage(), ta: d.TempC, fra: fra, hs: hs, polR: c.PolarisationOhms() * fra}
@@ -98,8 +98,11 @@ func (h *cellTherm) set(d *Design, hs float64) {
 			n++
 		}
 	}
-	buf := make([]float64, 2*n)
-	h.up, h.gUp = buf[:0:n], buf[n:n]
+	if buf == nil {
+		buf = new(reuse[float64])
+	}
+	f := buf.take(2 * n)
+	h.up, h.gUp = f[:0:n], f[n:n]
 	for _, p := range c.Temperature {
 		if p.Celsius > d.TempC {
 			h.up = append(h.up, p.Celsius)

@@ -75,7 +75,7 @@ func (e *evaluator) cutoff(v *variant, nd *node, from float64) float64 {
 func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found {
 	first := 1
 	lo := bound{0, 0, noRules}
-	lazy := false
+	lazy, solved := false, false
 	if from > 0 {
 		j := sort.SearchFloat64s(e.breaks, from)
 		if j == len(e.breaks) || e.breaks[j] > from {
@@ -85,7 +85,7 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 			first, lo, lazy = j+1, bound{e.breaks[j], math.NaN(), noRules}, true
 		} else if j > 0 {
 			if f, m, r := e.marginWhy(e.breaks[j], v, nd); f == "" {
-				first, lo = j+1, bound{e.breaks[j], m, r}
+				first, lo, solved = j+1, bound{e.breaks[j], m, r}, true
 			}
 		}
 	}
@@ -106,13 +106,21 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 			e.last = found{v: v, why: f}
 			return e.last
 		}
-		lo.m, lo.r = m, r
+		lo.m, lo.r, solved = m, r, true
 	}
+	// A breakpoint where the margins' lower bound clears every rule
+	// works without a solve (surely.go).
+	e.sureFor(v, nd, solved)
 	// Scan the breakpoints in order for the first that fails: a
 	// bisection over them would be faster but could step over a span
 	// where a rule fails and then holds again (a MOSFET handing over to
 	// its body diode), which the first failure must not miss.
 	for i, b := range e.breaks[first:] {
+		if e.surelyWorks(v, b) {
+			lo, lazy = bound{b, math.NaN(), noRules}, true
+			e.surely++
+			continue
+		}
 		f, m, r := e.marginWhy(b, v, nd)
 		if e.keepRates && v == &e.real && b < e.end {
 			e.keep(first+i, b, nd)
@@ -124,7 +132,11 @@ func (e *evaluator) search(v *variant, nd *node, from float64, works bool) found
 		if lazy {
 			var fl Cause
 			if fl, lo.m, lo.r = e.marginWhy(lo.q, v, nd); fl != "" {
-				return e.search(v, nd, from, false) // not as promised: as cutoff would
+				// Not as promised: as cutoff would, with no bound.
+				e.noSure = true
+				f := e.search(v, nd, from, false)
+				e.noSure = false
+				return f
 			}
 		}
 		e.last = e.narrowWhy(v, nd, lo, bound{b, m, r}, f)
@@ -182,8 +194,21 @@ func (e *evaluator) narrowWhy(v *variant, nd *node, lo, hi bound, why Cause) fou
 	// its limit throughout, a current equal to a clamp, ends the search
 	// at the first point that works, as narrow always has.)
 	one := lo.m > 0 && e.oneRoot(v, lo.q)
+	// val is the margin a step is taken on at b: the failing rule's own
+	// where the span has one root and b has it, else the smallest.
+	val := func(b bound) float64 {
+		if one {
+			if x := b.r.of(why); !math.IsNaN(x) {
+				return x
+			}
+		}
+		return b.m
+	}
 	side := 0
 	slo, shi := 1.0, 1.0 // Illinois' halvings of each end's value
+	// prev and cur are the last two charges solved (at first the
+	// bracket's ends).
+	prev, cur := lo, hi
 	for k := 0; k < 200 && hi.q-lo.q > tol; k++ {
 		flo, fhi := lo.m, hi.m
 		if a, b := lo.r.of(why), hi.r.of(why); one && a > 0 && b < 0 {
@@ -200,9 +225,22 @@ func (e *evaluator) narrowWhy(v *variant, nd *node, lo, hi bound, why Cause) fou
 		// byWork) is narrowed on whether v works alone, never on its margin.
 		if flo > 0 && fhi < 0 && !v.byWork() {
 			x = lo.q + (hi.q-lo.q)*flo/(flo-fhi)
-			// Keep a little inside the bracket, so that it shrinks from
-			// both ends once the estimate is good.
-			x = min(max(x, lo.q+0.25*tol), hi.q-0.25*tol)
+			// Once two steps have been taken, the secant through the last
+			// two charges solved, where it lands inside the bracket and
+			// closer to the last than half their distance: on a margin
+			// that bends a little (cells that heat) it converges faster
+			// than the bracket's ends, one of which stays behind.
+			if k >= 1 {
+				vp, vc := val(prev), val(cur)
+				if xs := cur.q - vc*(cur.q-prev.q)/(vc-vp); xs > lo.q && xs < hi.q &&
+					math.Abs(xs-cur.q) < 0.5*math.Abs(cur.q-prev.q) {
+					x = xs
+				}
+			}
+			// Keep half a tolerance inside the bracket: once the
+			// estimate is good, a step past it closes the bracket from
+			// the other side.
+			x = min(max(x, lo.q+0.5*tol), hi.q-0.5*tol)
 		}
 		if !(x > lo.q && x < hi.q) {
 			x = 0.5 * (lo.q + hi.q)
@@ -214,14 +252,15 @@ func (e *evaluator) narrowWhy(v *variant, nd *node, lo, hi bound, why Cause) fou
 			// next step could only bisect, about 37 more times.)
 			return found{v: v, lo: x, hi: hi.q, why: why}
 		}
+		prev, cur = cur, bound{x, m, r}
 		if f != "" {
-			hi, why, shi = bound{x, m, r}, f, 1
+			hi, why, shi = cur, f, 1
 			if side == 1 {
 				slo /= 2
 			}
 			side = 1
 		} else {
-			lo, slo = bound{x, m, r}, 1
+			lo, slo = cur, 1
 			if side == -1 {
 				shi /= 2
 			}

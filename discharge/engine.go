@@ -184,9 +184,24 @@ type evaluator struct {
 	atZero bool
 	// general is set to take no shortcut (evaluateWith); skipped counts
 	// the cut-off searches and capacity scales the shortcuts saved, for
-	// the tests.
+	// the tests, and resumed the searches that resumed at a cut-off found
+	// by another run (stranded.go, worksAsBare).
 	general bool
 	skipped int
+	resumed int
+	surely  int // breakpoints the scan took as working by the bound (surely.go)
+	// bufs are arrays a recycled evaluator keeps for the next evaluation.
+	bufs evalBufs
+	polV polarisation // what pol points at
+	// sure is the margins' lower bound for the cut-off scan (surely.go),
+	// sureCur its scratch; noSure switches it off.
+	sure    sure
+	sureCur []float64
+	noSure  bool
+	// nodes counts the node solves (solveNode at a charge, each pass of a
+	// junction's settle one): the benchmarks report it beside the time,
+	// a measure of the work that the machine's load does not move.
+	nodes int
 }
 
 // Evaluate computes runtime, capacity and losses for design d.
@@ -308,8 +323,9 @@ func evaluateWith(d *Design, gx, gw []float64, general bool) (*Result, *evaluato
 	// solved with the fresh pack (clock), with the rested start's
 	// polarisation: unless the run is taken as day-periodic from the
 	// start, its search starts from that (atZero).
-	kept := lin && e.therm == nil && (real.heat == nil || real.heat.still)
-	e.keepRates, e.atZero = kept, kept && !real.periodicOnly
+	held := lin && (real.heat == nil || real.heat.still)
+	kept := held && e.therm == nil
+	e.keepRates, e.atZero = kept, held && !real.periodicOnly
 	qsCut := e.cutoff(real, nd, 0)
 	e.keepRates, e.atZero = false, false
 
@@ -486,19 +502,21 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	c := d.Cell
 	e := evaluators.Get().(*evaluator)
 	// The last evaluation's arrays, refilled below and by keep.
-	breaks, solved := e.breaks, e.solved
+	breaks, solved, bufs := e.breaks, e.solved, e.bufs
 	*e = evaluator{d: d, cell: c, S: float64(d.Series), P: float64(d.Parallel), T: d.TempC, gx: gx, gw: gw,
-		peak0: math.NaN(), peakCut: math.NaN(), rise0: math.NaN(), riseCut: math.NaN()}
+		peak0: math.NaN(), peakCut: math.NaN(), rise0: math.NaN(), riseCut: math.NaN(), bufs: bufs}
 	e.end = c.Curve.End()
 	total := 0.0
 	for _, p := range d.Profile {
 		total += p.Seconds
 	}
 	n := len(d.Profile)
-	f := make([]float64, 4*n) // one backing array for the per-phase figures
-	e.w, e.hint, e.cur = f[:0:n], f[n:2*n:2*n], f[3*n:]
+	f := e.bufs.f.take(17 * n) // one backing array for the per-phase figures
+	e.w, e.hint, e.cur = f[:0:n], f[n:2*n:2*n], f[3*n:4*n:4*n]
 	dur := f[2*n : 2*n : 3*n]
-	e.loads, e.drops = make([]Load, 0, n), make([]dropMemo, n)
+	e.sure.dropW, e.sure.dropM, e.sureCur = f[4*n:5*n:5*n], f[5*n:6*n:6*n], f[6*n:7*n:7*n]
+	e.sure.ps.init(f[7*n:])
+	e.loads, e.drops = e.bufs.loads.take(n)[:0], e.bufs.drops.take(n)
 	for _, p := range d.Profile {
 		e.steepEnd = e.steepEnd || p.Load.Kind == ConstantPower || p.Load.Kind == LED
 		e.w = append(e.w, p.Seconds/total)
@@ -514,7 +532,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 	}
 	e.self = e.selfDischarge()
 	e.cutoffV = c.CutoffV
-	e.pLate = make([]bool, n)
+	e.pLate = e.bufs.pLate.take(n)
 	for k, p := range d.Profile {
 		e.pLate[k] = c.CutoffV > 0 && (n == 1 || p.Seconds >= c.CutoffDelay)
 	}
@@ -523,7 +541,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		e.sess = d.HoursPerDay * 3600
 	}
 	if c.SelfHeats() {
-		e.thermV.set(d, e.sess)
+		e.thermV.set(d, e.sess, &e.bufs.thermF)
 		e.therm = &e.thermV // in the evaluator: no allocation of its own
 	}
 	if len(c.RC) > 0 {
@@ -532,7 +550,7 @@ func newEvaluator(d *Design, gx, gw []float64) *evaluator {
 		for i, b := range c.RC {
 			st[i] = rc.Stage{R: b.R * fr, Tau: b.Tau}
 		}
-		e.pol = newPolarisation(st, dur, e.w, d.HoursPerDay, c.CutoffDelay*btoi(c.CutoffV > 0))
+		e.pol = newPolarisation(st, dur, e.w, d.HoursPerDay, c.CutoffDelay*btoi(c.CutoffV > 0), &e.polV, e.bufs.polF.take(2*n))
 	}
 	e.setTaus()
 	return e
@@ -546,3 +564,31 @@ func btoi(b bool) float64 {
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+// evalBufs are the per-phase arrays of an evaluation, kept by a
+// recycled evaluator (evaluators) so that the next one with no more
+// phases makes none: each is cleared when taken, and nothing an
+// evaluation returns or shares (the Result, the memos' keys, which are
+// copies) points into them.
+type evalBufs struct {
+	f, nodeF, heatF reuse[float64]
+	polF, thermF    reuse[float64]
+	loads           reuse[Load]
+	drops           reuse[dropMemo]
+	pLate           reuse[bool]
+	ops             reuse[op]
+	heatEls         reuse[protect.Element]
+}
+
+// reuse is a slice kept from one evaluation for the next.
+type reuse[T any] []T
+
+// take returns n cleared elements, in the kept array when it has room.
+func (r *reuse[T]) take(n int) []T {
+	if cap(*r) < n {
+		*r = make([]T, n)
+	}
+	s := (*r)[:n]
+	clear(s)
+	return s
+}

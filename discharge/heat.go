@@ -28,7 +28,8 @@ import (
 // depend on the pack (still: evaluator.linear) they do not move with
 // charge at all: one solve, with the fresh pack, holds for the whole run.
 type heat struct {
-	h    *protect.Heating
+	h    *protect.Heating // made at the first settle (heating)
+	th   protect.Thermal
 	base protect.Element   // the element as given
 	amb  protect.Element   // base with its terms at ambient
 	tj   []float64         // per phase: junction temperature, °C (mean over the phase)
@@ -126,14 +127,27 @@ func (e *evaluator) newHeat(el protect.Element) *heat {
 		return nil
 	}
 	n := len(e.loads)
-	buf := make([]float64, 5*n) // one backing array, made once per evaluation
+	// The figures in the evaluator's kept arrays (evalBufs): no
+	// allocation once a recycled evaluator has had as many phases.
+	buf := e.bufs.heatF.take(5 * n)
+	els := e.bufs.heatEls.take(2 * n)
 	cut := func() []float64 { s := buf[:n:n]; buf = buf[n:]; return s }
 	s := &e.heatV // in the evaluator: no allocation of its own
-	*s = heat{h: protect.NewHeating(th, e.secs), base: el, amb: el, ok: true,
-		tj: cut(), els: make([]protect.Element, n), scratch: cut(), src: cut(), res: cut(),
-		keep: cut(), keepEls: make([]protect.Element, n)}
+	*s = heat{th: th, base: el, amb: el, ok: true,
+		tj: cut(), els: els[:n:n], scratch: cut(), src: cut(), res: cut(),
+		keep: cut(), keepEls: els[n:]}
 	s.ambient(e.T)
 	return s
+}
+
+// heating is the element's thermal network on the profile's durations
+// secs, made at the first call: a junction whose one settle is shared
+// across evaluations (stillMemo) never needs it.
+func (s *heat) heating(secs []float64) *protect.Heating {
+	if s.h == nil {
+		s.h = protect.NewHeating(s.th, secs)
+	}
+	return s.h
 }
 
 // ambient puts every phase's junction at ambient tC.
@@ -334,7 +348,7 @@ func (e *evaluator) settlePhases(v *variant, nd *node, st *protect.Settled) floa
 		return e.heatOf(o, v, t)
 	}
 	tj := append(s.scratch[:0], s.tj...)
-	*st = s.h.SettleWithin(e.T, power, tj, settleSteps)
+	*st = s.heating(e.secs).SettleWithin(e.T, power, tj, settleSteps)
 	moved := 0.0
 	for k, t := range tj {
 		moved = math.Max(moved, math.Abs(t-s.tj[k]))

@@ -60,7 +60,7 @@ func (r *refRun) at(q float64) bool {
 		for k := range e.loads {
 			r.p[k] = e.heatOf(r.nd.mean[k], r.v, s.tj[k])
 		}
-		s.h.Junction(e.T, r.p, r.seg)
+		s.heating(e.secs).Junction(e.T, r.p, r.seg)
 		moved := 0.0
 		for k := range r.seg {
 			t := r.seg[k].Mean

@@ -429,10 +429,10 @@ type node struct {
 }
 
 // newNode is the evaluation's node: it lives in the evaluator, its
-// figures in two allocations.
+// figures in two arrays the evaluator keeps (evalBufs).
 func (e *evaluator) newNode() *node {
 	n := len(e.loads)
-	ops := make([]op, 2*n)
+	ops := e.bufs.ops.take(2 * n)
 	nb := 0 // the branches whose heat a self-heating cell's state keeps
 	if e.pol != nil && e.therm != nil {
 		nb = len(e.pol.br)
@@ -441,7 +441,7 @@ func (e *evaluator) newNode() *node {
 	if nb > 0 {
 		hot = 10*n + 2*nb
 	}
-	f := make([]float64, 14*n+hot)
+	f := e.bufs.nodeF.take(14*n + hot)
 	nd := &e.nd
 	*nd = node{mean: ops[:n:n], worst: ops[n:], late: f[:n:n], icell: f[n : 2*n : 2*n],
 		polI: f[2*n : 3*n : 3*n], iraw: f[3*n : 4*n : 4*n], polRest: math.NaN(), cellC: e.T, cellPeakC: e.T}
@@ -492,6 +492,7 @@ func (e *evaluator) solveNode(qs float64, v *variant, nd *node) {
 		e.settleNode(qs, v, nd)
 		return
 	}
+	e.nodes++
 	nd.E, nd.R0 = e.source(qs)
 	nd.Epack, nd.Rp = e.S*nd.E, e.S*nd.R0/e.P
 	nd.cellC, nd.cellPeakC = e.T, e.T

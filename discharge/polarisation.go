@@ -113,20 +113,31 @@ func (s *polState) initHeat(f []float64, n, nb int) {
 // evaluates the same cell on the same profile many times: they are
 // worked out once per set of inputs (polMemo) and shared, read-only;
 // each call gets its own scratch and flags.
-func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64) *polarisation {
+//
+// The result is written into out (nil: a new one) with its scratch in
+// scratch (2·len(dur) figures; nil or short: a new array).
+func newPolarisation(stages []rc.Stage, dur, w []float64, h, delay float64, out *polarisation, scratch []float64) *polarisation {
 	in := polInputs{stages: stages, dur: dur, w: w, h: h, delay: delay}
 	key := in.hash()
 	p, ok := polMemo.Find(key, in)
 	if !ok {
 		p = buildPolarisation(stages, dur, w, h, delay)
+		// (The shared one keeps no array of the caller's: each call
+		// sets its own weights, below.)
+		p.w = nil
 		polMemo.Keep(key, polInputs{stages: slices.Clone(stages), dur: slices.Clone(dur), w: slices.Clone(w), h: h, delay: delay}, p)
 	}
 	n := len(dur)
-	q := *p
-	q.w = w
-	f := make([]float64, 2*n)
-	q.vs, q.ve = f[:n:n], f[n:]
-	return &q
+	if out == nil {
+		out = new(polarisation)
+	}
+	*out = *p
+	out.w = w
+	if len(scratch) < 2*n {
+		scratch = make([]float64, 2*n)
+	}
+	out.vs, out.ve = scratch[:n:n], scratch[n:2*n]
+	return out
 }
 
 // polInputs are the inputs one set of shared branches was built from.

@@ -47,7 +47,9 @@ func shortcutDesign(rng *rand.Rand) *Design {
 // The shortcuts (a stranded-split run that provably ends where one
 // already searched ends, or draws what the design draws, figures kept
 // from solves already made, the currents of constant loads, the search
-// stepping on the failing rule's own margin where a span has one root) against the general path that takes none
+// stepping on the failing rule's own margin where a span has one root, a
+// search resuming where another run's ended, breakpoints taken as
+// working by the margins' lower bound) against the general path that takes none
 // of them, on 400 random library designs with the same quadrature (the
 // midpoint rule on linear spans is the quadrature's own, checked by
 // TestQuadratureConverges): every figure of the Result agrees to 1e-9
@@ -59,7 +61,7 @@ func shortcutDesign(rng *rand.Rand) *Design {
 // if the shortcuts were never taken.
 func TestShortcutsMatchGeneral(t *testing.T) {
 	rng := rand.New(rand.NewPCG(31, 7))
-	skipped, worst := 0, 0.0
+	skipped, resumed, surely, worst := 0, 0, 0, 0.0
 	for n := 0; n < 400; n++ {
 		d := shortcutDesign(rng)
 		fast, e, err1 := evaluateWith(d, gaussX, gaussW, false)
@@ -71,6 +73,8 @@ func TestShortcutsMatchGeneral(t *testing.T) {
 			continue
 		}
 		skipped += e.skipped
+		resumed += e.resumed
+		surely += e.surely
 		ref := math.Max(gen.ReferenceMAh, gen.DeliveredMAh)
 		fv, gv := reflect.ValueOf(*fast), reflect.ValueOf(*gen)
 		for i := range fv.NumField() {
@@ -109,5 +113,11 @@ func TestShortcutsMatchGeneral(t *testing.T) {
 	if skipped < 100 {
 		t.Errorf("the shortcuts saved %d cut-off searches and capacity scales over 400 designs: the check hardly covers them", skipped)
 	}
-	t.Logf("searches and capacity scales saved: %d; worst relative difference: %.2g", skipped, worst)
+	if resumed < 10 { // 15 with this seed: diode and Schottky designs on constant currents with a floor
+		t.Errorf("%d searches resumed at another run's cut-off over 400 designs: the check hardly covers them", resumed)
+	}
+	if surely < 300 { // 660 with this seed
+		t.Errorf("%d breakpoints taken as working by the bound over 400 designs: the check hardly covers it", surely)
+	}
+	t.Logf("searches and capacity scales saved: %d, resumed at another run's cut-off: %d, breakpoints by the bound: %d; worst relative difference: %.2g", skipped, resumed, surely, worst)
 }

@@ -61,6 +61,12 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	// from the bare pack's drain, as a separate run of that design would.
 	// The run without the floor draws what the design draws, and keeps
 	// the design's (copied with it).
+	// The drops of the design's element, nd holding it solved at its
+	// cut-off (worksAsBare): below the floor in every phase?
+	lowDrops := !none && !e.general
+	for k := range e.loads {
+		lowDrops = lowDrops && nd.worst[k].Vdrop < d.Floor && nd.mean[k].Vdrop < d.Floor
+	}
 	scale0 := scale
 	if !none {
 		if !e.general && e.drawsAsBare(real) {
@@ -90,6 +96,16 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 		own = found{}
 	}
 	var fE0, f0F found
+	if !none {
+		if e.general || !e.bareFails(real, noEl, own) {
+			f0F = e.search(noEl, nd, qsCut, !e.general && e.drawsAsBare(real))
+			qs0F = f0F.lo
+		} else {
+			// It fails there by the same rule, one of the cells' own.
+			f0F, f0F.v = own, noEl
+			e.skipped++
+		}
+	}
 	if !noStop {
 		if own.hard() {
 			// The design fails there by a rule that is not a stop: so
@@ -99,18 +115,16 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 			fE0.v = noFloor
 			e.skipped++
 		} else {
-			fE0 = e.search(noFloor, nd, qsCut, true)
+			// It works wherever the design does, and where the cells
+			// without the element work too when it fails only where they
+			// do (worksAsBare): its scan resumes at the later of the two.
+			from := qsCut
+			if lowDrops && e.worksAsBare(noFloor, noEl) && qs0F > from {
+				from = qs0F
+				e.resumed++
+			}
+			fE0 = e.search(noFloor, nd, from, true)
 			qsE0 = fE0.lo
-		}
-	}
-	if !none {
-		if e.general || !e.bareFails(real, noEl, own) {
-			f0F = e.search(noEl, nd, qsCut, !e.general && e.drawsAsBare(real))
-			qs0F = f0F.lo
-		} else {
-			// It fails there by the same rule, one of the cells' own.
-			f0F, f0F.v = own, noEl
-			e.skipped++
 		}
 	}
 	qs00 := qsE0
@@ -189,6 +203,27 @@ func (e *evaluator) bareFails(v, bare *variant, f found) bool {
 		return false
 	}
 	return e.drawsAsBare(v)
+}
+
+// worksAsBare reports whether variant v (the design's element, no stop)
+// works wherever variant bare (no element, its own stops) does, at every
+// charge: so it is when the element leaves the cells' side of every node
+// as it is (drawsAsBare, the same clock), has no limit of its own and
+// its junctions hold still, so that its drops are fixed for the run —
+// the caller checks them below bare's floor. The cells are then the
+// same in both runs; v has only the cells' rules (the end-point, the
+// charge running out), which bare has too, and a load voltage that
+// falls to nothing, where bare's pack is still at its floor: above every
+// drop.
+func (e *evaluator) worksAsBare(v, bare *variant) bool {
+	if !e.drawsAsBare(v) || v.floor != 0 || v.cutoff || v.minLED != 0 || v.over != nil ||
+		!math.IsInf(v.lim.Clamp, 1) || !math.IsInf(v.lim.Trip, 1) ||
+		v.heat != nil && !v.heat.still ||
+		bare.usePerQ != v.usePerQ || bare.periodicOnly != v.periodicOnly {
+		return false
+	}
+	_, ok := bare.el.(protect.None)
+	return ok
 }
 
 // drawsAsBare reports whether variant v's cells carry what they would
