@@ -29,8 +29,13 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	lastI, lastD := math.NaN(), 0.0
 	// A junction's law at T worked out once for the solve (its drop
 	// depends on the current alone): the same drops to the bit, one
-	// Log1p a call where the element is not fixed at T.
-	fw, isFw := forwardOf(el, T)
+	// Log1p a call where the element is not fixed at T. (A constant
+	// current takes one drop, at the end: not needed.)
+	var fw protect.Forward
+	isFw := false
+	if l.Kind != ConstantCurrent {
+		fw, isFw = forwardOf(el, T)
+	}
 	vload := func(i float64) float64 {
 		x := vin(i)
 		if isFw {
