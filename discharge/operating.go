@@ -36,11 +36,26 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	if l.Kind != ConstantCurrent {
 		fw, isFw = forwardOf(el, T)
 	}
+	// An element whose drop's partial derivatives are known
+	// (protect.Sloped) gives them with each drop of a constant-power
+	// solve (lastDi, lastDv), for Newton's slope: the same drops to the
+	// bit.
+	var sl protect.Sloped
+	isSl := false
+	if l.Kind == ConstantPower && !isFw {
+		sl, isSl = el.(protect.Sloped)
+	}
+	lastDi, lastDv := 0.0, 0.0
 	vload := func(i float64) float64 {
 		x := vin(i)
-		if isFw {
+		switch {
+		case isFw:
 			lastI, lastD = i, fw.Drop(i)
-		} else {
+		case isSl:
+			var d float64
+			d, lastDi, lastDv = sl.DropSlopes(i, x, T)
+			lastI, lastD = i, d
+		default:
 			lastI, lastD = i, el.Drop(i, x, T)
 		}
 		return x - lastD
@@ -78,8 +93,17 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 				hint = 0
 			}
 			var slope func(float64) float64 // d vload/di where the law gives it
-			if isFw {
+			switch {
+			case isFw:
 				slope = func(i float64) float64 { return -Rp - fw.Slope(i) }
+			case isSl:
+				// Along vin = E − (i + iq)·Rp: d/di of vin − Drop(i, vin).
+				slope = func(i float64) float64 {
+					if i != lastI {
+						vload(i)
+					}
+					return -Rp - lastDi + Rp*lastDv
+				}
 			}
 			i, ok = powerPoint(vload, slope, pin, E, hint)
 			if !ok && !none && !(junction(v.el) && scanMisses(vload, pin, i)) {

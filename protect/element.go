@@ -217,6 +217,17 @@ type Clamper interface {
 	ClampAt(vin, tempC float64) float64
 }
 
+// Sloped is an element whose drop's partial derivatives are known in
+// closed form: DropSlopes returns Drop(i, vin, tempC), to the bit, and
+// its derivatives by i (vin held) and by vin (i held). The engine's
+// constant-power Newton steps take them in place of a second solve of
+// the law. Where the law has a corner (a channel handing over to its body
+// diode, a pass FET saturating) the side the drop is taken from gives
+// them.
+type Sloped interface {
+	DropSlopes(i, vin, tempC float64) (d, di, dv float64)
+}
+
 // LoadVoltageFalls reports whether the voltage e leaves the load,
 // vin − e.Drop(i, vin, T), never rises as the current i rises along a
 // source line vin = E − R·i (R ≥ 0) at one temperature: each drop law

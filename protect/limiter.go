@@ -110,12 +110,24 @@ func (l Limiter) VbeAt(tempC float64) float64 { return l.PNP().Drop(pnpRef, temp
 // Collector returns the PNP's collector current in amperes with the sense
 // voltage vbe across its base and emitter at tempC: Is(T)·(e^(Vbe/Vt) − 1).
 func (l Limiter) Collector(vbe, tempC float64) float64 {
+	c, _ := l.collector(vbe, tempC)
+	return c
+}
+
+// collector is Collector and its derivative by vbe, A/V: Is(T)·e^(Vbe/Vt)/Vt
+// (0 past the 700·Vt cap).
+func (l Limiter) collector(vbe, tempC float64) (c, dc float64) {
 	p := l.pnp
 	if p == nil || p.tempC != tempC {
 		q := l.PNP()
 		p = &junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
 	}
-	return p.is * expm1(math.Min(vbe/p.nvt, 700))
+	x := vbe / p.nvt
+	c = p.is * expm1(math.Min(x, 700))
+	if x < 700 {
+		dc = (c + p.is) / p.nvt
+	}
+	return c, dc
 }
 
 // expm1 is e^x − 1: math.Expm1 where x is small and e^x − 1 would
@@ -169,6 +181,37 @@ func (l Limiter) Drop(i, vin, tempC float64) float64 {
 		return math.Max(vin, up)
 	}
 	return up + channelDrop(ia, b2, 0.5, 0.5*b2*b2, math.Inf(1)) + i*f.Rfix
+}
+
+// DropSlopes is Drop (the same value, to the bit) with its partial
+// derivatives by the current and by the input (Sloped): the two channels'
+// square laws differentiated implicitly (channelSlopes), the body diode's
+// n·Vt/(Is + i) + Rs, the PNP's collector current through the pass FET's
+// gate drive; where the pass FET has saturated, the drop's own max(vin,
+// up).
+func (l Limiter) DropSlopes(i, vin, tempC float64) (d, di, dv float64) {
+	if !(i > 0) {
+		return 0, 0, 0
+	}
+	f := l.At(tempC)
+	ia := i * f.A
+	b1 := vin - f.Vth
+	d1, d1i, d1b := channelSlopes(ia, b1, 0.5, 0.5*b1*b1, f.A, l.Body, i, tempC)
+	up := d1 + i*(f.Rfix+l.Rsh) // d1 + i·Rsh
+	upi, upv := d1i+f.Rfix+l.Rsh, d1b
+	c, dc := l.collector(i*l.Rsh, tempC)
+	k, rp := l.drive(), l.rp()
+	b2 := k*(vin-up) - c*rp - f.Vth
+	if !(b2 > 0) || ia > 0.5*b2*b2 {
+		if vin >= up {
+			return math.Max(vin, up), 0, 1
+		}
+		return math.Max(vin, up), upi, upv
+	}
+	d2 := channelDrop(ia, b2, 0.5, 0.5*b2*b2, math.Inf(1))
+	b2i, b2v := -k*upi-dc*l.Rsh*rp, k*(1-upv)
+	den := b2 - d2
+	return up + d2 + i*f.Rfix, upi + (f.A-d2*b2i)/den + f.Rfix, upv - d2*b2v/den
 }
 
 // ClampAt returns the current the limiter holds the load to with vin at
