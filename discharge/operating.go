@@ -263,31 +263,48 @@ func powerPoint(vload, slope func(float64) float64, pin, E, i0 float64) (float64
 // brackets the first crossing; false when there is none (a collapse).
 //
 // falls says that the load voltage never rises with the current
-// (protect.LoadVoltageFalls; E is the source's voltage): then from the
-// first grid point where it is at or below zero no later point can reach
-// pin, and the scan stops there with the answer the whole grid gives.
-// (Rounding could leave a later point's voltage a few ulps of E above
-// zero, a power of that times the current: the stop is taken only where
-// even 1e-9·E at the grid's end is under pin.)
+// (protect.LoadVoltageFalls; E is the source's voltage). Then a point
+// past x_j draws at most x·vload(x_j): the grid points where that stays
+// under pin cannot cross and are not solved, and from the first point
+// where the voltage is at or below zero none can; the scan takes the
+// points that could, and gives the answer the whole grid gives (the
+// bracket's lower end is solved where it was skipped). Rounding could
+// leave a later point's voltage a few ulps of E above what the fall
+// allows: 1e-9·E is allowed for it, and the stop is taken only where
+// that much at the grid's end is under pin. TestScanStopMatchesWholeScan
+// checks the answers against the whole grid's, to the bit.
 func scanPower(vload func(float64) float64, pin, at float64, falls bool, E float64) (float64, bool) {
 	hi := math.Max(at, 1e-9)
 	for k := 0; k < 60 && vload(hi) > 0; k++ {
 		hi *= 2
 	}
 	const n = 128
-	falls = falls && hi*1e-9*math.Abs(E) < pin
-	lo, flo := 0.0, -pin
+	slack := 1e-9 * math.Abs(E)
+	falls = falls && hi*slack < pin
+	P := func(x float64) float64 { return x*vload(x) - pin }
+	lo, flo, last := 0.0, -pin, 0 // last: the grid point lo holds
 	for j := 1; j <= n; j++ {
 		x := hi * float64(j) / n
 		v := vload(x)
 		fx := x*v - pin
 		if fx >= 0 {
-			return bracketRootF(func(x float64) float64 { return x*vload(x) - pin }, lo, x, flo, fx), true
+			if last != j-1 {
+				lo = hi * float64(j-1) / n
+				flo = P(lo)
+			}
+			return bracketRootF(P, lo, x, flo, fx), true
 		}
 		if falls && v <= 0 {
 			break // no later point reaches pin
 		}
-		lo, flo = x, fx
+		lo, flo, last = x, fx, j
+		if falls {
+			// Up to lim a point's power is under pin whatever its voltage.
+			lim := pin * (1 - 1e-12) / ((v + slack) * (1 + 1e-12))
+			for j < n && hi*float64(j+1)/n < lim {
+				j++
+			}
+		}
 	}
 	return at, false
 }
