@@ -21,21 +21,76 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	el, T := e.phaseElement(v, k)
 	iq := el.Quiescent(E, T)
+	// lastI and lastD are the current and the drop of the load's solve's
+	// last solve of the element's law (loadCurrent): the root finders end
+	// on one at the current they return, whose drop the operating point
+	// takes again (the same arguments, so the same value without a second
+	// solve of the law). A constant current solves nothing.
+	i, lastI, lastD := l.Amps, math.NaN(), 0.0
+	if l.Kind != ConstantCurrent {
+		var collapsed bool
+		if i, lastI, lastD, collapsed = e.loadCurrent(l, k, v, el, T, E, Rp, iq); collapsed {
+			*o = op{I: i, Ipack: i + iq, Vin: E - (i+iq)*Rp, Vload: 0, Fail: failCollapse}
+			return
+		}
+	}
+	*o = op{I: i, Ipack: i + iq}
+	o.Vin = E - (i+iq)*Rp
+	if i == lastI && reuseDrop {
+		o.Vdrop = lastD // el.Drop(i, o.Vin, T), o.Vin being vin(i)
+	} else {
+		o.Vdrop = e.drop(v, k, el, i, o.Vin, T)
+	}
+	o.Vload = o.Vin - o.Vdrop
+	d0 := o.Vdrop // the element's own drop at i (a Clamper is no junction: e.drop is el.Drop)
+	// A resistive or LED load sets its own voltage, i·R (+ Vf). Where the
+	// element's drop jumps (a FET out of gate drive hands over to its
+	// body diode) the root sits on the jump and vin − Drop(i) reads the
+	// far side of it; the element takes up the difference, as a
+	// saturated FET does.
+	if i > 0 && (l.Kind == ConstantResistance || l.Kind == LED) {
+		o.Vload = i * l.Ohms
+		if l.Kind == LED {
+			o.Vload += l.Vf
+		}
+		o.Vdrop = math.Max(o.Vin-o.Vload, 0) // not −1e-17 from rounding
+	}
+	switch {
+	case i > v.lim.Trip:
+		o.Fail = failFuse
+	case i > v.lim.Clamp:
+		o.Fail = failLimit
+	case o.Vload <= 0 && i > 0:
+		// The pack cannot push this current at all: no voltage is left
+		// for the load.
+		o.Fail = failCollapse
+	case o.Vload < v.floor:
+		o.Fail = failFloor
+	case dim(l, i, v): // limits.go
+		o.Fail = failDim
+	}
+	// A limiter whose clamp depends on the pack (protect.Clamper) has no
+	// operating point above it: its drop takes the whole input. That is
+	// its current limit, not a collapse of the source.
+	if o.Fail == failCollapse || o.Fail == failFloor {
+		if _, ok := el.(protect.Clamper); ok && i > 0 && d0 >= o.Vin {
+			o.Fail = failLimit
+		}
+	}
+}
+
+// loadCurrent is solveTo's current for phase k's load l other than a
+// constant current, behind el at T on the source (E, Rp) with iq drawn
+// standing; lastI and lastD are the current and the drop of the law's
+// last solve, and collapsed is set where a constant-power load finds no
+// operating point (i is then where the search stopped).
+func (e *evaluator) loadCurrent(l Load, k int, v *variant, el protect.Element, T, E, Rp, iq float64) (i, lastI, lastD float64, collapsed bool) {
 	vin := func(i float64) float64 { return E - (i+iq)*Rp }
-	// lastI and lastD are the current and the drop of vload's last call:
-	// the root finders end on a call at the current they return, whose
-	// drop the operating point takes again (the same arguments, so the
-	// same value without a second solve of the element's law).
-	lastI, lastD := math.NaN(), 0.0
+	lastI, lastD = math.NaN(), 0.0
 	// A junction's law at T worked out once for the solve (its drop
 	// depends on the current alone): the same drops to the bit, one
-	// Log1p a call where the element is not fixed at T. (A constant
-	// current takes one drop, at the end: not needed.)
-	var fw protect.Forward
-	isFw := false
-	if l.Kind != ConstantCurrent {
-		fw, isFw = forwardOf(el, T)
-	}
+	// Log1p a call where the element is not fixed at T.
+	fw, isFw := forwardOf(el, T)
 	// An element whose drop's partial derivatives are known
 	// (protect.Sloped) gives them with each drop of a constant-power
 	// solve (lastDi, lastDv), for Newton's slope: the same drops to the
@@ -60,10 +115,7 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 		}
 		return x - lastD
 	}
-	var i float64
 	switch l.Kind {
-	case ConstantCurrent:
-		i = l.Amps
 	case ConstantResistance:
 		g := func(i float64) float64 { return i*l.Ohms - vload(i) }
 		if vload(0) <= 0 {
@@ -109,57 +161,13 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 			if !ok && !none && !(junction(v.el) && scanMisses(vload, pin, i)) {
 				i, ok = scanPower(vload, pin, i, protect.LoadVoltageFalls(el), E)
 			}
-			if ok {
-				e.hint[k] = i
-			} else {
-				*o = op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: failCollapse}
-				return
+			if !ok {
+				return i, lastI, lastD, true
 			}
+			e.hint[k] = i
 		}
 	}
-	*o = op{I: i, Ipack: i + iq}
-	o.Vin = vin(i)
-	if i == lastI && reuseDrop {
-		o.Vdrop = lastD // el.Drop(i, o.Vin, T), o.Vin being vin(i)
-	} else {
-		o.Vdrop = e.drop(v, k, el, i, o.Vin, T)
-	}
-	o.Vload = o.Vin - o.Vdrop
-	d0 := o.Vdrop // the element's own drop at i (a Clamper is no junction: e.drop is el.Drop)
-	// A resistive or LED load sets its own voltage, i·R (+ Vf). Where the
-	// element's drop jumps (a FET out of gate drive hands over to its
-	// body diode) the root sits on the jump and vin − Drop(i) reads the
-	// far side of it; the element takes up the difference, as a
-	// saturated FET does.
-	if i > 0 && (l.Kind == ConstantResistance || l.Kind == LED) {
-		o.Vload = i * l.Ohms
-		if l.Kind == LED {
-			o.Vload += l.Vf
-		}
-		o.Vdrop = math.Max(o.Vin-o.Vload, 0) // not −1e-17 from rounding
-	}
-	switch {
-	case i > v.lim.Trip:
-		o.Fail = failFuse
-	case i > v.lim.Clamp:
-		o.Fail = failLimit
-	case o.Vload <= 0 && i > 0:
-		// The pack cannot push this current at all: no voltage is left
-		// for the load.
-		o.Fail = failCollapse
-	case o.Vload < v.floor:
-		o.Fail = failFloor
-	case dim(l, i, v): // limits.go
-		o.Fail = failDim
-	}
-	// A limiter whose clamp depends on the pack (protect.Clamper) has no
-	// operating point above it: its drop takes the whole input. That is
-	// its current limit, not a collapse of the source.
-	if o.Fail == failCollapse || o.Fail == failFloor {
-		if _, ok := el.(protect.Clamper); ok && i > 0 && d0 >= o.Vin {
-			o.Fail = failLimit
-		}
-	}
+	return i, lastI, lastD, false
 }
 
 // forwardOf is a junction element's forward law at t (protect.Forward):
