@@ -72,8 +72,8 @@ func BenchmarkEvaluatePulsed(b *testing.B) {
 // solves (the cut-off searches' steps land a few ulps apart), 846 → 788
 // allocations; against main (with the cut-off search's secant steps and
 // margin bound) in interleaved runs of 40 evaluations on the busy
-// machine (load 4–8): medians 3.88 → 2.71 ms (×0.70, 8 pairs) and
-// 7.26 → 4.53 ms (×0.62, 10 pairs).
+// machine (load 2–8): medians 4.47 → 2.74 ms (×0.61, 8 pairs), and
+// ×0.62–0.70 in three earlier sets of 8–10 pairs.
 func BenchmarkEvaluatePower(b *testing.B) {
 	d := benchDesign(b, "0.8W@85%")
 	benchEvaluate(b, d)
