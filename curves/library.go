@@ -102,8 +102,14 @@ func HotWarning(c *Cell, peakC, ambientC float64) string {
 		return ""
 	}
 	var w string
-	if ambientC > lim {
-		w = fmt.Sprintf("the %.0f °C ambient is above the %.0f °C a %s cell is usually discharged at, before the cells' own heat (typical, from memory; the cell maker's data come first): keep the product out of such heat", ambientC, lim, c.Chemistry)
+	if ambientC >= lim {
+		// The ambient alone is at the limit: a rise of any size takes
+		// the cells past it, and the cure is the room, not the cells.
+		where := "above"
+		if ambientC == lim {
+			where = "at"
+		}
+		w = fmt.Sprintf("the %.0f °C ambient is %s the %.0f °C a %s cell is usually discharged at, before the cells' own heat (typical, from memory; the cell maker's data come first): keep the product out of such heat", ambientC, where, lim, c.Chemistry)
 	} else {
 		w = fmt.Sprintf("the cells warm to about %.0f °C by their own losses (%.0f K above the ambient), above the %.0f °C a %s cell is usually discharged at (typical, from memory; the cell maker's data come first): use bigger cells, more in parallel or less current, and keep them in moving air", peakC, peakC-ambientC, lim, c.Chemistry)
 	}

@@ -259,6 +259,11 @@ func TestHotWarning(t *testing.T) {
 	if !strings.Contains(w, "65 °C ambient") || strings.Contains(w, "own losses") || strings.Contains(w, "moving air") {
 		t.Errorf("at a 65 °C ambient: %q", w)
 	}
+	// At exactly the limit the ambient is the cause, not a 1 K rise.
+	w = HotWarning(c, 61, 60)
+	if !strings.Contains(w, "60 °C ambient is at the 60 °C") || strings.Contains(w, "own losses") {
+		t.Errorf("at a 60 °C ambient: %q", w)
+	}
 	if w := HotWarning(&Cell{Chemistry: "custom"}, 200, 20); w != "" {
 		t.Errorf("a chemistry without a limit: %q", w)
 	}

@@ -11,7 +11,8 @@ import (
 
 // Behind constant currents and an element that draws nothing standing
 // and drops the same at every charge (none, or a diode or Schottky whose
-// junctions hold still), with the cells' polarisation day-periodic, a
+// junctions hold still), with the cells' polarisation day-periodic (or
+// in continuous use), a
 // node is the cells' source at the charge and fixed currents: every
 // phase k's pack voltage at its worst instant is
 //
@@ -19,7 +20,10 @@ import (
 //
 // (operating.go, solveNode; cellheat.go, warm) with E and R0 the cell's
 // open-circuit voltage and resistance at the ambient, p_k the branches'
-// polarisation at the ambient for those currents, and g the cells'
+// polarisation at the ambient for those currents (in continuous use the
+// rested start's, which builds up from below to the periodic state the
+// bound takes: each branch is its periodic value less v*·e^(−t/τ), v* ≥ 0
+// for currents out of the cell), and g the cells'
 // resistance factor at their own temperature. The cells only warm above
 // the ambient, and where their temperature table's resistance factor
 // never rises above the ambient's, g ≤ 1: then with g = 1 every voltage
@@ -94,7 +98,15 @@ func (e *evaluator) sureFor(v *variant, nd *node, solved bool) {
 		for k, l := range e.loads {
 			cur[k] = l.Amps / e.P
 		}
-		e.pol.state(cur, e.d.Standby/e.P, math.Inf(1), &s.ps)
+		// Day-periodic with a daily pattern; in continuous use the
+		// first session never ends, and its state long after the start
+		// (e^(−t/τ) = 0) is the profile's periodic one, which the rested
+		// start builds up to from below.
+		t := math.Inf(1)
+		if math.IsInf(e.sess, 1) {
+			t = math.MaxFloat64
+		}
+		e.pol.state(cur, e.d.Standby/e.P, t, &s.ps)
 		s.psOK = true
 	}
 	s.ok = true
@@ -116,8 +128,10 @@ func (e *evaluator) sureBound(v *variant, qs float64) (float64, bool) {
 	if !s.ok || s.v != v || qs >= e.end || qs < 0 {
 		return 0, false
 	}
-	if e.pol != nil && !(v.periodicOnly || qs*v.usePerQ >= e.sess) {
-		return 0, false // the rested first session: its own clock
+	if e.pol != nil && !(v.periodicOnly || qs*v.usePerQ >= e.sess || math.IsInf(e.sess, 1)) {
+		// The rested first session of a daily pattern: late in it the
+		// branches can stand above the day-periodic session's mean.
+		return 0, false
 	}
 	E, R0 := e.source(qs)
 	if !(R0 >= 0) || v.el.Quiescent(e.S*E, e.T) != 0 {

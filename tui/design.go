@@ -291,6 +291,12 @@ func lineupFor(base discharge.Design, cells []*curves.Cell) []lineupRow {
 	return out
 }
 
+// short reports whether the row lasts less than a day of use
+// (scenario.LineupRow.Short).
+func (r lineupRow) short() bool {
+	return scenario.LineupRow{Cell: r.cell, Series: r.series, Result: r.res, Err: r.err}.Short()
+}
+
 // ranked returns the line-up in scenario.LineupBefore's order.
 func ranked(rows []lineupRow, byRuntime bool) []lineupRow {
 	out := append([]lineupRow(nil), rows...)

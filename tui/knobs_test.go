@@ -137,7 +137,8 @@ func TestLineupPick(t *testing.T) {
 }
 
 // TestLineupRanks: every cell of the library appears once, ranked by cost
-// per hour and then by runtime, with cells that cannot run last.
+// per hour and then by runtime, cells lasting less than a day of use after
+// those that last one, with cells that cannot run last.
 func TestLineupRanks(t *testing.T) {
 	m := sized(120, 40).(Model)
 	if len(m.lineupRows()) != len(curves.Library()) {
@@ -152,6 +153,12 @@ func TestLineupRanks(t *testing.T) {
 			}
 			if a.err != nil || a.res.RuntimeH == 0 {
 				t.Fatalf("a cell that cannot run (%s) ranks above %s", a.cell.ID, b.cell.ID)
+			}
+			if a.short() && !b.short() {
+				t.Errorf("rank %d %s lasts less than a day's use but ranks above %s", i, a.cell.ID, b.cell.ID)
+			}
+			if a.short() != b.short() {
+				continue // a new tier
 			}
 			if byRuntime && a.res.RuntimeH < b.res.RuntimeH || !byRuntime && a.res.CostPerHour > b.res.CostPerHour {
 				t.Errorf("rank %d %s before %s out of order", i, a.cell.ID, b.cell.ID)

@@ -112,8 +112,16 @@ func (m lineupModel) View(sh *shared) string {
 		pad("Cost/hour", costW) + " " + pad("Stranded", strW) + " " + pad("Stops because", causeW)
 	b.WriteString(st.Label.Render(pad(head, w)) + "\n")
 
+	note := "Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price (and charger) ÷ the hours of its cycle life, cycles counted by the charge used, capacity fading to 80 %, plus charging energy."
+	for _, r := range rows {
+		if r.err == nil && r.short() {
+			note = "* lasts less than a day's use: ranked after the cells that last a day. " + note
+			break
+		}
+	}
+	noteLines := wrapLines(note, w)
 	used := strings.Count(b.String(), "\n")
-	room := max(1, h-used-4)
+	room := max(1, h-used-2-len(noteLines)) // below the rows: the scroll line, the note, the enter line
 	off := m.offset
 	if m.sel < off {
 		off = m.sel
@@ -152,7 +160,11 @@ func (m lineupModel) View(sh *shared) string {
 		if i == m.sel {
 			name = st.Selected.Render(name)
 		}
-		b.WriteString(mark + rank + name + " " + st.Value.Render(pad(hours(res.RuntimeH), runW)) + " " +
+		run := hours(res.RuntimeH)
+		if r.short() {
+			run += "*"
+		}
+		b.WriteString(mark + rank + name + " " + st.Value.Render(pad(run, runW)) + " " +
 			st.Bar.Render(pad(bar(frac, barW), barW)) + " " + pad(cost, costW) + " " +
 			pad(pct(res.StrandedMAh, res.ReferenceMAh), strW) + " " +
 			st.Dim.Render(pad(shortCause(res.CutoffCause, res.CutoffPhase), causeW)) + "\n")
@@ -160,7 +172,7 @@ func (m lineupModel) View(sh *shared) string {
 	if len(rows) > room {
 		b.WriteString(st.Dim.Render(fmt.Sprintf("  rows %d–%d of %d; ↑/↓ scroll", off+1, min(len(rows), off+room), len(rows))) + "\n")
 	}
-	for _, l := range wrapLines("Cost/hour: a primary pack's price ÷ its runtime; a rechargeable's price (and charger) ÷ the hours of its cycle life, cycles counted by the charge used, capacity fading to 80 %, plus charging energy.", w) {
+	for _, l := range noteLines {
 		b.WriteString(st.Dim.Render(l) + "\n")
 	}
 	if m.sel < len(rows) {

@@ -151,9 +151,14 @@ func cellsShow(c *cli, args []string) error {
 		line("rated", "%s mAh to %s V (no rating current given)", fixed(cell.RatedMAh, 0), short(cell.EndPoint))
 	}
 	line("end-point", "%s V", short(cell.EndPoint))
-	if cell.RefCurrent > 0 {
+	switch {
+	case len(cell.Resistance) == 0 && len(cell.RC) == 0:
+		// No resistance of any kind: the curve is what the load sees,
+		// whatever it draws (a CSV of points "mAh,V", an imported log).
+		line("curve", "the voltage under load at every current (no resistance given, so the current does not move it), %g °C", curves.RefTempC)
+	case cell.RefCurrent > 0:
 		line("curve", "terminal voltage at %s, %g °C", human(cell.RefCurrent, units.Current), curves.RefTempC)
-	} else {
+	default:
 		line("curve", "rest (open-circuit) voltage, %g °C", curves.RefTempC)
 	}
 	line("Peukert k", "%s", short(cell.Peukert))
@@ -289,6 +294,11 @@ func cellsImport(c *cli, args []string) error {
 	}
 	_, err = fmt.Fprintf(c.stdout, "wrote %s: %d points%s, %s mAh at %s down to %s V\n",
 		guard.Clean(*out), cell.Curve.Len(), thinned, sig(q, 4), human(amps, units.Current), fixed(v, 3))
+	if err == nil {
+		_, err = fmt.Fprintf(c.stdout, "note: the points are the voltage under %s, with no resistance: headroom takes them as the\n"+
+			"voltage at any current, so runtimes at lighter loads read short and at heavier loads long.\n"+
+			"For a cell that follows the current, log rests around the load and use headroom cells fit.\n", human(amps, units.Current))
+	}
 	return err
 }
 

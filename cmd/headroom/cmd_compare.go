@@ -34,7 +34,9 @@ Columns: runtime in hours of use, packs bought (primary) or charges
 pack price ÷ runtime; rechargeable: pack price ÷ cycle life plus the charging
 energy, per hour), cost per year, stranded % of the reference, the pack +
 protection part cost, and the chemistry's main caution. Rows are ranked by
-cost per hour, cheapest first; designs that never start go last.
+cost per hour, cheapest first; a pack (or a charge) that lasts less than a
+day of the product's use is marked * and ranked after those that last a
+day; designs that never start go last.
 
 flags:
   --budget DOLLARS  most a pack + protection part may cost (default: the
@@ -66,6 +68,7 @@ type compareRow struct {
 	partCost     float64 // pack + protection element
 	overBudget   bool
 	budgetActive bool
+	short        bool    // lasts less than a day of use (scenario.LineupRow.Short)
 	rank         float64 // worst-corner or p10 runtime, for --sort worst|p10
 }
 
@@ -158,6 +161,9 @@ func runCompare(c *cli, args []string) error {
 	if err := t.end(); err != nil {
 		return err
 	}
+	if f == formatText && anyShort(rows) {
+		_, err = fmt.Fprintf(c.stdout, "\n* lasts less than a day's use (%s): the pack swapped or charged more than once a day;\n  ranked after the cells that last a day, whatever their cost per hour.\n", useWords(&d))
+	}
 	if f == formatText && len(misfits) > 0 {
 		_, err = fmt.Fprintf(c.stdout, "\nno series count fits: %s\n", strings.Join(misfits, ", "))
 	}
@@ -196,7 +202,15 @@ func compareColumns(withBudget bool) []column[compareRow] {
 		{head: "S×P", human: true, text: func(r compareRow) string { return fmt.Sprintf("%d×%d", r.series, r.par) }},
 		{key: "series", machine: true, val: func(r compareRow) any { return r.series }},
 		{key: "parallel", machine: true, val: func(r compareRow) any { return r.par }},
-		num("runtime_h", "runtime h", 2, func(r compareRow) float64 { return r.r.RuntimeH }),
+		{key: "runtime_h", head: "runtime h", right: true, human: true, machine: true,
+			text: func(r compareRow) string {
+				if r.short {
+					return fixed(r.r.RuntimeH, 2) + "*"
+				}
+				return fixed(r.r.RuntimeH, 2) + " " // the figures stay aligned
+			},
+			val: func(r compareRow) any { return r.r.RuntimeH }},
+		{key: "lasts_a_day", machine: true, val: func(r compareRow) any { return r.r.RuntimeH > 0 && !r.short }},
 		{key: "rechargeable", machine: true, val: func(r compareRow) any { return r.cell.Rechargeable }},
 		{key: "packs_per_year", head: "per year", right: true, human: true, machine: true,
 			text: func(r compareRow) string {
@@ -248,6 +262,25 @@ func compareColumns(withBudget bool) []column[compareRow] {
 	return cols
 }
 
+// anyShort reports whether a row lasts less than a day of use.
+func anyShort(rows []compareRow) bool {
+	for _, r := range rows {
+		if r.short {
+			return true
+		}
+	}
+	return false
+}
+
+// useWords is the design's daily use in words: "1 h a day", or
+// "continuous use".
+func useWords(d *discharge.Design) string {
+	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
+		return short(d.HoursPerDay) + " h a day"
+	}
+	return "24 h a day"
+}
+
 // orNaN gives v, or NaN (written as null in JSON, empty in CSV) when the
 // design never runs and a per-hour or per-year figure means nothing.
 func orNaN(runtimeH, v float64) float64 {
@@ -289,7 +322,7 @@ func lineupRows(s *scenario.Scenario, dp *discharge.Design, budget float64, with
 			return nil, nil, fmt.Errorf("compare %s: %w", lr.Cell.ID, lr.Err)
 		}
 		r := lr.Result
-		row := compareRow{cell: lr.Cell, series: lr.Series, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0}
+		row := compareRow{cell: lr.Cell, series: lr.Series, par: d.Parallel, r: r, partCost: r.PackPrice + elCost, budgetActive: budget > 0, short: lr.Short()}
 		if r.RuntimeDays > 0 {
 			row.perYear = 365 / r.RuntimeDays
 		}

@@ -209,8 +209,12 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 		if row.r.RuntimeH > 0 {
 			ph = money(row.r.CostPerHour)
 		}
+		run := units.Duration(row.r.RuntimeH, 3)
+		if row.short {
+			run += " (under a day's use)"
+		}
 		rep.Lineup = append(rep.Lineup, lineupLine{Cell: row.cell.ID, Pack: fmt.Sprintf("%d×%d", row.series, row.par),
-			Runtime: units.Duration(row.r.RuntimeH, 3), PerHour: ph, Stranded: fixed(strandedPct(row.r), 1) + " %",
+			Runtime: run, PerHour: ph, Stranded: fixed(strandedPct(row.r), 1) + " %",
 			Cost: money(row.partCost), Caution: curves.ShortCaution(row.cell),
 			Current: row.cell == d.Cell && row.series == d.Series})
 	}

@@ -212,6 +212,15 @@ func TestCellsImport(t *testing.T) {
 	if !strings.HasPrefix(stdout, "wrote "+out) {
 		t.Errorf("stdout %q", stdout)
 	}
+	// The points are the voltage under the log's current with no
+	// resistance: the user is told what that means, and show says it too
+	// (not "rest (open-circuit) voltage", which it is not).
+	if !strings.Contains(stdout, "note: the points are the voltage under 2 A, with no resistance") {
+		t.Errorf("import says nothing of the curve's current: %q", stdout)
+	}
+	if _, show, _ := runCLI(t, "cells", "show", out); !strings.Contains(show, "the voltage under load at every current") || strings.Contains(show, "open-circuit") {
+		t.Errorf("cells show of an imported cell:\n%s", show)
+	}
 	cell, err := curves.Load(out)
 	if err != nil {
 		t.Fatal(err)

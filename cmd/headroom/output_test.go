@@ -180,11 +180,17 @@ func TestCompare(t *testing.T) {
 	if _, ok := series["6lr61"]; ok {
 		t.Errorf("6lr61 listed, but 9.6 V fresh exceeds 4.725 V")
 	}
-	// Ranked by cost per hour among the designs that run, those that do not
-	// run last.
-	prev, stopped := -1.0, false
+	// Ranked by cost per hour among the designs that run, those lasting a
+	// day of use first, then those that do not (the demo's NiMH pairs run
+	// minutes above its floor), those that do not run last.
+	prev, stopped, short := -1.0, false, false
 	for _, r := range rows {
 		rt := r["runtime_h"].(float64)
+		if day := r["lasts_a_day"].(bool); rt > 0 && !day && !short {
+			short, prev = true, -1 // a new tier
+		} else if rt > 0 && day && short {
+			t.Errorf("%s lasts a day of use but ranks after a row that does not", r["cell"])
+		}
 		if rt == 0 {
 			// A design that never runs has no cost per hour: null.
 			if r["cost_per_hour"] != nil {

@@ -449,6 +449,12 @@ func (out *Outcome) candidates(sp *Space, lim Limits) (cands, over []Candidate) 
 			par = append(par, p)
 		}
 	}
+	// Each element's short spec, once: it is the same in every pack, and
+	// working it out (a parse back of the spec) cost a fifth of a search.
+	specs := make([]string, len(sp.Elements))
+	for i, e := range sp.Elements {
+		specs[i] = protect.Short(e)
+	}
 	order, pack := 0, 0
 	for _, cell := range sp.Cells {
 		ocv := cell.OpenCircuit(0, sp.Base.TempC)
@@ -472,10 +478,10 @@ func (out *Outcome) candidates(sp *Space, lim Limits) (cands, over []Candidate) 
 					c0.packPrice = d.PackPrice
 				}
 				rp := discharge.ReversePack(sp.design(c0))
-				for _, e := range sp.Elements {
+				for i, e := range sp.Elements {
 					order++
 					c := c0
-					c.Element, c.Spec, c.order = e, protect.Short(e), order
+					c.Element, c.Spec, c.order = e, specs[i], order
 					c.UnitCost = c.packPrice + e.Cost()
 					out.Space++
 					switch {

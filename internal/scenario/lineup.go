@@ -74,7 +74,16 @@ func lineupRow(base *discharge.Design, cell *curves.Cell, eval func(*discharge.D
 // Runs reports whether the row's design runs at all.
 func (r LineupRow) Runs() bool { return r.Err == nil && r.Result != nil && r.Result.RuntimeH > 0 }
 
-// LineupBefore is the line-up's order: rows that run come first, ranked
+// Short reports whether the row's design runs but its pack (or one
+// charge) lasts less than a day of the product's use: under one calendar
+// day at its daily pattern. A product whose cells must be swapped or
+// charged more than once a day is seldom one anyone would build, however
+// little each hour costs (two NiMH cells behind a diode above a 1.8 V
+// floor run a toy for minutes, a hundredth of their charge).
+func (r LineupRow) Short() bool { return r.Runs() && r.Result.RuntimeDays < 1 }
+
+// LineupBefore is the line-up's order: rows that run come first, those
+// that last a day of use (Short) before those that do not, each ranked
 // by runtime (longest first) when byRuntime is set and by cost per hour
 // of use (cheapest first) otherwise; rows that do not run keep their
 // order.
@@ -84,6 +93,9 @@ func LineupBefore(a, b LineupRow, byRuntime bool) bool {
 	}
 	if !a.Runs() {
 		return false
+	}
+	if a.Short() != b.Short() {
+		return !a.Short()
 	}
 	if byRuntime {
 		return a.Result.RuntimeH > b.Result.RuntimeH

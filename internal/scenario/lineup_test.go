@@ -60,25 +60,33 @@ func TestLineupRule(t *testing.T) {
 	}
 }
 
-// RankLineup puts rows that run first, cheapest per hour (or longest) first,
-// and keeps the order of rows that do not run.
+// RankLineup puts rows that run first, those lasting a day of use before
+// those that do not, cheapest per hour (or longest) first, and keeps the
+// order of rows that do not run.
 func TestRankLineup(t *testing.T) {
-	res := func(h, cost float64) *discharge.Result { return &discharge.Result{RuntimeH: h, CostPerHour: cost} }
+	res := func(h, cost float64) *discharge.Result {
+		return &discharge.Result{RuntimeH: h, RuntimeDays: h, CostPerHour: cost} // 1 h of use a day
+	}
 	a := LineupRow{Cell: &curves.Cell{ID: "a"}, Result: res(10, 0.5)}
 	b := LineupRow{Cell: &curves.Cell{ID: "b"}, Result: res(20, 0.9)}
 	c := LineupRow{Cell: &curves.Cell{ID: "c"}, Err: ErrNoFit}
 	z := LineupRow{Cell: &curves.Cell{ID: "z"}, Result: res(0, 0)}
+	// s is the cheapest per hour but lasts half a day's use.
+	s := LineupRow{Cell: &curves.Cell{ID: "s"}, Result: res(0.5, 0.01)}
 	for _, tc := range []struct {
 		byRuntime bool
 		want      string
-	}{{false, "abcz"}, {true, "bacz"}} {
+	}{{false, "abscz"}, {true, "bascz"}} {
 		got := ""
-		for _, r := range RankLineup([]LineupRow{c, b, z, a}, tc.byRuntime) {
+		for _, r := range RankLineup([]LineupRow{c, s, b, z, a}, tc.byRuntime) {
 			got += r.Cell.ID
 		}
 		// Rows that do not run keep their input order: c before z.
-		if got != tc.want[:2]+"cz" {
-			t.Errorf("byRuntime %v: order %s, want %s", tc.byRuntime, got, tc.want)
+		if want := tc.want; got != want {
+			t.Errorf("byRuntime %v: order %s, want %s", tc.byRuntime, got, want)
 		}
+	}
+	if !s.Short() || a.Short() || z.Short() || c.Short() {
+		t.Errorf("Short: s %v a %v z %v c %v; want only s", s.Short(), a.Short(), z.Short(), c.Short())
 	}
 }
