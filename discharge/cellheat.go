@@ -124,6 +124,23 @@ func (h *cellTherm) set(d *Design, hs float64, buf *reuse[float64]) {
 	}
 }
 
+// heatRaisesR reports whether the cells' own heat can raise their
+// resistance: they self-heat, and their temperature table's resistance
+// factor somewhere above the ambient is over the ambient's (g > 1). Only
+// then can their heat run away — more resistance, more heat — and a
+// load collapse at one charge and work again at a later one, where the
+// table's factor falls; otherwise g ≤ 1 at every charge (rise).
+func (e *evaluator) heatRaisesR() bool {
+	if h := e.therm; h != nil {
+		for _, g := range h.gUp {
+			if !(g <= 1) {
+				return true
+			}
+		}
+	}
+	return false
+}
+
 // at is the resistance factor g and the cell's temperature (°C) for the
 // resistances, and its hottest (°C), at a charge whose per-cell power is
 // P in use and Ps in the rest (W, both at the ambient's resistances), t

@@ -209,6 +209,9 @@ func (e *evaluator) narrowWhy(v *variant, nd *node, lo, hi bound, why Cause) fou
 	// prev and cur are the last two charges solved (at first the
 	// bracket's ends).
 	prev, cur := lo, hi
+	// pinned is the end (−1 lo, +1 hi, 0 neither) the last step's
+	// estimate fell within half a tolerance of.
+	pinned := 0
 	for k := 0; k < 200 && hi.q-lo.q > tol; k++ {
 		flo, fhi := lo.m, hi.m
 		if a, b := lo.r.of(why), hi.r.of(why); one && a > 0 && b < 0 {
@@ -216,6 +219,7 @@ func (e *evaluator) narrowWhy(v *variant, nd *node, lo, hi bound, why Cause) fou
 		}
 		flo, fhi = flo*slo, fhi*shi
 		x := 0.5 * (lo.q + hi.q)
+		pin := 0
 		// A failing end with no margin (a limiter's clamp taking the
 		// whole input with the floor at zero: 0 V above a 0 V floor) says
 		// nothing of where the failure starts: the step would land on hi
@@ -239,9 +243,25 @@ func (e *evaluator) narrowWhy(v *variant, nd *node, lo, hi bound, why Cause) fou
 			}
 			// Keep half a tolerance inside the bracket: once the
 			// estimate is good, a step past it closes the bracket from
-			// the other side.
-			x = min(max(x, lo.q+0.5*tol), hi.q-0.5*tol)
+			// the other side. An estimate pinned there twice running at
+			// the same end is not good: the smallest margin sits at
+			// rounding level and jumps where the run fails (a rule
+			// standing at its limit beside the one that fails), and each
+			// step would move that end by half a tolerance. Bisect then
+			// (TestNarrowStuckEstimateBisects).
+			switch {
+			case x < lo.q+0.5*tol:
+				pin = -1
+			case x > hi.q-0.5*tol:
+				pin = 1
+			}
+			if pin != 0 && pin == pinned {
+				x = 0.5 * (lo.q + hi.q)
+			} else {
+				x = min(max(x, lo.q+0.5*tol), hi.q-0.5*tol)
+			}
 		}
+		pinned = pin
 		if !(x > lo.q && x < hi.q) {
 			x = 0.5 * (lo.q + hi.q)
 		}

@@ -107,10 +107,13 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 		}
 	}
 	if !noStop {
-		if own.hard() {
+		if own.hard() && !e.heatRaisesR() {
 			// The design fails there by a rule that is not a stop: so
 			// does this run (the same rule ranks first), which works
-			// wherever the design does.
+			// wherever the design does. (Not where the cells' heat can
+			// let a failure go again, heatRaisesR: this run's scan from
+			// its own start may step over it, as a separate run's
+			// would.)
 			fE0 = own
 			fE0.v = noFloor
 			e.skipped++
@@ -132,7 +135,7 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 	case noStop:
 		qs00 = qs0F
 	case none:
-	case !e.general && f0F.hard():
+	case !e.general && f0F.hard() && !e.heatRaisesR():
 		qs00 = qs0F
 		e.skipped++
 	case e.general || !e.bareFails(noFloor, neither, fE0):
@@ -186,6 +189,9 @@ func (e *evaluator) strandedSplit(real *variant, qsCut, scale float64, r *Result
 // end-point, the charge running out, the pack's cut-off when bare keeps
 // it) bare fails too.
 func (e *evaluator) bareFails(v, bare *variant, f found) bool {
+	if e.heatRaisesR() { // a failure may go again (see strandedSplit)
+		return false
+	}
 	switch f.why {
 	case CauseEndPoint, causeSpent:
 	case CauseCutoff:

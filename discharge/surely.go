@@ -65,12 +65,8 @@ func (e *evaluator) sureFor(v *variant, nd *node, solved bool) {
 	if v.heat != nil && !v.heat.still {
 		return
 	}
-	if h := e.therm; h != nil {
-		for _, g := range h.gUp {
-			if !(g <= 1) {
-				return
-			}
-		}
+	if e.heatRaisesR() {
+		return
 	}
 	n := len(e.loads)
 	for k, l := range e.loads {
