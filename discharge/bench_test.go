@@ -63,6 +63,17 @@ func BenchmarkEvaluatePulsed(b *testing.B) {
 // passes (cellheat.go). The memos shared across evaluations change it
 // little: 4.23 → 4.14 ms (×0.98), 862 → 858 allocations, medians of 10
 // interleaved runs of 40 evaluations against main.
+//
+// Cheaper solves inside the settles, the same settles (their number and
+// their steps unchanged): the junction's law worked out once per solve
+// (protect.Forward, the same drops to the bit) and Newton's slope from
+// it instead of a second solve of the law (its result the same to the
+// step's 1e-13; TestNewtonSlopeMatchesDifference). 470 → 441 node
+// solves (the cut-off searches' steps land a few ulps apart), 846 → 788
+// allocations; against main (with the cut-off search's secant steps and
+// margin bound) in interleaved runs of 40 evaluations on the busy
+// machine (load 2–8): medians 4.47 → 2.74 ms (×0.61, 8 pairs), and
+// ×0.62–0.70 in three earlier sets of 8–10 pairs.
 func BenchmarkEvaluatePower(b *testing.B) {
 	d := benchDesign(b, "0.8W@85%")
 	benchEvaluate(b, d)

@@ -405,8 +405,11 @@ func (e *evaluator) heatOf(o op, v *variant, t float64) float64 {
 			break
 		}
 		clamp := v.lim.Clamp
-		if c, ok := v.heat.base.(protect.Clamper); ok {
-			clamp = c.ClampAt(o.Vin, t)
+		if _, ok := v.heat.base.(protect.Clamper); ok {
+			// Fixed at t: the same clamp to the bit (protect.Fixed), its
+			// bisection's many drops without working the terms out at
+			// each.
+			clamp = v.heat.fixedAt(t).(protect.Clamper).ClampAt(o.Vin, t)
 		}
 		p = o.Vin * math.Min(clamp, o.I)
 	case failCollapse:

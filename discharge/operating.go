@@ -21,63 +21,21 @@ func (e *evaluator) solve(l Load, k int, v *variant, E, Rp float64) op {
 func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 	el, T := e.phaseElement(v, k)
 	iq := el.Quiescent(E, T)
-	vin := func(i float64) float64 { return E - (i+iq)*Rp }
-	// lastI and lastD are the current and the drop of vload's last call:
-	// the root finders end on a call at the current they return, whose
-	// drop the operating point takes again (the same arguments, so the
-	// same value without a second solve of the element's law).
-	lastI, lastD := math.NaN(), 0.0
-	vload := func(i float64) float64 {
-		x := vin(i)
-		lastI, lastD = i, el.Drop(i, x, T)
-		return x - lastD
-	}
-	var i float64
-	switch l.Kind {
-	case ConstantCurrent:
-		i = l.Amps
-	case ConstantResistance:
-		g := func(i float64) float64 { return i*l.Ohms - vload(i) }
-		if vload(0) <= 0 {
-			i = 0
-		} else {
-			i = e.warmRoot(g, k, E/l.Ohms)
-		}
-	case LED:
-		g := func(i float64) float64 { return i*l.Ohms + l.Vf - vload(i) }
-		if vload(0) <= l.Vf {
-			i = 0
-		} else {
-			i = e.warmRoot(g, k, (E-l.Vf)/l.Ohms)
-		}
-	case ConstantPower:
-		pin := l.InputPower()
-		if pin > 0 {
-			var ok bool
-			// Behind an element whose drop jumps (a MOSFET handing over
-			// to its body diode) i·vload(i) is not concave and meets pin
-			// twice; a warm start from the upper branch would find the
-			// upper root. Behind a steady element (none, a diode, a
-			// resistance) it is always concave.
-			hint := e.hint[k]
-			_, none := v.el.(protect.None)
-			if !v.steady {
-				hint = 0
-			}
-			i, ok = powerPoint(vload, pin, E, hint)
-			if !ok && !none && !(junction(v.el) && scanMisses(vload, pin, i)) {
-				i, ok = scanPower(vload, pin, i)
-			}
-			if ok {
-				e.hint[k] = i
-			} else {
-				*o = op{I: i, Ipack: i + iq, Vin: vin(i), Vload: 0, Fail: failCollapse}
-				return
-			}
+	// lastI and lastD are the current and the drop of the load's solve's
+	// last solve of the element's law (loadCurrent): the root finders end
+	// on one at the current they return, whose drop the operating point
+	// takes again (the same arguments, so the same value without a second
+	// solve of the law). A constant current solves nothing.
+	i, lastI, lastD := l.Amps, math.NaN(), 0.0
+	if l.Kind != ConstantCurrent {
+		var collapsed bool
+		if i, lastI, lastD, collapsed = e.loadCurrent(l, k, v, el, T, E, Rp, iq); collapsed {
+			*o = op{I: i, Ipack: i + iq, Vin: E - (i+iq)*Rp, Vload: 0, Fail: failCollapse}
+			return
 		}
 	}
 	*o = op{I: i, Ipack: i + iq}
-	o.Vin = vin(i)
+	o.Vin = E - (i+iq)*Rp
 	if i == lastI && reuseDrop {
 		o.Vdrop = lastD // el.Drop(i, o.Vin, T), o.Vin being vin(i)
 	} else {
@@ -119,6 +77,112 @@ func (e *evaluator) solveTo(o *op, l Load, k int, v *variant, E, Rp float64) {
 			o.Fail = failLimit
 		}
 	}
+}
+
+// loadCurrent is solveTo's current for phase k's load l other than a
+// constant current, behind el at T on the source (E, Rp) with iq drawn
+// standing; lastI and lastD are the current and the drop of the law's
+// last solve, and collapsed is set where a constant-power load finds no
+// operating point (i is then where the search stopped).
+func (e *evaluator) loadCurrent(l Load, k int, v *variant, el protect.Element, T, E, Rp, iq float64) (i, lastI, lastD float64, collapsed bool) {
+	vin := func(i float64) float64 { return E - (i+iq)*Rp }
+	lastI, lastD = math.NaN(), 0.0
+	// A junction's law at T worked out once for the solve (its drop
+	// depends on the current alone): the same drops to the bit, one
+	// Log1p a call where the element is not fixed at T.
+	fw, isFw := forwardOf(el, T)
+	// An element whose drop's partial derivatives are known
+	// (protect.Sloped) gives them with each drop of a constant-power
+	// solve (lastDi, lastDv), for Newton's slope: the same drops to the
+	// bit.
+	var sl protect.Sloped
+	isSl := false
+	if l.Kind == ConstantPower && !isFw && !e.general {
+		sl, isSl = el.(protect.Sloped)
+	}
+	lastDi, lastDv := 0.0, 0.0
+	vload := func(i float64) float64 {
+		x := vin(i)
+		switch {
+		case isFw:
+			lastI, lastD = i, fw.Drop(i)
+		case isSl:
+			var d float64
+			d, lastDi, lastDv = sl.DropSlopes(i, x, T)
+			lastI, lastD = i, d
+		default:
+			lastI, lastD = i, el.Drop(i, x, T)
+		}
+		return x - lastD
+	}
+	switch l.Kind {
+	case ConstantResistance:
+		g := func(i float64) float64 { return i*l.Ohms - vload(i) }
+		if vload(0) <= 0 {
+			i = 0
+		} else {
+			i = e.warmRoot(g, k, E/l.Ohms)
+		}
+	case LED:
+		g := func(i float64) float64 { return i*l.Ohms + l.Vf - vload(i) }
+		if vload(0) <= l.Vf {
+			i = 0
+		} else {
+			i = e.warmRoot(g, k, (E-l.Vf)/l.Ohms)
+		}
+	case ConstantPower:
+		pin := l.InputPower()
+		if pin > 0 {
+			var ok bool
+			// Behind an element whose drop jumps (a MOSFET handing over
+			// to its body diode) i·vload(i) is not concave and meets pin
+			// twice; a warm start from the upper branch would find the
+			// upper root. Behind a steady element (none, a diode, a
+			// resistance) it is always concave.
+			hint := e.hint[k]
+			_, none := v.el.(protect.None)
+			if !v.steady {
+				hint = 0
+			}
+			// d vload/di where the law gives it; the general path (the
+			// tests' reference) keeps the finite difference.
+			var slope func(float64) float64
+			switch {
+			case e.general:
+			case isFw:
+				slope = func(i float64) float64 { return -Rp - fw.Slope(i) }
+			case isSl:
+				// Along vin = E − (i + iq)·Rp: d/di of vin − Drop(i, vin).
+				slope = func(i float64) float64 {
+					if i != lastI {
+						vload(i)
+					}
+					return -Rp - lastDi + Rp*lastDv
+				}
+			}
+			i, ok = powerPoint(vload, slope, pin, E, hint)
+			if !ok && !none && !(junction(v.el) && scanMisses(vload, pin, i)) {
+				i, ok = scanPower(vload, pin, i, protect.LoadVoltageFalls(el) && !e.general, E)
+			}
+			if !ok {
+				return i, lastI, lastD, true
+			}
+			e.hint[k] = i
+		}
+	}
+	return i, lastI, lastD, false
+}
+
+// forwardOf is a junction element's forward law at t (protect.Forward):
+// its Drop(i) is el.Drop(i, vin, t) for any vin. False for other elements.
+func forwardOf(el protect.Element, t float64) (protect.Forward, bool) {
+	switch x := el.(type) {
+	case protect.Diode:
+		return x.ForwardAt(t), true
+	case protect.Schottky:
+		return x.ForwardAt(t), true
+	}
+	return protect.Forward{}, false
 }
 
 // reuseDrop lets solveTo take the drop of vload's last call at the
@@ -190,13 +254,17 @@ func (e *evaluator) warmRoot(g func(float64) float64, k int, hi float64) float64
 // and the iterates rise from there as from zero; any failure on the warm
 // path falls back to the start from zero, so a collapse is only ever
 // declared from there.
-func powerPoint(vload func(float64) float64, pin, E, i0 float64) (float64, bool) {
+//
+// slope, when not nil, is d vload/di (a junction's law gives it in closed
+// form): Newton's slope is then exact and costs no second solve of the
+// element's law; otherwise it is a finite difference.
+func powerPoint(vload, slope func(float64) float64, pin, E, i0 float64) (float64, bool) {
 	if i0 > 0 {
-		if i, ok := newtonPower(vload, pin, E, 0.99*i0); ok {
+		if i, ok := newtonPower(vload, slope, pin, E, 0.99*i0); ok {
 			return i, true
 		}
 	}
-	return newtonPower(vload, pin, E, 0)
+	return newtonPower(vload, slope, pin, E, 0)
 }
 
 // scanPower looks again for the lowest current at which i·vload(i) = pin
@@ -204,21 +272,50 @@ func powerPoint(vload func(float64) float64, pin, E, i0 float64) (float64, bool)
 // the product is not concave, and Newton can stop at a false peak or at
 // the jump. It scans from zero to where the load voltage runs out and
 // brackets the first crossing; false when there is none (a collapse).
-func scanPower(vload func(float64) float64, pin, at float64) (float64, bool) {
+//
+// falls says that the load voltage never rises with the current
+// (protect.LoadVoltageFalls; E is the source's voltage). Then a point
+// past x_j draws at most x·vload(x_j): the grid points where that stays
+// under pin cannot cross and are not solved, and from the first point
+// where the voltage is at or below zero none can; the scan takes the
+// points that could, and gives the answer the whole grid gives (the
+// bracket's lower end is solved where it was skipped). Rounding could
+// leave a later point's voltage a few ulps of E above what the fall
+// allows: 1e-9·E is allowed for it, and the stop is taken only where
+// that much at the grid's end is under pin. TestScanStopMatchesWholeScan
+// checks the answers against the whole grid's, to the bit.
+func scanPower(vload func(float64) float64, pin, at float64, falls bool, E float64) (float64, bool) {
 	hi := math.Max(at, 1e-9)
 	for k := 0; k < 60 && vload(hi) > 0; k++ {
 		hi *= 2
 	}
 	const n = 128
+	slack := 1e-9 * math.Abs(E)
+	falls = falls && hi*slack < pin
 	P := func(x float64) float64 { return x*vload(x) - pin }
-	lo, flo := 0.0, -pin
+	lo, flo, last := 0.0, -pin, 0 // last: the grid point lo holds
 	for j := 1; j <= n; j++ {
 		x := hi * float64(j) / n
-		fx := P(x)
+		v := vload(x)
+		fx := x*v - pin
 		if fx >= 0 {
+			if last != j-1 {
+				lo = hi * float64(j-1) / n
+				flo = P(lo)
+			}
 			return bracketRootF(P, lo, x, flo, fx), true
 		}
-		lo, flo = x, fx
+		if falls && v <= 0 {
+			break // no later point reaches pin
+		}
+		lo, flo, last = x, fx, j
+		if falls {
+			// Up to lim a point's power is under pin whatever its voltage.
+			lim := pin * (1 - 1e-12) / ((v + slack) * (1 + 1e-12))
+			for j < n && hi*float64(j+1)/n < lim {
+				j++
+			}
+		}
 	}
 	return at, false
 }
@@ -287,7 +384,14 @@ func scanMisses(vload func(float64) float64, pin, at float64) bool {
 // last newtonCycle the sequence is periodic from there, and the 200th
 // iterate is known without taking the steps: the same current, to the
 // last bit, as running them.
-func newtonPower(vload func(float64) float64, pin, E, i float64) (float64, bool) {
+//
+// The slope of i·vload(i) is i·slope(i) + vload(i) where slope is given
+// (powerPoint), else a finite difference over 1e-7 of the current. The
+// two differ by the difference's truncation, about 1e-7 of the slope:
+// Newton lands on the same root to its 1e-13, and judges a collapse
+// differently only where the input power is within about 1e-14 of the
+// most the source gives (TestNewtonSlopeMatchesDifference).
+func newtonPower(vload, slope func(float64) float64, pin, E, i float64) (float64, bool) {
 	const steps = 200
 	var ring [newtonCycle]float64 // ring[k%newtonCycle]: the current at step k
 	for k := 0; k < steps; k++ {
@@ -306,9 +410,14 @@ func newtonPower(vload func(float64) float64, pin, E, i float64) (float64, bool)
 		if v <= 0 {
 			return i, false
 		}
-		h := 1e-7 * math.Max(i, pin/E)
-		v2 := vload(i + h)
-		df := ((i+h)*v2 - i*v) / h
+		var df float64
+		if slope != nil {
+			df = v + i*slope(i)
+		} else {
+			h := 1e-7 * math.Max(i, pin/E)
+			v2 := vload(i + h)
+			df = ((i+h)*v2 - i*v) / h
+		}
 		if df <= 0 {
 			return i, false
 		}

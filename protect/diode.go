@@ -60,9 +60,15 @@ type junctionAt struct {
 // Drop at that temperature costs one Log1p instead of a Log, an Exp and a
 // Log1p. The result is a new value; s is unchanged.
 func (s Shockley) At(tempC float64) Shockley {
-	t := tempC + ZeroCelsius
-	s.at = &junctionAt{tempC: tempC, is: s.Saturation(tempC), nvt: s.N * ThermalVoltage(t)}
+	a := s.termsAt(tempC)
+	s.at = &a
 	return s
+}
+
+// termsAt is s's temperature terms at tempC, as At keeps them.
+func (s Shockley) termsAt(tempC float64) junctionAt {
+	t := tempC + ZeroCelsius
+	return junctionAt{tempC: tempC, is: s.Saturation(tempC), nvt: s.N * ThermalVoltage(t)}
 }
 
 // Saturation returns Is at tempC (°C), in amperes. Its reverse current: an
@@ -71,6 +77,40 @@ func (s Shockley) Saturation(tempC float64) float64 {
 	t := tempC + ZeroCelsius
 	r := t / NominalK
 	return s.Is * math.Exp(s.XTI/s.N*math.Log(r)+s.Eg/(s.N*ThermalVoltage(t))*(r-1))
+}
+
+// Forward is a junction's forward law at one temperature, its terms
+// worked out once (Shockley.ForwardAt): Drop at any current then costs
+// one Log1p, and Slope a division. A value: making one allocates
+// nothing, unlike At.
+type Forward struct {
+	nvt, is, rs float64
+}
+
+// ForwardAt returns s's forward law at tempC: Drop(i) is s.Drop(i,
+// tempC) to the bit (the same terms by the same arithmetic, whether s has
+// them worked out there or not).
+func (s Shockley) ForwardAt(tempC float64) Forward {
+	if a := s.at; a != nil && a.tempC == tempC {
+		return Forward{nvt: a.nvt, is: a.is, rs: s.Rs}
+	}
+	t := tempC + ZeroCelsius
+	r := t / NominalK
+	nvt := s.N * ThermalVoltage(t)
+	return Forward{nvt: nvt, is: s.Is * math.Exp(s.XTI/s.N*math.Log(r)+s.Eg/nvt*(r-1)), rs: s.Rs}
+}
+
+// Drop is the forward voltage at current i (A), 0 for i ≤ 0.
+func (f Forward) Drop(i float64) float64 {
+	if !(i > 0) {
+		return 0
+	}
+	return f.nvt*math.Log1p(i/f.is) + i*f.rs
+}
+
+// Slope is dDrop/di at current i ≥ 0, ohms: n·Vt/(Is + i) + Rs.
+func (f Forward) Slope(i float64) float64 {
+	return f.nvt/(f.is+math.Max(i, 0)) + f.rs
 }
 
 // Drop returns the forward voltage at current i (A) and tempC (°C); 0 for
@@ -88,6 +128,25 @@ func (s Shockley) Drop(i, tempC float64) float64 {
 	// Is(T) as in Saturation, sharing nvt: one Log, one Exp, one Log1p.
 	is := s.Is * math.Exp(s.XTI/s.N*math.Log(r)+s.Eg/nvt*(r-1))
 	return nvt*math.Log1p(i/is) + i*s.Rs
+}
+
+// dropFloor is a lower bound on Drop(i, tempC) as Drop computes it,
+// rounding included, for a junction with its terms worked out at tempC
+// (At); 0 otherwise. It takes ln(1 + x) > ln x ≥ (e − 1)·ln 2 for x =
+// m·2^e, m in [½, 1) (math.Frexp): no logarithm. Drop's few roundings
+// (log1p within an ulp, a product and a sum) lower its value by well
+// under 1e-15 relative, the bound is taken 1e-12 lower.
+func (s Shockley) dropFloor(i, tempC float64) float64 {
+	a := s.at
+	if !(i > 0) || a == nil || a.tempC != tempC {
+		return 0
+	}
+	_, e := math.Frexp(i / a.is)
+	l := 0.0
+	if e > 1 {
+		l = float64(e-1) * math.Ln2
+	}
+	return (a.nvt*l + i*s.Rs) * (1 - 1e-12)
 }
 
 // Diode is a series PN diode in the supply rail: it blocks reversed cells
@@ -117,6 +176,7 @@ func DefaultDiode() Diode {
 func (d Diode) Kind() string                         { return "diode" }
 func (d Diode) Spec() string                         { return specOf(d.Kind(), d.fields()) }
 func (d Diode) Drop(i, vin, tempC float64) float64   { return d.Junction.Drop(i, tempC) }
+func (d Diode) ForwardAt(tempC float64) Forward      { return d.Junction.ForwardAt(tempC) }
 func (d Diode) Quiescent(vin, tempC float64) float64 { return 0 }
 func (d Diode) Limit(tempC float64) Limit            { return NoLimit() }
 func (d Diode) Cost() float64                        { return d.Price }
@@ -209,18 +269,52 @@ func (s Schottky) AtTemp(tempC float64) Element {
 }
 
 func (m PMOS) AtTemp(tempC float64) Element {
-	m.Body = m.Body.At(tempC)
+	m.FET, _ = m.FET.atTemp(tempC)
 	return m
 }
 
 func (m PMOSClamp) AtTemp(tempC float64) Element {
-	m.Body = m.Body.At(tempC)
+	m.FET, _ = m.FET.atTemp(tempC)
 	return m
 }
 
+// fetTerms is a FET element's temperature terms at one temperature, in
+// one allocation: its body diode's, its channel's and (a limiter) its
+// sense transistor's.
+type fetTerms struct {
+	body, pnp junctionAt
+	fet       fetAtTemp
+	// pnpIs is the limiter's PNP's saturation current at 27 °C
+	// (Limiter.PNP), which depends on its Vbe alone: kept so that fixing
+	// the limiter again at another temperature does not work it out again.
+	// vbe is the Vbe it was worked out from.
+	pnpIs, vbe float64
+}
+
+// atTemp is f with its body diode's and its channel's terms worked out
+// at tempC (the same arithmetic At and Shockley.Drop do at each call),
+// and the terms' allocation, with room for a limiter's PNP.
+func (f FET) atTemp(tempC float64) (FET, *fetTerms) {
+	w := new(fetTerms)
+	f.at = nil
+	w.body = f.Body.termsAt(tempC)
+	f.Body.at = &w.body
+	w.fet = fetAtTemp{tempC: tempC, v: f.At(tempC)}
+	f.at = &w.fet
+	return f, w
+}
+
 func (l Limiter) AtTemp(tempC float64) Element {
-	l.Body = l.Body.At(tempC)
-	q := l.PNP()
-	l.pnp = &junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
+	var w *fetTerms
+	var q Shockley
+	if l.terms != nil && l.terms.vbe == l.Vbe {
+		q = Shockley{Is: l.terms.pnpIs, N: 1, Eg: pnpEg, XTI: pnpXTI} // l.PNP(), kept
+	} else {
+		q = l.PNP()
+	}
+	l.FET, w = l.FET.atTemp(tempC)
+	w.pnpIs, w.vbe = q.Is, l.Vbe
+	w.pnp = junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
+	l.pnp, l.terms = &w.pnp, w
 	return l
 }

@@ -216,3 +216,32 @@ type Overloader interface {
 type Clamper interface {
 	ClampAt(vin, tempC float64) float64
 }
+
+// Sloped is an element whose drop's partial derivatives are known in
+// closed form: DropSlopes returns Drop(i, vin, tempC), to the bit, and
+// its derivatives by i (vin held) and by vin (i held). The engine's
+// constant-power Newton steps take them in place of a second solve of
+// the law. Where the law has a corner (a channel handing over to its body
+// diode, a pass FET saturating) the side the drop is taken from gives
+// them.
+type Sloped interface {
+	DropSlopes(i, vin, tempC float64) (d, di, dv float64)
+}
+
+// LoadVoltageFalls reports whether the voltage e leaves the load,
+// vin − e.Drop(i, vin, T), never rises as the current i rises along a
+// source line vin = E − R·i (R ≥ 0) at one temperature: each drop law
+// here rises with the current and falls with the input (a channel's drop
+// rises as its gate drive, the input, falls), and where it jumps, it
+// jumps up (a channel running out of drive handing over to its body
+// diode, the limiter's pass FET saturating and taking the whole input).
+// Not so for the protector IC: above its over-voltage threshold it takes
+// the whole input, and a current that pulls the input under it gives the
+// load voltage back. TestLoadVoltageFalls checks every kind it names.
+func LoadVoltageFalls(e Element) bool {
+	switch e.(type) {
+	case None, Diode, Schottky, PMOS, PMOSClamp, Limiter, PPTC, Crowbar:
+		return true
+	}
+	return false
+}

@@ -72,6 +72,8 @@ type Limiter struct {
 	// pnp holds the PNP's Is(T) and Vt(T) for one temperature (AtTemp);
 	// not a parameter.
 	pnp *junctionAt
+	// terms is where pnp lives, with the PNP's nominal Is (AtTemp).
+	terms *fetTerms
 }
 
 // DefaultLimiter is a 1 Ω sense resistor, a small-signal PNP with Vbe
@@ -108,12 +110,35 @@ func (l Limiter) VbeAt(tempC float64) float64 { return l.PNP().Drop(pnpRef, temp
 // Collector returns the PNP's collector current in amperes with the sense
 // voltage vbe across its base and emitter at tempC: Is(T)·(e^(Vbe/Vt) − 1).
 func (l Limiter) Collector(vbe, tempC float64) float64 {
+	c, _ := l.collector(vbe, tempC)
+	return c
+}
+
+// collector is Collector and its derivative by vbe, A/V: Is(T)·e^(Vbe/Vt)/Vt
+// (0 past the 700·Vt cap).
+func (l Limiter) collector(vbe, tempC float64) (c, dc float64) {
 	p := l.pnp
 	if p == nil || p.tempC != tempC {
 		q := l.PNP()
 		p = &junctionAt{tempC: tempC, is: q.Saturation(tempC), nvt: ThermalVoltage(tempC + ZeroCelsius)}
 	}
-	return p.is * math.Expm1(math.Min(vbe/p.nvt, 700))
+	x := vbe / p.nvt
+	c = p.is * expm1(math.Min(x, 700))
+	if x < 700 {
+		dc = (c + p.is) / p.nvt
+	}
+	return c, dc
+}
+
+// expm1 is e^x − 1: math.Expm1 where x is small and e^x − 1 would
+// cancel, math.Exp(x) − 1 from x = 1 on (e^x ≥ e there: the subtraction
+// loses under half a bit, the same to 2 ulps), at half Expm1's cost on
+// the limiter's hot path (its drop is solved many times per charge).
+func expm1(x float64) float64 {
+	if x < 1 {
+		return math.Expm1(x)
+	}
+	return math.Exp(x) - 1
 }
 
 // rp is the divider's Thevenin resistance R1∥R2, through which the PNP's
@@ -150,12 +175,43 @@ func (l Limiter) Drop(i, vin, tempC float64) float64 {
 	f := l.At(tempC)
 	ia := i * f.A
 	b1 := vin - f.Vth
-	up := channelDrop(ia, b1, 0.5, 0.5*b1*b1, l.Body.Drop(i, tempC)) + i*(f.Rfix+l.Rsh) // d1 + i·Rsh
+	up := channelOrBody(ia, b1, 0.5, 0.5*b1*b1, l.Body, i, tempC) + i*(f.Rfix+l.Rsh) // d1 + i·Rsh
 	b2 := l.drive()*(vin-up) - l.Collector(i*l.Rsh, tempC)*l.rp() - f.Vth
 	if !(b2 > 0) || ia > 0.5*b2*b2 {
 		return math.Max(vin, up)
 	}
 	return up + channelDrop(ia, b2, 0.5, 0.5*b2*b2, math.Inf(1)) + i*f.Rfix
+}
+
+// DropSlopes is Drop (the same value, to the bit) with its partial
+// derivatives by the current and by the input (Sloped): the two channels'
+// square laws differentiated implicitly (channelSlopes), the body diode's
+// n·Vt/(Is + i) + Rs, the PNP's collector current through the pass FET's
+// gate drive; where the pass FET has saturated, the drop's own max(vin,
+// up).
+func (l Limiter) DropSlopes(i, vin, tempC float64) (d, di, dv float64) {
+	if !(i > 0) {
+		return 0, 0, 0
+	}
+	f := l.At(tempC)
+	ia := i * f.A
+	b1 := vin - f.Vth
+	d1, d1i, d1b := channelSlopes(ia, b1, 0.5, 0.5*b1*b1, f.A, l.Body, i, tempC)
+	up := d1 + i*(f.Rfix+l.Rsh) // d1 + i·Rsh
+	upi, upv := d1i+f.Rfix+l.Rsh, d1b
+	c, dc := l.collector(i*l.Rsh, tempC)
+	k, rp := l.drive(), l.rp()
+	b2 := k*(vin-up) - c*rp - f.Vth
+	if !(b2 > 0) || ia > 0.5*b2*b2 {
+		if vin >= up {
+			return math.Max(vin, up), 0, 1
+		}
+		return math.Max(vin, up), upi, upv
+	}
+	d2 := channelDrop(ia, b2, 0.5, 0.5*b2*b2, math.Inf(1))
+	b2i, b2v := -k*upi-dc*l.Rsh*rp, k*(1-upv)
+	den := b2 - d2
+	return up + d2 + i*f.Rfix, upi + (f.A-d2*b2i)/den + f.Rfix, upv - d2*b2v/den
 }
 
 // ClampAt returns the current the limiter holds the load to with vin at
@@ -171,7 +227,7 @@ func (l Limiter) ClampAt(vin, tempC float64) float64 {
 	excess := func(i float64) float64 {
 		ia := i * f.A
 		b1 := vin - f.Vth
-		up := channelDrop(ia, b1, 0.5, 0.5*b1*b1, l.Body.Drop(i, tempC)) + i*(f.Rfix+l.Rsh)
+		up := channelOrBody(ia, b1, 0.5, 0.5*b1*b1, l.Body, i, tempC) + i*(f.Rfix+l.Rsh)
 		return k*(vin-up) - l.Collector(i*l.Rsh, tempC)*rp - f.Vth - math.Sqrt(2*ia)
 	}
 	if !(excess(0) > 0) {

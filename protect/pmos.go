@@ -50,6 +50,16 @@ type FET struct {
 	TcVth float64
 	// Body is the source-drain body diode, which points from pack to load.
 	Body Shockley
+
+	// at holds At worked out once for one temperature (AtTemp); not a
+	// parameter.
+	at *fetAtTemp
+}
+
+// fetAtTemp is a FET's conduction parameters worked out at tempC.
+type fetAtTemp struct {
+	tempC float64
+	v     FETAt
 }
 
 // RefC is the temperature at which FET ratings are given, °C.
@@ -69,6 +79,9 @@ func (a FETAt) K() float64 { return 1 / a.A }
 // resistance factor is kept at 0.1 or more (a coefficient of 0.01/°C at
 // −65 °C would otherwise reach zero).
 func (f FET) At(tempC float64) FETAt {
+	if a := f.at; a != nil && a.tempC == tempC {
+		return a.v
+	}
 	dt := tempC - RefC
 	r := math.Max(0.1, 1+f.TcR*dt)
 	vth := math.Max(1e-3, f.Vth+f.TcVth*dt)
@@ -126,6 +139,53 @@ func channelDrop(ia, b, c, satIA, diode float64) float64 {
 		return d
 	}
 	return diode
+}
+
+// channelOrBody is channelDrop with the body diode's drop body.Drop(i,
+// tempC) worked out only where it can be the smaller: a channel carrying
+// the current with a drop below the diode's least possible drop
+// (Shockley.dropFloor) gives its own drop, the same value channelDrop
+// returns, for no logarithm. A conducting channel drops millivolts where
+// the diode drops over half a volt, so that is nearly every call.
+func channelOrBody(ia, b, c, satIA float64, body Shockley, i, tempC float64) float64 {
+	if b > 0 && ia <= satIA {
+		if d := 2 * ia / (b + math.Sqrt(b*b-4*c*ia)); d < body.dropFloor(i, tempC) {
+			return d
+		}
+	}
+	return channelDrop(ia, b, c, satIA, body.Drop(i, tempC))
+}
+
+// channelSlopes is channelOrBody with its partial derivatives: by the
+// current i (through ia = i·a, and the body diode's own slope n·Vt/(Is +
+// i) + Rs where it carries the current) and by b. The channel's root of
+// c·d² − b·d + ia = 0 moves by 1/(b − 2c·d) per unit of ia and by
+// −d/(b − 2c·d) per unit of b (implicit differentiation). d is
+// channelOrBody's value to the bit (the same expressions).
+func channelSlopes(ia, b, c, satIA, a float64, body Shockley, i, tempC float64) (d, di, db float64) {
+	if b > 0 && ia <= satIA {
+		dc := 2 * ia / (b + math.Sqrt(b*b-4*c*ia))
+		if !(dc < body.dropFloor(i, tempC)) {
+			if diode := body.Drop(i, tempC); !(dc < diode) {
+				return diode, body.ForwardAt(tempC).Slope(i), 0
+			}
+		}
+		den := b - 2*c*dc
+		return dc, a / den, -dc / den
+	}
+	return body.Drop(i, tempC), body.ForwardAt(tempC).Slope(i), 0
+}
+
+// DropSlopes is Drop (the same value, to the bit) with its partial
+// derivatives by the current and by the input (Sloped).
+func (m PMOS) DropSlopes(i, vin, tempC float64) (d, di, dv float64) {
+	if !(i > 0) {
+		return 0, 0, 0
+	}
+	f := m.At(tempC)
+	b := vin - f.Vth
+	d, di, dv = channelSlopes(i*f.A, b, 0.5, 0.5*b*b, f.A, m.Body, i, tempC)
+	return d + i*f.Rfix, di + f.Rfix, dv
 }
 
 func fetFields(f *FET) []field {
@@ -197,7 +257,7 @@ func (m PMOS) Drop(i, vin, tempC float64) float64 {
 	}
 	f := m.At(tempC)
 	b := vin - f.Vth
-	return channelDrop(i*f.A, b, 0.5, 0.5*b*b, m.Body.Drop(i, tempC)) + i*f.Rfix
+	return channelOrBody(i*f.A, b, 0.5, 0.5*b*b, m.Body, i, tempC) + i*f.Rfix
 }
 
 func (m PMOS) Quiescent(vin, tempC float64) float64 { return 0 }
@@ -268,12 +328,42 @@ func (m PMOSClamp) Drop(i, vin, tempC float64) float64 {
 	}
 	f := m.At(tempC)
 	ia, rf := i*f.A, i*f.Rfix
-	diode := m.Body.Drop(i, tempC)
 	if dc := channelDrop(ia, m.Vz+rf-f.Vth, -0.5, math.Inf(1), math.Inf(1)); vin-dc-rf >= m.Vz {
-		return math.Min(dc, diode) + rf
+		if dc < m.Body.dropFloor(i, tempC) {
+			return dc + rf // min(dc, diode) without the diode's logarithm (channelOrBody)
+		}
+		return math.Min(dc, m.Body.Drop(i, tempC)) + rf
 	}
 	b := vin - f.Vth
-	return channelDrop(ia, b, 0.5, 0.5*b*b, diode) + rf
+	return channelOrBody(ia, b, 0.5, 0.5*b*b, m.Body, i, tempC) + rf
+}
+
+// DropSlopes is Drop (the same value, to the bit) with its partial
+// derivatives by the current and by the input (Sloped). While the clamp
+// holds, the channel's root of −d²/2 − b·d + i·A = 0, b = Vz + i·Rfix −
+// Vth, does not depend on the input. (PMOSClamp must not take PMOS's.)
+func (m PMOSClamp) DropSlopes(i, vin, tempC float64) (d, di, dv float64) {
+	if !(i > 0) {
+		return 0, 0, 0
+	}
+	f := m.At(tempC)
+	ia, rf := i*f.A, i*f.Rfix
+	bc := m.Vz + rf - f.Vth
+	if dc := channelDrop(ia, bc, -0.5, math.Inf(1), math.Inf(1)); vin-dc-rf >= m.Vz {
+		dci := (f.A - dc*f.Rfix) / (bc + dc)
+		if dc < m.Body.dropFloor(i, tempC) {
+			return dc + rf, dci + f.Rfix, 0
+		}
+		diode := m.Body.Drop(i, tempC)
+		d := math.Min(dc, diode)
+		if d == dc {
+			return d + rf, dci + f.Rfix, 0
+		}
+		return d + rf, m.Body.ForwardAt(tempC).Slope(i) + f.Rfix, 0
+	}
+	b := vin - f.Vth
+	d, di, dv = channelSlopes(ia, b, 0.5, 0.5*b*b, f.A, m.Body, i, tempC)
+	return d + rf, di + f.Rfix, dv
 }
 
 // Quiescent is the Zener and gate-resistor current (vin − Vz)/Rg above Vz.
