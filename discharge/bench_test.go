@@ -32,8 +32,8 @@ func benchDesign(b *testing.B, load string) *Design {
 // at the bare cells' cut-off (51 → 43 node solves), secant steps in the
 // narrowing (→ 41), the margins' lower bound in the scan (surely.go,
 // → 29) and the evaluator's arrays kept across evaluations (23 → 6
-// allocations): ×0.58–0.72 against the tree before them in interleaved
-// runs on the busy machine (medians of 8–10).
+// allocations): 11.1 → 8.4 µs, medians of 10 interleaved runs on the
+// quiet machine (×0.77) — the goal is met.
 func BenchmarkEvaluateConstant(b *testing.B) {
 	d := benchDesign(b, "120mA")
 	benchEvaluate(b, d)
@@ -43,8 +43,8 @@ func BenchmarkEvaluateConstant(b *testing.B) {
 // Goal: median ≤ 25 µs per evaluation (met; README §Performance). 34.2
 // µs before the first speed pass, about 16 µs with the shared memos (49
 // node solves, 23 allocations); the changes listed under
-// BenchmarkEvaluateConstant make it 28 node solves and 6 allocations,
-// ×0.53–0.58 in the same interleaved runs.
+// BenchmarkEvaluateConstant make it 28 node solves and 6 allocations:
+// 18.3 → 12.4 µs in the same interleaved runs (×0.68).
 func BenchmarkEvaluatePulsed(b *testing.B) {
 	d := benchDesign(b, "450mA/3s,120mA/2s,15mA/25s")
 	benchEvaluate(b, d)
@@ -73,7 +73,9 @@ func BenchmarkEvaluatePulsed(b *testing.B) {
 // allocations; against main (with the cut-off search's secant steps and
 // margin bound) in interleaved runs of 40 evaluations on the busy
 // machine (load 2–8): medians 4.47 → 2.74 ms (×0.61, 8 pairs), and
-// ×0.62–0.70 in three earlier sets of 8–10 pairs.
+// ×0.62–0.70 in three earlier sets of 8–10 pairs. On the quiet machine,
+// against the tree before this session's work: 4.17 → 2.53 ms (×0.61,
+// medians of 8 interleaved runs of 100 evaluations).
 func BenchmarkEvaluatePower(b *testing.B) {
 	d := benchDesign(b, "0.8W@85%")
 	benchEvaluate(b, d)
