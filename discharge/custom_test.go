@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"sync"
 	"testing"
 
 	"headroom/curves"
@@ -344,37 +343,7 @@ func TestEvaluatorPoolPhaseCounts(t *testing.T) {
 		d.TracePoints = 5
 		designs = append(designs, d)
 	}
-	want := make([]string, len(designs))
-	for i, d := range designs {
-		r, err := Evaluate(d)
-		want[i] = fmt.Sprintf("%+v %v", r, err)
-		if err == nil {
-			want[i] = fmt.Sprintf("%+v", *r)
-		}
-	}
-	const workers = 4
-	var wg sync.WaitGroup
-	errs := make(chan string, workers*len(designs))
-	for w := range workers {
-		order := rand.New(rand.NewPCG(uint64(w), 13)).Perm(len(designs))
-		wg.Go(func() {
-			for _, i := range order {
-				r, err := Evaluate(designs[i])
-				got := fmt.Sprintf("%+v %v", r, err)
-				if err == nil {
-					got = fmt.Sprintf("%+v", *r)
-				}
-				if got != want[i] {
-					errs <- fmt.Sprintf("worker %d, design %d (%d phases): concurrent result differs from the serial one", w, i, len(designs[i].Profile))
-				}
-			}
-		})
-	}
-	wg.Wait()
-	close(errs)
-	for e := range errs {
-		t.Error(e)
-	}
+	checkConcurrent(t, designs, 13, func(d *Design) string { return fmt.Sprintf("%d phases", len(d.Profile)) })
 }
 
 // The claim the stranded split's run without the floor resumes on

@@ -34,28 +34,35 @@ func TestEvaluatorPoolConcurrent(t *testing.T) {
 		d.TracePoints = 8
 		designs = append(designs, d)
 	}
+	checkConcurrent(t, designs, 3, describeDesign)
+}
+
+// checkConcurrent evaluates designs one at a time, then on four
+// goroutines in shuffled orders (seeded by seed), and reports every
+// concurrent result that differs, field for field, from the serial one
+// (named by describe).
+func checkConcurrent(t *testing.T, designs []*Design, seed uint64, describe func(*Design) string) {
+	t.Helper()
+	result := func(d *Design) string {
+		r, err := Evaluate(d)
+		if err != nil {
+			return fmt.Sprintf("%+v %v", r, err)
+		}
+		return fmt.Sprintf("%+v", *r)
+	}
 	want := make([]string, len(designs))
 	for i, d := range designs {
-		r, err := Evaluate(d)
-		want[i] = fmt.Sprintf("%+v %v", r, err)
-		if err == nil {
-			want[i] = fmt.Sprintf("%+v", *r)
-		}
+		want[i] = result(d)
 	}
 	const workers = 4
 	var wg sync.WaitGroup
 	errs := make(chan string, workers*len(designs))
 	for w := range workers {
-		order := rand.New(rand.NewPCG(uint64(w), 3)).Perm(len(designs))
+		order := rand.New(rand.NewPCG(uint64(w), seed)).Perm(len(designs))
 		wg.Go(func() {
 			for _, i := range order {
-				r, err := Evaluate(designs[i])
-				got := fmt.Sprintf("%+v %v", r, err)
-				if err == nil {
-					got = fmt.Sprintf("%+v", *r)
-				}
-				if got != want[i] {
-					errs <- fmt.Sprintf("worker %d, design %d (%s): concurrent result differs from the serial one", w, i, describeDesign(designs[i]))
+				if result(designs[i]) != want[i] {
+					errs <- fmt.Sprintf("worker %d, design %d (%s): concurrent result differs from the serial one", w, i, describe(designs[i]))
 				}
 			}
 		})
