@@ -35,8 +35,8 @@ The file is written whole or not at all; an existing file is kept unless
 --force is given.
 
 flags:
-` + designFlagHelp() + `  -o FILE                         the netlist to write (.cir)
-  --force                         replace FILE if it exists
+` + designFlagHelp() + `  -o FILE                       the netlist to write (.cir)
+  --force                       replace FILE if it exists
 
 examples:
   headroom netlist -o demo.cir

@@ -42,9 +42,9 @@ Files are written whole or not at all; an existing file is kept unless
 --force is given.
 
 flags:
-` + designFlagHelp() + `  -o FILE                         the report to write
-  --format html|md                the report's format (default html; md when -o ends in .md)
-  --force                         replace existing files
+` + designFlagHelp() + `  -o FILE                       the report to write
+  --format html|md              the report's format (default html; md when -o ends in .md)
+  --force                       replace existing files
 
 examples:
   headroom report -o demo.html

@@ -27,7 +27,7 @@ pulse, 1 h of use a day and a 30 µA standby drain.
 flags:
 ` + designFlagHelp() + `  --spread                      add the spread over the tolerances (see headroom spread),
                                 with its --samples, --seed and --tol
-  --format text|json|csv|md       output format (default text)
+  --format text|json|csv|md     output format (default text)
 
 Values take SI prefixes (n, u or µ, m, k) and units (V A W ohm Ω h min s % C);
 a bare number is the flag's own unit where that is unambiguous.

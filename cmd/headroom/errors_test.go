@@ -6,8 +6,10 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
+	"unicode/utf8"
 
 	"headroom/curves"
 )
@@ -303,5 +305,35 @@ func TestDemo(t *testing.T) {
 	rb, _ := csv.NewReader(strings.NewReader(b)).ReadAll()
 	if len(ra) != 2 || len(rb) != 2 || strings.Join(ra[1], ",") != strings.Join(rb[1], ",") {
 		t.Errorf("the printed demo file and the built-in demo differ:\n%s\n%s", a, b)
+	}
+}
+
+// A command's help lines up: within one block of flag lines ("  -x ARG"
+// then two or more spaces), every description starts in the same column,
+// and no line ends in a space. Found by reading run -h, report -h and
+// netlist -h, whose last flags stood two columns right of the rest.
+func TestHelpColumnsLineUp(t *testing.T) {
+	flagLine := regexp.MustCompile(`^  (-\S+(?: \S+)?)(\s{2,})\S`)
+	for _, cmd := range commands {
+		_, out, _ := runCLI(t, cmd.name, "-h")
+		col, first := -1, ""
+		for _, l := range strings.Split(out, "\n") {
+			if strings.HasSuffix(l, " ") {
+				t.Errorf("headroom %s -h: line ends in a space: %q", cmd.name, l)
+			}
+			m := flagLine.FindStringSubmatch(l)
+			if m == nil {
+				if !strings.HasPrefix(l, "    ") { // a continuation line keeps the block
+					col = -1
+				}
+				continue
+			}
+			c := utf8.RuneCountInString(m[1]) + len(m[2])
+			if col < 0 {
+				col, first = c, l
+			} else if c != col {
+				t.Errorf("headroom %s -h: %q starts its description in column %d, %q in %d", cmd.name, l, c+2, first, col+2)
+			}
+		}
 	}
 }

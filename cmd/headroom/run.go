@@ -234,7 +234,8 @@ arguments, files, values) exit with status 2; other failures with status 1.
 }
 
 func (cmd *command) printHelp(w io.Writer) {
-	fmt.Fprintf(w, "usage: headroom %s %s\n\n%s", cmd.name, cmd.args, strings.TrimLeft(cmd.help, "\n"))
+	usage := strings.TrimSpace("headroom " + cmd.name + " " + cmd.args)
+	fmt.Fprintf(w, "usage: %s\n\n%s", usage, strings.TrimLeft(cmd.help, "\n"))
 }
 
 var helpCmd = &command{
