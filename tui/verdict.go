@@ -207,7 +207,7 @@ func mah(q float64) string { return units.MAh(q, 3) }
 
 func pct(part, whole float64) string {
 	if !(whole > 0) {
-		return "— %"
+		return "—" // no share: as run and compare write it, not "— %"
 	}
 	return units.Num(100*part/whole, 2) + " %"
 }

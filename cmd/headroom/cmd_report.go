@@ -6,6 +6,7 @@ import (
 	"flag"
 	"fmt"
 	"html/template"
+	"math"
 	"path/filepath"
 	"regexp"
 	"runtime/debug"
@@ -209,12 +210,16 @@ func buildReport(s *scenario.Scenario, command string) (*report, error) {
 		if row.r.RuntimeH > 0 {
 			ph = money(row.r.CostPerHour)
 		}
+		stranded := "—" // never starts: no share, as run and compare write it
+		if p := strandedPct(row.r); !math.IsNaN(p) {
+			stranded = fixed(p, 1) + " %"
+		}
 		run := units.Duration(row.r.RuntimeH, 3)
 		if row.short {
 			run += " (under a day's use)"
 		}
 		rep.Lineup = append(rep.Lineup, lineupLine{Cell: row.cell.ID, Pack: fmt.Sprintf("%d×%d", row.series, row.par),
-			Runtime: run, PerHour: ph, Stranded: fixed(strandedPct(row.r), 1) + " %",
+			Runtime: run, PerHour: ph, Stranded: stranded,
 			Cost: money(row.partCost), Caution: curves.ShortCaution(row.cell),
 			Current: row.cell == d.Cell && row.series == d.Series})
 	}
