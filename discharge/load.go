@@ -218,6 +218,24 @@ func (p Phase) Label() string {
 	return p.Load.Label()
 }
 
+// ProfileWords lists a profile for people, in the words every command and
+// the screen use: "motor wag 450 mA for 3 s, bark 120 mA for 2 s"; a profile
+// of one phase is its load alone ("120 mA", or "drive 120 mA" when named).
+func ProfileWords(prof []Phase) string {
+	parts := make([]string, 0, len(prof))
+	for _, p := range prof {
+		s := units.TrimZeros(p.Load.Label()) // the name is the user's, untouched
+		if p.Name != "" {
+			s = p.Name + " " + s
+		}
+		if len(prof) > 1 {
+			s += " for " + units.TrimZeros(units.Human(p.Seconds, units.Time, 3))
+		}
+		parts = append(parts, s)
+	}
+	return strings.Join(parts, ", ")
+}
+
 // ParseProfile reads one load ("120mA") or a repeating profile of phases
 // "LOAD/DURATION,..." such as "450mA/3s,120mA/2s,15mA/25s". A single load
 // with no duration is a one-phase profile.

@@ -120,3 +120,33 @@ func TestProfileRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// ProfileWords is the one wording of a load profile for people (run,
+// compare, spread, table, pick, report and the screen's line-up, pick view
+// and product view); expected strings written by hand.
+func TestProfileWords(t *testing.T) {
+	cases := []struct{ spec, want string }{
+		{"450mA/3s,120mA/2s,15mA/25s", "450 mA for 3 s, 120 mA for 2 s, 15 mA for 25 s"},
+		{"1.2W@85%/4s,250mA/1.5s", "1.2 W at 85 % for 4 s, 250 mA for 1.5 s"},
+		{"led:vf=2.0,r=47", "LED 2 V + 47 Ω"},
+		{"120mA", "120 mA"},
+		{"33ohm/90min,1mA/10s", "33 Ω for 1.5 h, 1 mA for 10 s"},
+	}
+	for _, c := range cases {
+		prof, err := ParseProfile(c.spec)
+		if err != nil {
+			t.Fatalf("%s: %v", c.spec, err)
+		}
+		if got := ProfileWords(prof); got != c.want {
+			t.Errorf("ProfileWords(%s) = %q, want %q", c.spec, got, c.want)
+		}
+	}
+	// A phase's name is the user's own and keeps its digits.
+	named := []Phase{
+		{Name: "mode 2.50", Load: Load{Kind: ConstantCurrent, Amps: 0.45}, Seconds: 3},
+		{Name: "idle", Load: Load{Kind: ConstantCurrent, Amps: 0.015}, Seconds: 25},
+	}
+	if got, want := ProfileWords(named), "mode 2.50 450 mA for 3 s, idle 15 mA for 25 s"; got != want {
+		t.Errorf("named phases: %q, want %q", got, want)
+	}
+}

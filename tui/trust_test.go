@@ -242,7 +242,7 @@ func TestStrangerAt80x24(t *testing.T) {
 	tm.Send(keyEnter)
 	tm.Send(runes("hum 40mA"))
 	tm.Send(keyEnter)
-	waitText(t, tm, "hum 40.0 mA")
+	waitText(t, tm, "hum 40 mA") // the commands' words (discharge.ProfileWords)
 	m := finish(t, tm)
 	if p := m.profile(); len(p) != 1 || p[0].Name != "hum" || p[0].Load.Amps != 0.04 {
 		t.Errorf("profile after typing one steady phase: %+v", p)

@@ -179,21 +179,9 @@ func peakLabel(prof []discharge.Phase) string {
 	return s
 }
 
-// profileLabel lists the phases: "motor wag 450 mA for 3 s, …".
-func profileLabel(prof []discharge.Phase) string {
-	var parts []string
-	for _, p := range prof {
-		s := p.Load.Label()
-		if p.Name != "" {
-			s = p.Name + " " + s
-		}
-		if len(prof) > 1 {
-			s += " for " + units.Human(p.Seconds, units.Time, 3)
-		}
-		parts = append(parts, s)
-	}
-	return strings.Join(parts, ", ")
-}
+// profileLabel lists the phases: "motor wag 450 mA for 3 s, …", in the
+// words the commands use (discharge.ProfileWords).
+func profileLabel(prof []discharge.Phase) string { return discharge.ProfileWords(prof) }
 
 // hours, days, mah, pct and money are the screen's names for the one
 // formatter (internal/units, eng.go).

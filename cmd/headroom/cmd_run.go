@@ -188,21 +188,9 @@ func runRecord(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) [
 	}
 }
 
-// loadWords lists the profile for people.
-func loadWords(d *discharge.Design) string {
-	if len(d.Profile) == 1 {
-		return trimZeros(d.Profile[0].Load.Label())
-	}
-	var parts []string
-	for _, p := range d.Profile {
-		t := trimZeros(p.Load.Label()) + " for " + human(p.Seconds, units.Time)
-		if p.Name != "" {
-			t = p.Name + " " + t
-		}
-		parts = append(parts, t)
-	}
-	return strings.Join(parts, ", ")
-}
+// loadWords lists the profile for people (discharge.ProfileWords, the
+// screen's words too).
+func loadWords(d *discharge.Design) string { return discharge.ProfileWords(d.Profile) }
 
 func packWords(d *discharge.Design) string {
 	s := fmt.Sprintf("%d × %s", d.Series, d.Cell.ID)

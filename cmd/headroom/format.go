@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"regexp"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -365,8 +364,6 @@ func short(x float64) string { return trimZeros(sig(x, 3)) }
 // human is units.Human with three digits and no trailing zeros.
 func human(v float64, k units.Kind) string { return trimZeros(units.Human(v, k, 3)) }
 
-var zerosRE = regexp.MustCompile(`(\d+\.\d*?[1-9])0+\b|(\d+)\.0+\b`)
-
 // trimAllZeros is trimZeros for every number in s: "1.20 W at 85.0 %" →
 // "1.2 W at 85 %".
-func trimAllZeros(s string) string { return zerosRE.ReplaceAllString(s, "$1$2") }
+func trimAllZeros(s string) string { return units.TrimZeros(s) }

@@ -2,6 +2,7 @@ package units
 
 import (
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
 )
@@ -250,3 +251,10 @@ func Short(v float64, sig int) string {
 	}
 	return s
 }
+
+var trailingZeros = regexp.MustCompile(`(\d+\.\d*?[1-9])0+\b|(\d+)\.0+\b`)
+
+// TrimZeros drops the trailing zeros after the decimal point of every
+// number in s, for words that name values people typed: "1.20 W at
+// 85.0 %" → "1.2 W at 85 %", "3.00 s" → "3 s".
+func TrimZeros(s string) string { return trailingZeros.ReplaceAllString(s, "$1$2") }
