@@ -116,3 +116,20 @@ func TestEngBelowFemto(t *testing.T) {
 		t.Errorf("Eng(6e-16, A, 3) = %q, want 0.600 fA", got)
 	}
 }
+
+// TrimZeros drops only zeros after a decimal point; expected strings
+// written by hand.
+func TestTrimZeros(t *testing.T) {
+	for in, want := range map[string]string{
+		"1.20 W at 85.0 %": "1.2 W at 85 %",
+		"3.00 s":           "3 s",
+		"100 mA":           "100 mA",
+		"10.2 h":           "10.2 h",
+		"2.50 V, 40.0 Ω":   "2.5 V, 40 Ω",
+		"0.00 V":           "0 V",
+	} {
+		if got := TrimZeros(in); got != want {
+			t.Errorf("TrimZeros(%q) = %q, want %q", in, got, want)
+		}
+	}
+}
