@@ -167,6 +167,14 @@ func runCompare(c *cli, args []string) error {
 	if f == formatText && len(misfits) > 0 {
 		_, err = fmt.Fprintf(c.stdout, "\nno series count fits: %s\n", strings.Join(misfits, ", "))
 	}
+	// A Markdown table pasted into a review keeps what its marks mean ("\*":
+	// a bare "* " would start a list).
+	if f == formatMD && anyShort(rows) {
+		_, err = fmt.Fprintf(c.stdout, "\n\\* lasts less than a day's use (%s): ranked after the cells that last a day, whatever their cost per hour.\n", useWords(&d))
+	}
+	if f == formatMD && len(misfits) > 0 {
+		_, err = fmt.Fprintf(c.stdout, "\nNo series count fits: %s.\n", strings.Join(misfits, ", "))
+	}
 	if f == formatText {
 		_, err = fmt.Fprintf(c.stdout, "\nFull cautions: headroom cells show ID. Charger and charging losses beyond the\ncharge efficiency are not counted for rechargeables.\n")
 	}

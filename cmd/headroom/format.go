@@ -298,7 +298,7 @@ func (t *tableWriter[T]) row(r T) {
 	case formatMD:
 		var cells []string
 		for _, c := range t.cols {
-			cells = append(cells, mdEscape(c.text(r)))
+			cells = append(cells, mdEscape(strings.TrimSpace(c.text(r)))) // text's alignment padding means nothing here
 		}
 		t.write("| " + strings.Join(cells, " | ") + " |\n")
 	case formatCSV:

@@ -313,3 +313,26 @@ func TestTableCostSortNeverRunsLast(t *testing.T) {
 		}
 	}
 }
+
+// compare's Markdown keeps what its marks mean: the demo's NiMH pairs last
+// under a day behind the diode (README, "Which chemistry"), so their
+// runtimes carry "*" and the table is followed by what "*" means, escaped
+// so that Markdown does not read it as a list; cells carry no padding.
+func TestCompareMarkdownExplainsMarks(t *testing.T) {
+	code, out, errs := runCLI(t, "compare", "--format", "md")
+	if code != 0 {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "| 0.43* |") {
+		t.Errorf("no hr6-lsd row marked as lasting under a day:\n%s", out)
+	}
+	if !strings.Contains(out, "\n\\* lasts less than a day's use (1 h a day)") {
+		t.Errorf("the mark is not explained under the table:\n%s", out)
+	}
+	if !strings.Contains(out, "No series count fits: 6lr61.") {
+		t.Errorf("the cell that does not fit is not named:\n%s", out)
+	}
+	if strings.Contains(out, "  |") {
+		t.Errorf("a cell keeps the text layout's padding:\n%s", out)
+	}
+}
