@@ -132,10 +132,11 @@ func primaryLithium(*Cell) []string {
 }
 
 const (
-	buttonCaution = "Coin and button cells are a swallowing hazard for children: keep the compartment screwed shut; toy-safety standards such as IEC 62115 set rules for battery compartments."
-	buttonShort   = "swallowing hazard: screw the compartment shut; "
-	mixCaution    = "Never mix old and new cells, or different chemistries, in one pack."
-	estimates     = "These are estimates, not certification: the cell maker's data and local codes come first."
+	buttonCaution  = "Coin and button cells are a swallowing hazard for children: keep the compartment screwed shut; toy-safety standards such as IEC 62115 set rules for battery compartments."
+	buttonShort    = "swallowing hazard: screw the compartment shut; "
+	mixCaution     = "Never mix old and new cells, or different chemistries, in one pack."
+	unknownCaution = "The cell's chemistry is not stated (a CSV cell or an imported log, or chemistry \"custom\"): follow its maker's cautions; a Li-ion or LiFePO4 cell needs a protection circuit and a charger made for it."
+	estimates      = "These are estimates, not certification: the cell maker's data and local codes come first."
 )
 
 // Cautions returns the usual cautions for the cell's chemistry and form, in
@@ -151,6 +152,10 @@ func PackCautions(c *Cell, n int) []string {
 	out := make([]string, 0, 8) // room for every caution: one allocation
 	if cc, ok := chemistryCautions[c.Chemistry]; ok {
 		out = append(out, cc.full(c)...)
+	} else {
+		// A CSV cell or an imported log says nothing of its chemistry:
+		// a Li-ion log must not read as a cell with nothing to heed.
+		out = append(out, unknownCaution)
 	}
 	if isButton(c) {
 		out = append(out, buttonCaution)

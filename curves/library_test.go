@@ -223,9 +223,11 @@ func TestCautions(t *testing.T) {
 	if strings.Contains(strings.Join(Cautions(c), " "), "swallowing") {
 		t.Error("an AA cell got the coin-cell caution")
 	}
+	// A cell whose chemistry is not stated (a CSV file, an imported Li-ion
+	// log) is told to follow its maker's cautions, Li-ion's named.
 	custom := &Cell{Chemistry: "custom"}
-	if got := Cautions(custom); len(got) != 2 || !strings.Contains(got[0], "mix") {
-		t.Errorf("custom cell cautions %q, want the two general ones", got)
+	if got := Cautions(custom); len(got) != 3 || !strings.Contains(got[0], "Li-ion") || !strings.Contains(got[1], "mix") {
+		t.Errorf("custom cell cautions %q, want the unstated chemistry's and the two general ones", got)
 	}
 }
 
