@@ -141,3 +141,15 @@ func TestCellsFitErrors(t *testing.T) {
 		t.Errorf("-o x.csv: %d %q", code, stderr)
 	}
 }
+
+// One log at one current gives R0 a single point: the report says so in
+// words, not "193 mΩ to 193 mΩ (1 points against depth)".
+func TestCellsFitOneR0Point(t *testing.T) {
+	code, stdout, stderr := runCLI(t, "cells", "fit", nasaCC4, "-o", filepath.Join(t.TempDir(), "one.toml"))
+	if code != 0 {
+		t.Fatalf("status %d: %s", code, stderr)
+	}
+	if strings.Contains(stdout, "1 points") || !strings.Contains(stdout, "at every depth (one point") {
+		t.Errorf("R0 of one point:\n%s", stdout)
+	}
+}

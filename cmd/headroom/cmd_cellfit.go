@@ -210,7 +210,9 @@ func writeFitText(c *cli, rep *cellfit.Report, cell *curves.Cell, out, plotOut s
 			line("", "extrapolated to %s V at %s mAh", fixed(rep.CurveEndV, 3), fixed(rep.CurveEndMAh, 0))
 		}
 	}
-	if len(rep.R0) > 0 {
+	if len(rep.R0) == 1 { // not "193 mΩ to 193 mΩ (1 points against depth)"
+		line("R0", "%s at every depth (one point: the logs show no change with depth)", human(rep.R0[0][1], units.Resistance))
+	} else if len(rep.R0) > 0 {
 		lo, hi := math.Inf(1), 0.0
 		for _, p := range rep.R0 {
 			lo, hi = min(lo, p[1]), max(hi, p[1])
