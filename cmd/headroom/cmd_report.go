@@ -89,6 +89,10 @@ func runReport(c *cli, args []string) error {
 		return fmt.Errorf("-o: %s: --format md writes Markdown: name the file .md", guard.Clean(*out))
 	case given && !md && (ext == ".md" || ext == ".markdown"):
 		return fmt.Errorf("-o: %s: --format html writes HTML: name the file .html, or give --format md", guard.Clean(*out))
+	case ext != "" && ext != ".html" && ext != ".htm" && ext != ".md" && ext != ".markdown":
+		// As plot refuses chart.jpg: HTML written as report.pdf opens as
+		// a broken file.
+		return fmt.Errorf("-o: %q: expected a file name ending in .html or .md", guard.Clean(*out))
 	}
 	s, err := designScenario(fs, pos)
 	if err != nil {

@@ -88,6 +88,7 @@ func TestErrors(t *testing.T) {
 		{"overwrite refused", []string{"plot", "-o", existing}, "-o: " + existing + " exists: add --force to replace it", true},
 		{"overwrite refused", []string{"cells", "import", log, "--current", "1A", "-o", existingCSV}, "-o: " + existingCSV + " exists: add --force to replace it", true},
 		{"bad plot name", []string{"plot", "-o", filepath.Join(dir, "chart.jpg")}, "expected a file name ending in .svg or .png", false},
+		{"bad report name", []string{"report", "-o", filepath.Join(dir, "report.pdf")}, "expected a file name ending in .html or .md", false},
 		{"bad --by", []string{"plot", "-o", filepath.Join(dir, "c.svg"), "--by", "volts"}, `--by: "volts": expected time or charge`, true},
 		{"import without current", []string{"cells", "import", log, "-o", filepath.Join(dir, "x.csv")}, "--current is required", false},
 		{"import current kind", []string{"cells", "import", log, "--current", "2V", "-o", filepath.Join(dir, "x.csv")}, `--current: "2V" is a voltage (V), expected a current (A)`, true},
