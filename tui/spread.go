@@ -107,8 +107,9 @@ func (sh *shared) spreadBand() (p10, p90 float64, ok bool) {
 }
 
 // spreadVerdict is the verdict's spread lines: the p10 in words and the
-// worst corner.
-func (sh *shared) spreadVerdict(line func(label, value, note string)) {
+// worst corner. Compact (80×24) leaves out "(p10)", which the label says
+// in words, so that the worst corner's unit is not cut ("44.9 m…").
+func (sh *shared) spreadVerdict(line func(label, value, note string), compact bool) {
 	s := &sh.spread
 	switch {
 	case sh.err != nil:
@@ -123,7 +124,11 @@ func (sh *shared) spreadVerdict(line func(label, value, note string)) {
 		if !(c.WorstH() > 0) {
 			worst = "worst never starts" // not "0 h" beside a p10 in minutes
 		}
-		line("9 of 10 run", "≥ "+hours(st.P10H), "(p10), "+worst)
+		if compact {
+			line("9 of 10 run", "≥ "+hours(st.P10H)+",", worst)
+		} else {
+			line("9 of 10 run", "≥ "+hours(st.P10H), "(p10), "+worst)
+		}
 	}
 }
 

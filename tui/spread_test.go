@@ -77,6 +77,27 @@ func TestSpreadFillsVerdict(t *testing.T) {
 	}
 }
 
+// At 80×24 the verdict keeps one line a figure; the worst corner's unit is
+// whole ("44.9 min", not "44.9 m…" as before the compact line dropped
+// "(p10)", which its label says in words).
+func TestSpreadVerdictCompact(t *testing.T) {
+	m := New(nil)
+	var tm tea.Model = m
+	first := m.Init()
+	tm, _ = tm.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	tm = settle(t, tm, first)
+	view := ansi.Strip(tm.View())
+	d := m.shared.design()
+	rep, err := tolerance.Analyse(&d, m.scen.Tolerances, m.scen.Samples, m.scen.Seed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "9 of 10 run     ≥ " + hours(rep.Stats.P10H) + ", worst " + hours(rep.Corner.WorstH()) + " "
+	if !strings.Contains(view, want) {
+		t.Errorf("no %q at 80×24:\n%s", want, view)
+	}
+}
+
 // The spread view at 100×30 (colour stripped) against its golden file;
 // go test ./tui -run TestSpreadView -update rewrites it.
 func TestSpreadView(t *testing.T) {

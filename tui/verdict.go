@@ -57,7 +57,7 @@ func (m verdictModel) View(sh *shared) string {
 		line("Runtime", hours(r.RuntimeH), "of use")
 		line("", cal, fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
 	}
-	sh.spreadVerdict(line)
+	sh.spreadVerdict(line, m.compact)
 	line("Delivered", mah(r.DeliveredMAh), "drawn from the pack")
 	switch {
 	case !started:
