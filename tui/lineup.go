@@ -106,7 +106,10 @@ func (m lineupModel) View(sh *shared) string {
 			maxRun = math.Max(maxRun, r.res.RuntimeH)
 		}
 	}
-	const cellW, runW, barW, costW, strW = 30, runtimeW, 12, 10, 9
+	const cellW, runW, costW, strW = 30, runtimeW, 10, 9
+	// The bar gives way first, so that at 80 columns the Stranded column
+	// keeps its heading (it read "Strande…").
+	barW := min(12, max(4, w-(5+cellW+1+runW+1+1+costW+1+strW+1)))
 	causeW := max(0, w-(5+cellW+1+runW+1+barW+1+costW+1+strW+1))
 	head := "   # " + pad("Cell", cellW) + " " + pad("Runtime", runW+1+barW) + " " +
 		pad("Cost/hour", costW) + " " + pad("Stranded", strW) + " " + pad("Stops because", causeW)

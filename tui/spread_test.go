@@ -116,3 +116,19 @@ func TestSpreadView(t *testing.T) {
 	}
 	goldentest.Check(t, filepath.Join("testdata", "TestSpreadView.golden"), got)
 }
+
+// At 80 columns the line-up's bars give way before its headings: the
+// Stranded column's heading is whole (it read "Strande…").
+func TestLineupHeadingsAt80(t *testing.T) {
+	m := New(nil)
+	var tm tea.Model = m
+	first := m.Init()
+	tm, _ = tm.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	tm = settle(t, tm, first)
+	tm, cmd := tm.Update(runes("2"))
+	tm = settle(t, tm, cmd)
+	view := ansi.Strip(tm.View())
+	if !strings.Contains(view, "Cost/hour  Stranded") || strings.Contains(view, "Strande…") {
+		t.Errorf("the line-up's headings are cut at 80×24:\n%s", view)
+	}
+}
