@@ -1,6 +1,10 @@
 package protect
 
-import "math"
+import (
+	"math"
+
+	"headroom/internal/units"
+)
 
 // Element is an input-protection element in series between the pack and
 // the load. Currents are in amperes, positive from the pack into the load;
@@ -145,6 +149,25 @@ type Case struct {
 	// °C, from its thermal network: by the time a fuse opens, or settled
 	// when nothing opens; 0 when it does not heat worth the name.
 	JunctionC float64
+}
+
+// Words is the case in a few words, its current and, for a fuse, the time
+// it takes to open: "blocked, 5.4 nA", "fuse opens, 5.1 A for 4.9 ms",
+// "not seen" (no current). Two digits, as the Note's figures; the screen's
+// reversed-cells view and the report both write it.
+func (c Case) Words() string {
+	s := c.Outcome.String()
+	if c.Current > 0 {
+		s += ", " + units.Eng(c.Current, units.Current, 2)
+	}
+	if c.Seconds > 0 {
+		if c.Seconds < 1 {
+			s += " for " + units.Prefixed(c.Seconds, 2, "s") // ms, not a fraction of a second
+		} else {
+			s += " for " + units.Eng(c.Seconds, units.Time, 2)
+		}
+	}
+	return s
 }
 
 // Reversal holds the two wrong insertions: the whole pack reversed, and one

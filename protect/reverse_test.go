@@ -76,3 +76,23 @@ func finite(vs ...float64) bool {
 	}
 	return true
 }
+
+// Case.Words, the reversed-cells words of the screen and the report;
+// expected strings written by hand (two digits, ms below a second).
+func TestCaseWords(t *testing.T) {
+	cases := []struct {
+		c    Case
+		want string
+	}{
+		{Case{Outcome: Blocked, Current: 5.44e-9}, "blocked, 5.4 nA"},
+		{Case{Outcome: FuseOpens, Current: 5.14, Seconds: 0.00492}, "fuse opens, 5.1 A for 4.9 ms"},
+		{Case{Outcome: FuseOpens, Current: 0.9, Seconds: 12}, "fuse opens, 900 mA for 12 s"},
+		{Case{Outcome: Unseen}, "not seen"},
+		{Case{Outcome: Blocked, Current: 1e-6}, "blocked, 1.0 µA"},
+	}
+	for _, c := range cases {
+		if got := c.c.Words(); got != c.want {
+			t.Errorf("%+v: %q, want %q", c.c, got, c.want)
+		}
+	}
+}

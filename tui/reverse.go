@@ -8,7 +8,6 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
 
-	"headroom/internal/units"
 	"headroom/protect"
 )
 
@@ -49,10 +48,7 @@ func (m *reverseModel) selectCurrent(sh *shared) {
 
 // caseText is one wrong insertion in a few words.
 func caseText(c protect.Case) string {
-	s := c.Outcome.String() + ", " + amps(c.Current)
-	if c.Seconds > 0 {
-		s += " for " + seconds(c.Seconds)
-	}
+	s := c.Words() // the report's words too
 	v := c.Volts
 	if math.Abs(v) < 0.005 {
 		v = 0 // no "-0.00 V"
@@ -115,15 +111,4 @@ func (m reverseModel) outcome(sh *shared, c protect.Case, w int) string {
 		return st.Warn.Render(s)
 	}
 	return st.Bad.Render(s)
-}
-
-// amps writes a current for the reverse table (units.Eng, two digits).
-func amps(a float64) string { return units.Eng(a, units.Current, 2) }
-
-// seconds writes a time for the reverse table: ms below a second.
-func seconds(s float64) string {
-	if s < 1 {
-		return units.Prefixed(s, 2, "s")
-	}
-	return units.Eng(s, units.Time, 2)
 }

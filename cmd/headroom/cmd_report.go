@@ -311,16 +311,7 @@ func protectWords(e protect.Element) string {
 }
 
 // caseWords is one wrong insertion in a few words.
-func caseWords(c protect.Case) string {
-	s := c.Outcome.String()
-	if c.Current > 0 {
-		s += ", " + human(c.Current, units.Current)
-	}
-	if c.Seconds > 0 {
-		s += " for " + human(c.Seconds, units.Time)
-	}
-	return s
-}
+func caseWords(c protect.Case) string { return c.Words() }
 
 // inlineSVG strips the XML prolog gonum/plot writes, so the drawing can sit
 // inside an HTML page.
