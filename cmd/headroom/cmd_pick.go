@@ -47,15 +47,16 @@ flags:
   --format text|json|csv|md   output format (default text)
 
 Limits, one sentence each:
-  need          the runtime in hours of use, at the statistic --at names, must be at least this.
-  budget        the cells plus the protection part must cost at most this per unit.
-  max-cells     the pack may hold at most this many cells (series × parallel).
-  max-stranded  at most this share of the cells' charge at this load may be left unused.
-  max-junction  the protection part's junction must stay at or below this temperature.
+  need            the runtime in hours of use, at the statistic --at names, must be at
+                  least this.
+  budget          the cells plus the protection part must cost at most this per unit.
+  max-cells       the pack may hold at most this many cells (series × parallel).
+  max-stranded    at most this share of the cells' charge at this load may be left unused.
+  max-junction    the protection part's junction must stay at or below this temperature.
   block-reversed  the whole pack put in backwards must be blocked; one flipped cell must
-                never put a reversed voltage on the load (no series part can see it).
-  max-input     the fresh pack's open-circuit voltage must be at most this (default 1.5 ×
-                the file's own design).
+                  never put a reversed voltage on the load (no series part can see it).
+  max-input       the fresh pack's open-circuit voltage must be at most this (default
+                  1.5 × the file's own design).
 
 examples:
   headroom pick --need 20h
