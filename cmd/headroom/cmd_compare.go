@@ -17,7 +17,7 @@ import (
 var compareCmd = &command{
 	name:  "compare",
 	run:   runCompare,
-	args:  "[scenario.toml] [--budget DOLLARS] [--within-budget] [--sort cost|runtime] [--format text|json|csv|md]",
+	args:  "[scenario.toml] [--budget DOLLARS] [--within-budget] [--sort cost|runtime|worst|p10] [--format text|json|csv|md]",
 	short: "every chemistry that fits the product, ranked by cost per hour of use",
 	help: `
 Tries every library cell (and the scenario file's own cells) in the product:
