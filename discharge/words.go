@@ -103,10 +103,15 @@ func (p Phase) Demand() float64 {
 // CalendarText is how long the product lasts on the calendar at its daily
 // use: "10.2 days", or "within the first day" when it stops before one
 // day's use is over (49 min of use at 1 h a day is not "19.6 h" of
-// calendar time: it stops 49 min into the first session).
+// calendar time: it stops 49 min into the first session). A span of one
+// day or more is in days below 100 h too ("3.25 days", not "78.1 h" beside
+// "26.0 h of use", which read as two runtimes).
 func (d *Design) CalendarText(r *Result) string {
 	if d.HoursPerDay > 0 && r.RuntimeH > 0 && r.RuntimeH < d.HoursPerDay {
 		return "within the first day"
+	}
+	if h := 24 * r.RuntimeDays; h >= 24 && h < 100 {
+		return units.Num(r.RuntimeDays, 3) + " days"
 	}
 	return units.Duration(24*r.RuntimeDays, 3)
 }
