@@ -231,13 +231,17 @@ func runText(s *scenario.Scenario, d *discharge.Design, r *discharge.Result) []b
 	line("conditions", "floor %s V, %s, %s, standby %s", fixed(d.Floor, 2), human(d.TempC, units.Temperature), use, human(d.Standby, units.Current))
 	b.WriteByte('\n')
 
-	if d.HoursPerDay > 0 && d.HoursPerDay < 24 {
+	switch {
+	case !(r.RuntimeH > 0):
+		// Not "0 h of use = 0 h at 1 h a day": the cut-off line says why.
+		line("runtime", "0 h: the product does not start")
+	case d.HoursPerDay > 0 && d.HoursPerDay < 24:
 		sep := " = "
 		if r.RuntimeH > 0 && r.RuntimeH < d.HoursPerDay {
 			sep = ", " // "49.0 min of use, within the first day"
 		}
 		line("runtime", "%s of use%s%s at %s h a day", units.Duration(r.RuntimeH, 3), sep, d.CalendarText(r), short(d.HoursPerDay))
-	} else {
+	default:
 		line("runtime", "%s of continuous use", units.Duration(r.RuntimeH, 3))
 	}
 	line("delivered", "%s from the pack, %s into the load", mAh(r.DeliveredMAh), units.Prefixed(r.DeliveredWh, 3, "Wh"))

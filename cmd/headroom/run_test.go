@@ -219,3 +219,15 @@ func TestExitStatuses(t *testing.T) {
 		t.Errorf("panic: status %d, stderr %q; want 1, the message and a stack", code, errb.String())
 	}
 }
+
+// A design that never starts says so on the runtime line, not "0 h of use
+// = 0 h at 1 h a day" (README, "Bad input": the floor above the pack).
+func TestRunNeverStartsWords(t *testing.T) {
+	code, out, errs := runCLI(t, "run", "--floor", "5V")
+	if code != 0 {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "runtime    0 h: the product does not start\n") || strings.Contains(out, "= 0 h at") {
+		t.Errorf("runtime line:\n%s", out)
+	}
+}
