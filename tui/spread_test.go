@@ -132,3 +132,24 @@ func TestLineupHeadingsAt80(t *testing.T) {
 		t.Errorf("the line-up's headings are cut at 80×24:\n%s", view)
 	}
 }
+
+// A design that never starts says so on the Runtime row, as run does, not
+// "0 h of use" over "0 h at 1 h a day".
+func TestVerdictNeverStarts(t *testing.T) {
+	m := New(nil)
+	var tm tea.Model = m
+	tm, _ = tm.Update(tea.WindowSizeMsg{Width: 120, Height: 40})
+	for range 6 { // down to the floor
+		tm, _ = tm.Update(keyDown)
+	}
+	tm, _ = tm.Update(keyEnter)
+	tm, _ = tm.Update(runes("5V"))
+	tm, _ = tm.Update(keyEnter)
+	view := ansi.Strip(tm.View())
+	if !strings.Contains(view, "Floor        5.00 V") {
+		t.Fatalf("the floor was not set to 5 V:\n%s", view)
+	}
+	if !strings.Contains(view, "Runtime         0 h (the product does not start)") || strings.Contains(view, "0 h at 1 h a day") {
+		t.Errorf("runtime rows of a design that never starts:\n%s", view)
+	}
+}

@@ -51,9 +51,12 @@ func (m verdictModel) View(sh *shared) string {
 	}
 	_, started := r.StrandedShare()
 	cal := (&discharge.Design{HoursPerDay: sh.vals.hours}).CalendarText(r)
-	if m.compact {
+	switch {
+	case !(r.RuntimeH > 0): // not "0 h of use, 0 h at 1 h a day", as run
+		line("Runtime", hours(0), "(the product does not start)")
+	case m.compact:
 		line("Runtime", hours(r.RuntimeH), "of use ("+cal+")")
-	} else {
+	default:
 		line("Runtime", hours(r.RuntimeH), "of use")
 		line("", cal, fmt.Sprintf("at %s h a day", trimFloat(sh.vals.hours)))
 	}
