@@ -291,7 +291,11 @@ func summaryText(d *discharge.Design, r *discharge.Result) string {
 	if d.HoursPerDay > 0 {
 		days += " at " + short(d.HoursPerDay) + " h a day"
 	}
-	fmt.Fprintf(&b, "Runtime %s of use (%s).\n", units.Duration(r.RuntimeH, 3), days)
+	if r.RuntimeH > 0 {
+		fmt.Fprintf(&b, "Runtime %s of use (%s).\n", units.Duration(r.RuntimeH, 3), days)
+	} else {
+		b.WriteString("Runtime 0 h: the product does not start.\n") // as run says it
+	}
 	if _, ok := r.StrandedShare(); ok {
 		fmt.Fprintf(&b, "Stranded %s of a %s reference (%s %%): %s, %s by the floor.\n",
 			mAh(r.StrandedMAh), mAh(r.ReferenceMAh), fixed(strandedPct(r), 1), r.ProtectionShareText(), mAh(r.StrandedByFloorMAh))

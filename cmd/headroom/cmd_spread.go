@@ -233,7 +233,11 @@ func hoursWords(h float64) string {
 func spreadText(b *bytes.Buffer, s *scenario.Scenario, rep *tolerance.Report) {
 	c, st := rep.Corner, rep.Stats
 	line := func(k, format string, a ...any) { fmt.Fprintf(b, "%-10s %s\n", k, fmt.Sprintf(format, a...)) }
-	line("nominal", "%s of use", hoursWords(c.NominalH()))
+	if c.NominalH() > 0 {
+		line("nominal", "%s of use", hoursWords(c.NominalH()))
+	} else {
+		line("nominal", "%s", hoursWords(0)) // not "0 h (does not start) of use"
+	}
 	if st.P10H > 0 {
 		line("p10", "at least %s in 9 of 10 products", units.Duration(st.P10H, 3))
 	} else {

@@ -231,3 +231,24 @@ func TestRunNeverStartsWords(t *testing.T) {
 		t.Errorf("runtime line:\n%s", out)
 	}
 }
+
+// The report's summary and spread's nominal line of a design that never
+// starts read as run's, not "0 h of use (0 h at 1 h a day)" or "0 h (does
+// not start) of use".
+func TestNeverStartsWordsElsewhere(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "ns.md")
+	if code, _, errs := runCLI(t, "report", "--floor", "5V", "-o", out); code != 0 {
+		t.Fatalf("report: %s", errs)
+	}
+	md, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(md), "Runtime 0 h: the product does not start.") || strings.Contains(string(md), "0 h at 1 h a day") {
+		t.Errorf("report summary:\n%s", md)
+	}
+	_, sp, _ := runCLI(t, "spread", "--floor", "5V", "--samples", "50")
+	if !strings.Contains(sp, "nominal    0 h (does not start)\n") {
+		t.Errorf("spread:\n%s", sp)
+	}
+}
