@@ -86,8 +86,12 @@ func (m lineupModel) View(sh *shared) string {
 		order, other = "runtime (longest first)", "cost per hour"
 	}
 	b.WriteString(st.Heading.Render("Cell line-up") + "\n")
-	intro := fmt.Sprintf("Every cell, %d string(s) in parallel, in the series count (S) whose nominal voltage is closest to this pack's without starting above %.1f× its fresh voltage; same load (%s), protection (%s), floor (%.2f V) and ambient (%s). Ranked by %s; press o to rank by %s.",
-		v.parallel, scenario.FreshLimit, profileLabel(sh.profile()), v.elem.Kind(), v.floor, trimFloat(v.tempC)+" °C", order, other)
+	strs := fmt.Sprintf("%d strings", v.parallel) // the knob's words: "1 string", "2 strings"
+	if v.parallel == 1 {
+		strs = "1 string"
+	}
+	intro := fmt.Sprintf("Every cell, %s in parallel, in the series count (S) whose nominal voltage is closest to this pack's without starting above %.1f× its fresh voltage; same load (%s), protection (%s), floor (%.2f V) and ambient (%s). Ranked by %s; press o to rank by %s.",
+		strs, scenario.FreshLimit, profileLabel(sh.profile()), v.elem.Kind(), v.floor, trimFloat(v.tempC)+" °C", order, other)
 	intro2 := wrapLines(intro, w)
 	if len(intro2) > 4 { // a long profile must not push the table off the screen
 		intro2 = append(intro2[:3:3], "… ranked by "+order+"; press o to rank by "+other+".")
