@@ -89,8 +89,8 @@ func (m reverseModel) View(sh *shared) string {
 		r := sh.reverseRows[m.sel]
 		notes := []string{
 			r.kind + ": " + protect.Describe(r.kind) + ".",
-			"Whole pack reversed: " + r.rev.WholePack.Note,
-			"One cell flipped: " + r.rev.OneCell.Note,
+			"Whole pack reversed: " + sentence(r.rev.WholePack.Note),
+			"One cell flipped: " + sentence(r.rev.OneCell.Note),
 		}
 		for _, n := range notes {
 			b.WriteString(wrap(n, w) + "\n")
@@ -111,4 +111,12 @@ func (m reverseModel) outcome(sh *shared, c protect.Case, w int) string {
 		return st.Warn.Render(s)
 	}
 	return st.Bad.Render(s)
+}
+
+// sentence ends a case's note with a full stop, as the line above it ends.
+func sentence(s string) string {
+	if s == "" || strings.HasSuffix(s, ".") {
+		return s
+	}
+	return s + "."
 }
