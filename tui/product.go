@@ -84,7 +84,7 @@ func (sh *shared) productShown(f productField) string {
 	case fieldPhases:
 		return profileLabel(v.base)
 	case fieldStandby:
-		return units.Eng(v.standby, units.Current, 3)
+		return units.TrimZeros(units.Eng(v.standby, units.Current, 3)) // "30 µA", as run writes it
 	case fieldPrice:
 		if !v.priceGiven && v.price == 0 {
 			return "the cells' price"
