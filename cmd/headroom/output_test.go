@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -334,5 +335,18 @@ func TestCompareMarkdownExplainsMarks(t *testing.T) {
 	}
 	if strings.Contains(out, "  |") {
 		t.Errorf("a cell keeps the text layout's padding:\n%s", out)
+	}
+}
+
+// The chart's tick labels are numbers as people write them: the demo by
+// charge runs to about 2700 mAh, whose 500 mAh steps gonum labels
+// "2500.00"; ours read "2500".
+func TestPlotTickLabels(t *testing.T) {
+	svg, err := chart(scenario.Demo(), true, "svg")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(string(svg), "2500.00") || !strings.Contains(string(svg), ">2500<") {
+		t.Errorf("tick labels of the charge axis: %s", regexp.MustCompile(`>[0-9.]+<`).FindAllString(string(svg), -1))
 	}
 }
