@@ -12,6 +12,8 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 	"gonum.org/v1/plot/vg/vgsvg"
+
+	"headroom/internal/ticks"
 )
 
 // Colours that stay apart for the common colour-vision deficiencies
@@ -29,6 +31,7 @@ func (r *Result) Plot(format string) ([]byte, error) {
 	plots := make([][]*plot.Plot, n)
 	for i, f := range r.Fits {
 		p := plot.New()
+		p.X.Tick.Marker, p.Y.Tick.Marker = ticks.Plain{}, ticks.Plain{}
 		p.Title.Text = fmt.Sprintf("%s: residual RMS %.1f mV, worst %.0f mV", safeName(f.Log.Name), f.RMS*1e3, f.Worst*1e3)
 		p.Title.TextStyle.Font.Size = vg.Points(10)
 		p.X.Label.Text = "time (min)"

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"image/color"
 	"path/filepath"
-	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -17,7 +16,7 @@ import (
 	"headroom/discharge"
 	"headroom/internal/guard"
 	"headroom/internal/scenario"
-	"headroom/internal/units"
+	"headroom/internal/ticks"
 )
 
 var plotCmd = &command{
@@ -116,30 +115,6 @@ func runPlot(c *cli, args []string) error {
 	return err
 }
 
-// plainTicks is gonum's default ticks with the labels written with the
-// fewest decimals that every label of the axis needs: "0, 2500", not
-// "0.00, 2500.00" (the default's decimals came out two on a 500 mAh step),
-// and still "1.8, 2.4, 3.0".
-type plainTicks struct{}
-
-func (plainTicks) Ticks(lo, hi float64) []plot.Tick {
-	ts := plot.DefaultTicks{}.Ticks(lo, hi)
-	dec := 0
-	for _, t := range ts {
-		if t.Label != "" {
-			if i := strings.IndexByte(units.Short(t.Value, 6), '.'); i >= 0 {
-				dec = max(dec, len(units.Short(t.Value, 6))-i-1)
-			}
-		}
-	}
-	for i := range ts {
-		if ts[i].Label != "" {
-			ts[i].Label = strconv.FormatFloat(ts[i].Value, 'f', dec, 64)
-		}
-	}
-	return ts
-}
-
 // chart draws the scenario and returns the file's bytes.
 func chart(s *scenario.Scenario, byCharge bool, ext string) ([]byte, error) {
 	p := plot.New()
@@ -155,7 +130,7 @@ func chart(s *scenario.Scenario, byCharge bool, ext string) ([]byte, error) {
 		p.X.Label.Text = "charge drawn from the pack (mAh)"
 	}
 	p.Y.Label.Text = "voltage (V)"
-	p.X.Tick.Marker, p.Y.Tick.Marker = plainTicks{}, plainTicks{}
+	p.X.Tick.Marker, p.Y.Tick.Marker = ticks.Plain{}, ticks.Plain{}
 	p.Add(plotter.NewGrid())
 	// Voltages fall from the top left to the floor: the top right is free.
 	p.Legend.Top = true

@@ -13,6 +13,7 @@ import (
 
 	"headroom/internal/pick"
 	"headroom/internal/scenario"
+	"headroom/internal/ticks"
 )
 
 // frontChart draws unit cost against runtime: every design meeting the
@@ -21,6 +22,7 @@ import (
 // vertical one.
 func frontChart(s *scenario.Scenario, out *pick.Outcome, ext string) ([]byte, error) {
 	p := plot.New()
+	p.X.Tick.Marker, p.Y.Tick.Marker = ticks.Plain{}, ticks.Plain{}
 	title := s.Name
 	if title == "" {
 		title = filepath.Base(s.Path)
