@@ -287,7 +287,7 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 			if errors.Is(err, flag.ErrHelp) {
 				return nil, errHelp
 			}
-			return nil, flagError(err)
+			return nil, flagError(fs.Name(), err)
 		}
 		rest := fs.Args()
 		used := len(args) - len(rest)
@@ -331,11 +331,13 @@ func isUnit(s string) bool {
 	return false
 }
 
-// flagError rewrites the flag package's messages in our one-line style.
-func flagError(err error) error {
+// flagError rewrites the flag package's messages in our one-line style;
+// cmd is the flag set's name ("headroom cells show"), so that the hint
+// names the help that lists the flags.
+func flagError(cmd string, err error) error {
 	msg := err.Error()
 	if name, ok := strings.CutPrefix(msg, "flag provided but not defined: "); ok {
-		return fmt.Errorf("unknown flag %s (see -h for the flags)", dashes(strings.TrimLeft(name, "-")))
+		return fmt.Errorf("unknown flag %s (see %s -h for the flags)", dashes(strings.TrimLeft(name, "-")), cmd)
 	}
 	if name, ok := strings.CutPrefix(msg, "flag needs an argument: "); ok {
 		return fmt.Errorf("%s: needs a value", dashes(strings.TrimLeft(name, "-")))
