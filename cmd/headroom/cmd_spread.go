@@ -150,6 +150,9 @@ func runSpread(c *cli, args []string) error {
 	case formatMD:
 		var b bytes.Buffer
 		spreadMarkdown(&b, rep)
+		// As the text and the report say it: the tables alone would pass
+		// remembered defaults off as the parts' data.
+		b.WriteString("\nThe default tolerances are typical values from memory: set yours in the scenario's [tolerance] table from your data sheets.\n")
 		_, err = c.stdout.Write(b.Bytes())
 		return err
 	}

@@ -350,3 +350,15 @@ func TestPlotTickLabels(t *testing.T) {
 		t.Errorf("tick labels of the charge axis: %s", regexp.MustCompile(`>[0-9.]+<`).FindAllString(string(svg), -1))
 	}
 }
+
+// spread's Markdown says, as its text does, that the default tolerances are
+// remembered typical values, not the parts' data.
+func TestSpreadMarkdownSaysDefaultsAreTypical(t *testing.T) {
+	code, out, errs := runCLI(t, "spread", "--format", "md", "--samples", "50")
+	if code != 0 {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "typical values from memory") {
+		t.Errorf("no note on the default tolerances:\n%s", out)
+	}
+}
