@@ -178,6 +178,11 @@ func runCompare(c *cli, args []string) error {
 	if f == formatText {
 		_, err = fmt.Fprintf(c.stdout, "\nFull cautions: headroom cells show ID. Charger and charging losses beyond the\ncharge efficiency are not counted for rechargeables.\n")
 	}
+	if (f == formatText || f == formatMD) && d.Toy {
+		// The product's own caution, as run and pick give it: the line-up
+		// offers Li-ion and coin cells for a toy.
+		_, err = fmt.Fprintf(c.stdout, "\n%s\n", discharge.ToyCaution)
+	}
 	return err
 }
 

@@ -362,3 +362,14 @@ func TestSpreadMarkdownSaysDefaultsAreTypical(t *testing.T) {
 		t.Errorf("no note on the default tolerances:\n%s", out)
 	}
 }
+
+// compare of a toy ends with the toy-safety caution, as run and pick do
+// (its line-up offers Li-ion and coin cells); a product that is not a toy
+// does not get it.
+func TestCompareToyCaution(t *testing.T) {
+	_, toy, _ := runCLI(t, "compare")
+	_, not, _ := runCLI(t, "compare", "--toy", "no")
+	if !strings.Contains(toy, "IEC 62115") || strings.Contains(not, "IEC 62115") {
+		t.Errorf("toy caution: toy %v, not a toy %v", strings.Contains(toy, "IEC 62115"), strings.Contains(not, "IEC 62115"))
+	}
+}
