@@ -13,6 +13,7 @@ import (
 	"github.com/charmbracelet/bubbles/progress"
 
 	"headroom/curves"
+	"headroom/discharge"
 	"headroom/internal/pick"
 	"headroom/internal/scenario"
 	"headroom/internal/units"
@@ -501,7 +502,10 @@ func pickText(w io.Writer, s *scenario.Scenario, sp *pick.Space, out *pick.Outco
 	if len(cautions) > 0 {
 		fmt.Fprintf(w, "Cautions (full text: headroom cells show ID):\n%s\n", strings.Join(cautions, "\n"))
 	}
-	_, err := fmt.Fprintf(w, "Electric toys fall under toy-safety standards (IEC 62115 and local equivalents);\ndefer to them and to licensed practice.\n")
+	if !d.Toy { // the product's own caution, for a toy only, as run gives it
+		return nil
+	}
+	_, err := fmt.Fprintf(w, "%s\n", strings.Replace(discharge.ToyCaution, "; ", ";\n", 1))
 	return err
 }
 

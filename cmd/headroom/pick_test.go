@@ -115,3 +115,17 @@ func TestPickCSV(t *testing.T) {
 		t.Errorf("rows per set %v", sets)
 	}
 }
+
+// pick gives the toy-safety caution for a toy (the demo) and not for a
+// product that is not one.
+func TestPickToyCautionOnlyForToys(t *testing.T) {
+	notToy := filepath.Join(t.TempDir(), "lamp.toml")
+	if err := os.WriteFile(notToy, []byte("name = \"lamp\"\nload = \"100mA\"\nfloor = \"1.0V\"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, toy, _ := runCLI(t, "pick", "--need", "20h")
+	_, not, errs := runCLI(t, "pick", notToy, "--need", "1h")
+	if !strings.Contains(toy, "IEC 62115") || strings.Contains(not, "IEC 62115") || not == "" {
+		t.Errorf("toy caution: toy %v, not a toy %v (%s)", strings.Contains(toy, "IEC 62115"), strings.Contains(not, "IEC 62115"), errs)
+	}
+}
