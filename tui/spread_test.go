@@ -9,6 +9,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"headroom/internal/goldentest"
+	"headroom/internal/scenario"
 	"headroom/tolerance"
 )
 
@@ -151,5 +152,23 @@ func TestVerdictNeverStarts(t *testing.T) {
 	}
 	if !strings.Contains(view, "Runtime         0 h (the product does not start)") || strings.Contains(view, "0 h at 1 h a day") {
 		t.Errorf("runtime rows of a design that never starts:\n%s", view)
+	}
+}
+
+// At 80×24 the example scenario's protection heat row is whole: its
+// "(72.5 mWh in all)" was cut to "in al…" before the compact row dropped
+// the brackets.
+func TestCompactHeatRowWhole(t *testing.T) {
+	s, err := scenario.Load(filepath.Join("..", "testdata", "scenarios", "example.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var tm tea.Model = New(s)
+	tm, _ = tm.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	view := ansi.Strip(tm.View())
+	for _, l := range strings.Split(view, "\n") {
+		if strings.HasPrefix(l, "Protection heat") && (strings.Contains(string([]rune(l)[:46]), "…") || !strings.Contains(l, "in all")) {
+			t.Errorf("heat row cut: %q", l)
+		}
 	}
 }

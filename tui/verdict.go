@@ -78,7 +78,11 @@ func (m verdictModel) View(sh *shared) string {
 		}
 		line(" by the floor", mah(r.StrandedByFloorMAh), "("+pct(r.StrandedByFloorMAh, r.ReferenceMAh)+")")
 	}
-	line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
+	if m.compact { // two characters fewer: the example's "(72.5 mWh in all)" was cut at 80×24
+		line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak,", units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all")
+	} else {
+		line("Protection heat", units.Human(r.ProtectionPeakW, units.Power, 3)+" peak", "("+units.Human(r.ProtectionLossWh, units.Power, 3)+"h in all)")
+	}
 	if r.JunctionRunaway {
 		line("Junction", "runs away", "none settles: press w")
 	} else {
