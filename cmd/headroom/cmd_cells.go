@@ -182,9 +182,10 @@ func cellsShow(c *cli, args []string) error {
 	if len(cell.RC) > 0 {
 		var ps []string
 		for _, b := range cell.RC {
-			ps = append(ps, fmt.Sprintf("%s for %s", human(b.R, units.Resistance), human(b.Tau, units.Time)))
+			// As cells fit writes a branch: "for 2 s" read as how long it lasts.
+			ps = append(ps, fmt.Sprintf("%s, τ %s", human(b.R, units.Resistance), human(b.Tau, units.Time)))
 		}
-		line("polarisation", "%s (RC branches: ohms, time constant)", strings.Join(ps, ", "))
+		line("polarisation", "%s (RC branches: ohms and time constant τ)", strings.Join(ps, "; "))
 	}
 	if cell.SelfHeats() {
 		line("self-heating", "%s J/K heat capacity, %s K/W to the ambient (time constant %s)",
